@@ -1,0 +1,52 @@
+/**
+ * The common log-λ grid that every prepared spectrum and every standard is sampled on.
+ * A constant step in ln λ is a constant velocity step, so a radial-velocity shift is a pixel shift.
+ */
+export interface LogGrid {
+  /** First pixel centre, Å (air). */
+  start: number
+  /** Step in natural-log wavelength. */
+  step: number
+  /** Number of pixels. */
+  length: number
+}
+
+export const SPEED_OF_LIGHT_KMS = 299_792.458
+
+/** Builds a grid covering [min, max] Å with a constant ln-λ step. */
+export function makeLogGrid(min: number, max: number, step: number): LogGrid {
+  if (!(min > 0) || !(max > min)) throw new Error('grid range must satisfy 0 < min < max')
+  if (!(step > 0)) throw new Error('grid step must be positive')
+  return { start: min, step, length: Math.floor(Math.log(max / min) / step) + 1 }
+}
+
+/**
+ * Default grid: 3700–7000 Å, Δln λ = 1e-4 (≈ 30 km/s a pixel, 0.4 Å at 4000 Å), fine enough to
+ * hold the standards at ~1.5 Å FWHM with about four pixels across the resolution element.
+ */
+export const DEFAULT_GRID: LogGrid = makeLogGrid(3700, 7000, 1e-4)
+
+/** Velocity width of one pixel, km/s. */
+export function gridVelocityStep(grid: LogGrid): number {
+  return SPEED_OF_LIGHT_KMS * grid.step
+}
+
+/** Wavelength of pixel i, Å. */
+export function gridWavelength(grid: LogGrid, i: number): number {
+  return grid.start * Math.exp(grid.step * i)
+}
+
+/** All pixel wavelengths, Å. */
+export function gridWavelengths(grid: LogGrid): Float64Array {
+  const out = new Float64Array(grid.length)
+  for (let i = 0; i < grid.length; i++) out[i] = grid.start * Math.exp(grid.step * i)
+  return out
+}
+
+/** Fractional pixel index of wavelength λ (Å). */
+export function gridIndex(grid: LogGrid, wavelength: number): number {
+  return Math.log(wavelength / grid.start) / grid.step
+}
+
+/** Classification region used by default when a campaign sets none, Å (air). */
+export const DEFAULT_CLASSIFICATION_REGION: readonly [number, number] = [3850, 5000]
