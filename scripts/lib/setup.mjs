@@ -1,0 +1,129 @@
+// Plain Node (no packages): this runs before `npm ci` has installed anything.
+import { spawn, spawnSync } from 'node:child_process'
+import { createHash, randomBytes } from 'node:crypto'
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { join, resolve } from 'node:path'
+
+export const root = resolve(new URL('../..', import.meta.url).pathname)
+
+export function log(message) {
+  process.stdout.write(`[lineweight] ${message}\n`)
+}
+
+/** Runs a command to completion with inherited output; throws on a non-zero exit. */
+export function run(command, args, options = {}) {
+  const result = spawnSync(command, args, { stdio: 'inherit', cwd: root, ...options })
+  if (result.error) throw result.error
+  if (result.status !== 0) throw new Error(`${command} ${args.join(' ')} exited with ${result.status}`)
+}
+
+function commandExists(name) {
+  return spawnSync('sh', ['-c', `command -v ${name}`], { stdio: 'ignore' }).status === 0
+}
+
+/** npm ci when node_modules is missing or was installed from another package-lock.json. */
+export function ensureNodeModules() {
+  const lock = join(root, 'package-lock.json')
+  const stamp = join(root, 'node_modules', '.lineweight-lock.sha256')
+  const want = createHash('sha256').update(readFileSync(lock)).digest('hex')
+  if (existsSync(stamp) && readFileSync(stamp, 'utf8') === want) return
+  log('installing npm packages (npm ci)')
+  run('npm', ['ci', '--no-audit', '--no-fund'])
+  writeFileSync(stamp, want)
+}
+
+let aptUpdated = false
+/** Installs Debian packages whose commands are missing: { command: package }. */
+export function ensureDebianPackages(wanted) {
+  const missing = Object.entries(wanted).filter(([command]) => !commandExists(command)).map(([, pkg]) => pkg)
+  if (missing.length === 0) return
+  if (!commandExists('apt-get')) throw new Error(`missing ${missing.join(', ')} and no apt-get to install them`)
+  const sudo = process.getuid?.() === 0 ? [] : ['sudo']
+  const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' }
+  if (!aptUpdated) {
+    log('apt-get update')
+    run(sudo[0] ?? 'apt-get', [...sudo.slice(1), ...(sudo.length ? ['apt-get'] : []), 'update', '-q'], { env })
+    aptUpdated = true
+  }
+  log(`installing Debian packages: ${missing.join(' ')}`)
+  run(sudo[0] ?? 'apt-get', [...(sudo.length ? ['apt-get'] : []), 'install', '-y', '-q', '--no-install-recommends', ...missing], { env })
+}
+
+const sleep = (ms) => new Promise((r) => setTimeout(r, ms))
+
+/**
+ * A private MariaDB: data under `dir`, listening on 127.0.0.1:`port` only.
+ * Returns { socket, stop() }.
+ */
+export async function startMariaDB({ dir, port }) {
+  const dataDir = join(dir, 'data')
+  const socket = join(dir, 'mysqld.sock')
+  mkdirSync(dir, { recursive: true })
+  const asRoot = process.getuid?.() === 0 ? ['--user=root'] : []
+  if (!existsSync(join(dataDir, 'mysql'))) {
+    log(`initialising MariaDB data directory ${dataDir}`)
+    const init = spawnSync('mariadb-install-db', ['--no-defaults', `--datadir=${dataDir}`, ...asRoot,
+      '--auth-root-authentication-method=normal', '--skip-test-db', '--skip-name-resolve'], { encoding: 'utf8' })
+    if (init.status !== 0) throw new Error(`mariadb-install-db failed:\n${init.stdout}\n${init.stderr}`)
+  }
+  const admin = (...args) => spawnSync('mariadb-admin', ['--no-defaults', '--protocol=socket', `--socket=${socket}`, '-uroot', ...args], { encoding: 'utf8' })
+  if (admin('ping').status === 0) {
+    log(`MariaDB already running on ${socket}`)
+    return { socket, stop: async () => {} }
+  }
+  const child = spawn('mariadbd', ['--no-defaults', `--datadir=${dataDir}`, ...asRoot, '--bind-address=127.0.0.1',
+    `--port=${port}`, `--socket=${socket}`, `--pid-file=${join(dir, 'mysqld.pid')}`, `--log-error=${join(dir, 'error.log')}`,
+    '--skip-name-resolve', '--character-set-server=utf8mb4', '--collation-server=utf8mb4_unicode_ci',
+    '--max-allowed-packet=256M', '--innodb-log-file-size=256M'], { detached: true, stdio: 'ignore' })
+  let exited = null
+  child.on('exit', (code) => { exited = code ?? -1 })
+  child.unref()
+  for (let i = 0; i < 300; i++) {
+    if (exited !== null) {
+      const logFile = join(dir, 'error.log')
+      const tail = existsSync(logFile) ? readFileSync(logFile, 'utf8').split('\n').slice(-15).join('\n') : ''
+      throw new Error(`mariadbd exited (code ${exited}); is port ${port} taken? Set DB_PORT to another port.\n${tail}`)
+    }
+    if (admin('ping').status === 0) break
+    await sleep(100)
+    if (i === 299) throw new Error('MariaDB did not become ready within 30 s')
+  }
+  log(`MariaDB listening on 127.0.0.1:${port}`)
+  let stopped = false
+  return {
+    socket,
+    stop: async () => {
+      if (stopped) return
+      stopped = true
+      admin('shutdown')
+      for (let i = 0; i < 100 && exited === null; i++) await sleep(100)
+    },
+  }
+}
+
+/** Creates the database and its user (idempotent), through the root socket. */
+export function ensureDatabase({ socket, name, user, password, grantAll = false }) {
+  const q = (s) => s.replace(/\\/g, '\\\\').replace(/'/g, "\\'")
+  const grant = grantAll ? `GRANT ALL PRIVILEGES ON *.* TO '${q(user)}'@'127.0.0.1'` : `GRANT ALL PRIVILEGES ON \`${name}\`.* TO '${q(user)}'@'127.0.0.1'`
+  const sql = [
+    `CREATE DATABASE IF NOT EXISTS \`${name}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`,
+    `CREATE USER IF NOT EXISTS '${q(user)}'@'127.0.0.1' IDENTIFIED BY '${q(password)}'`,
+    `ALTER USER '${q(user)}'@'127.0.0.1' IDENTIFIED BY '${q(password)}'`,
+    grant,
+    'FLUSH PRIVILEGES',
+  ].join(';\n')
+  const result = spawnSync('mariadb', ['--no-defaults', '--protocol=socket', `--socket=${socket}`, '-uroot'], { input: sql, encoding: 'utf8' })
+  if (result.status !== 0) throw new Error(`creating database ${name} failed: ${result.stderr}`)
+}
+
+/** A secret kept in a file so restarts keep sessions valid. */
+export function persistentSecret(file) {
+  if (existsSync(file)) return readFileSync(file, 'utf8').trim()
+  const secret = randomBytes(32).toString('hex')
+  writeFileSync(file, secret, { mode: 0o600 })
+  return secret
+}
+
+export function bin(name) {
+  return join(root, 'node_modules', '.bin', name)
+}

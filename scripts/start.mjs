@@ -1,0 +1,76 @@
+// `npm start`: everything a fresh machine needs, then the app on http://127.0.0.1:8080.
+import { spawn } from 'node:child_process'
+import { existsSync, mkdirSync, readdirSync, statSync } from 'node:fs'
+import { join } from 'node:path'
+import { bin, ensureDatabase, ensureDebianPackages, ensureNodeModules, log, persistentSecret, root, run, startMariaDB } from './lib/setup.mjs'
+
+const env = { ...process.env }
+env.NODE_ENV ??= 'production'
+env.PORT ??= '8080'
+env.HOST ??= '127.0.0.1'
+env.DB_HOST ??= '127.0.0.1'
+env.DB_PORT ??= '3407'
+env.DB_NAME ??= 'lineweight'
+env.DB_USER ??= 'lineweight'
+env.DB_PASSWORD ??= 'lineweight-local'
+env.MAIL_MODE ??= 'fake'
+env.PUBLIC_URL ??= `http://${env.HOST}:${env.PORT}`
+const dataDir = join(root, '.data')
+mkdirSync(dataDir, { recursive: true })
+env.SESSION_SECRET ??= persistentSecret(join(dataDir, 'session-secret'))
+env.STORAGE_DIR ??= join(dataDir, 'files')
+
+ensureNodeModules()
+const manageDb = (env.MANAGE_DB ?? '1') !== '0'
+let db = { stop: async () => {} }
+if (manageDb) {
+  ensureDebianPackages({ mariadbd: 'mariadb-server', mariadb: 'mariadb-client' })
+  db = await startMariaDB({ dir: join(dataDir, 'mariadb'), port: Number(env.DB_PORT) })
+  ensureDatabase({ socket: db.socket, name: env.DB_NAME, user: env.DB_USER, password: env.DB_PASSWORD })
+}
+
+let server = null
+let stopping = false
+async function stop(code) {
+  if (stopping) return
+  stopping = true
+  if (server && server.exitCode === null) {
+    server.kill('SIGTERM')
+    await new Promise((r) => server.once('exit', r))
+  }
+  if (manageDb) {
+    log('stopping MariaDB')
+    await db.stop()
+  }
+  process.exit(code)
+}
+process.on('SIGINT', () => void stop(0))
+process.on('SIGTERM', () => void stop(0))
+
+try {
+  run(bin('tsx'), ['server/db/migrate-cli.ts', 'up', '--seed'], { env })
+  if (needsBuild()) {
+    log('building the client')
+    run(bin('vite'), ['build', '--logLevel', 'warn'], { env })
+  }
+} catch (error) {
+  console.error(error instanceof Error ? error.message : error)
+  await stop(1)
+}
+
+server = spawn(bin('tsx'), ['server/index.ts'], { cwd: root, env, stdio: 'inherit' })
+server.on('exit', (code) => { if (!stopping) void stop(code ?? 1) })
+
+function newestMtime(path) {
+  if (!existsSync(path)) return 0
+  const s = statSync(path)
+  if (!s.isDirectory()) return s.mtimeMs
+  return readdirSync(path).reduce((m, f) => Math.max(m, newestMtime(join(path, f))), s.mtimeMs)
+}
+
+function needsBuild() {
+  const built = join(root, 'dist', 'index.html')
+  if (!existsSync(built)) return true
+  const sources = ['src', 'shared', 'index.html', 'vite.config.ts', 'package-lock.json', 'public'].map((p) => newestMtime(join(root, p)))
+  return Math.max(...sources) > statSync(built).mtimeMs
+}

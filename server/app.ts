@@ -1,0 +1,126 @@
+import { existsSync } from 'node:fs'
+import { join, resolve } from 'node:path'
+import connectSessionSequelize from 'connect-session-sequelize'
+import express, { type Express } from 'express'
+import { rateLimit } from 'express-rate-limit'
+import session from 'express-session'
+import helmet from 'helmet'
+import passport from 'passport'
+import { Strategy as LocalStrategy } from 'passport-local'
+import type { AppContext } from './context'
+import { requireAccess } from './middleware/auth'
+import { csrfProtection } from './middleware/csrf'
+import { apiNotFound, errorHandler } from './middleware/error'
+import { sessionLifetime } from './middleware/session-lifetime'
+import { validate } from './middleware/validate'
+import { HttpError } from './lib/http-error'
+import { User } from './models'
+import { apiRoutes } from './routes'
+import { verifyCredentials } from './services/users.service'
+
+const SequelizeStore = connectSessionSequelize(session.Store)
+
+export interface AppOptions {
+  /** Serve the built client from this folder (index.html fallback for client routes). */
+  clientDir?: string
+}
+
+/** Builds the Express app without listening, so tests can drive it through supertest. */
+export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
+  const { config, logger } = ctx
+  const app = express()
+  app.disable('x-powered-by')
+  app.set('trust proxy', 'loopback')
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'"],
+          upgradeInsecureRequests: null,
+        },
+      },
+      strictTransportSecurity: config.COOKIE_SECURE,
+    }),
+  )
+  app.use((req, res, next) => {
+    const started = process.hrtime.bigint()
+    res.on('finish', () => {
+      const ms = Number(process.hrtime.bigint() - started) / 1e6
+      logger.info({ method: req.method, url: req.originalUrl, status: res.statusCode, ms: Math.round(ms) }, 'request')
+    })
+    next()
+  })
+
+  const store = new SequelizeStore({
+    db: ctx.sequelize,
+    table: 'Session',
+    checkExpirationInterval: 15 * 60_000,
+    extendDefaultFields: (defaults: { data: string; expires: Date }, sess: { passport?: { user?: number } }) => ({
+      data: defaults.data,
+      expires: defaults.expires,
+      userId: sess.passport?.user ?? null,
+    }),
+  })
+  if (config.NODE_ENV === 'test') store.stopExpiringSessions()
+
+  passport.use(
+    new LocalStrategy({ usernameField: 'email', passwordField: 'password' }, (email, password, done) => {
+      verifyCredentials(email, password, config.BCRYPT_ROUNDS).then(
+        (result) => ('user' in result ? done(null, result.user) : done(null, false, { message: result.reason, reason: result.reason } as never)),
+        done,
+      )
+    }),
+  )
+  passport.serializeUser((user, done) => done(null, (user as User).id))
+  passport.deserializeUser((id: number, done) => {
+    // A deactivated account is signed out on its next request.
+    User.findByPk(id).then((u) => done(null, u && u.active ? u : false), done)
+  })
+
+  const api = express.Router()
+  api.use(express.json({ limit: '1mb' }))
+  api.use(
+    session({
+      name: 'lw.sid',
+      secret: config.SESSION_SECRET,
+      store,
+      resave: false,
+      saveUninitialized: false,
+      rolling: true,
+      cookie: { httpOnly: true, sameSite: 'lax', secure: config.COOKIE_SECURE, maxAge: config.SESSION_IDLE_MINUTES * 60_000, path: '/' },
+    }),
+  )
+  api.use(passport.initialize())
+  api.use(passport.session())
+  api.use(sessionLifetime(config.SESSION_IDLE_MINUTES * 60_000, config.SESSION_ABSOLUTE_HOURS * 3600_000))
+  api.use(
+    rateLimit({
+      windowMs: 60_000,
+      limit: config.API_RATE_PER_MINUTE,
+      standardHeaders: 'draft-7',
+      legacyHeaders: false,
+      handler: () => {
+        throw new HttpError(429, 'rate_limited', 'Too many requests; slow down and try again in a minute.')
+      },
+    }),
+  )
+  api.use(csrfProtection)
+  for (const route of apiRoutes(ctx)) {
+    const chain = [requireAccess(route.access), ...(route.before ?? []), ...(route.schema ? [validate(route.schema)] : []), route.handler]
+    api[route.method](route.path, ...chain)
+  }
+  api.use(apiNotFound)
+  app.use('/api', api)
+
+  const clientDir = options.clientDir ? resolve(options.clientDir) : null
+  if (clientDir && existsSync(join(clientDir, 'index.html'))) {
+    app.use(express.static(clientDir, { index: false, maxAge: '1h' }))
+    app.get(/^(?!\/api\/).*/, (_req, res) => res.sendFile(join(clientDir, 'index.html')))
+  }
+  app.use(errorHandler(logger, config.NODE_ENV === 'production'))
+  return app
+}

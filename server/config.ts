@@ -1,0 +1,54 @@
+import { z } from 'zod'
+
+const bool = z.enum(['0', '1', 'true', 'false']).transform((v) => v === '1' || v === 'true')
+const int = (def: number, min = 0) => z.coerce.number().int().min(min).default(def)
+
+/** Every setting, from environment variables; defaults are those `npm start` uses. */
+const schema = z.object({
+  NODE_ENV: z.enum(['production', 'development', 'test']).default('development'),
+  HOST: z.string().default('127.0.0.1'),
+  PORT: int(8080, 1),
+  PUBLIC_URL: z.string().url().optional(),
+  DB_HOST: z.string().default('127.0.0.1'),
+  DB_PORT: int(3407, 1),
+  DB_NAME: z.string().regex(/^[A-Za-z0-9_]+$/, 'letters, digits and _ only').default('lineweight'),
+  DB_USER: z.string().default('lineweight'),
+  DB_PASSWORD: z.string().default('lineweight-local'),
+  DB_POOL_MAX: int(10, 1),
+  SESSION_SECRET: z.string().min(32, 'must be at least 32 characters'),
+  SESSION_IDLE_MINUTES: int(30, 1),
+  SESSION_ABSOLUTE_HOURS: int(12, 1),
+  COOKIE_SECURE: bool.default(false),
+  BCRYPT_ROUNDS: int(12, 4),
+  LOGIN_MAX_ATTEMPTS: int(10, 1),
+  LOGIN_WINDOW_MINUTES: int(15, 1),
+  API_RATE_PER_MINUTE: int(600, 1),
+  INVITE_HOURS: int(72, 1),
+  RESET_MINUTES: int(60, 1),
+  MAIL_MODE: z.enum(['fake', 'smtp']).default('fake'),
+  MAIL_FROM: z.string().default('Lineweight <no-reply@lineweight.example>'),
+  SMTP_HOST: z.string().default('127.0.0.1'),
+  SMTP_PORT: int(2525, 0),
+  SMTP_USER: z.string().optional(),
+  SMTP_PASSWORD: z.string().optional(),
+  SMTP_SECURE: bool.default(false),
+  UPLOAD_MAX_BYTES: int(50 * 1024 * 1024, 1024),
+  UPLOAD_MAX_FILES: int(500, 1),
+  UPLOAD_MAX_PIXELS: int(2_000_000, 100),
+  UPLOAD_MIN_PIXELS: int(100, 2),
+  WORKERS: int(0, 0),
+  LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+})
+
+export type Config = z.infer<typeof schema> & { publicUrl: string }
+
+/** Reads and validates the settings once; a bad value stops start-up with a message naming it. */
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  const parsed = schema.safeParse(env)
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`)
+    throw new Error(`Invalid configuration:\n${lines.join('\n')}`)
+  }
+  const c = parsed.data
+  return { ...c, publicUrl: c.PUBLIC_URL ?? `http://${c.HOST}:${c.PORT}` }
+}

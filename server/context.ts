@@ -1,0 +1,12 @@
+import type { Logger } from 'pino'
+import type { Sequelize } from 'sequelize'
+import type { Config } from './config'
+import type { Mailer } from './mail/mailer'
+
+/** What services need from the outside world; built once by the server, or by a test. */
+export interface AppContext {
+  config: Config
+  sequelize: Sequelize
+  mailer: Mailer
+  logger: Logger
+}

@@ -1,0 +1,19 @@
+import { Sequelize } from 'sequelize'
+import type { Config } from '../config'
+import { initModels } from '../models'
+
+/** Opens the MariaDB connection pool and registers every model on it. */
+export function createSequelize(config: Config): Sequelize {
+  const sequelize = new Sequelize(config.DB_NAME, config.DB_USER, config.DB_PASSWORD, {
+    host: config.DB_HOST,
+    port: config.DB_PORT,
+    dialect: 'mariadb',
+    logging: false,
+    pool: { max: config.DB_POOL_MAX, min: 0, idle: 10_000 },
+    dialectOptions: { connectTimeout: 10_000 },
+    timezone: '+00:00',
+    define: { underscored: true },
+  })
+  initModels(sequelize)
+  return sequelize
+}

@@ -1,0 +1,36 @@
+import { createServer } from 'node:http'
+import { fileURLToPath } from 'node:url'
+import { createApp } from './app'
+import { loadConfig } from './config'
+import { createSequelize } from './db'
+import { createLogger } from './lib/logger'
+import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp'
+import { createMailer } from './mail/mailer'
+
+const config = loadConfig()
+const logger = createLogger(config.LOG_LEVEL)
+const sequelize = createSequelize(config)
+await sequelize.authenticate()
+
+let fakeSmtp: FakeSmtp | null = null
+if (config.MAIL_MODE === 'fake') {
+  fakeSmtp = await startFakeSmtp(config.SMTP_PORT)
+  config.SMTP_PORT = fakeSmtp.port
+}
+const mailer = createMailer(config)
+const app = createApp({ config, sequelize, mailer, logger }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
+const server = createServer(app)
+server.listen(config.PORT, config.HOST, () => {
+  logger.info(`Lineweight is serving on ${config.publicUrl}`)
+})
+
+async function shutdown() {
+  server.close()
+  server.closeAllConnections()
+  await fakeSmtp?.close()
+  mailer.close()
+  await sequelize.close()
+  process.exit(0)
+}
+process.on('SIGTERM', () => void shutdown())
+process.on('SIGINT', () => void shutdown())

@@ -1,0 +1,125 @@
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit'
+import passport from 'passport'
+import type { Config } from '../config'
+import type { AppContext } from '../context'
+import { currentUser } from '../middleware/auth'
+import { ensureCsrfToken } from '../middleware/csrf'
+import { HttpError } from '../lib/http-error'
+import type { User } from '../models'
+import { changePasswordBody, forgotBody, loginBody, setPasswordBody, tokenQuery } from '../schemas/auth.schemas'
+import { changePassword, describeToken, requestPasswordReset, setPasswordWithToken, toPublicUser } from '../services/users.service'
+import { defineRoutes } from './route'
+
+function loginLimiter(config: Config) {
+  return rateLimit({
+    windowMs: config.LOGIN_WINDOW_MINUTES * 60_000,
+    limit: config.LOGIN_MAX_ATTEMPTS,
+    skipSuccessfulRequests: true,
+    standardHeaders: 'draft-7',
+    legacyHeaders: false,
+    // Per address and account, so one person's typos do not lock out the whole office.
+    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String(req.body?.email ?? '').trim().toLowerCase()}`,
+    handler: () => {
+      throw new HttpError(429, 'too_many_attempts', `Too many failed sign-in attempts; try again in ${config.LOGIN_WINDOW_MINUTES} minutes.`)
+    },
+  })
+}
+
+export function authRoutes(ctx: AppContext) {
+  return defineRoutes([
+    {
+      method: 'get',
+      path: '/auth/csrf',
+      access: 'public',
+      handler: (req, res) => {
+        res.json({ csrfToken: ensureCsrfToken(req.session) })
+      },
+    },
+    {
+      method: 'post',
+      path: '/auth/login',
+      access: 'public',
+      before: [loginLimiter(ctx.config)],
+      schema: { body: loginBody },
+      handler: (req, res, next) => {
+        passport.authenticate('local', (err: unknown, user: User | false, info?: { reason?: string }) => {
+          if (err) return next(err)
+          if (!user) {
+            if (info?.reason === 'inactive') return next(new HttpError(403, 'account_inactive', 'This account has been deactivated; ask a lead of your team.'))
+            return next(new HttpError(401, 'invalid_credentials', 'Wrong e-mail address or password.'))
+          }
+          req.login(user, (loginError) => {
+            if (loginError) return next(loginError)
+            req.session.startedAt = Date.now()
+            req.session.lastSeenAt = Date.now()
+            const csrfToken = ensureCsrfToken(req.session)
+            user.lastLoginAt = new Date()
+            user.save().then(
+              () => res.json({ user: toPublicUser(user), csrfToken }),
+              (saveError: unknown) => next(saveError),
+            )
+          })
+        })(req, res, next)
+      },
+    },
+    {
+      method: 'post',
+      path: '/auth/logout',
+      access: 'public',
+      handler: (req, res, next) => {
+        req.logout((error) => {
+          if (error) return next(error)
+          res.json({ csrfToken: ensureCsrfToken(req.session) })
+        })
+      },
+    },
+    {
+      method: 'post',
+      path: '/auth/forgot',
+      access: 'public',
+      before: [loginLimiter(ctx.config)],
+      schema: { body: forgotBody },
+      handler: async (_req, res) => {
+        await requestPasswordReset(ctx, res.locals.body.email)
+        res.status(202).json({ message: 'If that address belongs to an account, a reset link is on its way.' })
+      },
+    },
+    {
+      method: 'get',
+      path: '/auth/token',
+      access: 'public',
+      schema: { query: tokenQuery },
+      handler: async (_req, res) => {
+        res.json(await describeToken(res.locals.query.token))
+      },
+    },
+    {
+      method: 'post',
+      path: '/auth/set-password',
+      access: 'public',
+      schema: { body: setPasswordBody },
+      handler: async (_req, res) => {
+        await setPasswordWithToken(ctx, res.locals.body.token, res.locals.body.password)
+        res.json({ message: 'Your password is set; you can sign in now.' })
+      },
+    },
+    {
+      method: 'get',
+      path: '/me',
+      access: 'signed-in',
+      handler: (req, res) => {
+        res.json({ user: toPublicUser(currentUser(req)) })
+      },
+    },
+    {
+      method: 'post',
+      path: '/me/password',
+      access: 'signed-in',
+      schema: { body: changePasswordBody },
+      handler: async (req, res) => {
+        await changePassword(ctx, currentUser(req), res.locals.body.currentPassword, res.locals.body.newPassword)
+        res.json({ message: 'Your password has been changed.' })
+      },
+    },
+  ])
+}

@@ -1,0 +1,11 @@
+import type { AppContext } from '../context'
+import { authRoutes } from './auth.routes'
+import { healthRoutes } from './health.routes'
+import { outboxRoutes } from './outbox.routes'
+import type { RouteDef } from './route'
+import { userRoutes } from './users.routes'
+
+/** Every API route in one table: the app mounts it and the role-matrix test walks it. */
+export function apiRoutes(ctx: AppContext): RouteDef[] {
+  return [...healthRoutes(ctx), ...authRoutes(ctx), ...userRoutes(ctx), ...outboxRoutes()]
+}

@@ -1,0 +1,32 @@
+import { notFound } from '../lib/http-error'
+import { MailMessage } from '../models'
+
+export interface MailSummary {
+  id: number
+  from: string
+  to: string
+  subject: string
+  receivedAt: string
+}
+
+export interface MailDetail extends MailSummary {
+  text: string
+}
+
+const summary = (m: MailMessage): MailSummary => ({ id: m.id, from: m.fromAddress, to: m.toAddresses, subject: m.subject, receivedAt: m.receivedAt.toISOString() })
+
+export async function listMail(page: number, pageSize: number): Promise<{ items: MailSummary[]; total: number }> {
+  const { rows, count } = await MailMessage.findAndCountAll({
+    attributes: ['id', 'fromAddress', 'toAddresses', 'subject', 'receivedAt'],
+    order: [['id', 'DESC']],
+    limit: pageSize,
+    offset: (page - 1) * pageSize,
+  })
+  return { items: rows.map(summary), total: count }
+}
+
+export async function getMail(id: number): Promise<MailDetail> {
+  const m = await MailMessage.findByPk(id)
+  if (!m) throw notFound('The mail')
+  return { ...summary(m), text: m.text }
+}
