@@ -2,8 +2,11 @@ import { Sequelize } from 'sequelize'
 import type { Config } from '../config'
 import { initModels } from '../models'
 
-/** Opens the MariaDB connection pool and registers every model on it. */
-export function createSequelize(config: Config): Sequelize {
+/**
+ * Opens the MariaDB connection pool and, unless told otherwise, registers every model on it.
+ * Models are module-wide classes, so a process has one model-bearing connection at a time.
+ */
+export function createSequelize(config: Config, options: { models?: boolean } = {}): Sequelize {
   const sequelize = new Sequelize(config.DB_NAME, config.DB_USER, config.DB_PASSWORD, {
     host: config.DB_HOST,
     port: config.DB_PORT,
@@ -14,6 +17,6 @@ export function createSequelize(config: Config): Sequelize {
     timezone: '+00:00',
     define: { underscored: true },
   })
-  initModels(sequelize)
+  if (options.models !== false) initModels(sequelize)
   return sequelize
 }

@@ -4,7 +4,13 @@ import { createSequelize } from './index'
 import { createMigrator } from './migrate'
 import { seedDemo } from './seed'
 
-const config = loadConfig()
+let config
+try {
+  config = loadConfig()
+} catch (error) {
+  console.error(error instanceof Error ? error.message : error)
+  process.exit(1)
+}
 const sequelize = createSequelize(config)
 const [command = 'up', ...flags] = process.argv.slice(2)
 try {

@@ -13,13 +13,15 @@ export const DEMO_PEOPLE = [
 
 export const DEMO_OBSERVATORY = 'Kestrel Ridge Observatory'
 
-/** Seeds once: a database that already has people is left as it is. Returns whether it seeded. */
+export const DEMO_CAMPAIGN_CODE = 'KRO-NFS26'
+
+/** Seeds once: a database that already holds the demo campaign is left as it is. Returns whether it seeded. */
 export async function seedDemo(sequelize: Sequelize, config: Config): Promise<boolean> {
-  if ((await User.count()) > 0) return false
+  if (await Campaign.findOne({ where: { code: DEMO_CAMPAIGN_CODE } })) return false
   await sequelize.transaction(async (transaction) => {
     const campaign = await Campaign.create(
       {
-        code: 'KRO-NFS26',
+        code: DEMO_CAMPAIGN_CODE,
         name: 'Northern Fields Survey 2026',
         description: 'Low-resolution classification spectra of field stars taken with the 1.1 m telescope at Kestrel Ridge.',
         observatory: DEMO_OBSERVATORY,
