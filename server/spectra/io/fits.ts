@@ -290,3 +290,53 @@ export function readColumn(bytes: Uint8Array, hdu: FitsHdu, col: TableColumn, ro
   }
   return out
 }
+
+/** Observation and resolution keywords passed on to the caller, as the file writes them. */
+const KEPT_KEYWORDS = [
+  'OBJECT', 'RA', 'DEC', 'RA_OBJ', 'DEC_OBJ', 'EQUINOX', 'RADESYS', 'DATE-OBS', 'MJD-OBS', 'EXPTIME',
+  'INSTRUME', 'TELESCOP', 'OBSERVER', 'AIRMASS', 'EXTNAME',
+  // Resolution as different reducers record it (common practice).
+  'SPECRES', 'RESOLUTN', 'RESOLUTION', 'RESOLVPW', 'R', 'SPEC_RES', 'RES_POW', 'FWHM', 'SPECFWHM', 'DISPERS',
+  'SPECSYS', 'BUNIT',
+]
+
+/** Kept keywords of an HDU, falling back to the primary header (FITS INHERIT convention). */
+export function keptHeader(hdu: FitsHdu, primary: FitsHdu | undefined): Record<string, HeaderValue> {
+  const out: Record<string, HeaderValue> = {}
+  for (const key of KEPT_KEYWORDS) {
+    const v = hdu.cards.get(key) ?? primary?.cards.get(key)
+    if (v !== undefined) out[key] = v
+  }
+  return out
+}
+
+/**
+ * Air/vacuum from keywords: VACUUM (logical, survey convention) or AIRORVAC ('air'/'vac'),
+ * in the HDU first and then the primary header.
+ */
+export function vacuumFromKeywords(hdu: FitsHdu, primary: FitsHdu | undefined): { vacuum: boolean; source: string } | undefined {
+  for (const h of primary && primary !== hdu ? [hdu, primary] : [hdu]) {
+    const vac = h.cards.get('VACUUM')
+    if (typeof vac === 'boolean') return { vacuum: vac, source: `VACUUM = ${vac ? 'T' : 'F'}` }
+    const aov = h.cards.get('AIRORVAC')
+    if (typeof aov === 'string') {
+      const t = aov.trim().toLowerCase()
+      if (t.startsWith('vac')) return { vacuum: true, source: `AIRORVAC = '${aov}'` }
+      if (t === 'air') return { vacuum: false, source: `AIRORVAC = '${aov}'` }
+    }
+  }
+  return undefined
+}
+
+/** Air/vacuum from COMMENT/HISTORY text, e.g. "All wavelengths are in vacuum." */
+export function vacuumFromCommentary(hdus: (FitsHdu | undefined)[], test: (s: string) => boolean | undefined) {
+  for (const h of hdus) {
+    if (!h) continue
+    for (const line of h.commentary) {
+      if (!/wavelength/i.test(line)) continue
+      const v = test(line)
+      if (v !== undefined) return { vacuum: v, source: `header text "${line}"` }
+    }
+  }
+  return undefined
+}
