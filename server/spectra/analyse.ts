@@ -1,0 +1,221 @@
+import { DEFAULT_CLASSIFICATION_REGION, DEFAULT_GRID, gridWavelength, type LogGrid } from '../../shared/grid'
+import { CLASSIFICATION_LINES, lineSpan, type WavelengthRange } from '../../shared/lines'
+import type { Spectrum1D } from '../../shared/spectrum'
+import { fitSpectrumContinuum, type ContinuumOptions } from './prepare/continuum'
+import { assertSpectrum } from './prepare/guards'
+import { countMaskedPixels, maskSpectrumBadPixels } from './prepare/mask'
+import { rebinNoiseCorrelation, rebinSpectrumToLogGrid } from './prepare/rebin'
+import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
+import { smoothSpectrumToFwhm } from './prepare/smooth'
+import { estimateSpectrumSnr, estimateSpectrumSnrByWindow } from './prepare/snr'
+import { measureLineRatios, measureSpectrumLines } from './measure/lines'
+import type { LineMeasurement, LineRatio } from './measure/types'
+
+export type { LineMeasurement, LineRatio, MeasuredLine, UnmeasuredLine, VoigtFit, NotMeasuredReason } from './measure/types'
+
+export interface AnalyseOptions {
+  /** Grid the spectrum is prepared on. @default DEFAULT_GRID (shared/grid.ts) */
+  grid?: LogGrid
+  /** Resolution to smooth to, FWHM Å; no smoothing when absent. @default undefined */
+  targetFwhm?: number
+  /** Resolution of the input, FWHM Å; needed for smoothing. @default undefined */
+  inputFwhm?: number
+  /**
+   * Continuum-normalised reference spectrum on `grid` at zero velocity; the radial velocity is
+   * measured (and removed) only when one is given. @default undefined
+   */
+  rvReference?: Spectrum1D
+  /** Range used for the cross-correlation, Å. @default DEFAULT_CLASSIFICATION_REGION */
+  rvRegion?: WavelengthRange
+  /** Largest |v| searched, km/s. @default 1000 */
+  maxVelocity?: number
+  /** Range for the headline S/N, Å. @default DEFAULT_CLASSIFICATION_REGION */
+  snrRegion?: WavelengthRange
+  /** Lines below this S/N are not measured. @default 10 */
+  snrFloor?: number
+  /** Per-pixel flags from the file (non-zero = bad). @default undefined */
+  flagged?: ArrayLike<number>
+  /** Options for the continuum fit. @default {} */
+  continuum?: ContinuumOptions
+}
+
+export interface PreparedSpectrum {
+  grid: LogGrid
+  /** Rebinned (and smoothed) flux on the grid, input units; NaN where masked. */
+  flux: Float64Array
+  /** Its 1σ error, when the input had errors. */
+  error?: Float64Array
+  /** 1 where the pixel is outside the coverage or bad. */
+  mask: Uint8Array
+  continuum: Float64Array
+  /** flux / continuum. */
+  rectified: Float64Array
+  /** error / continuum (before smoothing, see analyseSpectrum), when the input had errors. */
+  rectifiedError?: Float64Array
+}
+
+export interface AnalysisResult {
+  /** DER_SNR per input pixel over `snrRegion` (whole spectrum if that has too few pixels). */
+  snr: number | null
+  /** Radial velocity removed before measuring, km/s; null when no reference was given or none was found. */
+  rv: { v: number; error: number } | null
+  prepared: PreparedSpectrum
+  /** True when the continuum is an upper envelope through band-free peaks (M-type spectra). */
+  pseudoContinuum: boolean
+  lines: LineMeasurement[]
+  ratios: LineRatio[]
+  warnings: string[]
+}
+
+/**
+ * Runs the preparation and measurement steps on one observed spectrum, in order: mask bad pixels;
+ * DER_SNR over the classification region and near each line (on the observed pixels, before any
+ * resampling); flux-conserving rebinning onto the log-λ grid; Gaussian smoothing to the target
+ * resolution when the input is sharper; continuum fit; when a reference is given, radial velocity
+ * by cross-correlation, then the same preparation again from the observed pixels shifted to rest;
+ * every line of the table and the Balmer Voigt fits; the line ratios.
+ *
+ * Line errors use the rebinned errors before smoothing (smoothing conserves the integrals a line
+ * measurement sums), with the variance scaled by the number of grid pixels per input pixel.
+ *
+ * @throws when the spectrum is malformed (see assertSpectrum) or does not overlap the grid
+ */
+export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = {}): AnalysisResult {
+  assertSpectrum(spectrum, 5)
+  const {
+    grid = DEFAULT_GRID,
+    targetFwhm,
+    inputFwhm,
+    rvReference,
+    rvRegion = DEFAULT_CLASSIFICATION_REGION,
+    maxVelocity = 1000,
+    snrRegion = DEFAULT_CLASSIFICATION_REGION,
+    snrFloor = 10,
+    flagged,
+    continuum: continuumOptions = {},
+  } = options
+  const warnings: string[] = []
+  const masked = maskSpectrumBadPixels(spectrum, flagged ? { flagged } : {})
+  const maskedCount = countMaskedPixels(masked)
+  if (maskedCount > 0) warnings.push(`${maskedCount} of ${spectrum.wavelength.length} pixels are masked`)
+
+  const snr = estimateSpectrumSnr(masked, { region: snrRegion }) ?? estimateSpectrumSnr(masked)
+  if (snr === null) warnings.push('S/N could not be estimated (too few usable pixels)')
+  else if (snr < snrFloor) warnings.push(`S/N ${snr.toFixed(1)} is below the floor of ${snrFloor}`)
+
+  if (targetFwhm !== undefined && inputFwhm === undefined) warnings.push('input resolution unknown: not smoothed to the target')
+  if (targetFwhm !== undefined && inputFwhm !== undefined && inputFwhm >= targetFwhm) {
+    warnings.push(`input resolution ${inputFwhm} Å FWHM is not sharper than the target ${targetFwhm} Å: not smoothed`)
+  }
+
+  let rest = masked
+  let prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions)
+  let rv: AnalysisResult['rv'] = null
+  if (rvReference) {
+    const result = measureSpectrumRadialVelocity(
+      { wavelength: prepared.wavelength, flux: prepared.rectified, mask: prepared.mask },
+      rvReference,
+      { grid, maxVelocity, region: rvRegion },
+    )
+    if (result.found) {
+      rv = { v: result.velocity, error: result.error }
+      rest = shiftSpectrumToRest(masked, { velocity: result.velocity })
+      prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions)
+    } else {
+      warnings.push(`radial velocity not measured: ${result.reason}`)
+    }
+  }
+  if (prepared.pseudoContinuum) warnings.push('molecular bands dominate: the continuum is a pseudo-continuum through band-free peaks')
+
+  // S/N near each line, on the observed pixels (rest frame, so the windows line up).
+  const windows = CLASSIFICATION_LINES.map((line): WavelengthRange => {
+    const [lo, hi] = lineSpan(line)
+    return [Math.min(lo, line.wavelength - 50), Math.max(hi, line.wavelength + 50)]
+  })
+  const snrs = estimateSpectrumSnrByWindow(rest, { windows })
+  const snrByLine: Record<string, number | null> = {}
+  CLASSIFICATION_LINES.forEach((line, i) => {
+    snrByLine[line.id] = snrs[i] ?? null
+  })
+  const centre = (rvRegion[0] + rvRegion[1]) / 2
+  const noiseCorrelation = rebinNoiseCorrelation(rest, grid, centre)
+  const lines = measureSpectrumLines(
+    {
+      wavelength: prepared.wavelength,
+      flux: prepared.rectified,
+      ...(prepared.rectifiedError ? { error: prepared.rectifiedError } : {}),
+      mask: prepared.mask,
+    },
+    { snrByLine, snr, snrFloor, noiseCorrelation },
+  )
+  const ratios = measureLineRatios(lines)
+  return {
+    snr,
+    rv,
+    prepared: {
+      grid,
+      flux: prepared.flux,
+      ...(prepared.error ? { error: prepared.error } : {}),
+      mask: prepared.mask,
+      continuum: prepared.continuum,
+      rectified: prepared.rectified,
+      ...(prepared.rectifiedError ? { rectifiedError: prepared.rectifiedError } : {}),
+    },
+    pseudoContinuum: prepared.pseudoContinuum,
+    lines,
+    ratios,
+    warnings,
+  }
+}
+
+interface GridPreparation {
+  wavelength: Float64Array
+  flux: Float64Array
+  error?: Float64Array
+  mask: Uint8Array
+  continuum: Float64Array
+  rectified: Float64Array
+  rectifiedError?: Float64Array
+  pseudoContinuum: boolean
+}
+
+function prepareOnGrid(
+  spectrum: Spectrum1D,
+  grid: LogGrid,
+  targetFwhm: number | undefined,
+  inputFwhm: number | undefined,
+  continuumOptions: ContinuumOptions,
+): GridPreparation {
+  const rebinned = rebinSpectrumToLogGrid(spectrum, { grid })
+  const mask = rebinned.mask!
+  let covered = 0
+  for (let i = 0; i < mask.length; i++) if (mask[i] === 0) covered++
+  if (covered < 5) {
+    const lo = spectrum.wavelength[0]!
+    const hi = spectrum.wavelength[spectrum.wavelength.length - 1]!
+    throw new Error(
+      `spectrum covers ${lo.toFixed(1)}–${hi.toFixed(1)} Å, which does not overlap the grid's ` +
+        `${grid.start.toFixed(1)}–${gridWavelength(grid, grid.length - 1).toFixed(1)} Å`,
+    )
+  }
+  const smoothed =
+    targetFwhm !== undefined && inputFwhm !== undefined && inputFwhm < targetFwhm
+      ? smoothSpectrumToFwhm(rebinned, { grid, targetFwhm, inputFwhm })
+      : rebinned
+  const fit = fitSpectrumContinuum(smoothed, continuumOptions)
+  let rectifiedError: Float64Array | undefined
+  if (rebinned.error) {
+    rectifiedError = new Float64Array(grid.length)
+    for (let i = 0; i < grid.length; i++) rectifiedError[i] = rebinned.error[i]! / fit.continuum[i]!
+  }
+  return {
+    wavelength: smoothed.wavelength,
+    flux: smoothed.flux,
+    ...(smoothed.error ? { error: smoothed.error } : {}),
+    mask: smoothed.mask!,
+    continuum: fit.continuum,
+    rectified: fit.rectified,
+    ...(rectifiedError ? { rectifiedError } : {}),
+    pseudoContinuum: fit.pseudoContinuum,
+  }
+}

@@ -1,0 +1,281 @@
+import { Matrix, solve } from 'ml-matrix'
+import { continuumMaskRanges, findLine, TIO_BAND_IDS, type WavelengthRange } from '../../../shared/lines'
+import type { Spectrum1D } from '../../../shared/spectrum'
+import { assertSpectrum, isGoodPixel } from './guards'
+import { medianInPlace } from './stats'
+
+export interface ContinuumOptions {
+  /** Polynomial degree; by default one per 550 Å of covered span, between 1 and 8. @default undefined */
+  degree?: number
+  /** Pixels more than this many σ below the fit are dropped at each pass (absorption lines). @default 1.5 */
+  lowSigma?: number
+  /** Pixels more than this many σ above the fit are dropped (cosmic rays, emission). @default 3 */
+  highSigma?: number
+  /** Most fit-and-clip passes. @default 10 */
+  maxIterations?: number
+  /** Ranges never used for the fit, Å. @default continuumMaskRanges() from shared/lines.ts (Balmer wings, strong bands) */
+  masks?: readonly WavelengthRange[]
+  /**
+   * 'auto' switches to a pseudo-continuum through the band-free peaks when the TiO bands are deeper
+   * than {@link bandDepthLimit}; 'always' and 'never' force the choice. @default 'auto'
+   */
+  pseudoContinuum?: 'auto' | 'always' | 'never'
+  /** Mean TiO band depth (1 − band/blue side band) above which a spectrum counts as band-dominated. @default 0.15 */
+  bandDepthLimit?: number
+  /** Width of the segments whose upper envelope anchors the pseudo-continuum, Å. @default 80 */
+  envelopeWidth?: number
+}
+
+export interface ContinuumResult {
+  /** Fitted continuum at every pixel (NaN where the pixel is masked). */
+  continuum: Float64Array
+  /** flux / continuum (NaN where masked). */
+  rectified: Float64Array
+  /** error / continuum, when the spectrum has errors. */
+  rectifiedError?: Float64Array
+  /** True when the continuum is an upper envelope through band-free peaks (M-type spectra), not a true continuum. */
+  pseudoContinuum: boolean
+  /** Deepest TiO band depth seen, or null when no TiO band is covered. */
+  bandDepth: number | null
+  degree: number
+  iterations: number
+  /** Pixels (or envelope anchors) used in the last pass. */
+  usedPoints: number
+}
+
+/**
+ * Fits the continuum and divides it out. Method: an iterative, asymmetric sigma-clipped polynomial
+ * fit (common practice since IRAF's `continuum` task): a Chebyshev series in wavelength, fitted by
+ * weighted least squares (weights 1/σ², σ floored at a tenth of the median error; uniform without
+ * errors), ignoring the Balmer wings and strong bands of the line table; after each pass, pixels
+ * more than `lowSigma` rms below or `highSigma` rms above the fit are dropped, until nothing changes.
+ * The asymmetry lets the fit ride the top of the spectrum, above the absorption lines. Fitting in
+ * Chebyshev form keeps the normal equations well conditioned, so steep blue continua of hot stars
+ * are followed by the polynomial without trouble.
+ *
+ * Spectra dominated by molecular bands (TiO deeper than `bandDepthLimit`, M types) have no
+ * continuum to speak of: the fit then goes through an upper envelope — the 95th-percentile flux in
+ * each `envelopeWidth` segment — and `pseudoContinuum` says so.
+ */
+export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOptions = {}): ContinuumResult {
+  assertSpectrum(spectrum)
+  const {
+    lowSigma = 1.5,
+    highSigma = 3,
+    maxIterations = 10,
+    masks = continuumMaskRanges(),
+    pseudoContinuum = 'auto',
+    bandDepthLimit = 0.15,
+    envelopeWidth = 80,
+  } = options
+  const { wavelength, flux, error } = spectrum
+  const n = wavelength.length
+  let first = -1
+  let last = -1
+  for (let i = 0; i < n; i++) {
+    if (!isGoodPixel(spectrum, i)) continue
+    if (first < 0) first = i
+    last = i
+  }
+  if (first < 0) throw new Error('spectrum has no usable pixels for a continuum fit')
+  const lo = wavelength[first]!
+  const hi = wavelength[last]!
+  const span = hi - lo
+  const degree = options.degree ?? Math.min(8, Math.max(1, Math.round(span / 550)))
+
+  const bandDepth = measureTioDepth(spectrum)
+  const usePseudo = pseudoContinuum === 'always' || (pseudoContinuum === 'auto' && bandDepth !== null && bandDepth > bandDepthLimit)
+
+  // Points the fit may use: x (scaled to [-1, 1]), y, weight.
+  const xs = new Float64Array(n)
+  const ys = new Float64Array(n)
+  const ws = new Float64Array(n)
+  let m = 0
+  if (usePseudo) {
+    const segment = new Float64Array(n)
+    for (let start = lo; start < hi; start += envelopeWidth) {
+      const end = Math.min(hi, start + envelopeWidth)
+      let count = 0
+      let centre = 0
+      for (let i = first; i <= last; i++) {
+        const w = wavelength[i]!
+        if (w < start || w >= end || !isGoodPixel(spectrum, i)) continue
+        segment[count++] = flux[i]!
+        centre += w
+      }
+      if (count < 5) continue
+      centre /= count
+      const top = percentileInPlace(segment, count, 0.95)
+      xs[m] = scale(centre, lo, hi)
+      ys[m] = top
+      ws[m] = 1
+      m++
+    }
+  } else {
+    let floor = 0
+    if (error) {
+      const errs = new Float64Array(n)
+      let k = 0
+      for (let i = first; i <= last; i++) if (isGoodPixel(spectrum, i) && error[i]! > 0) errs[k++] = error[i]!
+      floor = 0.1 * medianInPlace(errs, k)
+    }
+    for (let i = first; i <= last; i++) {
+      if (!isGoodPixel(spectrum, i) || inRanges(wavelength[i]!, masks)) continue
+      xs[m] = scale(wavelength[i]!, lo, hi)
+      ys[m] = flux[i]!
+      const e = error ? Math.max(error[i]!, floor) : 1
+      ws[m] = e > 0 && Number.isFinite(e) ? 1 / (e * e) : 0
+      m++
+    }
+  }
+  const deg = Math.max(0, Math.min(degree, Math.floor(m / 3) - 1))
+  if (m < 2 || deg < 0) throw new Error(`too few continuum points to fit: ${m}`)
+
+  const used = new Uint8Array(m).fill(1)
+  let coefficients = fitChebyshev(xs, ys, ws, used, m, deg)
+  let iterations = 1
+  let usedPoints = m
+  for (; iterations < maxIterations; iterations++) {
+    let sum2 = 0
+    let count = 0
+    for (let k = 0; k < m; k++) {
+      if (!used[k]) continue
+      const r = ys[k]! - chebyshev(coefficients, xs[k]!)
+      sum2 += r * r
+      count++
+    }
+    const rms = Math.sqrt(sum2 / Math.max(1, count - deg - 1))
+    let changed = 0
+    let keep = 0
+    for (let k = 0; k < m; k++) {
+      const r = ys[k]! - chebyshev(coefficients, xs[k]!)
+      const ok = r >= -lowSigma * rms && r <= highSigma * rms ? 1 : 0
+      if (ok !== used[k]) changed++
+      used[k] = ok
+      keep += ok
+    }
+    if (changed === 0 || keep < deg + 2) {
+      if (keep < deg + 2) used.fill(1)
+      break
+    }
+    coefficients = fitChebyshev(xs, ys, ws, used, m, deg)
+    usedPoints = keep
+  }
+
+  const continuum = new Float64Array(n)
+  const rectified = new Float64Array(n)
+  const rectifiedError = error ? new Float64Array(n) : undefined
+  for (let i = 0; i < n; i++) {
+    const w = wavelength[i]!
+    if (!isGoodPixel(spectrum, i) || w < lo || w > hi) {
+      continuum[i] = Number.NaN
+      rectified[i] = Number.NaN
+      if (rectifiedError) rectifiedError[i] = Number.NaN
+      continue
+    }
+    const c = chebyshev(coefficients, scale(w, lo, hi))
+    continuum[i] = c
+    rectified[i] = flux[i]! / c
+    if (rectifiedError && error) rectifiedError[i] = error[i]! / c
+  }
+  return {
+    continuum,
+    rectified,
+    ...(rectifiedError ? { rectifiedError } : {}),
+    pseudoContinuum: usePseudo,
+    bandDepth,
+    degree: deg,
+    iterations,
+    usedPoints,
+  }
+}
+
+/** Deepest TiO band in the spectrum: 1 − mean flux in the band window / mean flux in its blue side band. */
+function measureTioDepth(spectrum: Spectrum1D): number | null {
+  let deepest: number | null = null
+  for (const id of TIO_BAND_IDS) {
+    const band = findLine(id)
+    if (!band) continue
+    const inBand = meanFlux(spectrum, band.window)
+    const blue = meanFlux(spectrum, band.blue)
+    if (inBand === null || blue === null || !(blue > 0)) continue
+    const depth = 1 - inBand / blue
+    if (deepest === null || depth > deepest) deepest = depth
+  }
+  return deepest
+}
+
+function meanFlux(spectrum: Spectrum1D, range: WavelengthRange): number | null {
+  let sum = 0
+  let count = 0
+  for (let i = 0; i < spectrum.wavelength.length; i++) {
+    const w = spectrum.wavelength[i]!
+    if (w < range[0] || w > range[1] || !isGoodPixel(spectrum, i)) continue
+    sum += spectrum.flux[i]!
+    count++
+  }
+  return count >= 3 ? sum / count : null
+}
+
+function inRanges(w: number, ranges: readonly WavelengthRange[]): boolean {
+  for (const [a, b] of ranges) if (w >= a && w <= b) return true
+  return false
+}
+
+function scale(w: number, lo: number, hi: number): number {
+  return hi > lo ? (2 * (w - lo)) / (hi - lo) - 1 : 0
+}
+
+/** Chebyshev series Σ cₖ Tₖ(x) by Clenshaw's recurrence. */
+function chebyshev(c: Float64Array, x: number): number {
+  let b1 = 0
+  let b2 = 0
+  for (let k = c.length - 1; k >= 1; k--) {
+    const t = 2 * x * b1 - b2 + c[k]!
+    b2 = b1
+    b1 = t
+  }
+  return x * b1 - b2 + c[0]!
+}
+
+/** Weighted least squares for Chebyshev coefficients via the normal equations, solved with ml-matrix. */
+function fitChebyshev(
+  xs: Float64Array,
+  ys: Float64Array,
+  ws: Float64Array,
+  used: Uint8Array,
+  m: number,
+  degree: number,
+): Float64Array {
+  const size = degree + 1
+  const ata = new Float64Array(size * size)
+  const atb = new Float64Array(size)
+  const t = new Float64Array(size)
+  for (let k = 0; k < m; k++) {
+    if (!used[k]) continue
+    const x = xs[k]!
+    const w = ws[k]!
+    t[0] = 1
+    if (size > 1) t[1] = x
+    for (let j = 2; j < size; j++) t[j] = 2 * x * t[j - 1]! - t[j - 2]!
+    for (let a = 0; a < size; a++) {
+      const wa = w * t[a]!
+      atb[a] = atb[a]! + wa * ys[k]!
+      for (let b = a; b < size; b++) ata[a * size + b] = ata[a * size + b]! + wa * t[b]!
+    }
+  }
+  const rows: number[][] = []
+  for (let a = 0; a < size; a++) {
+    const row: number[] = []
+    for (let b = 0; b < size; b++) row.push(a <= b ? ata[a * size + b]! : ata[b * size + a]!)
+    rows.push(row)
+  }
+  const solution = solve(new Matrix(rows), Matrix.columnVector(Array.from(atb)))
+  return Float64Array.from(solution.getColumn(0))
+}
+
+/** The q-quantile (0–1) of the first n values, nearest rank; reorders the array. */
+function percentileInPlace(values: Float64Array, n: number, q: number): number {
+  const sorted = values.subarray(0, n).sort()
+  return sorted[Math.min(n - 1, Math.max(0, Math.round(q * (n - 1))))]!
+}

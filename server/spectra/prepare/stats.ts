@@ -1,0 +1,38 @@
+/**
+ * Median of the first n values of a scratch array, by quickselect (Hoare). Reorders the scratch
+ * array in place; no allocation. For even n the mean of the two middle values, as numpy does.
+ */
+export function medianInPlace(values: Float64Array, n: number): number {
+  if (n <= 0) return Number.NaN
+  const upper = select(values, n, n >> 1)
+  if (n % 2 === 1) return upper
+  // Lower middle: the largest value left of the upper middle after selection.
+  let lower = -Infinity
+  for (let i = 0; i < n >> 1; i++) if (values[i]! > lower) lower = values[i]!
+  return (lower + upper) / 2
+}
+
+function select(a: Float64Array, n: number, k: number): number {
+  let lo = 0
+  let hi = n - 1
+  while (lo < hi) {
+    const pivot = a[(lo + hi) >> 1]!
+    let i = lo
+    let j = hi
+    while (i <= j) {
+      while (a[i]! < pivot) i++
+      while (a[j]! > pivot) j--
+      if (i <= j) {
+        const t = a[i]!
+        a[i] = a[j]!
+        a[j] = t
+        i++
+        j--
+      }
+    }
+    if (k <= j) hi = j
+    else if (k >= i) lo = i
+    else return a[k]!
+  }
+  return a[k]!
+}
