@@ -21,6 +21,12 @@ function hasFitsSignature(bytes: Uint8Array): boolean {
   return true
 }
 
+/** FITS cards (BITPIX and NAXIS at their fixed columns) in the first block, whatever the first card says. */
+function looksLikeFitsHeader(bytes: Uint8Array): boolean {
+  const head = new TextDecoder('latin1').decode(bytes.subarray(0, 2880))
+  return head.length === 2880 && /^.{80}BITPIX  =/s.test(head) && head.includes('NAXIS   =')
+}
+
 /** Whether an HDU holds a spectrum, without decoding its data. */
 function spectrumKind(hdu: FitsHdu, fileName: string): 'image' | 'table' | string {
   if (hdu.kind === 'image') {
@@ -136,6 +142,9 @@ export function readSpectrum(bytes: Uint8Array, fileName: string, options: ReadO
       return readSpectrum(inner, fileName.replace(/\.gz$/i, ''), options)
     }
     reader = READERS.find((r) => r.sniff(bytes, fileName))
+    if (reader?.format === 'text' && looksLikeFitsHeader(bytes)) {
+      throw new SpectrumReadError('FITS_MALFORMED', `${fileName}: looks like a FITS header but does not start with 'SIMPLE  ='`)
+    }
     if (!reader) {
       throw new SpectrumReadError('UNKNOWN_FORMAT', `${fileName} is neither FITS (it does not start with 'SIMPLE  =') nor a text table`)
     }

@@ -39,12 +39,18 @@ const ERROR_WORDS = /^(err(or)?s?|sigma|unc(ertainty)?|e_?flux|flux_?err(or)?|iv
 
 interface HeaderColumn { word: string; unit?: string }
 
+/** Longest column name looked at, and longest line accepted: bounds the work on hostile input. */
+const MAX_NAME = 64
+const MAX_LINE = 10_000
+
 /** Splits "wavelength(nm)", "wave [Angstrom]", "lambda_A" into a name and a unit. */
 function parseHeaderToken(token: string): HeaderColumn {
-  const t = token.trim().replace(/^["']|["']$/g, '')
-  const bracket = /^(.*?)\s*[([{]\s*([^)\]}]*)\s*[)\]}]\s*$/.exec(t)
-  if (bracket) return { word: bracket[1]!.toLowerCase(), unit: bracket[2]! }
-  const under = /^(.*?)[_\s]([A-Za-zµμÅ]+)$/.exec(t)
+  const t = token.trim().replace(/^["']|["']$/g, '').slice(0, MAX_NAME)
+  // Index arithmetic rather than a backtracking regex: names come from untrusted files.
+  const close = t.at(-1)
+  const open = close === ')' ? t.lastIndexOf('(') : close === ']' ? t.lastIndexOf('[') : close === '}' ? t.lastIndexOf('{') : -1
+  if (open > 0) return { word: t.slice(0, open).trim().toLowerCase(), unit: t.slice(open + 1, -1).trim() }
+  const under = /^([^_\s]*)[_\s]([A-Za-zµμÅ]+)$/.exec(t)
   if (under && angstromsPerUnit(under[2]!) !== undefined && WAVE_WORDS.test(under[1]!.toLowerCase())) {
     return { word: under[1]!.toLowerCase(), unit: under[2]! }
   }
@@ -71,7 +77,7 @@ function columnsFromHeader(tokens: string[], fileName: string, lineNo: number): 
 
 /** "# wavelength unit: nm", "# units = Angstrom" in comments. */
 function unitFromComment(text: string): string | undefined {
-  const m = /\b(?:wave(?:length)?\s*)?units?\s*[:=]\s*([A-Za-zµμÅ]+)/i.exec(text)
+  const m = /\bunits?\s?[:=]\s?([A-Za-zµμÅ]+)/i.exec(text)
   return m && angstromsPerUnit(m[1]!) !== undefined ? m[1] : undefined
 }
 
@@ -99,6 +105,7 @@ export function readTextSpectrum(bytes: Uint8Array, fileName: string, options: R
   let n = 0
   for (let li = 0; li < lines.length; li++) {
     const line = lines[li]!.replace(/^\uFEFF/, '')
+    if (line.length > MAX_LINE) throw new SpectrumReadError('TEXT_MALFORMED', `${fileName}: line ${li + 1} is longer than ${MAX_LINE} characters; not a text table`)
     const trimmed = line.trim()
     if (trimmed === '') continue
     if (trimmed.startsWith('#') || trimmed.startsWith('!')) {
