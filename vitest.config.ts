@@ -43,6 +43,7 @@ export default defineConfig({
           name: 'e2e',
           environment: 'node',
           include: ['tests/e2e/**/*.test.ts'],
+          globalSetup: ['tests/e2e/global-setup.ts'],
           fileParallelism: false,
           testTimeout: 120_000,
           hookTimeout: 180_000,

@@ -1,5 +1,6 @@
 import type { QueryInterface } from 'sequelize'
 import * as m0001 from './0001-foundation'
+import * as m0002 from './0002-spectra'
 
 export interface Migration {
   name: string
@@ -8,4 +9,7 @@ export interface Migration {
 }
 
 /** Every migration, in order. A new one is a new file plus a line here. */
-export const migrations: Migration[] = [{ name: '0001-foundation', ...m0001 }]
+export const migrations: Migration[] = [
+  { name: '0001-foundation', ...m0001 },
+  { name: '0002-spectra', ...m0002 },
+]

@@ -1,0 +1,86 @@
+import multer from 'multer'
+import type { AppContext } from '../context'
+import { currentUser } from '../middleware/auth'
+import { idParams } from '../schemas/common'
+import { dataQuery, listQuery, spectrumMetadata, submitBody } from '../schemas/spectra.schemas'
+import { getRawFile, getSpectrumDetail, getSpectrumSeries, listSpectra, submitFiles, updateSpectrumMetadata } from '../services/spectra.service'
+import { SUBMITTERS, defineRoutes } from './route'
+
+export function spectraRoutes(ctx: AppContext) {
+  const upload = multer({
+    storage: multer.memoryStorage(),
+    limits: { fileSize: ctx.config.UPLOAD_MAX_BYTES, files: ctx.config.UPLOAD_MAX_FILES, fields: 40, fieldSize: 64 * 1024, parts: ctx.config.UPLOAD_MAX_FILES + 40 },
+  })
+  return defineRoutes([
+    {
+      method: 'post',
+      path: '/spectra',
+      access: SUBMITTERS,
+      before: [upload.array('files')],
+      schema: { body: submitBody },
+      handler: async (req, res) => {
+        const files = ((req.files as Express.Multer.File[] | undefined) ?? []).map((f) => ({ name: Buffer.from(f.originalname, 'latin1').toString('utf8'), bytes: f.buffer }))
+        const results = await submitFiles(ctx, currentUser(req), files, res.locals.body)
+        const accepted = results.filter((r) => r.outcome === 'accepted').length
+        res.status(files.length === 0 ? 422 : 200).json({
+          results,
+          accepted,
+          refused: results.length - accepted,
+          ...(files.length === 0 ? { error: { code: 'no_files', message: 'Choose at least one file.', details: null } } : {}),
+        })
+      },
+    },
+    {
+      method: 'get',
+      path: '/spectra',
+      access: 'signed-in',
+      schema: { query: listQuery },
+      handler: async (req, res) => {
+        res.json(await listSpectra(currentUser(req), res.locals.query))
+      },
+    },
+    {
+      method: 'get',
+      path: '/spectra/:id',
+      access: 'signed-in',
+      schema: { params: idParams },
+      handler: async (req, res) => {
+        res.json({ spectrum: await getSpectrumDetail(currentUser(req), res.locals.params.id) })
+      },
+    },
+    {
+      method: 'patch',
+      path: '/spectra/:id',
+      access: SUBMITTERS,
+      schema: { params: idParams, body: spectrumMetadata },
+      handler: async (req, res) => {
+        res.json({ spectrum: await updateSpectrumMetadata(currentUser(req), res.locals.params.id, res.locals.body) })
+      },
+    },
+    {
+      method: 'get',
+      path: '/spectra/:id/data',
+      access: 'signed-in',
+      schema: { params: idParams, query: dataQuery },
+      handler: async (req, res) => {
+        const series = await getSpectrumSeries(currentUser(req), res.locals.params.id, res.locals.query)
+        res.set('content-type', 'application/octet-stream')
+        res.set('x-series-layout', JSON.stringify(series.layout))
+        res.set('access-control-expose-headers', 'x-series-layout')
+        res.send(series.body)
+      },
+    },
+    {
+      method: 'get',
+      path: '/spectra/:id/file',
+      access: 'signed-in',
+      schema: { params: idParams },
+      handler: async (req, res) => {
+        const file = await getRawFile(currentUser(req), res.locals.params.id)
+        res.attachment(file.name)
+        res.set('content-type', 'application/octet-stream')
+        res.send(file.bytes)
+      },
+    },
+  ])
+}

@@ -1,0 +1,61 @@
+import { z } from 'zod'
+import { parseDeclination, parseRightAscension } from '../../shared/coords'
+import { SPECTRUM_STATUSES } from '../../shared/status'
+import { paging } from './paging'
+
+const optionalNumber = (min: number, max: number, what: string) =>
+  z.preprocess(
+    (v) => (v === '' || v === null || v === undefined ? undefined : v),
+    z.coerce.number({ message: `must be a number` }).min(min, `${what} must be at least ${min}`).max(max, `${what} must be at most ${max}`).optional(),
+  )
+const optionalText = (max: number) => z.preprocess((v) => (v === null ? undefined : v), z.string().trim().max(max).optional())
+const ra = z.string().trim().max(40).refine((v) => v === '' || parseRightAscension(v).ok, { message: 'must be hh:mm:ss or degrees (0–360)' })
+const dec = z.string().trim().max(40).refine((v) => v === '' || parseDeclination(v).ok, { message: 'must be ±dd:mm:ss or degrees (−90…+90)' })
+const date = z.string().trim().max(40).refine((v) => v === '' || !Number.isNaN(Date.parse(v)), { message: 'must be a date, e.g. 2026-03-14T02:10:00' })
+
+/** What an observer can say about a spectrum, on upload or later. */
+export const spectrumMetadata = z.object({
+  objectName: optionalText(120),
+  ra: ra.optional(),
+  dec: dec.optional(),
+  obsDate: date.optional(),
+  instrument: optionalText(160),
+  resolutionFwhm: optionalNumber(0.01, 100, 'resolution FWHM (Å)'),
+  resolvingPower: optionalNumber(10, 1_000_000, 'resolving power'),
+  vMag: optionalNumber(-2, 30, 'V magnitude'),
+  parallaxMas: optionalNumber(-100, 1000, 'parallax (mas)'),
+  parallaxErrorMas: optionalNumber(0, 1000, 'parallax error (mas)'),
+  ebv: optionalNumber(0, 5, 'E(B−V)'),
+  notes: optionalText(2000),
+})
+export type SpectrumMetadataInput = z.infer<typeof spectrumMetadata>
+
+export const submitBody = spectrumMetadata.extend({
+  campaignId: z.coerce.number().int().positive({ message: 'choose a campaign' }),
+  batchId: z.string().uuid().optional(),
+  wavelengthMedium: z.enum(['file', 'air', 'vacuum']).default('file'),
+  hdu: z.preprocess((v) => (v === '' ? undefined : v), z.coerce.number().int().min(0).max(999).optional()),
+})
+
+const sortable = ['createdAt', 'objectName', 'snr', 'status', 'obsDate', 'id'] as const
+export const listQuery = z.object({
+  ...paging,
+  status: z.enum(SPECTRUM_STATUSES).optional(),
+  campaign: z.coerce.number().int().positive().optional(),
+  q: z.string().trim().max(120).optional(),
+  from: date.optional(),
+  to: date.optional(),
+  snrMin: z.coerce.number().optional(),
+  snrMax: z.coerce.number().optional(),
+  mine: z.enum(['1', '0']).optional(),
+  sort: z
+    .string()
+    .regex(new RegExp(`^-?(${sortable.join('|')})$`), `sort by one of ${sortable.join(', ')}, with - for descending`)
+    .default('-createdAt'),
+})
+
+export const dataQuery = z.object({
+  from: z.coerce.number().positive().optional(),
+  to: z.coerce.number().positive().optional(),
+  maxPoints: z.coerce.number().int().min(10).max(200_000).default(4000),
+})

@@ -1,0 +1,380 @@
+import { Op, UniqueConstraintError, type Order, type WhereOptions } from 'sequelize'
+import { DEFAULT_CLASSIFICATION_REGION } from '../../shared/grid'
+import { parseDeclination, parseRightAscension } from '../../shared/coords'
+import type { SpectrumStatus } from '../../shared/status'
+import type { AppContext } from '../context'
+import { bufferToFloat32, bufferToFloat64, float32ToBuffer, float64ToBuffer } from '../lib/binary'
+import { decimateMinMax, lowerBound } from '../lib/decimate'
+import { HttpError, notFound } from '../lib/http-error'
+import { sha256Hex } from '../lib/tokens'
+import { Campaign, Spectrum, SpectrumBlob, User } from '../models'
+import type { SpectrumMetadataInput } from '../schemas/spectra.schemas'
+import { readSpectrum, unpackZip, type ReadMeta, type ReadSuccess } from '../spectra/io'
+import { estimateSpectrumSnr } from '../spectra/prepare/snr'
+import { campaignForSubmission, campaignIdsOf } from './campaigns.service'
+
+export interface UploadedFile {
+  name: string
+  bytes: Buffer
+}
+
+export interface SubmitOptions extends SpectrumMetadataInput {
+  campaignId: number
+  batchId?: string
+  wavelengthMedium: 'file' | 'air' | 'vacuum'
+  hdu?: number
+}
+
+export type FileResult =
+  | { file: string; outcome: 'accepted'; spectrumId: number; pixels: number; wavelengthRange: [number, number]; dispersion: number; snr: number | null; objectName: string; notes: string[] }
+  | { file: string; outcome: 'duplicate'; spectrumId: number | null; message: string }
+  | { file: string; outcome: 'refused'; code: string; message: string }
+
+const ZIP_MAGIC = [0x50, 0x4b, 0x03, 0x04]
+const isZip = (b: Uint8Array) => ZIP_MAGIC.every((v, i) => b[i] === v)
+
+/** Median Å per pixel. */
+function medianDispersion(wl: Float64Array): number {
+  const d = new Float64Array(wl.length - 1)
+  for (let i = 1; i < wl.length; i++) d[i - 1] = wl[i]! - wl[i - 1]!
+  d.sort()
+  return d[d.length >> 1] ?? 0
+}
+
+const headerString = (h: Record<string, unknown>, ...keys: string[]) => {
+  for (const k of keys) if (h[k] !== undefined && h[k] !== '') return String(h[k]).trim()
+  return undefined
+}
+const headerNumber = (h: Record<string, unknown>, ...keys: string[]) => {
+  for (const k of keys) {
+    const v = Number(h[k])
+    if (h[k] !== undefined && h[k] !== '' && Number.isFinite(v)) return v
+  }
+  return undefined
+}
+
+/** The observer's values win; the file's header fills what they left empty. */
+function resolveMetadata(input: SpectrumMetadataInput, meta: ReadMeta, fileName: string) {
+  const h = meta.header
+  const raText = input.ra || headerString(h, 'RA', 'OBJCTRA', 'RA_OBJ')
+  const decText = input.dec || headerString(h, 'DEC', 'OBJCTDEC', 'DEC_OBJ')
+  const ra = raText ? parseRightAscension(raText) : null
+  const dec = decText ? parseDeclination(decText) : null
+  const dateText = input.obsDate || headerString(h, 'DATE-OBS', 'DATE_OBS', 'DATE')
+  const obsDate = dateText && !Number.isNaN(Date.parse(dateText)) ? new Date(dateText.endsWith('Z') || /[+-]\d\d:?\d\d$/.test(dateText) ? dateText : `${dateText}Z`) : null
+  return {
+    objectName: input.objectName || headerString(h, 'OBJECT', 'OBJNAME') || fileName.replace(/\.[^.]+$/, ''),
+    raDeg: ra && ra.ok ? ra.degrees : null,
+    decDeg: dec && dec.ok ? dec.degrees : null,
+    obsDate: obsDate && !Number.isNaN(obsDate.getTime()) ? obsDate : null,
+    exposureS: headerNumber(h, 'EXPTIME', 'EXPOSURE') ?? null,
+    instrument: input.instrument || headerString(h, 'INSTRUME', 'INSTRUMENT') || '',
+    resolutionFwhm: input.resolutionFwhm ?? headerNumber(h, 'SPEC_RES', 'RESOLUTN', 'FWHM') ?? null,
+    resolvingPower: input.resolvingPower ?? headerNumber(h, 'SPECRP', 'RESPOWER', 'R') ?? null,
+    vMag: input.vMag ?? null,
+    parallaxMas: input.parallaxMas ?? null,
+    parallaxErrorMas: input.parallaxErrorMas ?? null,
+    ebv: input.ebv ?? null,
+    notes: input.notes ?? '',
+  }
+}
+
+async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: UploadedFile, opts: SubmitOptions): Promise<FileResult> {
+  const sha = sha256Hex(file.bytes)
+  const existing = await Spectrum.findOne({ where: { fileSha256: sha }, attributes: ['id', 'submittedBy'] })
+  const duplicate = (id: number | null): FileResult => ({
+    file: file.name,
+    outcome: 'duplicate',
+    spectrumId: id,
+    message: `${file.name} was submitted before${id ? ` (spectrum #${id})` : ''}; it is not stored twice.`,
+  })
+  if (existing) return duplicate(existing.submittedBy === user.id || user.role !== 'observer' ? existing.id : null)
+
+  const { config } = ctx
+  const read = readSpectrum(new Uint8Array(file.bytes.buffer, file.bytes.byteOffset, file.bytes.length), file.name, {
+    maxBytes: config.UPLOAD_MAX_BYTES,
+    maxPixels: config.UPLOAD_MAX_PIXELS,
+    minPixels: config.UPLOAD_MIN_PIXELS,
+    hdu: opts.hdu,
+    assumeVacuum: opts.wavelengthMedium === 'file' ? undefined : opts.wavelengthMedium === 'vacuum',
+  })
+  if (!read.ok) return { file: file.name, outcome: 'refused', code: read.code, message: read.message }
+  return insertSpectrum(ctx, user, campaign, file, sha, read, opts).catch((error: unknown) => {
+    if (error instanceof UniqueConstraintError) return duplicate(null)
+    throw error
+  })
+}
+
+async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, file: UploadedFile, sha: string, read: ReadSuccess, opts: SubmitOptions): Promise<FileResult> {
+  const { spectrum: s, meta } = read
+  const wl = s.wavelengthAir
+  const snr = estimateSpectrumSnr({ wavelength: wl, flux: s.flux, ...(s.mask ? { mask: s.mask } : {}) }, { region: DEFAULT_CLASSIFICATION_REGION })
+  const dispersion = medianDispersion(wl)
+  const metadata = resolveMetadata(opts, meta, file.name)
+  const row = await ctx.sequelize.transaction(async (transaction) => {
+    const spectrum = await Spectrum.create(
+      {
+        campaignId: campaign.id,
+        submittedBy: user.id,
+        batchId: opts.batchId ?? null,
+        statusReason: null,
+        ...metadata,
+        fileName: file.name.slice(0, 255),
+        fileSha256: sha,
+        fileSize: file.bytes.length,
+        format: meta.format,
+        hdu: meta.hdu ?? null,
+        pixels: wl.length,
+        wlMin: wl[0]!,
+        wlMax: wl[wl.length - 1]!,
+        dispersion,
+        snr: snr !== null && Number.isFinite(snr) ? snr : null,
+        vacuumConverted: meta.vacuumConverted,
+        readInfo: JSON.stringify(meta),
+      },
+      { transaction },
+    )
+    await SpectrumBlob.create(
+      {
+        spectrumId: spectrum.id,
+        raw: file.bytes,
+        wavelength: float64ToBuffer(wl),
+        flux: float32ToBuffer(s.flux),
+        error: s.error ? float32ToBuffer(s.error) : null,
+        mask: s.mask ? Buffer.from(s.mask) : null,
+      },
+      { transaction },
+    )
+    return spectrum
+  })
+  ctx.jobs?.enqueue(row.id)
+  return {
+    file: file.name,
+    outcome: 'accepted',
+    spectrumId: row.id,
+    pixels: row.pixels,
+    wavelengthRange: [row.wlMin, row.wlMax],
+    dispersion: row.dispersion,
+    snr: row.snr,
+    objectName: row.objectName,
+    notes: meta.notes,
+  }
+}
+
+/** Reads and stores each uploaded file (zip archives file by file); one bad file never stops the others. */
+export async function submitFiles(ctx: AppContext, user: User, files: UploadedFile[], opts: SubmitOptions): Promise<FileResult[]> {
+  const campaign = await campaignForSubmission(user, opts.campaignId)
+  const results: FileResult[] = []
+  let budget = ctx.config.UPLOAD_MAX_FILES
+  for (const file of files) {
+    if (isZip(file.bytes)) {
+      const unzipped = unpackZip(new Uint8Array(file.bytes), { maxEntries: budget, maxTotalBytes: ctx.config.UPLOAD_MAX_BYTES * 4, maxEntryBytes: ctx.config.UPLOAD_MAX_BYTES })
+      if (!unzipped.ok) {
+        results.push({ file: file.name, outcome: 'refused', code: unzipped.code, message: unzipped.message })
+        continue
+      }
+      for (const entry of unzipped.entries) {
+        budget--
+        results.push(await storeOne(ctx, user, campaign, { name: `${file.name}/${entry.name}`, bytes: Buffer.from(entry.bytes) }, opts))
+      }
+      continue
+    }
+    budget--
+    if (budget < 0) {
+      results.push({ file: file.name, outcome: 'refused', code: 'TOO_MANY_FILES', message: `${file.name}: a batch holds at most ${ctx.config.UPLOAD_MAX_FILES} files` })
+      continue
+    }
+    results.push(await storeOne(ctx, user, campaign, file, opts))
+  }
+  return results
+}
+
+/** Which spectra a user may see: observers their own, classifiers their campaigns', leads all. */
+export async function visibilityWhere(user: User): Promise<WhereOptions<Spectrum>> {
+  if (user.role === 'observer') return { submittedBy: user.id }
+  const ids = await campaignIdsOf(user)
+  return ids === 'all' ? {} : { campaignId: { [Op.in]: ids } }
+}
+
+export async function findVisibleSpectrum(user: User, id: number): Promise<Spectrum> {
+  const spectrum = await Spectrum.findOne({ where: { [Op.and]: [{ id }, await visibilityWhere(user)] } })
+  if (!spectrum) throw notFound('The spectrum')
+  return spectrum
+}
+
+export interface SpectrumListItem {
+  id: number
+  objectName: string
+  status: SpectrumStatus
+  statusReason: string | null
+  campaign: { id: number; code: string; name: string }
+  submittedBy: { id: number; name: string }
+  fileName: string
+  obsDate: string | null
+  createdAt: string
+  snr: number | null
+  pixels: number
+  wavelengthRange: [number, number]
+  dispersion: number
+  raDeg: number | null
+  decDeg: number | null
+}
+
+function toListItem(s: Spectrum & { campaign?: Campaign; submitter?: User }): SpectrumListItem {
+  return {
+    id: s.id,
+    objectName: s.objectName,
+    status: s.status,
+    statusReason: s.statusReason,
+    campaign: { id: s.campaignId, code: s.campaign?.code ?? '', name: s.campaign?.name ?? '' },
+    submittedBy: { id: s.submittedBy, name: s.submitter?.name ?? '' },
+    fileName: s.fileName,
+    obsDate: s.obsDate ? s.obsDate.toISOString() : null,
+    createdAt: s.createdAt.toISOString(),
+    snr: s.snr,
+    pixels: s.pixels,
+    wavelengthRange: [s.wlMin, s.wlMax],
+    dispersion: s.dispersion,
+    raDeg: s.raDeg,
+    decDeg: s.decDeg,
+  }
+}
+
+export interface ListQuery {
+  page: number
+  pageSize: number
+  status?: SpectrumStatus
+  campaign?: number
+  q?: string
+  from?: string
+  to?: string
+  snrMin?: number
+  snrMax?: number
+  mine?: '1' | '0'
+  sort: string
+}
+
+export async function listSpectra(user: User, query: ListQuery): Promise<{ items: SpectrumListItem[]; total: number; page: number; pageSize: number }> {
+  const and: WhereOptions<Spectrum>[] = [await visibilityWhere(user)]
+  if (query.status) and.push({ status: query.status })
+  if (query.campaign) and.push({ campaignId: query.campaign })
+  if (query.mine === '1') and.push({ submittedBy: user.id })
+  if (query.q) {
+    const like = `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`
+    and.push({ [Op.or]: [{ objectName: { [Op.like]: like } }, { fileName: { [Op.like]: like } }] })
+  }
+  if (query.from) and.push({ createdAt: { [Op.gte]: new Date(query.from) } })
+  if (query.to) and.push({ createdAt: { [Op.lte]: new Date(query.to) } })
+  if (query.snrMin !== undefined) and.push({ snr: { [Op.gte]: query.snrMin } })
+  if (query.snrMax !== undefined) and.push({ snr: { [Op.lte]: query.snrMax } })
+  const desc = query.sort.startsWith('-')
+  const field = query.sort.replace(/^-/, '')
+  const order: Order = [[field, desc ? 'DESC' : 'ASC'], ['id', desc ? 'DESC' : 'ASC']]
+  const { rows, count } = await Spectrum.findAndCountAll({
+    where: { [Op.and]: and },
+    include: [
+      { model: Campaign, as: 'campaign', attributes: ['id', 'code', 'name'] },
+      { model: User, as: 'submitter', attributes: ['id', 'name'] },
+    ],
+    order,
+    limit: query.pageSize,
+    offset: (query.page - 1) * query.pageSize,
+  })
+  return { items: rows.map((r) => toListItem(r as Spectrum & { campaign?: Campaign; submitter?: User })), total: count, page: query.page, pageSize: query.pageSize }
+}
+
+export interface SpectrumDetail extends SpectrumListItem {
+  instrument: string
+  exposureS: number | null
+  resolutionFwhm: number | null
+  resolvingPower: number | null
+  vMag: number | null
+  parallaxMas: number | null
+  parallaxErrorMas: number | null
+  ebv: number | null
+  notes: string
+  format: string
+  fileSize: number
+  fileSha256: string
+  vacuumConverted: boolean
+  read: ReadMeta
+  canEdit: boolean
+}
+
+export async function getSpectrumDetail(user: User, id: number): Promise<SpectrumDetail> {
+  const s = await findVisibleSpectrum(user, id)
+  const [campaign, submitter] = await Promise.all([Campaign.findByPk(s.campaignId), User.findByPk(s.submittedBy, { attributes: ['id', 'name'] })])
+  return {
+    ...toListItem(Object.assign(s, { campaign: campaign ?? undefined, submitter: submitter ?? undefined })),
+    instrument: s.instrument,
+    exposureS: s.exposureS,
+    resolutionFwhm: s.resolutionFwhm,
+    resolvingPower: s.resolvingPower,
+    vMag: s.vMag,
+    parallaxMas: s.parallaxMas,
+    parallaxErrorMas: s.parallaxErrorMas,
+    ebv: s.ebv,
+    notes: s.notes,
+    format: s.format,
+    fileSize: s.fileSize,
+    fileSha256: s.fileSha256,
+    vacuumConverted: s.vacuumConverted,
+    read: JSON.parse(s.readInfo) as ReadMeta,
+    canEdit: s.submittedBy === user.id || user.role === 'lead',
+  }
+}
+
+/** The observer corrects what the header said; the arrays and the raw file never change. */
+export async function updateSpectrumMetadata(user: User, id: number, input: SpectrumMetadataInput): Promise<SpectrumDetail> {
+  const s = await findVisibleSpectrum(user, id)
+  if (s.submittedBy !== user.id && user.role !== 'lead') throw new HttpError(403, 'forbidden', 'Only the person who submitted a spectrum, or a lead, can change its details.')
+  const changes: Partial<Spectrum> = {}
+  if (input.objectName !== undefined) changes.objectName = input.objectName
+  if (input.ra !== undefined) changes.raDeg = input.ra === '' ? null : (parseRightAscension(input.ra) as { degrees: number }).degrees
+  if (input.dec !== undefined) changes.decDeg = input.dec === '' ? null : (parseDeclination(input.dec) as { degrees: number }).degrees
+  if (input.obsDate !== undefined) changes.obsDate = input.obsDate === '' ? null : new Date(input.obsDate)
+  for (const key of ['instrument', 'resolutionFwhm', 'resolvingPower', 'vMag', 'parallaxMas', 'parallaxErrorMas', 'ebv', 'notes'] as const) {
+    if (input[key] !== undefined) (changes as Record<string, unknown>)[key] = input[key]
+  }
+  await s.update(changes)
+  return getSpectrumDetail(user, id)
+}
+
+export interface SeriesPayload {
+  layout: { points: number; total: number; decimated: boolean; columns: string[] }
+  body: Buffer
+}
+
+/** The observed arrays between from and to (Å), decimated to maxPoints, as float32 columns. */
+export async function getSpectrumSeries(user: User, id: number, q: { from?: number; to?: number; maxPoints: number }): Promise<SeriesPayload> {
+  await findVisibleSpectrum(user, id)
+  const blob = await SpectrumBlob.findByPk(id, { attributes: ['wavelength', 'flux', 'error', 'mask'] })
+  if (!blob) throw notFound('The spectrum data')
+  const wl = bufferToFloat64(blob.wavelength)
+  const flux = bufferToFloat32(blob.flux)
+  const error = blob.error ? bufferToFloat32(blob.error) : null
+  const mask = blob.mask
+  const from = q.from !== undefined ? lowerBound(wl, q.from) : 0
+  const to = q.to !== undefined ? lowerBound(wl, q.to) : wl.length
+  const keep = decimateMinMax(flux, from, Math.max(from, to), q.maxPoints)
+  const columns = error ? ['wavelength', 'flux', 'error'] : ['wavelength', 'flux']
+  const out = new Float32Array(keep.length * columns.length)
+  keep.forEach((idx, k) => {
+    const bad = mask ? mask[idx] === 1 : false
+    out[k] = wl[idx]!
+    out[keep.length + k] = bad ? Number.NaN : flux[idx]!
+    if (error) out[2 * keep.length + k] = error[idx]!
+  })
+  return {
+    layout: { points: keep.length, total: to - from, decimated: keep.length < to - from, columns },
+    body: Buffer.from(out.buffer, out.byteOffset, out.byteLength),
+  }
+}
+
+/** The file exactly as it was uploaded. */
+export async function getRawFile(user: User, id: number): Promise<{ name: string; bytes: Buffer }> {
+  const s = await findVisibleSpectrum(user, id)
+  const blob = await SpectrumBlob.findByPk(id, { attributes: ['raw'] })
+  if (!blob) throw notFound('The uploaded file')
+  return { name: s.fileName.split('/').pop() ?? s.fileName, bytes: blob.raw }
+}
