@@ -96,7 +96,7 @@ export const CLASSIFICATION_LINES: readonly ClassificationLine[] = [
   // Calcium II resonance lines.
   {
     id: 'ca-ii-k', name: 'Ca II K', wavelength: 3933.66, wavelengthSource: NIST, family: 'metal',
-    window: [3926, 3941], blue: [3912, 3922], red: [3943, 3950], windowSource: CHOSEN,
+    window: [3928, 3939.5], blue: [3920, 3927], red: [3940, 3947], windowSource: CHOSEN,
     indicates: ['temperature', 'peculiarity'], continuumMask: [3915, 3950],
   },
   {
