@@ -7,7 +7,8 @@
  *
  * Conventions this module follows (and documents where the notation itself is silent):
  * - Type codes: O0 = 0 … O9 = 9, B0 = 10, A0 = 20, F0 = 30, G0 = 40, K0 = 50, M0 = 60, and for the
- *   cool extensions L0 = 70, T0 = 80, Y0 = 90; so B8 = 18 and K1.5 = 51.5. Only the MK kind
+ *   cool extensions L0 = 70, T0 = 80, Y0 = 90; so B8 = 18 and K1.5 = 51.5. The late Mira type
+ *   M10 gets 70, the same code as L0. Only the MK kind
  *   (including subdwarf and other prefixes) carries a type code: white dwarfs, carbon and S stars,
  *   Wolf–Rayet stars and named oddities sit outside the MK grid.
  * - A range or intermediate type ("G8/K0", "A0-A2", "O9.5/B0") gets the mean of its ends as its
