@@ -1,0 +1,31 @@
+import type { Role } from '@shared/roles'
+import { roleMayOpen, type AppRouteName } from './routes'
+
+export type NavIconName = 'people' | 'mail' | 'account'
+
+export interface NavEntry {
+  route: AppRouteName
+  label: string
+  icon: NavIconName
+}
+
+/**
+ * The left navigation, top to bottom. Adding a screen to it is one line here; who sees the entry
+ * follows the route's `meta.roles` in routes.ts, so the nav never offers a screen the router refuses.
+ */
+export const NAV_ENTRIES: readonly NavEntry[] = [
+  { route: 'people', label: 'People', icon: 'people' },
+  { route: 'outbox', label: 'Outbox', icon: 'mail' },
+  { route: 'account', label: 'My account', icon: 'account' },
+]
+
+/** Where each role lands after signing in, and when it opens a screen it may not see. */
+export const HOME_ROUTE: Record<Role, AppRouteName> = {
+  observer: 'account',
+  classifier: 'account',
+  lead: 'people',
+}
+
+export function navFor(role: Role): NavEntry[] {
+  return NAV_ENTRIES.filter((entry) => roleMayOpen(entry.route, role))
+}

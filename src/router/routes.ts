@@ -1,0 +1,39 @@
+import type { RouteRecordRaw } from 'vue-router'
+import type { Role } from '@shared/roles'
+
+declare module 'vue-router' {
+  interface RouteMeta {
+    /** Roles that may open the screen; absent means any signed-in person. */
+    roles?: readonly Role[]
+    /** Open to anonymous visitors (sign-in, set-password, not found). */
+    public?: boolean
+    /** Drawn without the app shell even when someone is signed in. */
+    bare?: boolean
+    /** Window title; "Lineweight" is appended. */
+    title?: string
+  }
+}
+
+/** Every screen's route name, so links and the nav table are checked by the compiler. */
+export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound'
+
+type AppRoute = RouteRecordRaw & { name: AppRouteName }
+
+/** Named, lazily loaded screens. Who may open each one is stated here, once; the nav table reads it. */
+export const routes: AppRoute[] = [
+  // Redirected by the guard to the signed-in person's home (see HOME_ROUTE in nav.ts).
+  { path: '/', name: 'home', component: () => import('@/views/HomeRedirectView.vue') },
+  { path: '/sign-in', name: 'signIn', component: () => import('@/views/SignInView.vue'), meta: { public: true, bare: true, title: 'Sign in' } },
+  { path: '/set-password', name: 'setPassword', component: () => import('@/views/SetPasswordView.vue'), meta: { public: true, bare: true, title: 'Set password' } },
+  { path: '/account', name: 'account', component: () => import('@/views/AccountView.vue'), meta: { title: 'My account' } },
+  { path: '/people', name: 'people', component: () => import('@/views/PeopleView.vue'), meta: { roles: ['lead'], title: 'People' } },
+  { path: '/outbox', name: 'outbox', component: () => import('@/views/OutboxView.vue'), meta: { roles: ['lead'], title: 'Outbox' } },
+  { path: '/:pathMatch(.*)*', name: 'notFound', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Not found' } },
+]
+
+/** Whether a role may open the named route, from the route's own meta. */
+export function roleMayOpen(name: AppRouteName, role: Role): boolean {
+  const route = routes.find((r) => r.name === name)
+  const roles = route?.meta?.roles
+  return route !== undefined && (roles === undefined || roles.includes(role))
+}
