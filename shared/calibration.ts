@@ -161,7 +161,7 @@ function meanTable(a: CalibrationTable, b: CalibrationTable, source: string): Ca
 const TEFF: ClassTables = {
   Ia: TEFF_SUPERGIANTS,
   Ib: TEFF_SUPERGIANTS,
-  II: meanTable(TEFF_GIANTS, TEFF_SUPERGIANTS, 'mean of the III and I scales (see their sources)'),
+  II: meanTable(TEFF_GIANTS, TEFF_SUPERGIANTS, 'mean of the III and I scales: Martins et al. (2005), Schmidt-Kaler (1982), Levesque et al. (2005) (from memory)'),
   III: TEFF_GIANTS,
   IV: TEFF_SUBGIANTS,
   V: TEFF_DWARFS,
