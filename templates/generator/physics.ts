@@ -399,7 +399,7 @@ export function linearStarkDamping(lowerN: number, upperN: number, charge: numbe
 /**
  * Line-to-continuum opacity ratio scale of a line per unit Voigt function:
  * κ_l/κ_c = (πe²/m_e c)(λ²/c) gf (N_stage/N_H)(e^{−χ/kT}/U)(1 − e^{−hν/kT}) H(a,v)/(√π Δλ_D) / κ_c
- * (Gray 2005, eqs. 11.x and 16.x: the line absorption coefficient of the curve of growth).
+ * (Gray 2005, ch. 11 and 16: the line absorption coefficient of the curve of growth).
  * @param stageFraction N_stage / N_H (abundance × ionisation fraction)
  * @param partition U of the stage at T
  * @param continuum κ_c per H nucleus at the line, cm²
