@@ -139,6 +139,8 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
   })
   const centre = (rvRegion[0] + rvRegion[1]) / 2
   const noiseCorrelation = rebinNoiseCorrelation(rest, grid, centre)
+  const smoothed = targetFwhm !== undefined && inputFwhm !== undefined && inputFwhm < targetFwhm
+  const resolution = smoothed ? targetFwhm : inputFwhm
   const lines = measureSpectrumLines(
     {
       wavelength: prepared.wavelength,
@@ -146,7 +148,7 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
       ...(prepared.rectifiedError ? { error: prepared.rectifiedError } : {}),
       mask: prepared.mask,
     },
-    { snrByLine, snr, snrFloor, noiseCorrelation },
+    { snrByLine, snr, snrFloor, noiseCorrelation, ...(resolution !== undefined ? { instrumentalFwhm: resolution } : {}) },
   )
   const ratios = measureLineRatios(lines)
   return {

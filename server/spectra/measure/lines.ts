@@ -3,6 +3,7 @@ import type { Spectrum1D } from '../../../shared/spectrum'
 import { assertSpectrum } from '../prepare/guards'
 import { measureSpectrumLine } from './line'
 import type { LineMeasurement, LineRatio, MeasuredLine } from './types'
+import { gaussianFwhm } from './voigt'
 import { fitSpectrumVoigtLine } from './voigt-fit'
 
 export interface LinesOptions {
@@ -18,6 +19,8 @@ export interface LinesOptions {
   noiseCorrelation?: number
   /** Ids of the lines that also get a Voigt fit. @default VOIGT_FIT_LINE_IDS (Hβ … H8) */
   voigtLineIds?: readonly string[]
+  /** Instrumental FWHM of the spectrum, Å: the smallest Gaussian width a Voigt fit may take. @default undefined */
+  instrumentalFwhm?: number
 }
 
 /**
@@ -34,12 +37,14 @@ export function measureSpectrumLines(spectrum: Spectrum1D, options: LinesOptions
     snrFloor = 10,
     noiseCorrelation = 1,
     voigtLineIds = VOIGT_FIT_LINE_IDS,
+    instrumentalFwhm,
   } = options
+  const minSigma = instrumentalFwhm !== undefined ? instrumentalFwhm / gaussianFwhm(1) : undefined
   return lines.map((line) => {
     const lineSnr = snrByLine[line.id] ?? snr
     const measurement = measureSpectrumLine(spectrum, line, { snr: lineSnr, snrFloor, noiseCorrelation })
     if (!measurement.measured || !voigtLineIds.includes(line.id)) return measurement
-    const result = fitSpectrumVoigtLine(spectrum, line, { noiseCorrelation })
+    const result = fitSpectrumVoigtLine(spectrum, line, { noiseCorrelation, ...(minSigma !== undefined ? { minSigma } : {}) })
     return result.ok ? { ...measurement, voigt: result.fit } : { ...measurement, voigt: null, voigtReason: result.reason }
   })
 }

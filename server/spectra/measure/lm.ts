@@ -73,6 +73,19 @@ export function fitLevenbergMarquardt(
     for (let attempt = 0; attempt < 12 && !accepted; attempt++) {
       system.set(alpha)
       for (let j = 0; j < p; j++) system[j * p + j] = alpha[j * p + j]! * (1 + damping) + 1e-300
+      // A parameter held at a bound that the gradient pushes further out stays where it is
+      // (an active-set step), so the others converge instead of crawling along the bound.
+      for (let j = 0; j < p; j++) {
+        const atLower = lower !== undefined && params[j]! <= lower[j]! && beta[j]! < 0
+        const atUpper = upper !== undefined && params[j]! >= upper[j]! && beta[j]! > 0
+        if (!atLower && !atUpper) continue
+        for (let k = 0; k < p; k++) {
+          system[j * p + k] = 0
+          system[k * p + j] = 0
+        }
+        system[j * p + j] = 1
+        beta[j] = 0
+      }
       if (!solveInPlace(system, beta, step, p)) {
         damping *= 10
         continue

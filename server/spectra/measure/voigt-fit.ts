@@ -12,8 +12,13 @@ export interface VoigtFitOptions {
   maxShift?: number
   /** Pixels per independent noise sample; inflates the variance of the fitted parameters. @default 1 */
   noiseCorrelation?: number
-  /** Most Levenberg–Marquardt iterations. @default 40 */
+  /** Most Levenberg–Marquardt iterations. @default 100 */
   maxIterations?: number
+  /**
+   * Smallest Gaussian σ allowed, Å: the instrumental σ when the resolution is known, since no line
+   * can be sharper than the instrument makes it. @default a quarter of a pixel
+   */
+  minSigma?: number
 }
 
 export type VoigtFitResult = { ok: true; fit: VoigtFit } | { ok: false; reason: string }
@@ -30,7 +35,7 @@ export type VoigtFitResult = { ok: true; fit: VoigtFit } | { ok: false; reason: 
  */
 export function fitSpectrumVoigtLine(spectrum: Spectrum1D, line: ClassificationLine, options: VoigtFitOptions = {}): VoigtFitResult {
   assertSpectrum(spectrum, 2)
-  const { window = line.profileWindow ?? line.window, maxShift = 5, noiseCorrelation = 1, maxIterations = 40 } = options
+  const { window = line.profileWindow ?? line.window, maxShift = 5, noiseCorrelation = 1, maxIterations = 100 } = options
   const { wavelength: w, flux, error, mask } = spectrum
   let count = 0
   for (let i = 0; i < w.length; i++) {
@@ -62,10 +67,11 @@ export function fitSpectrumVoigtLine(spectrum: Spectrum1D, line: ClassificationL
   let right = x[count - 1]!
   for (let j = deepest; j < count; j++) if (level0 - y[j]! < depth0 / 2) { right = x[j]!; break }
   const fwhm0 = Math.max(right - left, 2 * (x[1]! - x[0]!))
-  const sigma0 = (0.6 * fwhm0) / gaussianFwhm(1)
+  const pixel = (window[1] - window[0]) / count
+  const minSigma = Math.max(options.minSigma ?? 0, pixel / 4)
+  const sigma0 = Math.max((0.6 * fwhm0) / gaussianFwhm(1), minSigma)
   const gamma0 = 0.25 * fwhm0
   const area0 = depth0 / voigtProfile(0, sigma0, gamma0)
-  const pixel = (window[1] - window[0]) / count
   const span = window[1] - window[0]
 
   const d: VoigtDerivatives = { value: 0, dx: 0, dSigma: 0, dGamma: 0 }
@@ -88,7 +94,8 @@ export function fitSpectrumVoigtLine(spectrum: Spectrum1D, line: ClassificationL
   }
   const result = fitLevenbergMarquardt(model, y, weights, [area0, line.wavelength, sigma0, gamma0, level0], {
     maxIterations,
-    lower: [0, line.wavelength - maxShift, pixel / 4, 0, 0.3],
+    lower: [0, line.wavelength - maxShift, minSigma, 0, 0.3],
+    tolerance: 1e-7,
     upper: [Infinity, line.wavelength + maxShift, span / 2, span, 1.7],
   })
   const [area, centre, sigma, gamma, level] = result.params as unknown as [number, number, number, number, number]
