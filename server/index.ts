@@ -6,6 +6,7 @@ import { createSequelize } from './db'
 import { createLogger } from './lib/logger'
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp'
 import { createMailer } from './mail/mailer'
+import { JobRunner } from './jobs/runner'
 
 const config = loadConfig()
 const logger = createLogger(config.LOG_LEVEL)
@@ -18,7 +19,9 @@ if (config.MAIL_MODE === 'fake') {
   config.SMTP_PORT = fakeSmtp.port
 }
 const mailer = createMailer(config)
-const app = createApp({ config, sequelize, mailer, logger }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
+const jobs = new JobRunner({ sequelize, logger, threads: config.WORKERS })
+await jobs.start()
+const app = createApp({ config, sequelize, mailer, logger, jobs }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
 const server = createServer(app)
 server.listen(config.PORT, config.HOST, () => {
   logger.info(`Lineweight is serving on ${config.publicUrl}`)
@@ -27,6 +30,7 @@ server.listen(config.PORT, config.HOST, () => {
 async function shutdown() {
   server.close()
   server.closeAllConnections()
+  await jobs.stop()
   await fakeSmtp?.close()
   mailer.close()
   await sequelize.close()

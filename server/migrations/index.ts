@@ -1,6 +1,8 @@
 import type { QueryInterface } from 'sequelize'
 import * as m0001 from './0001-foundation'
 import * as m0002 from './0002-spectra'
+import * as m0003 from './0003-measurements'
+import * as m0004 from './0004-standards-suggestions'
 
 export interface Migration {
   name: string
@@ -12,4 +14,6 @@ export interface Migration {
 export const migrations: Migration[] = [
   { name: '0001-foundation', ...m0001 },
   { name: '0002-spectra', ...m0002 },
+  { name: '0003-measurements', ...m0003 },
+  { name: '0004-standards-suggestions', ...m0004 },
 ]

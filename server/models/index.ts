@@ -1,21 +1,28 @@
 import type { Sequelize } from 'sequelize'
 import { Campaign, CampaignMember } from './Campaign'
 import { MailMessage } from './MailMessage'
+import { LineMeasurementRow, Measurement, ProcessingJob } from './Measurement'
 import { Session } from './Session'
 import { Spectrum, SpectrumBlob } from './Spectrum'
+import { LibraryVersion, LibraryVersionStandard, Standard, Suggestion } from './Standard'
 import { User } from './User'
 import { UserToken } from './UserToken'
 
-export { Campaign, CampaignMember, MailMessage, Session, Spectrum, SpectrumBlob, User, UserToken }
+export { LibraryVersion, LibraryVersionStandard, Standard, Suggestion }
+export { Campaign, CampaignMember, LineMeasurementRow, MailMessage, Measurement, ProcessingJob, Session, Spectrum, SpectrumBlob, User, UserToken }
+export type { JobStatus } from './Measurement'
 export type { TokenPurpose } from './UserToken'
 
 /** Registers every model and association on one connection. */
 export function initModels(sequelize: Sequelize): void {
-  for (const model of [User, UserToken, Session, MailMessage, Campaign, CampaignMember, Spectrum, SpectrumBlob]) model.initModel(sequelize)
+  for (const model of [User, UserToken, Session, MailMessage, Campaign, CampaignMember, Spectrum, SpectrumBlob, ProcessingJob, Measurement, LineMeasurementRow, LibraryVersion, Standard, LibraryVersionStandard, Suggestion]) model.initModel(sequelize)
   UserToken.belongsTo(User, { foreignKey: 'userId', as: 'user' })
   Campaign.belongsToMany(User, { through: CampaignMember, foreignKey: 'campaignId', otherKey: 'userId', as: 'members' })
   Spectrum.belongsTo(Campaign, { foreignKey: 'campaignId', as: 'campaign' })
   Spectrum.belongsTo(User, { foreignKey: 'submittedBy', as: 'submitter' })
   Spectrum.hasOne(SpectrumBlob, { foreignKey: 'spectrumId', as: 'blob' })
+  Measurement.hasMany(LineMeasurementRow, { foreignKey: 'measurementId', as: 'lines' })
+  LibraryVersion.belongsToMany(Standard, { through: LibraryVersionStandard, foreignKey: 'versionId', otherKey: 'standardId', as: 'standards' })
+  Standard.belongsToMany(LibraryVersion, { through: LibraryVersionStandard, foreignKey: 'standardId', otherKey: 'versionId', as: 'versions' })
   User.belongsToMany(Campaign, { through: CampaignMember, foreignKey: 'userId', otherKey: 'campaignId', as: 'campaigns' })
 }

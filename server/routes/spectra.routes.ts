@@ -3,6 +3,7 @@ import type { AppContext } from '../context'
 import { currentUser } from '../middleware/auth'
 import { idParams } from '../schemas/common'
 import { dataQuery, listQuery, spectrumMetadata, submitBody } from '../schemas/spectra.schemas'
+import { getPreparedSeries, measurementsOf, requeueSpectrum } from '../services/measurements.service'
 import { getRawFile, getSpectrumDetail, getSpectrumSeries, listSpectra, submitFiles, updateSpectrumMetadata } from '../services/spectra.service'
 import { SUBMITTERS, defineRoutes } from './route'
 
@@ -45,7 +46,30 @@ export function spectraRoutes(ctx: AppContext) {
       access: 'signed-in',
       schema: { params: idParams },
       handler: async (req, res) => {
-        res.json({ spectrum: await getSpectrumDetail(currentUser(req), res.locals.params.id) })
+        const spectrum = await getSpectrumDetail(currentUser(req), res.locals.params.id)
+        res.json({ spectrum, measurements: await measurementsOf(spectrum.id) })
+      },
+    },
+    {
+      method: 'post',
+      path: '/spectra/:id/process',
+      access: SUBMITTERS,
+      schema: { params: idParams },
+      handler: async (req, res) => {
+        await requeueSpectrum(ctx, currentUser(req), res.locals.params.id)
+        res.status(202).json({ message: 'The spectrum is queued for processing.' })
+      },
+    },
+    {
+      method: 'get',
+      path: '/spectra/:id/prepared',
+      access: 'signed-in',
+      schema: { params: idParams, query: dataQuery },
+      handler: async (req, res) => {
+        const series = await getPreparedSeries(currentUser(req), res.locals.params.id, res.locals.query)
+        res.set('content-type', 'application/octet-stream')
+        res.set('x-series-layout', JSON.stringify(series.layout))
+        res.send(series.body)
       },
     },
     {
@@ -66,7 +90,6 @@ export function spectraRoutes(ctx: AppContext) {
         const series = await getSpectrumSeries(currentUser(req), res.locals.params.id, res.locals.query)
         res.set('content-type', 'application/octet-stream')
         res.set('x-series-layout', JSON.stringify(series.layout))
-        res.set('access-control-expose-headers', 'x-series-layout')
         res.send(series.body)
       },
     },

@@ -7,7 +7,7 @@ import { bufferToFloat32, bufferToFloat64, float32ToBuffer, float64ToBuffer } fr
 import { decimateMinMax, lowerBound } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { sha256Hex } from '../lib/tokens'
-import { Campaign, Spectrum, SpectrumBlob, User } from '../models'
+import { Campaign, ProcessingJob, Spectrum, SpectrumBlob, User } from '../models'
 import type { SpectrumMetadataInput } from '../schemas/spectra.schemas'
 import { readSpectrum, unpackZip, type ReadMeta, type ReadSuccess } from '../spectra/io'
 import { estimateSpectrumSnr } from '../spectra/prepare/snr'
@@ -145,6 +145,7 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
       },
       { transaction },
     )
+    await ProcessingJob.create({ spectrumId: spectrum.id, error: null, requestedBy: user.id, startedAt: null, finishedAt: null }, { transaction })
     return spectrum
   })
   ctx.jobs?.enqueue(row.id)

@@ -1,0 +1,209 @@
+import { availableParallelism } from 'node:os'
+import { Piscina } from 'piscina'
+import { Op } from 'sequelize'
+import type { Logger } from 'pino'
+import type { Sequelize } from 'sequelize'
+import { bufferToFloat32, bufferToFloat64, float32ToBuffer } from '../lib/binary'
+import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
+import { resolutionFwhm, runPipeline, type PipelineInput, type PipelineOutput } from '../spectra/pipeline'
+import type { ProcessingQueue } from '../context'
+
+export interface RunnerOptions {
+  sequelize: Sequelize
+  logger: Logger
+  /** Worker threads; 0 = one fewer than the cores (at least one). */
+  threads: number
+  /** Run the pipeline on the calling thread (tests, the CLI). */
+  inline?: boolean
+}
+
+/** Statuses a fresh measurement may move a spectrum on from; review states are never touched. */
+const PRE_REVIEW = new Set(['received', 'failed', 'measured'])
+
+/**
+ * The processing queue: uploads add a job row in their own transaction; this runner takes queued
+ * rows one per free worker, runs the pipeline off the request path and stores what it returns.
+ */
+export class JobRunner implements ProcessingQueue {
+  private pool: Piscina | null = null
+  private inflight = 0
+  private readonly capacity: number
+  private stopped = false
+  private pumping = false
+  private idleWaiters: (() => void)[] = []
+
+  constructor(private readonly options: RunnerOptions) {
+    this.capacity = options.inline ? 1 : options.threads > 0 ? options.threads : Math.max(1, availableParallelism() - 1)
+  }
+
+  /** Resumes work left unfinished by a stop or a crash, then starts taking jobs. */
+  async start(): Promise<void> {
+    if (!this.options.inline) {
+      this.pool = new Piscina({ filename: new URL('./worker.ts', import.meta.url).href, maxThreads: this.capacity, minThreads: 1, idleTimeout: 60_000 })
+    }
+    await ProcessingJob.update({ status: 'queued', startedAt: null }, { where: { status: 'running' } })
+    this.poke()
+  }
+
+  /** Wakes the runner; the job row itself is written by the caller's transaction. */
+  enqueue(): void {
+    this.poke()
+  }
+
+  poke(): void {
+    if (this.stopped) return
+    void this.pump().catch((error: unknown) => this.options.logger.error({ err: error }, 'job queue failed'))
+  }
+
+  private async pump(): Promise<void> {
+    if (this.pumping) return
+    this.pumping = true
+    try {
+      while (!this.stopped && this.inflight < this.capacity) {
+        const job = await this.claim()
+        if (!job) break
+        this.inflight++
+        void this.run(job).finally(() => {
+          this.inflight--
+          if (this.inflight === 0) this.notifyIdle()
+          this.poke()
+        })
+      }
+    } finally {
+      this.pumping = false
+    }
+    if (this.inflight === 0) this.notifyIdle()
+  }
+
+  private async claim(): Promise<ProcessingJob | null> {
+    for (;;) {
+      const next = await ProcessingJob.findOne({ where: { status: 'queued' }, order: [['id', 'ASC']] })
+      if (!next) return null
+      const [taken] = await ProcessingJob.update(
+        { status: 'running', startedAt: new Date(), attempts: next.attempts + 1 },
+        { where: { id: next.id, status: 'queued' } },
+      )
+      if (taken === 1) return next.reload()
+    }
+  }
+
+  private async run(job: ProcessingJob): Promise<void> {
+    const { logger } = this.options
+    try {
+      const input = await loadInput(job.spectrumId)
+      const output = this.pool ? ((await this.pool.run(input)) as PipelineOutput) : runPipeline(input)
+      await storeOutput(this.options.sequelize, job, output)
+      logger.info({ spectrumId: job.spectrumId, seconds: output.seconds }, 'spectrum measured')
+    } catch (error) {
+      const message = error instanceof Error ? error.message : String(error)
+      logger.warn({ spectrumId: job.spectrumId, err: message }, 'spectrum processing failed')
+      await ProcessingJob.update({ status: 'failed', error: message, finishedAt: new Date() }, { where: { id: job.id } })
+      await Spectrum.update(
+        { status: 'failed', statusReason: `Processing failed: ${message}` },
+        { where: { id: job.spectrumId, status: { [Op.in]: [...PRE_REVIEW] } } },
+      )
+    }
+  }
+
+  /** Resolves when nothing is queued or running (tests and shutdown). */
+  async idle(): Promise<void> {
+    for (;;) {
+      if (this.inflight === 0 && (await ProcessingJob.count({ where: { status: { [Op.in]: ['queued', 'running'] } } })) === 0) return
+      await new Promise<void>((resolve) => {
+        this.idleWaiters.push(resolve)
+        setTimeout(resolve, 200)
+      })
+    }
+  }
+
+  private notifyIdle(): void {
+    const waiters = this.idleWaiters
+    this.idleWaiters = []
+    for (const w of waiters) w()
+  }
+
+  async stop(): Promise<void> {
+    this.stopped = true
+    // Jobs still running go back to the queue on the next start.
+    await this.pool?.destroy()
+    this.pool = null
+  }
+}
+
+async function loadInput(spectrumId: number): Promise<PipelineInput> {
+  const [spectrum, blob] = await Promise.all([
+    Spectrum.findByPk(spectrumId, { attributes: ['id', 'resolutionFwhm', 'resolvingPower'] }),
+    SpectrumBlob.findByPk(spectrumId, { attributes: ['wavelength', 'flux', 'error', 'mask'] }),
+  ])
+  if (!spectrum || !blob) throw new Error(`spectrum ${spectrumId} has no stored data`)
+  const input: PipelineInput = {
+    spectrum: {
+      wavelength: bufferToFloat64(blob.wavelength),
+      flux: bufferToFloat32(blob.flux),
+      ...(blob.error ? { error: bufferToFloat32(blob.error) } : {}),
+      ...(blob.mask ? { mask: new Uint8Array(blob.mask) } : {}),
+    },
+  }
+  const fwhm = resolutionFwhm(spectrum.resolutionFwhm, spectrum.resolvingPower)
+  if (fwhm !== undefined) input.inputFwhm = fwhm
+  return input
+}
+
+const finiteOrNull = (v: number | null | undefined) => (v !== null && v !== undefined && Number.isFinite(v) ? v : null)
+
+async function storeOutput(sequelize: Sequelize, job: ProcessingJob, output: PipelineOutput): Promise<void> {
+  const { analysis } = output
+  const p = analysis.prepared
+  await sequelize.transaction(async (transaction) => {
+    await Measurement.update({ isCurrent: false }, { where: { spectrumId: job.spectrumId, isCurrent: true }, transaction })
+    const m = await Measurement.create(
+      {
+        spectrumId: job.spectrumId,
+        pipelineVersion: output.pipelineVersion,
+        isCurrent: true,
+        snr: finiteOrNull(analysis.snr),
+        rv: finiteOrNull(analysis.rv?.v),
+        rvError: finiteOrNull(analysis.rv?.error),
+        pseudoContinuum: analysis.pseudoContinuum,
+        warnings: JSON.stringify(analysis.warnings),
+        ratios: JSON.stringify(analysis.ratios),
+        gridStart: p.grid.start,
+        gridStep: p.grid.step,
+        gridLength: p.grid.length,
+        flux: float32ToBuffer(p.flux),
+        continuum: float32ToBuffer(p.continuum),
+        rectified: float32ToBuffer(p.rectified),
+        mask: Buffer.from(p.mask),
+        seconds: output.seconds,
+      },
+      { transaction },
+    )
+    await LineMeasurementRow.bulkCreate(
+      analysis.lines.map((l) =>
+        l.measured
+          ? {
+              measurementId: m.id,
+              lineId: l.id,
+              measured: true,
+              reason: l.voigt === null && l.voigtReason ? l.voigtReason.slice(0, 200) : null,
+              ew: finiteOrNull(l.equivalentWidth),
+              ewError: finiteOrNull(l.equivalentWidthError),
+              depth: finiteOrNull(l.depth),
+              fwhm: finiteOrNull(l.fwhm),
+              centroid: finiteOrNull(l.centroid),
+              snr: finiteOrNull(l.snr),
+              gaussianFwhm: finiteOrNull(l.voigt?.gaussianFwhm),
+              lorentzianFwhm: finiteOrNull(l.voigt?.lorentzianFwhm),
+              lorentzianError: l.voigt ? finiteOrNull(2 * l.voigt.errors.gamma) : null,
+            }
+          : { measurementId: m.id, lineId: l.id, measured: false, reason: `${l.reason}: ${l.detail}`.slice(0, 200), ew: null, ewError: null, depth: null, fwhm: null, centroid: null, snr: null, gaussianFwhm: null, lorentzianFwhm: null, lorentzianError: null },
+      ),
+      { transaction },
+    )
+    await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date() }, { where: { id: job.id }, transaction })
+    await Spectrum.update(
+      { status: 'measured', statusReason: null },
+      { where: { id: job.spectrumId, status: { [Op.in]: [...PRE_REVIEW] } }, transaction },
+    )
+  })
+}
