@@ -26,7 +26,7 @@ export function useFormSubmit() {
       const fields = error instanceof ApiError ? error.fields : {}
       fieldErrors.value = fields
       // With field messages the form already says what is wrong; the summary line is only for the rest.
-      formError.value = Object.keys(fields).length > 0 && error instanceof ApiError && error.status === 422 ? null : messageOf(error)
+      formError.value = Object.keys(fields).length > 0 ? null : messageOf(error)
       return undefined
     } finally {
       submitting.value = false
@@ -39,6 +39,8 @@ export function useFormSubmit() {
 /** "New password must be at least 10 characters." from the label and the server's field message. */
 export function fieldFeedback(label: string, message: string | undefined): string | undefined {
   if (!message) return undefined
-  const sentence = `${label} ${message}`
+  // "is not an e-mail address" under "E-mail address" reads better as "This is not an e-mail address."
+  const subject = message.toLowerCase().includes(label.toLowerCase()) ? 'This' : label
+  const sentence = `${subject} ${message}`
   return /[.!?]$/.test(sentence) ? sentence : `${sentence}.`
 }

@@ -11,7 +11,7 @@ export function apiError(status: number, code: string, message: string, details:
 
 /** Replaces fetch with a queue of answers; returns the mock so a test can read the calls. */
 export function mockFetch(...answers: Array<Response | Error>) {
-  const fn = vi.fn(async () => {
+  const fn = vi.fn<(url: string, init?: RequestInit) => Promise<Response>>(async () => {
     const next = answers.shift()
     if (!next) throw new Error('fetch called more often than the test expected')
     if (next instanceof Error) throw next
