@@ -37,6 +37,11 @@ export interface LineOptions {
  */
 export function measureSpectrumLine(spectrum: Spectrum1D, line: ClassificationLine, options: LineOptions = {}): LineMeasurement {
   assertSpectrum(spectrum, 2)
+  return measureCheckedSpectrumLine(spectrum, line, options)
+}
+
+/** {@link measureSpectrumLine} for a spectrum already checked by assertSpectrum (no O(n) check per line). */
+export function measureCheckedSpectrumLine(spectrum: Spectrum1D, line: ClassificationLine, options: LineOptions = {}): LineMeasurement {
   const { snr = null, snrFloor = 10, maxMaskedFraction = 0.2, noiseCorrelation = 1 } = options
   const identity = { id: line.id, name: line.name, wavelength: line.wavelength, family: line.family }
   const { wavelength: w, flux, error, mask } = spectrum

@@ -1,10 +1,10 @@
 import { CLASSIFICATION_LINES, LINE_RATIOS, VOIGT_FIT_LINE_IDS, type ClassificationLine, type LineRatioDefinition } from '../../../shared/lines'
 import type { Spectrum1D } from '../../../shared/spectrum'
 import { assertSpectrum } from '../prepare/guards'
-import { measureSpectrumLine } from './line'
+import { measureCheckedSpectrumLine } from './line'
 import type { LineMeasurement, LineRatio, MeasuredLine } from './types'
 import { gaussianFwhm } from './voigt'
-import { fitSpectrumVoigtLine } from './voigt-fit'
+import { fitCheckedSpectrumVoigtLine } from './voigt-fit'
 
 export interface LinesOptions {
   /** Lines to measure. @default CLASSIFICATION_LINES (shared/lines.ts) */
@@ -24,8 +24,8 @@ export interface LinesOptions {
 }
 
 /**
- * Measures every line of the table on a continuum-normalised spectrum ({@link measureSpectrumLine}),
- * and fits a Voigt profile ({@link fitSpectrumVoigtLine}) to the Balmer lines that were measured.
+ * Measures every line of the table on a continuum-normalised spectrum (measureSpectrumLine),
+ * and fits a Voigt profile (fitSpectrumVoigtLine) to the Balmer lines that were measured.
  * Lines outside the coverage, masked or under the S/N floor come back as not measured with a reason.
  */
 export function measureSpectrumLines(spectrum: Spectrum1D, options: LinesOptions = {}): LineMeasurement[] {
@@ -42,9 +42,9 @@ export function measureSpectrumLines(spectrum: Spectrum1D, options: LinesOptions
   const minSigma = instrumentalFwhm !== undefined ? instrumentalFwhm / gaussianFwhm(1) : undefined
   return lines.map((line) => {
     const lineSnr = snrByLine[line.id] ?? snr
-    const measurement = measureSpectrumLine(spectrum, line, { snr: lineSnr, snrFloor, noiseCorrelation })
+    const measurement = measureCheckedSpectrumLine(spectrum, line, { snr: lineSnr, snrFloor, noiseCorrelation })
     if (!measurement.measured || !voigtLineIds.includes(line.id)) return measurement
-    const result = fitSpectrumVoigtLine(spectrum, line, { noiseCorrelation, ...(minSigma !== undefined ? { minSigma } : {}) })
+    const result = fitCheckedSpectrumVoigtLine(spectrum, line, { noiseCorrelation, ...(minSigma !== undefined ? { minSigma } : {}) })
     return result.ok ? { ...measurement, voigt: result.fit } : { ...measurement, voigt: null, voigtReason: result.reason }
   })
 }

@@ -30,6 +30,8 @@ export interface LevenbergMarquardtResult {
   covariance: Float64Array
   chiSquare: number
   iterations: number
+  /** Model evaluations, the cost that matters. */
+  evaluations: number
   converged: boolean
 }
 
@@ -63,6 +65,7 @@ export function fitLevenbergMarquardt(
 
   clamp(params, lower, upper)
   model(params, values, jacobian)
+  let evaluations = 1
   let chi2 = chiSquare(y, values, weights)
   let damping = initialDamping
   let converged = false
@@ -93,6 +96,7 @@ export function fitLevenbergMarquardt(
       for (let j = 0; j < p; j++) trial[j] = params[j]! + step[j]!
       clamp(trial, lower, upper)
       model(trial, trialValues, trialJacobian)
+      evaluations++
       const trialChi2 = chiSquare(y, trialValues, weights)
       if (trialChi2 <= chi2) {
         const fall = chi2 - trialChi2
@@ -115,7 +119,7 @@ export function fitLevenbergMarquardt(
   }
   normalEquations(y, values, jacobian, weights, p, alpha, beta)
   const covariance = invert(alpha, p)
-  return { params, covariance, chiSquare: chi2, iterations: iterations + 1, converged }
+  return { params, covariance, chiSquare: chi2, iterations: iterations + 1, evaluations, converged }
 }
 
 function chiSquare(y: Float64Array, model: Float64Array, w: Float64Array): number {

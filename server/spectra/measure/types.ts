@@ -23,6 +23,9 @@ export interface VoigtFit {
   errors: { centre: number; sigma: number; gamma: number; equivalentWidth: number }
   reducedChiSquare: number
   converged: boolean
+  /** Levenberg–Marquardt iterations and model evaluations used. */
+  iterations: number
+  evaluations: number
   /** Range fitted, Å. */
   window: WavelengthRange
 }

@@ -35,10 +35,17 @@ export type VoigtFitResult = { ok: true; fit: VoigtFit } | { ok: false; reason: 
  */
 export function fitSpectrumVoigtLine(spectrum: Spectrum1D, line: ClassificationLine, options: VoigtFitOptions = {}): VoigtFitResult {
   assertSpectrum(spectrum, 2)
+  return fitCheckedSpectrumVoigtLine(spectrum, line, options)
+}
+
+/** {@link fitSpectrumVoigtLine} for a spectrum already checked by assertSpectrum. */
+export function fitCheckedSpectrumVoigtLine(spectrum: Spectrum1D, line: ClassificationLine, options: VoigtFitOptions = {}): VoigtFitResult {
   const { window = line.profileWindow ?? line.window, maxShift = 5, noiseCorrelation = 1, maxIterations = 100 } = options
   const { wavelength: w, flux, error, mask } = spectrum
+  const first = lowerBound(w, window[0])
+  const end = lowerBound(w, window[1] + 1e-9)
   let count = 0
-  for (let i = 0; i < w.length; i++) {
+  for (let i = first; i < end; i++) {
     if (w[i]! < window[0] || w[i]! > window[1]) continue
     if ((mask && mask[i] !== 0) || !Number.isFinite(flux[i]!)) continue
     count++
@@ -49,7 +56,7 @@ export function fitSpectrumVoigtLine(spectrum: Spectrum1D, line: ClassificationL
   const weights = new Float64Array(count)
   let k = 0
   let deepest = 0
-  for (let i = 0; i < w.length; i++) {
+  for (let i = first; i < end; i++) {
     if (w[i]! < window[0] || w[i]! > window[1]) continue
     if ((mask && mask[i] !== 0) || !Number.isFinite(flux[i]!)) continue
     x[k] = w[i]!
@@ -121,7 +128,21 @@ export function fitSpectrumVoigtLine(spectrum: Spectrum1D, line: ClassificationL
       errors: { centre: sd(1), sigma: sd(2), gamma: sd(3), equivalentWidth: sd(0) / level },
       reducedChiSquare: error ? reduced : Number.NaN,
       converged: result.converged,
+      iterations: result.iterations,
+      evaluations: result.evaluations,
       window,
     },
   }
+}
+
+/** Index of the first wavelength ≥ x (binary search). */
+function lowerBound(w: Float64Array, x: number): number {
+  let lo = 0
+  let hi = w.length
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1
+    if (w[mid]! < x) lo = mid + 1
+    else hi = mid
+  }
+  return lo
 }

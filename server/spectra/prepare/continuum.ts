@@ -24,6 +24,11 @@ export interface ContinuumOptions {
   bandDepthLimit?: number
   /** Width of the segments whose upper envelope anchors the pseudo-continuum, Å. @default 80 */
   envelopeWidth?: number
+  /**
+   * Most pixels the fit uses; longer spectra are sampled at an even stride (a polynomial of degree
+   * ≤ 8 is fixed by far fewer points, and the log grid oversamples the resolution). @default 1600
+   */
+  maxPoints?: number
 }
 
 export interface ContinuumResult {
@@ -67,6 +72,7 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
     pseudoContinuum = 'auto',
     bandDepthLimit = 0.15,
     envelopeWidth = 80,
+    maxPoints = 1600,
   } = options
   const { wavelength, flux, error } = spectrum
   const n = wavelength.length
@@ -119,7 +125,8 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
       for (let i = first; i <= last; i++) if (isGoodPixel(spectrum, i) && error[i]! > 0) errs[k++] = error[i]!
       floor = 0.1 * medianInPlace(errs, k)
     }
-    for (let i = first; i <= last; i++) {
+    const stride = Math.max(1, Math.ceil((last - first + 1) / maxPoints))
+    for (let i = first; i <= last; i += stride) {
       if (!isGoodPixel(spectrum, i) || inRanges(wavelength[i]!, masks)) continue
       xs[m] = scale(wavelength[i]!, lo, hi)
       ys[m] = flux[i]!
@@ -131,8 +138,18 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
   const deg = Math.max(0, Math.min(degree, Math.floor(m / 3) - 1))
   if (m < 2 || deg < 0) throw new Error(`too few continuum points to fit: ${m}`)
 
+  const size = deg + 1
+  const basis = new Float64Array(m * size)
+  for (let k = 0; k < m; k++) {
+    const x = xs[k]!
+    const row = k * size
+    basis[row] = 1
+    if (size > 1) basis[row + 1] = x
+    for (let j = 2; j < size; j++) basis[row + j] = 2 * x * basis[row + j - 1]! - basis[row + j - 2]!
+  }
+  const model = new Float64Array(m)
   const used = new Uint8Array(m).fill(1)
-  let coefficients = fitChebyshev(xs, ys, ws, used, m, deg)
+  let coefficients = fitChebyshev(basis, ys, ws, used, m, size, model)
   let iterations = 1
   let usedPoints = m
   for (; iterations < maxIterations; iterations++) {
@@ -140,7 +157,7 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
     let count = 0
     for (let k = 0; k < m; k++) {
       if (!used[k]) continue
-      const r = ys[k]! - chebyshev(coefficients, xs[k]!)
+      const r = ys[k]! - model[k]!
       sum2 += r * r
       count++
     }
@@ -148,7 +165,7 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
     let changed = 0
     let keep = 0
     for (let k = 0; k < m; k++) {
-      const r = ys[k]! - chebyshev(coefficients, xs[k]!)
+      const r = ys[k]! - model[k]!
       const ok = r >= -lowSigma * rms && r <= highSigma * rms ? 1 : 0
       if (ok !== used[k]) changed++
       used[k] = ok
@@ -158,7 +175,7 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
       if (keep < deg + 2) used.fill(1)
       break
     }
-    coefficients = fitChebyshev(xs, ys, ws, used, m, deg)
+    coefficients = fitChebyshev(basis, ys, ws, used, m, size, model)
     usedPoints = keep
   }
 
@@ -208,7 +225,15 @@ function measureTioDepth(spectrum: Spectrum1D): number | null {
 function meanFlux(spectrum: Spectrum1D, range: WavelengthRange): number | null {
   let sum = 0
   let count = 0
-  for (let i = 0; i < spectrum.wavelength.length; i++) {
+  const w0 = spectrum.wavelength
+  let i0 = 0
+  let hi0 = w0.length
+  while (i0 < hi0) {
+    const mid = (i0 + hi0) >> 1
+    if (w0[mid]! < range[0]) i0 = mid + 1
+    else hi0 = mid
+  }
+  for (let i = i0; i < w0.length && w0[i]! <= range[1]; i++) {
     const w = spectrum.wavelength[i]!
     if (w < range[0] || w > range[1] || !isGoodPixel(spectrum, i)) continue
     sum += spectrum.flux[i]!
@@ -238,30 +263,29 @@ function chebyshev(c: Float64Array, x: number): number {
   return x * b1 - b2 + c[0]!
 }
 
-/** Weighted least squares for Chebyshev coefficients via the normal equations, solved with ml-matrix. */
+/**
+ * Weighted least squares for Chebyshev coefficients via the normal equations (basis precomputed,
+ * row-major m × size), solved with ml-matrix; writes the fitted values of all m points into `model`.
+ */
 function fitChebyshev(
-  xs: Float64Array,
+  basis: Float64Array,
   ys: Float64Array,
   ws: Float64Array,
   used: Uint8Array,
   m: number,
-  degree: number,
+  size: number,
+  model: Float64Array,
 ): Float64Array {
-  const size = degree + 1
   const ata = new Float64Array(size * size)
   const atb = new Float64Array(size)
-  const t = new Float64Array(size)
   for (let k = 0; k < m; k++) {
     if (!used[k]) continue
-    const x = xs[k]!
     const w = ws[k]!
-    t[0] = 1
-    if (size > 1) t[1] = x
-    for (let j = 2; j < size; j++) t[j] = 2 * x * t[j - 1]! - t[j - 2]!
+    const row = k * size
     for (let a = 0; a < size; a++) {
-      const wa = w * t[a]!
+      const wa = w * basis[row + a]!
       atb[a] = atb[a]! + wa * ys[k]!
-      for (let b = a; b < size; b++) ata[a * size + b] = ata[a * size + b]! + wa * t[b]!
+      for (let b = a; b < size; b++) ata[a * size + b] = ata[a * size + b]! + wa * basis[row + b]!
     }
   }
   const rows: number[][] = []
@@ -271,7 +295,14 @@ function fitChebyshev(
     rows.push(row)
   }
   const solution = solve(new Matrix(rows), Matrix.columnVector(Array.from(atb)))
-  return Float64Array.from(solution.getColumn(0))
+  const c = Float64Array.from(solution.getColumn(0))
+  for (let k = 0; k < m; k++) {
+    let v = 0
+    const row = k * size
+    for (let j = 0; j < size; j++) v += c[j]! * basis[row + j]!
+    model[k] = v
+  }
+  return c
 }
 
 /** The q-quantile (0–1) of the first n values, nearest rank; reorders the array. */
