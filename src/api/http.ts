@@ -60,6 +60,11 @@ async function fetchCsrfToken(): Promise<string> {
   return csrfRequest
 }
 
+/** The session's CSRF token (cached, fetched once when missing), for requests sent without `http`, e.g. uploads with progress. */
+export function currentCsrfToken(): Promise<string> {
+  return csrfToken !== null ? Promise.resolve(csrfToken) : fetchCsrfToken()
+}
+
 export interface RequestOptions {
   /** Query parameters; undefined values are left out. */
   query?: Record<string, string | number | boolean | undefined>
