@@ -1,5 +1,5 @@
 // `npm start`: everything a fresh machine needs, then the app on http://127.0.0.1:8080.
-import { spawn } from 'node:child_process'
+import { spawn, spawnSync } from 'node:child_process'
 import { existsSync, mkdirSync, readdirSync, statSync } from 'node:fs'
 import { join } from 'node:path'
 import { bin, ensureDatabase, ensureDebianPackages, ensureNodeModules, log, persistentSecret, root, run, startMariaDB } from './lib/setup.mjs'
@@ -47,8 +47,13 @@ async function stop(code) {
 process.on('SIGINT', () => void stop(0))
 process.on('SIGTERM', () => void stop(0))
 
+let signIns = []
 try {
-  run(bin('tsx'), ['server/db/migrate-cli.ts', 'up', '--seed'], { env })
+  const migrate = spawnSync(bin('tsx'), ['server/db/migrate-cli.ts', 'up', '--seed', '--print-sign-ins'], { cwd: root, env, encoding: 'utf8', stdio: ['ignore', 'pipe', 'inherit'] })
+  const lines = (migrate.stdout ?? '').split('\n').filter(Boolean)
+  signIns = lines.filter((l) => l.startsWith('SIGN-IN ')).map((l) => l.slice(8))
+  for (const l of lines.filter((l) => !l.startsWith('SIGN-IN '))) console.log(l)
+  if (migrate.status !== 0) throw new Error('migrations failed')
   if (needsBuild()) {
     log('building the client')
     run(bin('vite'), ['build', '--logLevel', 'warn'], { env })
@@ -60,6 +65,22 @@ try {
 
 server = spawn(bin('tsx'), ['server/index.ts'], { cwd: root, env, stdio: 'inherit' })
 server.on('exit', (code) => { if (!stopping) void stop(code ?? 1) })
+await announce()
+
+async function announce() {
+  const url = env.PUBLIC_URL
+  for (let i = 0; i < 600 && !stopping; i++) {
+    try {
+      if ((await fetch(`http://${env.HOST}:${env.PORT}/api/health`)).ok) break
+    } catch {
+      // not listening yet
+    }
+    await new Promise((r) => setTimeout(r, 100))
+  }
+  if (stopping) return
+  const lines = ['', `  Lineweight is ready: ${url}`, '', '  Demo sign-ins (role, e-mail, password):', ...signIns.map((l) => `    ${l}`), '', '  Press Ctrl-C to stop the server and MariaDB.', '']
+  console.log(lines.join('\n'))
+}
 
 function newestMtime(path) {
   if (!existsSync(path)) return 0

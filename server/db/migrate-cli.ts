@@ -2,7 +2,7 @@
 import { loadConfig } from '../config'
 import { createSequelize } from './index'
 import { createMigrator } from './migrate'
-import { seedDemo } from './seed'
+import { DEMO_PEOPLE, seedDemo } from './seed'
 
 let config
 try {
@@ -21,6 +21,9 @@ try {
     if (flags.includes('--seed')) {
       const seeded = await seedDemo(sequelize, config)
       if (seeded) console.log('[lineweight] demo scenario seeded')
+    }
+    if (flags.includes('--print-sign-ins')) {
+      for (const p of DEMO_PEOPLE) console.log(`SIGN-IN ${p.role.padEnd(11)} ${p.email.padEnd(36)} ${p.password}`)
     }
   } else if (command === 'down') {
     await migrator.down()
