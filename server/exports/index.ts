@@ -1,0 +1,29 @@
+import { writeCsv } from './csv'
+import { writeFits } from './fits'
+import { writeFixedWidth } from './mrt'
+import type { ExportTable } from './table'
+import { writeVotable } from './votable'
+
+export * from './table'
+export { CATALOGUE_COLUMNS, CATALOGUE_NOTES } from './catalogue'
+export { writeCsv } from './csv'
+export { writeFits, headerCards, commentCards, FITS_BLOCK, FITS_INT_NULL } from './fits'
+export { writeFixedWidth, cdsUnit } from './mrt'
+export { writeVotable, xmlEscape } from './votable'
+
+export const EXPORT_FORMATS = ['csv', 'votable', 'fits', 'mrt'] as const
+export type ExportFormat = (typeof EXPORT_FORMATS)[number]
+
+/** File bytes, media type and file-name extension of one table in one format. */
+export function writeTable(table: ExportTable, format: ExportFormat): { body: Buffer; contentType: string; extension: string } {
+  switch (format) {
+    case 'csv':
+      return { body: writeCsv(table), contentType: 'text/csv; charset=utf-8; header=present', extension: 'csv' }
+    case 'votable':
+      return { body: writeVotable(table), contentType: 'application/x-votable+xml; charset=utf-8', extension: 'vot' }
+    case 'fits':
+      return { body: writeFits(table), contentType: 'application/fits', extension: 'fits' }
+    case 'mrt':
+      return { body: writeFixedWidth(table).combined, contentType: 'text/plain; charset=us-ascii', extension: 'txt' }
+  }
+}

@@ -1,0 +1,132 @@
+/**
+ * The typed column table that every catalogue writer reads: one description of each column
+ * (name, unit, UCD, type, display format) drives CSV, VOTable, FITS and the fixed-width table,
+ * so the four files of one release always say the same thing about the same values.
+ *
+ * Units are IVOA VOUnits 1.0 strings ('' for a dimensionless quantity); UCDs are IVOA UCD1+
+ * words (UCD1+ controlled vocabulary 1.4), checked by tests/reference/check_exports.py.
+ */
+
+/** Storage type of a column. `datetime` values are ISO 8601 UTC strings "YYYY-MM-DDThh:mm:ss.sss". */
+export type ColumnType = 'int' | 'double' | 'string' | 'datetime' | 'boolean'
+
+/** Fixed-width display of a double: `F` with `decimals` after the point, or `E` with `decimals` in the mantissa. */
+export interface NumberFormat {
+  notation: 'F' | 'E'
+  /** Total characters, sign included. */
+  width: number
+  decimals: number
+}
+
+export interface ExportColumn {
+  /** Label: a letter, then letters, digits and underscores (≤ 16 characters, so FITS and CDS take it as is). */
+  name: string
+  description: string
+  /** IVOA VOUnit; '' when dimensionless. */
+  unit: string
+  /** IVOA UCD1+. */
+  ucd: string
+  type: ColumnType
+  /** Doubles: display format. */
+  format?: NumberFormat
+  /** Ints: digits shown (sign included); strings: the least width of the fixed-width column. @default ints 6, strings 1 */
+  width?: number
+  /** Whether a value may be missing (null). */
+  nullable: boolean
+}
+
+export type CellValue = number | string | boolean | null
+export type ExportRow = Record<string, CellValue>
+
+/** A descriptive keyword of the whole table (VOTable PARAM, FITS header keyword, ECSV meta, ReadMe line). */
+export interface TableParam {
+  /** ≤ 8 characters, upper case (the FITS keyword); the other writers use it too. */
+  key: string
+  /** The VOTable PARAM name. */
+  name: string
+  value: string | number
+  description: string
+  ucd: string
+  unit?: string
+}
+
+export interface ExportTable {
+  /** A short machine name, e.g. "catalogue". */
+  name: string
+  title: string
+  description: string
+  /** ISO 8601 UTC time the table was frozen; writers use it instead of the clock, so bytes repeat. */
+  date: string
+  params: TableParam[]
+  columns: ExportColumn[]
+  rows: ExportRow[]
+  /** Free-text notes (the caution about derived values, the decision rules). */
+  notes: string[]
+}
+
+const LABEL = /^[A-Za-z][A-Za-z0-9_]{0,15}$/
+
+/** Throws on a column table the writers cannot represent: bad labels, duplicates, doubles without a format. */
+export function checkColumns(columns: readonly ExportColumn[]): void {
+  const seen = new Set<string>()
+  for (const c of columns) {
+    if (!LABEL.test(c.name)) throw new RangeError(`column label "${c.name}" is not a letter followed by ≤ 15 letters, digits or underscores`)
+    if (seen.has(c.name.toLowerCase())) throw new RangeError(`column label "${c.name}" is used twice`)
+    seen.add(c.name.toLowerCase())
+    if (c.type === 'double' && !c.format) throw new RangeError(`column "${c.name}" is a double without a display format`)
+  }
+}
+
+/** A cell as the column's type expects it, or null; throws on a value of the wrong type. */
+export function cellOf(column: ExportColumn, row: ExportRow): CellValue {
+  const v = row[column.name]
+  if (v === null || v === undefined) return null
+  switch (column.type) {
+    case 'int':
+      if (typeof v !== 'number' || !Number.isInteger(v)) throw new TypeError(`column ${column.name}: ${String(v)} is not an integer`)
+      return v
+    case 'double':
+      if (typeof v !== 'number') throw new TypeError(`column ${column.name}: ${String(v)} is not a number`)
+      return Number.isFinite(v) ? v : null
+    case 'boolean':
+      if (typeof v !== 'boolean') throw new TypeError(`column ${column.name}: ${String(v)} is not a boolean`)
+      return v
+    case 'string':
+      if (typeof v !== 'string') throw new TypeError(`column ${column.name}: ${String(v)} is not a string`)
+      return v
+    case 'datetime':
+      if (typeof v !== 'string' || !/^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d(\.\d{1,3})?$/.test(v)) throw new TypeError(`column ${column.name}: ${String(v)} is not an ISO 8601 UTC time`)
+      return v
+  }
+}
+
+/** ISO 8601 UTC without the zone letter, to the millisecond (the DALI/VOTable timestamp and FITS DATE form). */
+export function isoTimestamp(date: Date): string {
+  return date.toISOString().replace(/Z$/, '')
+}
+
+/**
+ * Text a 7-bit ASCII format can carry (FITS headers and character columns, the CDS table):
+ * accents are dropped (NFKD), other non-ASCII characters and control characters become '?'.
+ */
+export function toAscii(text: string): string {
+  return text
+    .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .replace(/[^\x20-\x7e]/g, '?')
+}
+
+/** Fixed-width text of a double in its column format (Fortran Fw.d / Ew.d, as CDS and FITS TDISP read them). */
+export function formatDouble(value: number, format: NumberFormat): string {
+  if (format.notation === 'F') return value.toFixed(format.decimals)
+  // JavaScript writes 1.234e+5; Fortran readers want 1.234E+05.
+  const [mantissa, exponent] = value.toExponential(format.decimals).split('e') as [string, string]
+  const sign = exponent.startsWith('-') ? '-' : '+'
+  const digits = exponent.replace(/^[+-]/, '').padStart(2, '0')
+  return `${mantissa}E${sign}${digits}`
+}
+
+/** Shortest text that reads back as the same double (for CSV and VOTable cells). */
+export function exactNumber(value: number): string {
+  return String(value)
+}
