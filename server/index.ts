@@ -7,11 +7,13 @@ import { createLogger } from './lib/logger'
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp'
 import { createMailer } from './mail/mailer'
 import { JobRunner } from './jobs/runner'
+import { ensureDefaultLibrary } from './services/standards.service'
 
 const config = loadConfig()
 const logger = createLogger(config.LOG_LEVEL)
 const sequelize = createSequelize(config)
 await sequelize.authenticate()
+await ensureDefaultLibrary(sequelize)
 
 let fakeSmtp: FakeSmtp | null = null
 if (config.MAIL_MODE === 'fake') {

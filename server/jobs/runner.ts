@@ -4,9 +4,12 @@ import { Op } from 'sequelize'
 import type { Logger } from 'pino'
 import type { Sequelize } from 'sequelize'
 import { bufferToFloat32, bufferToFloat64, float32ToBuffer } from '../lib/binary'
-import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
-import { resolutionFwhm, runPipeline, type PipelineInput, type PipelineOutput } from '../spectra/pipeline'
+import { Campaign, LibraryVersion, LineMeasurementRow, Measurement, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
+import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
 import type { ProcessingQueue } from '../context'
+import { librarySpecFor } from '../services/standards.service'
+import { storeSuggestion } from '../services/suggestions.service'
+import runTask, { type LibrarySpec, type WorkerTask } from './worker'
 
 export interface RunnerOptions {
   sequelize: Sequelize
@@ -19,6 +22,8 @@ export interface RunnerOptions {
 
 /** Statuses a fresh measurement may move a spectrum on from; review states are never touched. */
 const PRE_REVIEW = new Set(['received', 'failed', 'measured'])
+/** Statuses a fresh suggestion may move a spectrum on from (to 'suggested'). */
+const PRE_REVIEW_SUGGESTED = new Set([...PRE_REVIEW, 'suggested'])
 
 /**
  * The processing queue: uploads add a job row in their own transaction; this runner takes queued
@@ -31,6 +36,8 @@ export class JobRunner implements ProcessingQueue {
   private stopped = false
   private pumping = false
   private idleWaiters: (() => void)[] = []
+  /** Library specs by version id: versions are immutable once published. */
+  private specs = new Map<number, Promise<LibrarySpec>>()
 
   constructor(private readonly options: RunnerOptions) {
     this.capacity = options.inline ? 1 : options.threads > 0 ? options.threads : Math.max(1, availableParallelism() - 1)
@@ -91,8 +98,10 @@ export class JobRunner implements ProcessingQueue {
     const { logger } = this.options
     try {
       const input = await loadInput(job.spectrumId)
-      const output = this.pool ? ((await this.pool.run(input)) as PipelineOutput) : runPipeline(input)
-      await storeOutput(this.options.sequelize, job, output)
+      const versionId = (await LibraryVersion.findOne({ where: { isActive: true }, attributes: ['id'] }))?.id
+      if (versionId !== undefined) input.library = await this.specFor(versionId)
+      const output = this.pool ? ((await this.pool.run(input)) as PipelineOutput) : runTask(input)
+      await storeOutput(this.options.sequelize, job, output, versionId)
       logger.info({ spectrumId: job.spectrumId, seconds: output.seconds }, 'spectrum measured')
     } catch (error) {
       const message = error instanceof Error ? error.message : String(error)
@@ -103,6 +112,16 @@ export class JobRunner implements ProcessingQueue {
         { where: { id: job.spectrumId, status: { [Op.in]: [...PRE_REVIEW] } } },
       )
     }
+  }
+
+  private specFor(versionId: number): Promise<LibrarySpec> {
+    let spec = this.specs.get(versionId)
+    if (!spec) {
+      spec = librarySpecFor(versionId)
+      spec.catch(() => this.specs.delete(versionId))
+      this.specs.set(versionId, spec)
+    }
+    return spec
   }
 
   /** Resolves when nothing is queued or running (tests and shutdown). */
@@ -130,13 +149,13 @@ export class JobRunner implements ProcessingQueue {
   }
 }
 
-async function loadInput(spectrumId: number): Promise<PipelineInput> {
+async function loadInput(spectrumId: number): Promise<WorkerTask> {
   const [spectrum, blob] = await Promise.all([
-    Spectrum.findByPk(spectrumId, { attributes: ['id', 'resolutionFwhm', 'resolvingPower'] }),
+    Spectrum.findByPk(spectrumId, { attributes: ['id', 'campaignId', 'resolutionFwhm', 'resolvingPower'] }),
     SpectrumBlob.findByPk(spectrumId, { attributes: ['wavelength', 'flux', 'error', 'mask'] }),
   ])
   if (!spectrum || !blob) throw new Error(`spectrum ${spectrumId} has no stored data`)
-  const input: PipelineInput = {
+  const input: WorkerTask = {
     spectrum: {
       wavelength: bufferToFloat64(blob.wavelength),
       flux: bufferToFloat32(blob.flux),
@@ -146,12 +165,14 @@ async function loadInput(spectrumId: number): Promise<PipelineInput> {
   }
   const fwhm = resolutionFwhm(spectrum.resolutionFwhm, spectrum.resolvingPower)
   if (fwhm !== undefined) input.inputFwhm = fwhm
+  const campaign = await Campaign.findByPk(spectrum.campaignId, { attributes: ['id', 'regionMin', 'regionMax'] })
+  if (campaign && campaign.regionMin > 0 && campaign.regionMax > campaign.regionMin) input.region = [campaign.regionMin, campaign.regionMax]
   return input
 }
 
 const finiteOrNull = (v: number | null | undefined) => (v !== null && v !== undefined && Number.isFinite(v) ? v : null)
 
-async function storeOutput(sequelize: Sequelize, job: ProcessingJob, output: PipelineOutput): Promise<void> {
+async function storeOutput(sequelize: Sequelize, job: ProcessingJob, output: PipelineOutput, libraryVersionId: number | undefined): Promise<void> {
   const { analysis } = output
   const p = analysis.prepared
   await sequelize.transaction(async (transaction) => {
@@ -201,6 +222,17 @@ async function storeOutput(sequelize: Sequelize, job: ProcessingJob, output: Pip
       { transaction },
     )
     await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date() }, { where: { id: job.id }, transaction })
+    if (output.suggestion && libraryVersionId !== undefined) {
+      await storeSuggestion(
+        { spectrumId: job.spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: output.suggestion },
+        transaction,
+      )
+      await Spectrum.update(
+        { status: 'suggested', statusReason: null },
+        { where: { id: job.spectrumId, status: { [Op.in]: [...PRE_REVIEW_SUGGESTED] } }, transaction },
+      )
+      return
+    }
     await Spectrum.update(
       { status: 'measured', statusReason: null },
       { where: { id: job.spectrumId, status: { [Op.in]: [...PRE_REVIEW] } }, transaction },

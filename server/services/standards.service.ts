@@ -1,0 +1,304 @@
+import { readFileSync } from 'node:fs'
+import { join } from 'node:path'
+import { Op, type Sequelize } from 'sequelize'
+import { DEFAULT_GRID, gridWavelength } from '../../shared/grid'
+import { formatMK, parseMK } from '../../shared/mk'
+import type { ModelLibraryManifest } from '../../templates/generator/library'
+import { DEFAULT_MODEL_DIR, modelLibraryAt, type LibrarySpec } from '../jobs/worker'
+import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
+import { HttpError, notFound } from '../lib/http-error'
+import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, type User } from '../models'
+import { replaceModelsByObserved } from '../spectra/match'
+import { resolutionFwhm } from '../spectra/pipeline'
+
+/** Name of the version made from the shipped model library. */
+export const DEFAULT_VERSION_NAME = 'model-v1'
+
+/**
+ * Makes sure the default version exists: one `standards` row per model standard of the shipped
+ * library (model_id = manifest id) and a published version holding them all, active when no other
+ * version is. Safe to call at every start.
+ */
+export async function ensureDefaultLibrary(sequelize: Sequelize, modelDir = DEFAULT_MODEL_DIR): Promise<LibraryVersion> {
+  const manifest = JSON.parse(readFileSync(join(modelDir, 'manifest.json'), 'utf8')) as ModelLibraryManifest
+  return sequelize.transaction(async (transaction) => {
+    const existing = await LibraryVersion.findOne({ where: { name: manifest.version }, transaction })
+    if (existing) {
+      if ((await LibraryVersion.count({ where: { isActive: true }, transaction })) === 0) await existing.update({ isActive: true }, { transaction })
+      return existing
+    }
+    const have = new Set((await Standard.findAll({ where: { source: 'model' }, attributes: ['modelId'], transaction })).map((s) => s.modelId))
+    await Standard.bulkCreate(
+      manifest.standards
+        .filter((e) => !have.has(e.id))
+        .map((e) => ({
+          source: 'model' as const,
+          modelId: e.id,
+          spectrumId: null,
+          spectralType: e.spectralType,
+          typeCode: e.typeCode,
+          luminosityClass: e.luminosityClass,
+          classCode: classCodeOrThrow(e.luminosityClass),
+          teff: e.Teff,
+          logg: e.logg,
+          note: `model standard, ${manifest.version} (generator ${manifest.generatorVersion})`,
+          rectified: null,
+          addedBy: null,
+          retiredAt: null,
+        })),
+      { transaction },
+    )
+    const ids = new Set(manifest.standards.map((e) => e.id))
+    const rows = (await Standard.findAll({ where: { source: 'model' }, attributes: ['id', 'modelId'], transaction })).filter((s) => ids.has(s.modelId!))
+    const anyActive = (await LibraryVersion.count({ where: { isActive: true }, transaction })) > 0
+    const version = await LibraryVersion.create(
+      { name: manifest.version, description: `The shipped model standards (${rows.length}), templates/${manifest.version}.`, status: 'published', isActive: !anyActive, publishedAt: new Date(), publishedBy: null },
+      { transaction },
+    )
+    await LibraryVersionStandard.bulkCreate(rows.map((s) => ({ versionId: version.id, standardId: s.id })), { transaction })
+    return version
+  })
+}
+
+function classCodeOrThrow(text: string): number {
+  const parsed = parseMK(`A0 ${text}`)
+  const code = parsed.ok ? parsed.value.classCode : undefined
+  if (code === undefined) throw new Error(`"${text}" is not a luminosity class`)
+  return code
+}
+
+export interface StandardSummary {
+  id: number
+  source: 'model' | 'observed'
+  modelId: string | null
+  spectrumId: number | null
+  spectralType: string
+  typeCode: number
+  luminosityClass: string
+  classCode: number
+  teff: number | null
+  logg: number | null
+  note: string
+  addedBy: number | null
+  retiredAt: string | null
+  createdAt: string
+  versionIds: number[]
+}
+
+export interface VersionSummary {
+  id: number
+  name: string
+  description: string
+  status: 'draft' | 'published'
+  isActive: boolean
+  publishedAt: string | null
+  publishedBy: number | null
+  standardCount: number
+}
+
+const SUMMARY_ATTRIBUTES = { exclude: ['rectified'] }
+
+/** Every version and every standard (without arrays), and which version is active. */
+export async function listLibrary(): Promise<{ activeVersionId: number | null; versions: VersionSummary[]; standards: StandardSummary[] }> {
+  const [versions, standards, links] = await Promise.all([
+    LibraryVersion.findAll({ order: [['id', 'ASC']] }),
+    Standard.findAll({ attributes: SUMMARY_ATTRIBUTES, order: [['typeCode', 'ASC'], ['classCode', 'DESC'], ['id', 'ASC']] }),
+    LibraryVersionStandard.findAll(),
+  ])
+  const byStandard = new Map<number, number[]>()
+  const counts = new Map<number, number>()
+  for (const l of links) {
+    byStandard.set(l.standardId, [...(byStandard.get(l.standardId) ?? []), l.versionId])
+    counts.set(l.versionId, (counts.get(l.versionId) ?? 0) + 1)
+  }
+  return {
+    activeVersionId: versions.find((v) => v.isActive)?.id ?? null,
+    versions: versions.map((v) => ({
+      id: v.id,
+      name: v.name,
+      description: v.description,
+      status: v.status,
+      isActive: v.isActive,
+      publishedAt: v.publishedAt?.toISOString() ?? null,
+      publishedBy: v.publishedBy,
+      standardCount: counts.get(v.id) ?? 0,
+    })),
+    standards: standards.map((s) => toStandardSummary(s, byStandard.get(s.id) ?? [])),
+  }
+}
+
+function toStandardSummary(s: Standard, versionIds: number[]): StandardSummary {
+  return {
+    id: s.id,
+    source: s.source,
+    modelId: s.modelId,
+    spectrumId: s.spectrumId,
+    spectralType: s.spectralType,
+    typeCode: s.typeCode,
+    luminosityClass: s.luminosityClass,
+    classCode: s.classCode,
+    teff: s.teff,
+    logg: s.logg,
+    note: s.note,
+    addedBy: s.addedBy,
+    retiredAt: s.retiredAt?.toISOString() ?? null,
+    createdAt: s.createdAt.toISOString(),
+    versionIds: [...versionIds].sort((a, b) => a - b),
+  }
+}
+
+export interface AddStandardInput {
+  spectrumId: number
+  /** Spectral type, e.g. "A0" (a class written here must agree with `luminosityClass`). */
+  spectralType: string
+  luminosityClass: string
+  /** Where the classification comes from. */
+  note: string
+}
+
+/**
+ * Adds an observed standard: the spectrum's current rectified measurement is copied into the
+ * standard (so later re-measurements do not change it). The type and class must read as MK
+ * notation with a subtype and a class (shared/mk.ts).
+ */
+export async function addObservedStandard(user: User, input: AddStandardInput): Promise<StandardSummary> {
+  const parsed = parseMK(`${input.spectralType.trim()} ${input.luminosityClass.trim()}`)
+  if (!parsed.ok) throw new HttpError(422, 'invalid_classification', `"${input.spectralType} ${input.luminosityClass}" is not MK notation: ${parsed.reason}`)
+  const v = parsed.value
+  if (v.kind !== 'mk' || v.typeCode === undefined || v.classCode === undefined || v.luminosityClass === undefined || v.composite || v.typeRange || v.classRange) {
+    throw new HttpError(422, 'invalid_classification', 'A standard needs one MK type with a subtype and one luminosity class (no ranges or composites).')
+  }
+  const spectrum = await Spectrum.findByPk(input.spectrumId, { attributes: ['id'] })
+  if (!spectrum) throw notFound('The spectrum')
+  const m = await Measurement.findOne({ where: { spectrumId: input.spectrumId, isCurrent: true } })
+  if (!m) throw new HttpError(409, 'not_measured', 'This spectrum has no measurement yet; wait for it to be processed.')
+  if (m.gridStart !== DEFAULT_GRID.start || m.gridStep !== DEFAULT_GRID.step || m.gridLength !== DEFAULT_GRID.length) {
+    throw new HttpError(409, 'grid_mismatch', 'The measurement is on a different grid from the standards library.')
+  }
+  const rectified = bufferToFloat32(m.rectified)
+  const mask = m.mask
+  for (let i = 0; i < rectified.length; i++) if (mask[i] === 1) rectified[i] = Number.NaN
+  const canonical = formatMK({ ...v, peculiarities: [], lineTypes: [], uncertain: { prefix: false, type: false, class: false } })
+  const s = await Standard.create({
+    source: 'observed',
+    modelId: null,
+    spectrumId: input.spectrumId,
+    spectralType: canonical,
+    typeCode: v.typeCode,
+    luminosityClass: v.luminosityClass,
+    classCode: v.classCode,
+    teff: null,
+    logg: null,
+    note: input.note.trim(),
+    rectified: float32ToBuffer(rectified),
+    addedBy: user.id,
+    retiredAt: null,
+  })
+  await s.reload({ attributes: SUMMARY_ATTRIBUTES })
+  return toStandardSummary(s, [])
+}
+
+/** Retires a standard: later versions leave it out; versions already published keep it. */
+export async function retireStandard(id: number): Promise<StandardSummary> {
+  const s = await Standard.findByPk(id, { attributes: SUMMARY_ATTRIBUTES })
+  if (!s) throw notFound('The standard')
+  if (s.retiredAt) throw new HttpError(409, 'already_retired', 'This standard is already retired.')
+  await s.update({ retiredAt: new Date() })
+  const links = await LibraryVersionStandard.findAll({ where: { standardId: id } })
+  return toStandardSummary(s, links.map((l) => l.versionId))
+}
+
+/**
+ * Publishes a new version from the standards that are not retired (observed standards replace
+ * model ones of the same type and class) and makes it the active one.
+ */
+export async function publishVersion(sequelize: Sequelize, user: User, input: { name: string; description: string }): Promise<VersionSummary> {
+  if (await LibraryVersion.findOne({ where: { name: input.name } })) throw new HttpError(409, 'name_taken', `A version named "${input.name}" already exists.`)
+  const live = await Standard.findAll({ where: { retiredAt: null }, attributes: ['id', 'source', 'typeCode', 'classCode'] })
+  const kept = replaceModelsByObserved(live)
+  if (kept.length === 0) throw new HttpError(409, 'empty_library', 'Every standard is retired: a version needs at least one.')
+  const version = await sequelize.transaction(async (transaction) => {
+    await LibraryVersion.update({ isActive: false }, { where: { isActive: true }, transaction })
+    const v = await LibraryVersion.create(
+      { name: input.name, description: input.description, status: 'published', isActive: true, publishedAt: new Date(), publishedBy: user.id },
+      { transaction },
+    )
+    await LibraryVersionStandard.bulkCreate(kept.map((s) => ({ versionId: v.id, standardId: s.id })), { transaction })
+    return v
+  })
+  return {
+    id: version.id,
+    name: version.name,
+    description: version.description,
+    status: version.status,
+    isActive: version.isActive,
+    publishedAt: version.publishedAt?.toISOString() ?? null,
+    publishedBy: version.publishedBy,
+    standardCount: kept.length,
+  }
+}
+
+/** A standard's rectified flux as float32 columns [wavelength, rectified] over its covered pixels. */
+export async function standardSeries(id: number, modelDir = DEFAULT_MODEL_DIR): Promise<{ layout: { points: number; columns: string[]; standardId: number; spectralType: string; source: string }; body: Buffer }> {
+  const s = await Standard.findByPk(id)
+  if (!s) throw notFound('The standard')
+  let values: ArrayLike<number>
+  if (s.source === 'observed') {
+    if (!s.rectified) throw notFound('The data of this standard')
+    values = bufferToFloat32(s.rectified)
+  } else {
+    const row = modelLibraryAt(modelDir).standards.find((m) => m.entry.id === s.modelId)
+    if (!row) throw notFound('The model data of this standard')
+    values = row.rectified
+  }
+  let from = 0
+  let to = values.length
+  while (from < to && !Number.isFinite(values[from]!)) from++
+  while (to > from && !Number.isFinite(values[to - 1]!)) to--
+  const points = to - from
+  const out = new Float32Array(points * 2)
+  for (let k = 0; k < points; k++) {
+    out[k] = gridWavelength(DEFAULT_GRID, from + k)
+    out[points + k] = values[from + k]!
+  }
+  return {
+    layout: { points, columns: ['wavelength', 'rectified'], standardId: s.id, spectralType: s.spectralType, source: s.source },
+    body: Buffer.from(out.buffer, out.byteOffset, out.byteLength),
+  }
+}
+
+/** The active version's id, or null when there is none. */
+export async function activeVersionId(): Promise<number | null> {
+  return (await LibraryVersion.findOne({ where: { isActive: true }, attributes: ['id'] }))?.id ?? null
+}
+
+/** What a worker needs to build a version's prepared library (model ids; observed arrays). */
+export async function librarySpecFor(versionId: number, modelDir = DEFAULT_MODEL_DIR): Promise<LibrarySpec> {
+  const version = await LibraryVersion.findByPk(versionId)
+  if (!version) throw notFound('The library version')
+  const ids = (await LibraryVersionStandard.findAll({ where: { versionId } })).map((l) => l.standardId)
+  const standards = await Standard.findAll({ where: { id: { [Op.in]: ids } } })
+  const spectra = await Spectrum.findAll({
+    where: { id: { [Op.in]: standards.flatMap((s) => (s.spectrumId !== null ? [s.spectrumId] : [])) } },
+    attributes: ['id', 'resolutionFwhm', 'resolvingPower'],
+  })
+  const resolution = new Map(spectra.map((sp) => [sp.id, resolutionFwhm(sp.resolutionFwhm, sp.resolvingPower)]))
+  return {
+    versionId,
+    name: version.name,
+    modelDir,
+    models: standards.filter((s) => s.source === 'model' && s.modelId).map((s) => ({ standardId: s.id, modelId: s.modelId! })),
+    observed: standards
+      .filter((s) => s.source === 'observed' && s.rectified)
+      .map((s) => ({
+        standardId: s.id,
+        spectralType: s.spectralType,
+        typeCode: s.typeCode,
+        luminosityClass: s.luminosityClass,
+        classCode: s.classCode,
+        rectified: Float32Array.from(bufferToFloat32(s.rectified!)),
+        // Measurements of spectra sharper than the library's sharpest level were smoothed to it (pipeline.ts).
+        resolutionFwhm: Math.max(1.5, (s.spectrumId !== null ? resolution.get(s.spectrumId) : undefined) ?? 1.5),
+      })),
+  }
+}

@@ -1,0 +1,114 @@
+import { Op, type Transaction } from 'sequelize'
+import type { AppContext } from '../context'
+import { HttpError, notFound } from '../lib/http-error'
+import { Campaign, ProcessingJob, Spectrum, Suggestion, type User } from '../models'
+import type { MatchResult } from '../spectra/match'
+import { activeVersionId } from './standards.service'
+
+/** The stored form of a suggestion, as the API returns it. */
+export interface SuggestionSummary {
+  id: number
+  spectrumId: number
+  measurementId: number
+  libraryVersionId: number
+  pipelineVersion: string
+  isCurrent: boolean
+  spectralType: string
+  letter: string
+  subtype: number
+  typeCode: number
+  luminosityClass: string
+  classCode: number
+  uncertainty: { subtypes: number; classes: number }
+  bestStandardId: number | null
+  candidates: unknown[]
+  votes: unknown[]
+  flags: string[]
+  probabilities: unknown[]
+  createdAt: string
+}
+
+/** Stores a matcher result as the spectrum's current suggestion; earlier ones stay with is_current = false. */
+export async function storeSuggestion(
+  input: { spectrumId: number; measurementId: number; libraryVersionId: number; pipelineVersion: string; result: MatchResult },
+  transaction: Transaction,
+): Promise<Suggestion> {
+  const r = input.result
+  await Suggestion.update({ isCurrent: false }, { where: { spectrumId: input.spectrumId, isCurrent: true }, transaction })
+  return Suggestion.create(
+    {
+      spectrumId: input.spectrumId,
+      measurementId: input.measurementId,
+      libraryVersionId: input.libraryVersionId,
+      pipelineVersion: input.pipelineVersion,
+      isCurrent: true,
+      spectralType: r.spectralType,
+      letter: r.letter,
+      subtype: r.subtype,
+      typeCode: r.typeCode,
+      luminosityClass: r.luminosityClass,
+      classCode: r.classCode,
+      uncertaintySubtypes: r.uncertainty.subtypes,
+      uncertaintyClasses: r.uncertainty.classes,
+      bestStandardId: r.bestStandardId > 0 ? r.bestStandardId : null,
+      candidates: JSON.stringify(r.candidates),
+      votes: JSON.stringify(r.votes),
+      flags: JSON.stringify(r.flags),
+      probabilities: JSON.stringify(r.probabilities),
+    },
+    { transaction },
+  )
+}
+
+export function toSuggestionSummary(s: Suggestion): SuggestionSummary {
+  return {
+    id: s.id,
+    spectrumId: s.spectrumId,
+    measurementId: s.measurementId,
+    libraryVersionId: s.libraryVersionId,
+    pipelineVersion: s.pipelineVersion,
+    isCurrent: s.isCurrent,
+    spectralType: s.spectralType,
+    letter: s.letter,
+    subtype: s.subtype,
+    typeCode: s.typeCode,
+    luminosityClass: s.luminosityClass,
+    classCode: s.classCode,
+    uncertainty: { subtypes: s.uncertaintySubtypes, classes: s.uncertaintyClasses },
+    bestStandardId: s.bestStandardId,
+    candidates: JSON.parse(s.candidates) as unknown[],
+    votes: JSON.parse(s.votes) as unknown[],
+    flags: JSON.parse(s.flags) as string[],
+    probabilities: JSON.parse(s.probabilities) as unknown[],
+    createdAt: s.createdAt.toISOString(),
+  }
+}
+
+/** The current suggestion of a spectrum and the older ones, newest first. */
+export async function suggestionsOf(spectrumId: number): Promise<{ current: SuggestionSummary | null; history: SuggestionSummary[] }> {
+  const all = await Suggestion.findAll({ where: { spectrumId }, order: [['id', 'DESC']] })
+  const current = all.find((s) => s.isCurrent)
+  return { current: current ? toSuggestionSummary(current) : null, history: all.filter((s) => !s.isCurrent).map(toSuggestionSummary) }
+}
+
+/**
+ * Queues every spectrum of a campaign to be processed again, so that each gets a new suggestion
+ * against the active library version. Spectra already waiting are skipped.
+ */
+export async function resuggestCampaign(ctx: AppContext, user: User, campaignId: number): Promise<{ queued: number; skipped: number; libraryVersionId: number }> {
+  const campaign = await Campaign.findByPk(campaignId)
+  if (!campaign) throw notFound('The campaign')
+  const versionId = await activeVersionId()
+  if (versionId === null) throw new HttpError(409, 'no_active_library', 'No standards library version is active.')
+  const spectra = await Spectrum.findAll({ where: { campaignId }, attributes: ['id'] })
+  const ids = spectra.map((s) => s.id)
+  const pending = new Set(
+    (await ProcessingJob.findAll({ where: { spectrumId: { [Op.in]: ids }, status: { [Op.in]: ['queued', 'running'] } }, attributes: ['spectrumId'] })).map((j) => j.spectrumId),
+  )
+  const todo = ids.filter((id) => !pending.has(id))
+  if (todo.length > 0) {
+    await ProcessingJob.bulkCreate(todo.map((spectrumId) => ({ spectrumId, error: null, requestedBy: user.id, startedAt: null, finishedAt: null })))
+  }
+  for (const id of todo) ctx.jobs?.enqueue(id)
+  return { queued: todo.length, skipped: ids.length - todo.length, libraryVersionId: versionId }
+}

@@ -1,0 +1,176 @@
+import { describe, expect, it } from 'vitest'
+import { DEFAULT_GRID, gridWavelengths, makeLogGrid } from '../../../../shared/grid'
+import {
+  DEPTH_SCALE_BOUNDS,
+  depthScaledChiSquareRows,
+  matchSpectrum,
+  parabolaVertex,
+  prepareMatchLibrary,
+  replaceModelsByObserved,
+  scaledChiSquare,
+  type MatchStandardInput,
+} from '../../../../server/spectra/match'
+
+/** A made-up rectified spectrum: Gaussian absorption lines of the given depths at fixed places. */
+function lines(grid: typeof DEFAULT_GRID, depths: number[], width = 3): Float32Array {
+  const wl = gridWavelengths(grid)
+  const centres = [3933.66, 4101.74, 4340.47, 4383.55, 4481.2, 4861.33]
+  const out = new Float32Array(grid.length)
+  for (let i = 0; i < grid.length; i++) {
+    let f = 1
+    centres.forEach((c, k) => {
+      f -= (depths[k] ?? 0) * Math.exp(-0.5 * ((wl[i]! - c) / width) ** 2)
+    })
+    out[i] = f
+  }
+  return out
+}
+
+/** A small made-up library: five types × two classes; class V lines wider, depths trend with type. */
+function toyLibrary(): MatchStandardInput[] {
+  const out: MatchStandardInput[] = []
+  let id = 1
+  for (const typeCode of [10, 15, 20, 25, 30]) {
+    for (const [cls, classCode, width] of [['III', 4, 2], ['V', 6, 4]] as const) {
+      const t = (typeCode - 10) / 20
+      out.push({
+        id: id++, modelId: `T${typeCode}-${cls}`, source: 'model', spectralType: `x${typeCode} ${cls}`, typeCode, luminosityClass: cls, classCode,
+        rectified: lines(DEFAULT_GRID, [0.1 + 0.5 * t, 0.5 - 0.2 * Math.abs(t - 0.5), 0.5 - 0.2 * Math.abs(t - 0.5), 0.05 + 0.3 * t, 0.3 - 0.2 * t, 0.5 - 0.2 * Math.abs(t - 0.5)], width),
+        resolutionFwhm: 1.5,
+      })
+    }
+  }
+  return out
+}
+
+const toy = prepareMatchLibrary(toyLibrary(), { versionId: 7, versionName: 'toy', grid: DEFAULT_GRID, resolutions: [1.5, 3] })
+
+describe('scaledChiSquare', () => {
+  it('finds the analytic scale a = Σwft/Σwt² and χ² = Σwf² − (Σwft)²/Σwt²', () => {
+    const f = [1, 2, 3]
+    const t = [1, 1, 2]
+    const w = [1, 2, 0.5]
+    // Σwft = 1 + 4 + 3 = 8, Σwt² = 1 + 2 + 2 = 5, Σwf² = 1 + 8 + 4.5 = 13.5 (worked by hand).
+    const r = scaledChiSquare(f, t, w)
+    expect(r.scale).toBeCloseTo(8 / 5, 12)
+    expect(r.chi2).toBeCloseTo(13.5 - 64 / 5, 12)
+    expect(r.pixels).toBe(3)
+    // The same χ² computed directly at the best scale.
+    const direct = f.reduce((s, fi, i) => s + w[i]! * (fi - r.scale * t[i]!) ** 2, 0)
+    expect(r.chi2).toBeCloseTo(direct, 12)
+  })
+
+  it('is zero for a template that is the data times a constant', () => {
+    const r = scaledChiSquare([2, 4, 6], [1, 2, 3], [1, 1, 1])
+    expect(r.scale).toBeCloseTo(2, 12)
+    expect(r.chi2).toBeCloseTo(0, 12)
+  })
+
+  it('leaves out zero weights and non-finite template pixels, and reports no pixels as infinite χ²', () => {
+    expect(scaledChiSquare([1, 100], [1, Number.NaN], [1, 1]).pixels).toBe(1)
+    expect(scaledChiSquare([1, 2], [1, 2], [0, 0]).chi2).toBe(Infinity)
+  })
+})
+
+describe('depthScaledChiSquareRows', () => {
+  it('recovers a line-depth scale and level exactly, and holds the scale at its bounds', () => {
+    const t = new Float32Array([1, 0.5, 0.8, 1, 0.2])
+    const rows = new Float32Array([...t, ...t])
+    const f = Float64Array.from(t, (v) => 0.02 + 0.9 * v)
+    const w = new Float64Array(5).fill(1)
+    const chi2 = new Float64Array(2)
+    const scale = new Float64Array(2)
+    const used = new Float64Array(2)
+    depthScaledChiSquareRows(f, w, rows, 5, 0, 5, chi2, scale, used)
+    expect(scale[0]).toBeCloseTo(0.9, 6)
+    expect(chi2[0]).toBeCloseTo(0, 9)
+    const stretched = Float64Array.from(t, (v) => 1 - 3 * (1 - v))
+    depthScaledChiSquareRows(stretched, w, rows, 5, 0, 5, chi2, scale, used)
+    expect(scale[0]).toBe(DEPTH_SCALE_BOUNDS[1])
+    expect(chi2[0]).toBeGreaterThan(0)
+  })
+})
+
+describe('parabolaVertex', () => {
+  it('finds the vertex of y = (x − 2.3)² through unevenly spaced points', () => {
+    const y = (x: number) => (x - 2.3) ** 2
+    expect(parabolaVertex(1, y(1), 2, y(2), 4, y(4))).toBeCloseTo(2.3, 12)
+  })
+  it('returns the middle point for a line or a downward parabola, and clamps to the outer points', () => {
+    expect(parabolaVertex(0, 0, 1, 1, 2, 2)).toBe(1)
+    expect(parabolaVertex(0, 0, 1, 1, 2, 0)).toBe(1)
+    const y = (x: number) => (x - 10) ** 2
+    expect(parabolaVertex(0, y(0), 1, y(1), 3, y(3))).toBe(3)
+  })
+})
+
+describe('replaceModelsByObserved', () => {
+  it('drops the model standard of a (type, class) point that has an observed one', () => {
+    const kept = replaceModelsByObserved([
+      { id: 1, source: 'model' as const, typeCode: 20, classCode: 6 },
+      { id: 2, source: 'model' as const, typeCode: 20, classCode: 4 },
+      { id: 3, source: 'observed' as const, typeCode: 20, classCode: 6 },
+    ])
+    expect(kept.map((s) => s.id)).toEqual([2, 3])
+  })
+})
+
+describe('matchSpectrum', () => {
+  const standard = (id: number) => Float64Array.from(toyLibrary().find((s) => s.id === id)!.rectified)
+
+  it('finds a standard of the library itself, with probabilities that sum to one', () => {
+    const r = matchSpectrum(toy, { rectified: standard(6), snr: 100, fwhm: 1.5 })
+    expect(r.bestStandardId).toBe(6)
+    expect(r.typeCode).toBe(20)
+    expect(r.luminosityClass).toBe('V')
+    expect(r.candidates).toHaveLength(3)
+    expect(r.candidates[0]!.chi2).toBeCloseTo(0, 6)
+    const total = r.probabilities.reduce((s, p) => s + p.p, 0)
+    expect(total).toBeGreaterThan(0.999)
+    expect(total).toBeLessThan(1.001)
+    expect(r.libraryVersion).toEqual({ id: 7, name: 'toy' })
+    expect(r.votes[0]!.criterion).toBe('chi2')
+  })
+
+  it('puts a spectrum halfway between two types between them', () => {
+    const a = standard(6) // type 20, V
+    const b = standard(8) // type 25, V
+    const mid = a.map((v, i) => (v + b[i]!) / 2)
+    const r = matchSpectrum(toy, { rectified: mid, snr: 200, fwhm: 1.5 })
+    expect(r.typeCode).toBeGreaterThan(20)
+    expect(r.typeCode).toBeLessThan(25)
+    expect(r.luminosityClass).toBe('V')
+  })
+
+  it('flags low S/N, a minimum at the end of the grid, and a bad fit', () => {
+    const hot = standard(2)
+    const r = matchSpectrum(toy, { rectified: hot, snr: 8, fwhm: 1.5 })
+    expect(r.flags).toContain('low-snr')
+    expect(r.flags).toContain('outside-grid')
+    const flat = new Float64Array(DEFAULT_GRID.length)
+    const wl = gridWavelengths(DEFAULT_GRID)
+    for (let i = 0; i < flat.length; i++) flat[i] = 1 - 0.6 * Math.exp(-0.5 * ((wl[i]! - 4200) / 30) ** 2)
+    expect(matchSpectrum(toy, { rectified: flat, snr: 300, fwhm: 1.5 }).flags).toContain('poor-fit')
+  })
+
+  it('flags Balmer emission and appends "e" to the type', () => {
+    const r = matchSpectrum(toy, {
+      rectified: standard(6), snr: 100, fwhm: 1.5,
+      lines: [{ id: 'h-beta', name: 'Hβ', wavelength: 4861.33, family: 'balmer', measured: true, equivalentWidth: -4, equivalentWidthError: 0.2, depth: -0.5, depthError: 0.01, fwhm: 5, centroid: 4861, continuum: { blue: 1, red: 1 }, snr: 100 }],
+    })
+    expect(r.flags).toContain('emission')
+    expect(r.spectralType.endsWith('e')).toBe(true)
+  })
+
+  it('refuses a spectrum on another grid and one without usable pixels', () => {
+    expect(() => matchSpectrum(toy, { rectified: new Float64Array(10), snr: 50 })).toThrow('spectrum has 10 pixels, the library grid 6376')
+    const empty = new Float64Array(DEFAULT_GRID.length).fill(Number.NaN)
+    expect(() => matchSpectrum(toy, { rectified: empty, snr: 50 })).toThrow('only 0 usable pixels in the classification region 3850–5000 Å')
+  })
+
+  it('refuses an empty library and a standard on another grid', () => {
+    expect(() => prepareMatchLibrary([], { versionId: 1, versionName: 'x', grid: DEFAULT_GRID })).toThrow('a library needs at least one standard')
+    const bad = { ...toyLibrary()[0]!, rectified: new Float32Array(5) }
+    expect(() => prepareMatchLibrary([bad], { versionId: 1, versionName: 'x', grid: makeLogGrid(3700, 7000, 1e-4) })).toThrow('has 5 pixels, the grid 6376')
+  })
+})
