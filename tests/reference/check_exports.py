@@ -2,7 +2,7 @@
 """Reads the committed catalogue samples back with astropy and checks every column, unit, UCD and value.
 
 Run with Debian's Python (apt-get install python3-astropy), not the python3 first on PATH:
-    npx tsx tests/fixtures/exports/make-samples.ts     # when the writers change
+    npx tsx tests/unit/exports/make-samples.ts     # when the writers change
     /usr/bin/python3 tests/reference/check_exports.py
 Reads tests/fixtures/exports/{catalogue,types}.{csv,vot,fits,mrt.txt,dat,ReadMe,expected.json};
 writes tests/reference/out/exports_check.json, which tests/unit/exports/astropy-check.test.ts

@@ -2,12 +2,12 @@ import { createHash } from 'node:crypto'
 import { readFileSync, readdirSync } from 'node:fs'
 import { join } from 'node:path'
 import { describe, expect, it } from 'vitest'
-import { sampleFiles } from '../../fixtures/exports/make-samples'
+import { sampleFiles } from './make-samples'
 
 const DIR = join(process.cwd(), 'tests', 'fixtures', 'exports')
 
 describe('the committed export samples', () => {
-  it('are what the writers produce now (re-run tests/fixtures/exports/make-samples.ts after a change)', () => {
+  it('are what the writers produce now (re-run tests/unit/exports/make-samples.ts after a change)', () => {
     for (const [name, bytes] of Object.entries(sampleFiles())) {
       expect(Buffer.compare(readFileSync(join(DIR, name)), bytes), name).toBe(0)
     }
