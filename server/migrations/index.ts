@@ -3,6 +3,7 @@ import * as m0001 from './0001-foundation'
 import * as m0002 from './0002-spectra'
 import * as m0003 from './0003-measurements'
 import * as m0004 from './0004-standards-suggestions'
+import * as m0006 from './0006-review'
 
 export interface Migration {
   name: string
@@ -16,4 +17,5 @@ export const migrations: Migration[] = [
   { name: '0002-spectra', ...m0002 },
   { name: '0003-measurements', ...m0003 },
   { name: '0004-standards-suggestions', ...m0004 },
+  { name: '0006-review', ...m0006 },
 ]
