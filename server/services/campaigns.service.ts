@@ -1,6 +1,8 @@
 import { Op, type WhereOptions } from 'sequelize'
-import { forbidden, notFound } from '../lib/http-error'
-import { Campaign, CampaignMember, type User } from '../models'
+import type { AppContext } from '../context'
+import { HttpError, forbidden, notFound } from '../lib/http-error'
+import { Campaign, CampaignMember, User } from '../models'
+import type { CreateCampaignInput, UpdateCampaignInput } from '../schemas/campaigns.schemas'
 
 export interface CampaignSummary {
   id: number
@@ -50,4 +52,110 @@ export async function campaignForSubmission(user: User, campaignId: number): Pro
   const ids = await campaignIdsOf(user)
   if (ids !== 'all' && !ids.includes(campaignId)) throw forbidden('You are not a member of this campaign.')
   return campaign
+}
+
+export interface CampaignMemberSummary {
+  id: number
+  name: string
+  role: User['role']
+  active: boolean
+  /** Only leads see addresses. */
+  email?: string
+}
+
+export interface CampaignDetail extends CampaignSummary {
+  members: CampaignMemberSummary[]
+  createdAt: string
+  updatedAt: string
+}
+
+async function membersOf(campaignId: number, viewer: User): Promise<CampaignMemberSummary[]> {
+  const rows = await CampaignMember.findAll({ where: { campaignId }, attributes: ['userId'] })
+  if (rows.length === 0) return []
+  const users = await User.findAll({ where: { id: { [Op.in]: rows.map((r) => r.userId) } }, order: [['name', 'ASC'], ['id', 'ASC']] })
+  return users.map((u) => ({ id: u.id, name: u.name, role: u.role, active: u.active, ...(viewer.role === 'lead' ? { email: u.email } : {}) }))
+}
+
+/** A campaign with its people; members see it, others are told it does not exist. */
+export async function getCampaign(user: User, id: number): Promise<CampaignDetail> {
+  const campaign = await Campaign.findByPk(id)
+  const ids = await campaignIdsOf(user)
+  if (!campaign || (ids !== 'all' && !ids.includes(id))) throw notFound('The campaign')
+  return { ...toCampaignSummary(campaign), members: await membersOf(id, user), createdAt: campaign.createdAt.toISOString(), updatedAt: campaign.updatedAt.toISOString() }
+}
+
+export async function createCampaign(lead: User, input: CreateCampaignInput): Promise<CampaignDetail> {
+  if (await Campaign.findOne({ where: { code: input.code }, attributes: ['id'] })) {
+    throw new HttpError(409, 'conflict', `A campaign with the code ${input.code} already exists.`, { fields: { code: 'is already taken' } })
+  }
+  const campaign = await Campaign.create({
+    code: input.code,
+    name: input.name,
+    description: input.description,
+    observatory: input.observatory,
+    ...(input.regionMin !== undefined ? { regionMin: input.regionMin } : {}),
+    ...(input.regionMax !== undefined ? { regionMax: input.regionMax } : {}),
+    callsRequired: input.callsRequired,
+    blindReview: input.blindReview,
+    typeTolerance: input.typeTolerance,
+    classTolerance: input.classTolerance,
+  })
+  if (campaign.regionMin >= campaign.regionMax) {
+    await campaign.destroy()
+    throw new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields: { regionMax: 'the region must start below where it ends' } })
+  }
+  return getCampaign(lead, campaign.id)
+}
+
+/** New rules apply from the next call; calls already recorded keep the rules they were judged by. */
+export async function updateCampaign(lead: User, id: number, input: UpdateCampaignInput): Promise<CampaignDetail> {
+  const campaign = await Campaign.findByPk(id)
+  if (!campaign) throw notFound('The campaign')
+  const regionMin = input.regionMin ?? campaign.regionMin
+  const regionMax = input.regionMax ?? campaign.regionMax
+  if (regionMin >= regionMax) {
+    throw new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields: { [input.regionMax !== undefined ? 'regionMax' : 'regionMin']: 'the region must start below where it ends' } })
+  }
+  await campaign.update(input)
+  return getCampaign(lead, id)
+}
+
+async function assignableUsers(userIds: number[]): Promise<number[]> {
+  const unique = [...new Set(userIds)]
+  if (unique.length === 0) return []
+  const users = await User.findAll({ where: { id: { [Op.in]: unique } }, attributes: ['id'] })
+  const found = new Set(users.map((u) => u.id))
+  const missing = unique.filter((id) => !found.has(id))
+  if (missing.length > 0) throw new HttpError(422, 'unknown_users', `No user has the id ${missing.join(', ')}.`, { fields: { userIds: `unknown: ${missing.join(', ')}` }, missing })
+  return unique
+}
+
+/** Replaces the campaign's people with exactly these users. */
+export async function setCampaignMembers(ctx: Pick<AppContext, 'sequelize'>, lead: User, id: number, userIds: number[]): Promise<CampaignDetail> {
+  const campaign = await Campaign.findByPk(id)
+  if (!campaign) throw notFound('The campaign')
+  const wanted = await assignableUsers(userIds)
+  await ctx.sequelize.transaction(async (transaction) => {
+    const where = wanted.length > 0 ? { campaignId: id, userId: { [Op.notIn]: wanted } } : { campaignId: id }
+    await CampaignMember.destroy({ where, transaction })
+    const existing = new Set((await CampaignMember.findAll({ where: { campaignId: id }, attributes: ['userId'], transaction })).map((m) => m.userId))
+    const added = wanted.filter((u) => !existing.has(u))
+    if (added.length > 0) await CampaignMember.bulkCreate(added.map((userId) => ({ campaignId: id, userId })), { transaction })
+  })
+  return getCampaign(lead, id)
+}
+
+export async function addCampaignMember(lead: User, id: number, userId: number): Promise<CampaignDetail> {
+  const campaign = await Campaign.findByPk(id)
+  if (!campaign) throw notFound('The campaign')
+  await assignableUsers([userId])
+  await CampaignMember.findOrCreate({ where: { campaignId: id, userId } })
+  return getCampaign(lead, id)
+}
+
+export async function removeCampaignMember(lead: User, id: number, userId: number): Promise<CampaignDetail> {
+  const campaign = await Campaign.findByPk(id)
+  if (!campaign) throw notFound('The campaign')
+  await CampaignMember.destroy({ where: { campaignId: id, userId } })
+  return getCampaign(lead, id)
 }

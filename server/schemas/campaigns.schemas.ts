@@ -1,0 +1,58 @@
+import { z } from 'zod'
+
+/** The classification region a campaign may choose, Å. */
+export const REGION_LIMITS = [3700, 7000] as const
+
+const regionEdge = z.number().min(REGION_LIMITS[0], `must be at least ${REGION_LIMITS[0]} Å`).max(REGION_LIMITS[1], `must be at most ${REGION_LIMITS[1]} Å`)
+
+const rules = {
+  name: z.string().trim().min(1, 'is required').max(160),
+  description: z.string().trim().max(4000),
+  observatory: z.string().trim().max(160),
+  regionMin: regionEdge,
+  regionMax: regionEdge,
+  callsRequired: z.number().int('must be a whole number').min(1, 'must be 1, 2 or 3').max(3, 'must be 1, 2 or 3'),
+  blindReview: z.boolean(),
+  typeTolerance: z.number().min(0, 'must be 0 or more subtypes').max(10, 'must be at most 10 subtypes'),
+  classTolerance: z.number().min(0, 'must be 0 or more classes').max(3, 'must be at most 3 classes'),
+}
+
+const regionOrdered = (v: { regionMin?: number; regionMax?: number }) => v.regionMin === undefined || v.regionMax === undefined || v.regionMin < v.regionMax
+const regionMessage = { message: 'the region must start below where it ends', path: ['regionMax'] }
+
+export const createCampaignBody = z
+  .object({
+    code: z.string().trim().regex(/^[A-Za-z0-9][A-Za-z0-9_-]{0,31}$/, 'letters, digits, - and _, at most 32'),
+    name: rules.name,
+    description: rules.description.default(''),
+    observatory: rules.observatory.default(''),
+    regionMin: rules.regionMin.optional(),
+    regionMax: rules.regionMax.optional(),
+    callsRequired: rules.callsRequired.default(1),
+    blindReview: rules.blindReview.default(false),
+    typeTolerance: rules.typeTolerance.default(1),
+    classTolerance: rules.classTolerance.default(1),
+  })
+  .refine(regionOrdered, regionMessage)
+export type CreateCampaignInput = z.infer<typeof createCampaignBody>
+
+export const updateCampaignBody = z
+  .object({
+    name: rules.name.optional(),
+    description: rules.description.optional(),
+    observatory: rules.observatory.optional(),
+    regionMin: rules.regionMin.optional(),
+    regionMax: rules.regionMax.optional(),
+    callsRequired: rules.callsRequired.optional(),
+    blindReview: rules.blindReview.optional(),
+    typeTolerance: rules.typeTolerance.optional(),
+    classTolerance: rules.classTolerance.optional(),
+  })
+  .strict()
+  .refine((v) => Object.keys(v).length > 0, 'nothing to change')
+  .refine(regionOrdered, regionMessage)
+export type UpdateCampaignInput = z.infer<typeof updateCampaignBody>
+
+export const membersBody = z.object({ userIds: z.array(z.number().int().positive()).max(1000) })
+export const memberBody = z.object({ userId: z.number().int().positive() })
+export const memberParams = z.object({ id: z.coerce.number().int().positive(), userId: z.coerce.number().int().positive() })

@@ -1,0 +1,209 @@
+import { Op, QueryTypes, UniqueConstraintError } from 'sequelize'
+import type { AppContext } from '../context'
+import { HttpError } from '../lib/http-error'
+import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../models'
+import { campaignIdsOf } from './campaigns.service'
+import { OPEN_FOR_CALLS, namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView, type SuggestionView } from './review.service'
+import { findVisibleSpectrum } from './spectra.service'
+
+/** How long a claim holds an item before it lapses by itself. */
+export const CLAIM_MINUTES = 10
+
+export type QueueOrder = 'oldest' | 'snr' | 'flagged'
+
+export interface QueueQuery {
+  campaign?: number
+  /** Items whose suggestion carries every one of these flags. */
+  flags?: string[]
+  /** Suggested type code range; blind-review items are left out when it is given, since it would reveal them. */
+  typeFrom?: number
+  typeTo?: number
+  snrMin?: number
+  snrMax?: number
+  order: QueueOrder
+  limit: number
+}
+
+export interface QueueItem {
+  spectrumId: number
+  objectName: string
+  campaign: { id: number; code: string; name: string; blindReview: boolean }
+  snr: number | null
+  flags: string[]
+  createdAt: string
+  status: 'suggested' | 'under_review'
+  claim: { state: 'free' } | { state: 'mine'; claimedAt: string; expiresAt: string }
+  calls: { count: number; needed: number }
+  /** Shown only where the campaign does not review blind. */
+  suggestion: SuggestionView | null
+  hidden: boolean
+}
+
+/** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
+const sqlTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ')
+
+const ORDER_SQL: Record<QueueOrder, string> = {
+  oldest: 'sp.created_at ASC, sp.id ASC',
+  snr: 'sp.snr IS NULL ASC, sp.snr DESC, sp.id ASC',
+  flagged: 'JSON_LENGTH(sg.flags) DESC, sp.created_at ASC, sp.id ASC',
+}
+
+/**
+ * Ids of the spectra that still need this user's call, in queue order. `keep` stays in the list even
+ * after the user has called on or released it, so "the item after it" can be found.
+ */
+async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery, now: Date, keep?: number): Promise<number[]> {
+  const campaigns = await campaignIdsOf(user)
+  if (campaigns !== 'all' && campaigns.length === 0) return []
+  const where: string[] = ['sp.status IN (:open)', 'sp.submitted_by <> :uid']
+  const r: Record<string, unknown> = { open: OPEN_FOR_CALLS, uid: user.id, now: sqlTime(now), limit: q.limit }
+  if (campaigns !== 'all') {
+    where.push('sp.campaign_id IN (:campaigns)')
+    r.campaigns = campaigns
+  }
+  const stillMine = [
+    'NOT EXISTS (SELECT 1 FROM review_calls rc WHERE rc.spectrum_id = sp.id AND rc.user_id = :uid)',
+    'NOT EXISTS (SELECT 1 FROM review_claims cl WHERE cl.spectrum_id = sp.id AND cl.user_id <> :uid AND cl.expires_at > :now)',
+  ].join(' AND ')
+  if (keep !== undefined) {
+    where.push(`(sp.id = :keep OR (${stillMine}))`)
+    r.keep = keep
+  } else where.push(stillMine)
+  if (q.campaign !== undefined) {
+    where.push('sp.campaign_id = :campaign')
+    r.campaign = q.campaign
+  }
+  if (q.snrMin !== undefined) {
+    where.push('sp.snr >= :snrMin')
+    r.snrMin = q.snrMin
+  }
+  if (q.snrMax !== undefined) {
+    where.push('sp.snr <= :snrMax')
+    r.snrMax = q.snrMax
+  }
+  ;(q.flags ?? []).forEach((flag, i) => {
+    where.push(`JSON_CONTAINS(sg.flags, JSON_QUOTE(:flag${i}))`)
+    r[`flag${i}`] = flag
+  })
+  if (q.typeFrom !== undefined || q.typeTo !== undefined) where.push('c.blind_review = 0')
+  if (q.typeFrom !== undefined) {
+    where.push('sg.type_code >= :typeFrom')
+    r.typeFrom = q.typeFrom
+  }
+  if (q.typeTo !== undefined) {
+    where.push('sg.type_code <= :typeTo')
+    r.typeTo = q.typeTo
+  }
+  const sql = `
+    SELECT sp.id AS id
+    FROM spectra sp
+    JOIN campaigns c ON c.id = sp.campaign_id
+    JOIN suggestions sg ON sg.id = (SELECT MAX(s2.id) FROM suggestions s2 WHERE s2.spectrum_id = sp.id AND s2.is_current = 1)
+    WHERE ${where.join('\n      AND ')}
+    ORDER BY ${ORDER_SQL[q.order]}
+    LIMIT :limit`
+  const rows = await ctx.sequelize.query<{ id: number }>(sql, { replacements: r, type: QueryTypes.SELECT })
+  return rows.map((row) => Number(row.id))
+}
+
+async function queueItems(user: User, ids: number[], now: Date): Promise<QueueItem[]> {
+  if (ids.length === 0) return []
+  const [spectra, suggestions, calls, claims] = await Promise.all([
+    Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status'] }),
+    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, order: [['id', 'ASC']] }),
+    ReviewCall.findAll({ where: { spectrumId: { [Op.in]: ids } }, attributes: ['spectrumId', 'userId'] }),
+    ReviewClaim.findAll({ where: { spectrumId: { [Op.in]: ids }, userId: user.id, expiresAt: { [Op.gt]: now } } }),
+  ])
+  const campaigns = new Map((await Campaign.findAll({ where: { id: { [Op.in]: [...new Set(spectra.map((s) => s.campaignId))] } } })).map((c) => [c.id, c]))
+  const byId = new Map(spectra.map((s) => [s.id, s]))
+  const suggestionOf = new Map(suggestions.map((s) => [s.spectrumId, s]))
+  const callers = new Map<number, Set<number>>()
+  for (const c of calls) {
+    if (!callers.has(c.spectrumId)) callers.set(c.spectrumId, new Set())
+    callers.get(c.spectrumId)!.add(c.userId)
+  }
+  const claimOf = new Map(claims.map((c) => [c.spectrumId, c]))
+  return ids.flatMap((id) => {
+    const s = byId.get(id)
+    const campaign = s && campaigns.get(s.campaignId)
+    if (!s || !campaign) return []
+    const suggestion = suggestionOf.get(id) ?? null
+    const claim = claimOf.get(id)
+    const hidden = campaign.blindReview && !callers.get(id)?.has(user.id)
+    return [
+      {
+        spectrumId: id,
+        objectName: s.objectName,
+        campaign: { id: campaign.id, code: campaign.code, name: campaign.name, blindReview: campaign.blindReview },
+        snr: s.snr,
+        flags: suggestionFlags(suggestion),
+        createdAt: s.createdAt.toISOString(),
+        status: s.status as QueueItem['status'],
+        claim: claim ? { state: 'mine' as const, claimedAt: claim.claimedAt.toISOString(), expiresAt: claim.expiresAt.toISOString() } : { state: 'free' as const },
+        calls: { count: callers.get(id)?.size ?? 0, needed: campaign.callsRequired },
+        suggestion: suggestion && !hidden ? toSuggestionView(suggestion) : null,
+        hidden: hidden && suggestion !== null,
+      },
+    ]
+  })
+}
+
+/** The caller's queue: their campaigns' suggested spectra that still need their call. */
+export async function listQueue(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery, now = new Date()): Promise<{ items: QueueItem[]; claimMinutes: number }> {
+  return { items: await queueItems(user, await queueIds(ctx, user, q, now), now), claimMinutes: CLAIM_MINUTES }
+}
+
+/** The item after `after` in the caller's queue (the first one without `after`), for working through it in order. */
+export async function nextInQueue(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery & { after?: number }, now = new Date()): Promise<{ item: QueueItem | null }> {
+  const ids = await queueIds(ctx, user, { ...q, limit: q.limit + 1 }, now, q.after)
+  const at = q.after === undefined ? -1 : ids.indexOf(q.after)
+  const next = ids.slice(at + 1).find((id) => id !== q.after)
+  if (next === undefined) return { item: null }
+  const [item] = await queueItems(user, [next], now)
+  return { item: item ?? null }
+}
+
+/** Refuses a claim on a spectrum the user cannot call on. */
+async function assertCallable(user: User, spectrum: Spectrum): Promise<void> {
+  if (spectrum.submittedBy === user.id) throw new HttpError(403, 'own_submission', 'You submitted this spectrum; someone else classifies it.')
+  if (!OPEN_FOR_CALLS.includes(spectrum.status)) throw new HttpError(409, 'not_open', `The spectrum is ${spectrum.status.replace('_', ' ')} and takes no calls.`)
+  if (await ReviewCall.count({ where: { spectrumId: spectrum.id, userId: user.id } })) throw new HttpError(409, 'already_called', 'You have recorded your call on this spectrum.')
+}
+
+/**
+ * Claims the item for CLAIM_MINUTES so no one else works it meanwhile. Claiming one's own claim again
+ * extends it; a lapsed claim of anyone can be taken over.
+ */
+export async function claimSpectrum(user: User, spectrumId: number, now = new Date()): Promise<ClaimView> {
+  const spectrum = await findVisibleSpectrum(user, spectrumId)
+  await assertCallable(user, spectrum)
+  const expiresAt = new Date(now.getTime() + CLAIM_MINUTES * 60_000)
+  // Each step is one conditional statement, so two people claiming at once cannot both win.
+  const [extended] = await ReviewClaim.update({ expiresAt }, { where: { spectrumId, userId: user.id, expiresAt: { [Op.gt]: now } } })
+  if (extended === 0) {
+    const [taken] = await ReviewClaim.update({ userId: user.id, claimedAt: now, expiresAt }, { where: { spectrumId, [Op.or]: [{ userId: user.id }, { expiresAt: { [Op.lte]: now } }] } })
+    if (taken === 0) {
+      try {
+        await ReviewClaim.create({ spectrumId, userId: user.id, claimedAt: now, expiresAt })
+      } catch (error) {
+        if (!(error instanceof UniqueConstraintError)) throw error
+      }
+    }
+  }
+  const claim = await ReviewClaim.findByPk(spectrumId)
+  if (!claim) throw new HttpError(409, 'claim_lost', 'The claim could not be placed; try again.')
+  const names = await namesOf([claim.userId])
+  if (claim.userId !== user.id) {
+    throw new HttpError(409, 'claimed', `${names.get(claim.userId) ?? 'Someone'} is working on this spectrum until ${claim.expiresAt.toISOString()}.`, {
+      by: { id: claim.userId, name: names.get(claim.userId) ?? '' },
+      expiresAt: claim.expiresAt.toISOString(),
+    })
+  }
+  return toClaimView(claim, user, names, now)
+}
+
+/** Gives the item back to the queue; releasing a claim one does not hold changes nothing. */
+export async function releaseClaim(user: User, spectrumId: number): Promise<void> {
+  await findVisibleSpectrum(user, spectrumId)
+  await ReviewClaim.destroy({ where: { spectrumId, userId: user.id } })
+}

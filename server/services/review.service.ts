@@ -1,0 +1,703 @@
+import { Op, UniqueConstraintError, type Transaction } from 'sequelize'
+import { classCodeOf, formatMK, parseMK, type MKValue } from '../../shared/mk'
+import type { SpectrumStatus } from '../../shared/status'
+import type { AppContext } from '../context'
+import { HttpError } from '../lib/http-error'
+import { Campaign, Classification, Dispute, ReviewCall, ReviewClaim, Spectrum, Suggestion, User, type Agreement, type CallKind, type ClassificationSource } from '../models'
+import { measurementsOf, type MeasurementSummary } from './measurements.service'
+import { findVisibleSpectrum } from './spectra.service'
+
+/** Statuses in which a spectrum takes calls. */
+export const OPEN_FOR_CALLS: readonly SpectrumStatus[] = ['suggested', 'under_review']
+
+const EPSILON = 1e-9
+
+const parseJson = <T>(text: string | null | undefined, fallback: T): T => {
+  if (!text) return fallback
+  try {
+    return JSON.parse(text) as T
+  } catch {
+    return fallback
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// MK input
+// ---------------------------------------------------------------------------------------------
+
+export interface ParsedCall {
+  /** Canonical MK text, e.g. "A1 V n". */
+  spectralType: string
+  letter: string
+  subtype: number
+  typeCode: number
+  luminosityClass: string
+  classCode: number
+  peculiarities: string[]
+  uncertain: boolean
+}
+
+const invalid = (fields: Record<string, string>) => new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields })
+
+/**
+ * Reads a call's type, class and peculiarity notes with shared/mk.ts. The call must sit on the MK
+ * grid: a letter with a subtype (so it has a type code) and a luminosity class.
+ */
+export function parseCallType(spectralType: string, luminosityClass: string, peculiarities = ''): ParsedCall {
+  const typeOnly = parseMK(spectralType)
+  if (!typeOnly.ok) throw invalid({ spectralType: `cannot be read: ${typeOnly.reason}` })
+  if (typeOnly.value.kind !== 'mk' || typeOnly.value.typeCode === undefined) {
+    throw invalid({ spectralType: 'must be an MK type with a subtype, e.g. B8 or K1.5' })
+  }
+  if (typeOnly.value.luminosityClass !== undefined) throw invalid({ spectralType: 'give the luminosity class in its own field' })
+  if (classCodeOf(luminosityClass) === undefined) throw invalid({ luminosityClass: 'is not a luminosity class (e.g. Ia, Iab, Ib, II, III, IV, V)' })
+  const full = parseMK(`${spectralType} ${luminosityClass} ${peculiarities}`.trim())
+  if (!full.ok) throw invalid({ [peculiarities ? 'peculiarities' : 'luminosityClass']: `cannot be read: ${full.reason}` })
+  const v = full.value
+  if (v.typeCode === undefined || v.classCode === undefined || v.luminosityClass === undefined) {
+    throw invalid({ [peculiarities ? 'peculiarities' : 'luminosityClass']: 'does not leave a type and a luminosity class' })
+  }
+  return fromValue(v)
+}
+
+function fromValue(v: MKValue): ParsedCall {
+  return {
+    spectralType: formatMK(v),
+    letter: v.letter,
+    subtype: v.subtype ?? 0,
+    typeCode: v.typeCode!,
+    luminosityClass: v.luminosityClass!,
+    classCode: v.classCode!,
+    peculiarities: v.peculiarities,
+    uncertain: v.uncertain.type || v.uncertain.class,
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Consensus
+// ---------------------------------------------------------------------------------------------
+
+export interface JudgedCall {
+  id: number
+  spectralType: string
+  typeCode: number
+  luminosityClass: string
+  classCode: number
+  acceptedSuggestion: boolean
+}
+
+export type Judgement =
+  | { outcome: 'agreed'; typeSpread: number; classSpread: number; agreement: Exclude<Agreement, 'settled'>; source: Exclude<ClassificationSource, 'settled'>; consensus: ParsedCall }
+  | { outcome: 'disputed'; typeSpread: number; classSpread: number }
+
+/**
+ * The median of values given in call order. With an even count the two middle values tie: the one
+ * equal to `preferred` (the suggestion's) wins, else the one that was called first.
+ */
+export function medianOf(values: number[], preferred?: number): number {
+  if (values.length === 0) throw new RangeError('no values')
+  const sorted = [...values].sort((a, b) => a - b)
+  const mid = sorted.length >> 1
+  if (sorted.length % 2 === 1) return sorted[mid]!
+  const lo = sorted[mid - 1]!
+  const hi = sorted[mid]!
+  if (Math.abs(lo - hi) < EPSILON) return lo
+  if (preferred !== undefined && (Math.abs(preferred - lo) < EPSILON || Math.abs(preferred - hi) < EPSILON)) return preferred
+  return values.find((v) => Math.abs(v - lo) < EPSILON || Math.abs(v - hi) < EPSILON)!
+}
+
+/**
+ * Judges the calls against the campaign's tolerance: they agree when every pair differs by at most
+ * `typeTolerance` subtypes and `classTolerance` classes. The consensus takes the median type code and
+ * the median class code, written as the earliest call that has that type (with its notes) and the
+ * class text of the earliest call that has that class.
+ */
+export function judgeCalls(calls: JudgedCall[], rules: { typeTolerance: number; classTolerance: number }, suggestion?: { typeCode: number; classCode: number } | null): Judgement {
+  if (calls.length === 0) throw new RangeError('no calls to judge')
+  const types = calls.map((c) => c.typeCode)
+  const classes = calls.map((c) => c.classCode)
+  const typeSpread = Math.max(...types) - Math.min(...types)
+  const classSpread = Math.max(...classes) - Math.min(...classes)
+  if (typeSpread > rules.typeTolerance + EPSILON || classSpread > rules.classTolerance + EPSILON) return { outcome: 'disputed', typeSpread, classSpread }
+  const typeCode = medianOf(types, suggestion?.typeCode)
+  const classCode = medianOf(classes, suggestion?.classCode)
+  const typeCall = calls.find((c) => Math.abs(c.typeCode - typeCode) < EPSILON)!
+  const classCall = calls.find((c) => Math.abs(c.classCode - classCode) < EPSILON)!
+  const both = calls.find((c) => Math.abs(c.typeCode - typeCode) < EPSILON && Math.abs(c.classCode - classCode) < EPSILON)
+  let consensus: ParsedCall
+  const parsed = parseMK((both ?? typeCall).spectralType)
+  if (!parsed.ok) throw new Error(`stored call ${typeCall.id} no longer parses: ${parsed.reason}`)
+  if (both) consensus = fromValue(parsed.value)
+  else {
+    const classText = parseMK(classCall.spectralType)
+    const v: MKValue = { ...parsed.value, luminosityClass: classCall.luminosityClass, classCode: classCall.classCode }
+    if (classText.ok) v.uncertain = { ...v.uncertain, class: classText.value.uncertain.class }
+    delete v.classRange
+    consensus = fromValue(v)
+  }
+  return {
+    outcome: 'agreed',
+    typeSpread,
+    classSpread,
+    agreement: typeSpread < EPSILON && classSpread < EPSILON ? 'exact' : 'within',
+    source: calls.every((c) => c.acceptedSuggestion) ? 'accepted-suggestion' : 'consensus',
+    consensus,
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Views
+// ---------------------------------------------------------------------------------------------
+
+export interface PersonRef {
+  id: number
+  name: string
+}
+
+export interface SuggestionView {
+  id: number
+  spectralType: string
+  letter: string
+  subtype: number
+  typeCode: number
+  luminosityClass: string
+  classCode: number
+  uncertaintySubtypes: number
+  uncertaintyClasses: number
+  libraryVersionId: number
+  pipelineVersion: string
+  bestStandardId: number | null
+  candidates: unknown[]
+  votes: unknown
+  flags: string[]
+  createdAt: string
+}
+
+export const suggestionFlags = (s: Suggestion | null): string[] => (s ? parseJson<unknown>(s.flags, []) : []) as string[]
+
+export function toSuggestionView(s: Suggestion): SuggestionView {
+  return {
+    id: s.id,
+    spectralType: s.spectralType,
+    letter: s.letter,
+    subtype: s.subtype,
+    typeCode: s.typeCode,
+    luminosityClass: s.luminosityClass,
+    classCode: s.classCode,
+    uncertaintySubtypes: s.uncertaintySubtypes,
+    uncertaintyClasses: s.uncertaintyClasses,
+    libraryVersionId: s.libraryVersionId,
+    pipelineVersion: s.pipelineVersion,
+    bestStandardId: s.bestStandardId,
+    candidates: parseJson<unknown[]>(s.candidates, []),
+    votes: parseJson<unknown>(s.votes, []),
+    flags: suggestionFlags(s),
+    createdAt: s.createdAt.toISOString(),
+  }
+}
+
+export interface CallView {
+  id: number
+  kind: CallKind
+  correctsCallId: number | null
+  by: PersonRef
+  spectralType: string
+  letter: string
+  subtype: number
+  typeCode: number
+  luminosityClass: string
+  classCode: number
+  peculiarities: string[]
+  notes: string
+  confidence: number
+  uncertain: boolean
+  acceptedSuggestion: boolean
+  suggestionId: number | null
+  suggestionShown: boolean
+  secondsSpent: number | null
+  createdAt: string
+}
+
+export function toCallView(c: ReviewCall, names: Map<number, string>): CallView {
+  return {
+    id: c.id,
+    kind: c.kind,
+    correctsCallId: c.correctsCallId,
+    by: { id: c.userId, name: names.get(c.userId) ?? '' },
+    spectralType: c.spectralType,
+    letter: c.letter,
+    subtype: c.subtype,
+    typeCode: c.typeCode,
+    luminosityClass: c.luminosityClass,
+    classCode: c.classCode,
+    peculiarities: parseJson<string[]>(c.peculiarities, []),
+    notes: c.notes,
+    confidence: c.confidence,
+    uncertain: c.uncertain,
+    acceptedSuggestion: c.acceptedSuggestion,
+    suggestionId: c.suggestionId,
+    suggestionShown: c.suggestionShown,
+    secondsSpent: c.secondsSpent,
+    createdAt: c.createdAt.toISOString(),
+  }
+}
+
+export interface FinalClassification {
+  id: number
+  spectrumId: number
+  source: ClassificationSource
+  spectralType: string
+  letter: string
+  subtype: number
+  typeCode: number
+  luminosityClass: string
+  classCode: number
+  peculiarities: string[]
+  decidedBy: PersonRef | null
+  decidedAt: string
+  nCalls: number
+  callIds: number[]
+  agreement: Agreement
+  typeSpread: number | null
+  classSpread: number | null
+  suggestionId: number | null
+  disputeId: number | null
+  note: string
+}
+
+export function toFinalClassification(c: Classification, names: Map<number, string>): FinalClassification {
+  return {
+    id: c.id,
+    spectrumId: c.spectrumId,
+    source: c.source,
+    spectralType: c.spectralType,
+    letter: c.letter,
+    subtype: c.subtype,
+    typeCode: c.typeCode,
+    luminosityClass: c.luminosityClass,
+    classCode: c.classCode,
+    peculiarities: parseJson<string[]>(c.peculiarities, []),
+    decidedBy: c.decidedBy === null ? null : { id: c.decidedBy, name: names.get(c.decidedBy) ?? '' },
+    decidedAt: c.createdAt.toISOString(),
+    nCalls: c.nCalls,
+    callIds: parseJson<number[]>(c.callIds, []),
+    agreement: c.agreement,
+    typeSpread: c.typeSpread,
+    classSpread: c.classSpread,
+    suggestionId: c.suggestionId,
+    disputeId: c.disputeId,
+    note: c.note,
+  }
+}
+
+/** Names of the given users, for views. */
+export async function namesOf(ids: Iterable<number | null>): Promise<Map<number, string>> {
+  const unique = [...new Set([...ids].filter((id): id is number => id !== null))]
+  if (unique.length === 0) return new Map()
+  const users = await User.findAll({ where: { id: { [Op.in]: unique } }, attributes: ['id', 'name'] })
+  return new Map(users.map((u) => [u.id, u.name]))
+}
+
+/**
+ * The decided classification of each spectrum (the latest row wins), keyed by spectrum id.
+ * Spectra without one are absent. The caller decides who may see which spectra.
+ */
+export async function finalClassificationsFor(spectrumIds: number[]): Promise<Map<number, FinalClassification>> {
+  const ids = [...new Set(spectrumIds)]
+  if (ids.length === 0) return new Map()
+  const rows = await Classification.findAll({ where: { spectrumId: { [Op.in]: ids } }, order: [['id', 'ASC']] })
+  const latest = new Map<number, Classification>()
+  for (const r of rows) latest.set(r.spectrumId, r)
+  const names = await namesOf([...latest.values()].map((r) => r.decidedBy))
+  return new Map([...latest].map(([id, r]) => [id, toFinalClassification(r, names)]))
+}
+
+/** The suggestion a classifier works from: the newest current one. */
+export async function currentSuggestion(spectrumId: number, transaction?: Transaction): Promise<Suggestion | null> {
+  return Suggestion.findOne({ where: { spectrumId, isCurrent: true }, order: [['id', 'DESC']], transaction })
+}
+
+/** Each person's standing call (their latest row; a correction replaces the call it corrects), in the order people first called. */
+export function standingCalls(rows: ReviewCall[]): ReviewCall[] {
+  const latest = new Map<number, ReviewCall>()
+  for (const r of [...rows].sort((a, b) => a.id - b.id)) latest.set(r.userId, r)
+  // A Map keeps first-insertion order, which is the order of each person's first call.
+  return [...latest.values()]
+}
+
+/** The suggestion read as a call, for a classifier who accepts it. */
+export function suggestionAsCall(s: Suggestion): ParsedCall {
+  const full = parseMK(s.spectralType)
+  if (full.ok && full.value.typeCode !== undefined && full.value.classCode !== undefined && full.value.luminosityClass !== undefined) return fromValue(full.value)
+  return parseCallType(`${s.letter}${s.subtype}`, s.luminosityClass)
+}
+
+/** Whether the suggestion and the others' calls are hidden from this user: blind review, still open, no call of theirs yet. */
+export function isBlindFor(campaign: Campaign, spectrum: Spectrum, hasCalled: boolean): boolean {
+  return campaign.blindReview && OPEN_FOR_CALLS.includes(spectrum.status) && !hasCalled
+}
+
+// ---------------------------------------------------------------------------------------------
+// Review view
+// ---------------------------------------------------------------------------------------------
+
+export interface ClaimView {
+  spectrumId: number
+  mine: boolean
+  by: PersonRef
+  claimedAt: string
+  expiresAt: string
+  live: boolean
+}
+
+export function toClaimView(c: ReviewClaim, user: User, names: Map<number, string>, now = new Date()): ClaimView {
+  return {
+    spectrumId: c.spectrumId,
+    mine: c.userId === user.id,
+    by: { id: c.userId, name: names.get(c.userId) ?? (c.userId === user.id ? user.name : '') },
+    claimedAt: c.claimedAt.toISOString(),
+    expiresAt: c.expiresAt.toISOString(),
+    live: c.expiresAt.getTime() > now.getTime(),
+  }
+}
+
+export interface CampaignRules {
+  id: number
+  code: string
+  name: string
+  callsRequired: number
+  blindReview: boolean
+  typeTolerance: number
+  classTolerance: number
+  regionMin: number
+  regionMax: number
+}
+
+const toRules = (c: Campaign): CampaignRules => ({
+  id: c.id,
+  code: c.code,
+  name: c.name,
+  callsRequired: c.callsRequired,
+  blindReview: c.blindReview,
+  typeTolerance: c.typeTolerance,
+  classTolerance: c.classTolerance,
+  regionMin: c.regionMin,
+  regionMax: c.regionMax,
+})
+
+export interface ReviewView {
+  spectrum: {
+    id: number
+    objectName: string
+    status: SpectrumStatus
+    statusReason: string | null
+    submittedBy: PersonRef
+    createdAt: string
+    obsDate: string | null
+    instrument: string
+    snr: number | null
+    wavelengthRange: [number, number]
+    dispersion: number
+    resolvingPower: number | null
+    vMag: number | null
+    notes: string
+  }
+  campaign: CampaignRules
+  measurement: MeasurementSummary | null
+  /** Null when there is none, or while blind review hides it (`hidden`). */
+  suggestion: SuggestionView | null
+  hidden: boolean
+  /** The claim on the spectrum, if any; another person's lapsed claim is left out. */
+  claim: ClaimView | null
+  /** With `othersHidden`, only the caller's own rows. */
+  calls: CallView[]
+  othersHidden: boolean
+  callsSoFar: number
+  callsRequired: number
+  myCall: CallView | null
+  canCall: { allowed: boolean; reason: string | null; code: string | null }
+  canCorrect: boolean
+  dispute: { id: number; openedAt: string; settled: boolean } | null
+  classification: FinalClassification | null
+}
+
+function callRefusal(user: User, spectrum: Spectrum, hasCalled: boolean): { code: string; reason: string } | null {
+  if (spectrum.submittedBy === user.id) return { code: 'own_submission', reason: 'You submitted this spectrum; someone else classifies it.' }
+  if (!OPEN_FOR_CALLS.includes(spectrum.status)) return { code: 'not_open', reason: `The spectrum is ${spectrum.status.replace('_', ' ')} and takes no calls.` }
+  if (hasCalled) return { code: 'already_called', reason: 'You have recorded your call on this spectrum.' }
+  return null
+}
+
+/** Everything the working screen needs, with blind review applied for this user. */
+export async function getReviewView(user: User, spectrumId: number, now = new Date()): Promise<ReviewView> {
+  const spectrum = await findVisibleSpectrum(user, spectrumId)
+  const [campaign, suggestion, rows, claim, measurements, dispute, classification] = await Promise.all([
+    Campaign.findByPk(spectrum.campaignId, { rejectOnEmpty: true }),
+    currentSuggestion(spectrum.id),
+    ReviewCall.findAll({ where: { spectrumId: spectrum.id }, order: [['id', 'ASC']] }),
+    ReviewClaim.findByPk(spectrum.id),
+    measurementsOf(spectrum.id),
+    Dispute.findOne({ where: { spectrumId: spectrum.id }, order: [['id', 'DESC']] }),
+    finalClassificationsFor([spectrum.id]).then((m) => m.get(spectrum.id) ?? null),
+  ])
+  const mine = rows.filter((r) => r.userId === user.id)
+  const hasCalled = mine.length > 0
+  const blind = isBlindFor(campaign, spectrum, hasCalled)
+  const visibleRows = blind ? mine : rows
+  const names = await namesOf([spectrum.submittedBy, ...visibleRows.map((r) => r.userId), claim?.userId ?? null])
+  const standing = standingCalls(rows)
+  const refusal = callRefusal(user, spectrum, hasCalled)
+  const settled = dispute ? (await Classification.count({ where: { disputeId: dispute.id } })) > 0 : false
+  const showClaim = claim && (claim.userId === user.id || claim.expiresAt > now)
+  return {
+    spectrum: {
+      id: spectrum.id,
+      objectName: spectrum.objectName,
+      status: spectrum.status,
+      statusReason: spectrum.statusReason,
+      submittedBy: { id: spectrum.submittedBy, name: names.get(spectrum.submittedBy) ?? '' },
+      createdAt: spectrum.createdAt.toISOString(),
+      obsDate: spectrum.obsDate ? spectrum.obsDate.toISOString() : null,
+      instrument: spectrum.instrument,
+      snr: spectrum.snr,
+      wavelengthRange: [spectrum.wlMin, spectrum.wlMax],
+      dispersion: spectrum.dispersion,
+      resolvingPower: spectrum.resolvingPower,
+      vMag: spectrum.vMag,
+      notes: spectrum.notes,
+    },
+    campaign: toRules(campaign),
+    measurement: measurements.current,
+    suggestion: suggestion && !blind ? toSuggestionView(suggestion) : null,
+    hidden: blind && suggestion !== null,
+    claim: showClaim ? toClaimView(claim, user, names, now) : null,
+    calls: visibleRows.map((r) => toCallView(r, names)),
+    othersHidden: blind,
+    callsSoFar: standing.length,
+    callsRequired: campaign.callsRequired,
+    myCall: hasCalled ? toCallView(mine[mine.length - 1]!, names) : null,
+    canCall: { allowed: refusal === null, reason: refusal?.reason ?? null, code: refusal?.code ?? null },
+    canCorrect: hasCalled && spectrum.status === 'under_review',
+    dispute: dispute ? { id: dispute.id, openedAt: dispute.createdAt.toISOString(), settled } : null,
+    classification,
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Recording a call
+// ---------------------------------------------------------------------------------------------
+
+export interface RecordCallInput {
+  spectralType?: string
+  luminosityClass?: string
+  /** MK peculiarity notes written after the class, e.g. "n", "e", "Si Sr". */
+  peculiarities?: string
+  notes?: string
+  confidence: number
+  uncertain?: boolean
+  acceptedSuggestion: boolean
+  /** Time on the item; from the caller's claim when not given. */
+  secondsSpent?: number
+  /** Set to record a correction of the caller's standing call (only while the spectrum waits for calls). */
+  correctsCallId?: number
+}
+
+export interface RecordCallResult {
+  call: CallView
+  spectrum: { id: number; status: SpectrumStatus }
+  outcome: 'waiting' | 'agreed' | 'disputed'
+  callsSoFar: number
+  callsRequired: number
+  classification: FinalClassification | null
+  dispute: { id: number } | null
+}
+
+const conflict = (code: string, message: string) => new HttpError(409, code, message)
+
+/**
+ * Records one classifier's call and, once the campaign's required number of people have called,
+ * decides the spectrum: agreed with the consensus, or disputed. Rows are only ever added.
+ */
+export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 'config' | 'logger'>, user: User, spectrumId: number, input: RecordCallInput, now = new Date()): Promise<RecordCallResult> {
+  await findVisibleSpectrum(user, spectrumId)
+  const result = await ctx.sequelize.transaction(async (transaction) => {
+    // The row lock serialises calls on one spectrum, so the N-th call is judged exactly once.
+    const spectrum = await Spectrum.findByPk(spectrumId, { transaction, lock: transaction.LOCK.UPDATE, rejectOnEmpty: true })
+    const campaign = await Campaign.findByPk(spectrum.campaignId, { transaction, rejectOnEmpty: true })
+    const rows = await ReviewCall.findAll({ where: { spectrumId }, order: [['id', 'ASC']], transaction })
+    const mine = rows.filter((r) => r.userId === user.id)
+    const correcting = input.correctsCallId !== undefined
+    if (spectrum.submittedBy === user.id) throw new HttpError(403, 'own_submission', 'You submitted this spectrum; someone else classifies it.')
+    if (!OPEN_FOR_CALLS.includes(spectrum.status)) throw conflict('not_open', `The spectrum is ${spectrum.status.replace('_', ' ')} and takes no calls.`)
+    if (correcting) {
+      const standing = mine[mine.length - 1]
+      if (!standing) throw conflict('no_call', 'You have no call on this spectrum to correct.')
+      if (standing.id !== input.correctsCallId) throw conflict('not_latest', `Correct your standing call (#${standing.id}), not an earlier one.`)
+    } else if (mine.length > 0) {
+      throw conflict('already_called', 'You have recorded your call on this spectrum; record a correction instead.')
+    }
+
+    const suggestion = await currentSuggestion(spectrumId, transaction)
+    const shown = suggestion !== null && !isBlindFor(campaign, spectrum, mine.length > 0)
+    let parsed: ParsedCall
+    if (input.acceptedSuggestion) {
+      if (!suggestion) throw new HttpError(422, 'no_suggestion', 'There is no suggestion to accept.')
+      if (!shown) throw new HttpError(422, 'suggestion_not_shown', 'Blind review: record your own call before the suggestion is shown.')
+      parsed = input.spectralType && input.luminosityClass ? parseCallType(input.spectralType, input.luminosityClass, input.peculiarities ?? '') : suggestionAsCall(suggestion)
+      if (Math.abs(parsed.typeCode - suggestion.typeCode) > EPSILON || Math.abs(parsed.classCode - suggestion.classCode) > EPSILON) {
+        throw new HttpError(422, 'not_the_suggestion', `The suggestion is ${suggestion.spectralType}; record your own call if you see something else.`, {
+          fields: { spectralType: `differs from the suggestion ${suggestion.spectralType}` },
+        })
+      }
+    } else {
+      if (!input.spectralType || !input.luminosityClass) throw invalid({ spectralType: 'give a spectral type and a luminosity class, or accept the suggestion' })
+      parsed = parseCallType(input.spectralType, input.luminosityClass, input.peculiarities ?? '')
+    }
+
+    const claim = await ReviewClaim.findOne({ where: { spectrumId, userId: user.id }, transaction })
+    const seconds = input.secondsSpent ?? (claim ? Math.max(0, Math.round((now.getTime() - claim.claimedAt.getTime()) / 1000)) : null)
+    let call: ReviewCall
+    try {
+      call = await ReviewCall.create(
+        {
+          spectrumId,
+          userId: user.id,
+          kind: correcting ? 'correction' : 'call',
+          firstCall: correcting ? null : 1,
+          correctsCallId: input.correctsCallId ?? null,
+          spectralType: parsed.spectralType,
+          letter: parsed.letter,
+          subtype: parsed.subtype,
+          typeCode: parsed.typeCode,
+          luminosityClass: parsed.luminosityClass,
+          classCode: parsed.classCode,
+          peculiarities: JSON.stringify(parsed.peculiarities),
+          notes: input.notes ?? '',
+          confidence: input.confidence,
+          uncertain: (input.uncertain ?? false) || parsed.uncertain,
+          acceptedSuggestion: input.acceptedSuggestion,
+          suggestionId: suggestion?.id ?? null,
+          suggestionShown: shown,
+          secondsSpent: seconds,
+          createdAt: now,
+        },
+        { transaction },
+      )
+    } catch (error) {
+      if (error instanceof UniqueConstraintError) throw conflict('already_called', 'You have recorded your call on this spectrum.')
+      throw error
+    }
+    if (claim) await ReviewClaim.destroy({ where: { spectrumId, userId: user.id }, transaction })
+
+    const standing = standingCalls([...rows, call])
+    let outcome: RecordCallResult['outcome'] = 'waiting'
+    let classification: Classification | null = null
+    let dispute: Dispute | null = null
+    if (standing.length < campaign.callsRequired) {
+      if (spectrum.status !== 'under_review') await spectrum.update({ status: 'under_review', statusReason: null }, { transaction })
+    } else {
+      const judged = judgeCalls(standing, campaign, suggestion)
+      if (judged.outcome === 'agreed') {
+        outcome = 'agreed'
+        const c = judged.consensus
+        classification = await Classification.create(
+          {
+            spectrumId,
+            source: judged.source,
+            spectralType: c.spectralType,
+            letter: c.letter,
+            subtype: c.subtype,
+            typeCode: c.typeCode,
+            luminosityClass: c.luminosityClass,
+            classCode: c.classCode,
+            peculiarities: JSON.stringify(c.peculiarities),
+            decidedBy: user.id,
+            nCalls: standing.length,
+            callIds: JSON.stringify(standing.map((s) => s.id)),
+            agreement: judged.agreement,
+            typeSpread: judged.typeSpread,
+            classSpread: judged.classSpread,
+            suggestionId: suggestion?.id ?? null,
+            disputeId: null,
+            note: '',
+            createdAt: now,
+          },
+          { transaction },
+        )
+        await spectrum.update({ status: 'agreed', statusReason: null }, { transaction })
+      } else {
+        outcome = 'disputed'
+        dispute = await Dispute.create(
+          {
+            spectrumId,
+            campaignId: campaign.id,
+            callIds: JSON.stringify(standing.map((s) => s.id)),
+            typeSpread: judged.typeSpread,
+            classSpread: judged.classSpread,
+            typeTolerance: campaign.typeTolerance,
+            classTolerance: campaign.classTolerance,
+            createdAt: now,
+          },
+          { transaction },
+        )
+        await spectrum.update(
+          { status: 'disputed', statusReason: `The calls differ by ${judged.typeSpread} subtypes and ${judged.classSpread} classes; a lead settles it.` },
+          { transaction },
+        )
+      }
+    }
+    return { spectrum, call, outcome, classification, dispute, callsSoFar: standing.length, callsRequired: campaign.callsRequired }
+  })
+
+  const names = await namesOf([user.id])
+  const final = result.classification ? toFinalClassification(result.classification, names) : null
+  if (final) await notifySubmitter(ctx, result.spectrum, final)
+  return {
+    call: toCallView(result.call, names),
+    spectrum: { id: result.spectrum.id, status: result.spectrum.status },
+    outcome: result.outcome,
+    callsSoFar: result.callsSoFar,
+    callsRequired: result.callsRequired,
+    classification: final,
+    dispute: result.dispute ? { id: result.dispute.id } : null,
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Mail
+// ---------------------------------------------------------------------------------------------
+
+/** Tells the observer who submitted the spectrum how it was classified. A failed mail never undoes the decision. */
+export async function notifySubmitter(ctx: Pick<AppContext, 'mailer' | 'config' | 'logger'>, spectrum: Spectrum, final: FinalClassification): Promise<void> {
+  const submitter = await User.findByPk(spectrum.submittedBy, { attributes: ['id', 'email', 'name', 'active'] })
+  if (!submitter || !submitter.active) return
+  const link = `${ctx.config.publicUrl.replace(/\/$/, '')}/spectra/${spectrum.id}`
+  const how =
+    final.source === 'settled'
+      ? `A lead settled it after the classifiers disagreed${final.note ? `: ${final.note}` : '.'}`
+      : final.nCalls === 1
+        ? final.source === 'accepted-suggestion'
+          ? 'A classifier confirmed the suggested classification.'
+          : 'A classifier recorded it.'
+        : `${final.nCalls} classifiers agreed on it${final.source === 'accepted-suggestion' ? ', confirming the suggested classification' : ''}.`
+  try {
+    await ctx.mailer.send({
+      to: submitter.email,
+      subject: `${spectrum.objectName} is classified ${final.spectralType}`,
+      text: [
+        `Hello ${submitter.name},`,
+        '',
+        `Your spectrum of ${spectrum.objectName} (#${spectrum.id}, ${spectrum.fileName}) is ${final.source === 'settled' ? 'settled' : 'agreed'}.`,
+        '',
+        `Spectral type and luminosity class: ${final.spectralType}`,
+        how,
+        '',
+        `See it here: ${link}`,
+        '',
+        '— Lineweight',
+      ].join('\n'),
+    })
+  } catch (error) {
+    ctx.logger.warn({ err: error, spectrumId: spectrum.id }, 'could not send the classification mail')
+  }
+}
