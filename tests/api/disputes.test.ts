@@ -1,0 +1,121 @@
+import { randomBytes } from 'node:crypto'
+import { Op } from 'sequelize'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { Campaign, CampaignMember, Classification, LibraryVersion, MailMessage, Measurement, Spectrum, Suggestion, type User } from '../../server/models'
+import { finalClassificationsFor } from '../../server/services/review.service'
+import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
+
+type Client = Awaited<ReturnType<typeof signedInAgent>>
+interface Person {
+  user: User
+  client: Client
+}
+let t: TestContext
+let library: LibraryVersion
+let observer: Person
+let alice: Person
+let bob: Person
+let lead: Person
+
+async function person(role: 'observer' | 'classifier' | 'lead', name: string): Promise<Person> {
+  const { user, password } = await makeUser(role, { name })
+  return { user, client: await signedInAgent(t.app, user.email, password) }
+}
+const send = (c: Client, method: 'post', path: string, body: object = {}) => c.agent[method](path).set('x-csrf-token', c.csrf).send(body)
+
+/** A suggested spectrum (B8 III) that Alice and Bob called three subtypes apart, so it is disputed. */
+async function disputedSpectrum(objectName: string) {
+  const campaign = await Campaign.create({ code: `D-${randomBytes(4).toString('hex')}`, name: 'Disputed fields', description: '', callsRequired: 2, typeTolerance: 1, classTolerance: 1 })
+  for (const p of [observer, alice, bob]) await CampaignMember.create({ campaignId: campaign.id, userId: p.user.id })
+  const spectrum = await Spectrum.create({
+    campaignId: campaign.id, submittedBy: observer.user.id, batchId: null, status: 'suggested', statusReason: null, objectName,
+    raDeg: null, decDeg: null, obsDate: null, exposureS: null, instrument: '', resolutionFwhm: null, resolvingPower: null, vMag: null,
+    parallaxMas: null, parallaxErrorMas: null, ebv: null, notes: '', fileName: 'field.txt', fileSha256: randomBytes(32).toString('hex'),
+    fileSize: 100, format: 'text', hdu: null, pixels: 2000, wlMin: 3800, wlMax: 5200, dispersion: 0.7, snr: 40, vacuumConverted: false, readInfo: '{}',
+  })
+  const empty = Buffer.alloc(0)
+  const m = await Measurement.create({
+    spectrumId: spectrum.id, pipelineVersion: 'test', isCurrent: true, snr: 40, rv: null, rvError: null, pseudoContinuum: false, warnings: '[]', ratios: '[]',
+    gridStart: 3800, gridStep: 1e-4, gridLength: 0, flux: empty, continuum: empty, rectified: empty, mask: empty, seconds: 0,
+  })
+  await Suggestion.create({
+    spectrumId: spectrum.id, measurementId: m.id, libraryVersionId: library.id, pipelineVersion: 'test', isCurrent: true, spectralType: 'B8 III', letter: 'B', subtype: 8,
+    typeCode: 18, luminosityClass: 'III', classCode: 4, uncertaintySubtypes: 1, uncertaintyClasses: 0.5, bestStandardId: null, candidates: '[]', votes: '[]', flags: '[]', probabilities: '[]',
+  })
+  await send(alice.client, 'post', `/api/spectra/${spectrum.id}/calls`, { spectralType: 'B8', luminosityClass: 'III', confidence: 2 }).expect(201)
+  const res = await send(bob.client, 'post', `/api/spectra/${spectrum.id}/calls`, { spectralType: 'A1', luminosityClass: 'III', confidence: 1, notes: 'Ca II K strong' }).expect(201)
+  expect(res.body.outcome).toBe('disputed')
+  return { spectrum, disputeId: res.body.dispute.id as number }
+}
+
+beforeAll(async () => {
+  t = await createTestContext()
+  library = await LibraryVersion.create({ name: `dispute-test-${randomBytes(4).toString('hex')}`, description: 'for dispute tests', publishedAt: null, publishedBy: null })
+  observer = await person('observer', 'Olive Observer')
+  alice = await person('classifier', 'Alice Classifier')
+  bob = await person('classifier', 'Bob Classifier')
+  lead = await person('lead', 'Lena Lead')
+})
+afterAll(async () => {
+  await t.close()
+  await closeDatabase()
+})
+
+describe('GET /api/disputes', () => {
+  it('shows an open dispute with the calls side by side', async () => {
+    const { spectrum, disputeId } = await disputedSpectrum('Moving group star 3')
+    const res = await lead.client.agent.get('/api/disputes?state=open').expect(200)
+    const d = res.body.disputes.find((x: { id: number }) => x.id === disputeId)
+    expect(d).toMatchObject({ state: 'open', spectrum: { id: spectrum.id, objectName: 'Moving group star 3', status: 'disputed' }, typeSpread: 3, classSpread: 0, typeTolerance: 1, settlement: null })
+    expect(d.calls.map((c: { by: { name: string }; spectralType: string }) => [c.by.name, c.spectralType])).toEqual([
+      ['Alice Classifier', 'B8 III'],
+      ['Bob Classifier', 'A1 III'],
+    ])
+    expect(d.suggestion.spectralType).toBe('B8 III')
+    const settled = await lead.client.agent.get('/api/disputes?state=settled').expect(200)
+    expect(settled.body.disputes.map((x: { id: number }) => x.id)).not.toContain(disputeId)
+  })
+
+  it('is for leads only', async () => {
+    await alice.client.agent.get('/api/disputes').expect(403)
+    await observer.client.agent.get('/api/disputes').expect(403)
+  })
+})
+
+describe('POST /api/disputes/:id/settle', () => {
+  it('settles with the lead’s final call and note, mails the observer, and cannot be settled twice', async () => {
+    const { spectrum, disputeId } = await disputedSpectrum('Moving group star 9')
+    const noNote = await send(lead.client, 'post', `/api/disputes/${disputeId}/settle`, { spectralType: 'B9', luminosityClass: 'III' }).expect(422)
+    expect(noNote.body.error.details.fields.note).toBeDefined()
+    await send(alice.client, 'post', `/api/disputes/${disputeId}/settle`, { spectralType: 'B9', luminosityClass: 'III', note: 'mine' }).expect(403)
+    const badType = await send(lead.client, 'post', `/api/disputes/${disputeId}/settle`, { spectralType: 'B9', luminosityClass: 'X', note: 'typo' }).expect(422)
+    expect(badType.body.error.details.fields.luminosityClass).toBeDefined()
+    expect((await Spectrum.findByPk(spectrum.id))!.status).toBe('disputed')
+
+    const res = await send(lead.client, 'post', `/api/disputes/${disputeId}/settle`, { spectralType: 'B9.5', luminosityClass: 'III', peculiarities: 'n', note: 'He I 4471 and Mg II 4481 about equal; broad lines' }).expect(200)
+    expect(res.body.dispute).toMatchObject({ state: 'settled', spectrum: { status: 'settled' } })
+    expect(res.body.dispute.settlement).toMatchObject({ source: 'settled', spectralType: 'B9.5 III n', typeCode: 19.5, classCode: 4, agreement: 'settled', nCalls: 2, decidedBy: { name: 'Lena Lead' }, note: 'He I 4471 and Mg II 4481 about equal; broad lines', disputeId })
+    expect((await Spectrum.findByPk(spectrum.id))!.status).toBe('settled')
+    expect((await finalClassificationsFor([spectrum.id])).get(spectrum.id)).toMatchObject({ source: 'settled', spectralType: 'B9.5 III n' })
+
+    const mail = await MailMessage.findOne({ where: { toAddresses: { [Op.like]: `%${observer.user.email}%` }, subject: 'Moving group star 9 is classified B9.5 III n' } })
+    expect(mail).not.toBeNull()
+    expect(mail!.text).toContain('A lead settled it')
+    expect(mail!.text).toContain(`${t.ctx.config.publicUrl}/spectra/${spectrum.id}`)
+
+    const again = await send(lead.client, 'post', `/api/disputes/${disputeId}/settle`, { spectralType: 'A0', luminosityClass: 'V', note: 'second thoughts' }).expect(409)
+    expect(again.body.error.code).toBe('already_settled')
+    expect(await Classification.count({ where: { spectrumId: spectrum.id } })).toBe(1)
+
+    const listed = await lead.client.agent.get('/api/disputes?state=settled').expect(200)
+    expect(listed.body.disputes.map((x: { id: number }) => x.id)).toContain(disputeId)
+
+    const history = await alice.client.agent.get(`/api/spectra/${spectrum.id}/history`).expect(200)
+    expect(history.body.events.map((e: { kind: string }) => e.kind)).toEqual(['upload', 'measurement', 'suggestion', 'call', 'call', 'dispute', 'settled'])
+    expect(history.body.events.at(-1)).toMatchObject({ who: { name: 'Lena Lead' } })
+  })
+
+  it('answers 404 for a dispute that does not exist', async () => {
+    await send(lead.client, 'post', '/api/disputes/999999999/settle', { spectralType: 'A0', luminosityClass: 'V', note: 'none' }).expect(404)
+  })
+})
