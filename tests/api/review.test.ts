@@ -445,6 +445,32 @@ describe('POST /api/spectra/:id/calls', () => {
   })
 })
 
+describe('calls and claims at the same moment', () => {
+  it('judges the spectrum exactly once when the last two calls arrive together', async () => {
+    const campaign = await makeCampaign({ callsRequired: 2 }, [observer, alice, bob, carol])
+    const { spectrum } = await suggestedSpectrum(campaign, observer)
+    const results = await Promise.all([
+      call(alice.client, spectrum.id, { spectralType: 'B8', luminosityClass: 'III' }),
+      call(bob.client, spectrum.id, { spectralType: 'B8', luminosityClass: 'III' }),
+      call(carol.client, spectrum.id, { spectralType: 'B8', luminosityClass: 'III' }),
+    ])
+    const statuses = results.map((r) => r.status).sort()
+    expect(statuses).toEqual([201, 201, 409])
+    expect(results.map((r) => r.body.outcome).filter((o) => o === 'agreed')).toHaveLength(1)
+    expect(await Classification.count({ where: { spectrumId: spectrum.id } })).toBe(1)
+    expect(await ReviewCall.count({ where: { spectrumId: spectrum.id } })).toBe(2)
+  })
+
+  it('gives a contested item to exactly one of two people claiming at once', async () => {
+    const campaign = await makeCampaign({ callsRequired: 1 }, [observer, alice, bob])
+    const { spectrum } = await suggestedSpectrum(campaign, observer)
+    const results = await Promise.all([send(alice.client, 'post', `/api/queue/${spectrum.id}/claim`), send(bob.client, 'post', `/api/queue/${spectrum.id}/claim`)])
+    expect(results.map((r) => r.status).sort()).toEqual([200, 409])
+    const winner = results.find((r) => r.status === 200)!.body.claim.by.id
+    expect((await ReviewClaim.findByPk(spectrum.id))!.userId).toBe(winner)
+  })
+})
+
 describe('calls are never changed or removed', () => {
   it('has no route that updates or deletes a call, and the rows stay as written', async () => {
     const campaign = await makeCampaign({ callsRequired: 2 }, [observer, alice])
