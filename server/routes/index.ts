@@ -1,4 +1,5 @@
 import type { AppContext } from '../context'
+import { auditRoutes } from './audit.routes'
 import { authRoutes } from './auth.routes'
 import { campaignRoutes } from './campaigns.routes'
 import { healthRoutes } from './health.routes'
@@ -11,5 +12,5 @@ import { userRoutes } from './users.routes'
 
 /** Every API route in one table: the app mounts it and the role-matrix test walks it. */
 export function apiRoutes(ctx: AppContext): RouteDef[] {
-  return [...healthRoutes(ctx), ...authRoutes(ctx), ...userRoutes(ctx), ...outboxRoutes(), ...campaignRoutes(ctx), ...spectraRoutes(ctx), ...reviewRoutes(ctx), ...standardsRoutes(ctx)]
+  return [...healthRoutes(ctx), ...authRoutes(ctx), ...userRoutes(ctx), ...outboxRoutes(), ...campaignRoutes(ctx), ...spectraRoutes(ctx), ...reviewRoutes(ctx), ...standardsRoutes(ctx), ...auditRoutes()]
 }
