@@ -1,0 +1,314 @@
+import type { SpectrumStatus } from '@shared/status'
+import { ApiError, NETWORK_ERROR, NETWORK_MESSAGE, currentCsrfToken, http, setCsrfToken, type ApiErrorDetails } from './http'
+import { decodeSeries, parseSeriesLayout, type DecodedSeries } from '@/lib/series'
+
+/** One row of GET /api/spectra (server: SpectrumListItem). */
+export interface SpectrumListItem {
+  id: number
+  objectName: string
+  status: SpectrumStatus
+  statusReason: string | null
+  campaign: { id: number; code: string; name: string }
+  submittedBy: { id: number; name: string }
+  fileName: string
+  obsDate: string | null
+  createdAt: string
+  snr: number | null
+  pixels: number
+  wavelengthRange: [number, number]
+  dispersion: number
+  raDeg: number | null
+  decDeg: number | null
+  /** The decided classification, once there is one, e.g. "A0 V". */
+  classification?: string | { spectralType?: string; luminosityClass?: string; text?: string } | null
+}
+
+export type HeaderValue = string | number | boolean | null
+
+/** What the reader learned from the file (server: ReadMeta). */
+export interface ReadInfo {
+  format: string
+  hdu?: number
+  hdus?: { index: number; name?: string; kind?: string; pixels?: number }[]
+  vacuumConverted: boolean
+  vacuumSource: string
+  wavelengthUnit: string
+  fluxUnit?: string
+  header: Record<string, HeaderValue>
+  pixels: number
+  maskedPixels: number
+  coverage: number
+  reversed: boolean
+  notes: string[]
+}
+
+export interface SpectrumDetail extends SpectrumListItem {
+  instrument: string
+  exposureS: number | null
+  resolutionFwhm: number | null
+  resolvingPower: number | null
+  vMag: number | null
+  parallaxMas: number | null
+  parallaxErrorMas: number | null
+  ebv: number | null
+  notes: string
+  format: string
+  fileSize: number
+  fileSha256: string
+  vacuumConverted: boolean
+  read: ReadInfo
+  canEdit: boolean
+}
+
+/** One classification line's measurement; unmeasured lines carry a reason and nulls, never zeros. */
+export interface LineMeasurement {
+  id: string
+  name: string
+  wavelength: number
+  family: string
+  measured: boolean
+  reason: string | null
+  ew: number | null
+  ewError: number | null
+  depth: number | null
+  fwhm: number | null
+  centroid: number | null
+  snr: number | null
+  gaussianFwhm: number | null
+  lorentzianFwhm: number | null
+  lorentzianError: number | null
+}
+
+export interface MeasurementSummary {
+  id: number
+  pipelineVersion: string
+  isCurrent: boolean
+  snr: number | null
+  rv: number | null
+  rvError: number | null
+  pseudoContinuum: boolean
+  warnings: string[]
+  ratios: unknown[]
+  seconds: number
+  createdAt: string
+  lines: LineMeasurement[]
+}
+
+export interface SpectrumMeasurements {
+  current: MeasurementSummary | null
+  history: Omit<MeasurementSummary, 'lines'>[]
+}
+
+export interface SpectrumPage {
+  spectrum: SpectrumDetail
+  measurements: SpectrumMeasurements
+}
+
+export type SpectrumSortField = 'createdAt' | 'objectName' | 'snr' | 'status' | 'obsDate' | 'id'
+export type SpectrumSort = SpectrumSortField | `-${SpectrumSortField}`
+
+export interface SpectrumListQuery {
+  page: number
+  pageSize: number
+  sort?: SpectrumSort
+  status?: SpectrumStatus
+  campaign?: number
+  q?: string
+  from?: string
+  to?: string
+  snrMin?: number
+  snrMax?: number
+}
+
+export interface SpectrumList {
+  items: SpectrumListItem[]
+  total: number
+  page: number
+  pageSize: number
+}
+
+/** The query string values for a list request: empty filters are left out. */
+export function listQueryParams(query: SpectrumListQuery): Record<string, string | number> {
+  const out: Record<string, string | number> = { page: query.page, pageSize: query.pageSize }
+  if (query.sort) out.sort = query.sort
+  if (query.status) out.status = query.status
+  if (query.campaign !== undefined) out.campaign = query.campaign
+  const q = query.q?.trim()
+  if (q) out.q = q
+  if (query.from) out.from = query.from
+  if (query.to) out.to = query.to
+  if (query.snrMin !== undefined && Number.isFinite(query.snrMin)) out.snrMin = query.snrMin
+  if (query.snrMax !== undefined && Number.isFinite(query.snrMax)) out.snrMax = query.snrMax
+  return out
+}
+
+export const listSpectra = (query: SpectrumListQuery, signal?: AbortSignal) =>
+  http.get<SpectrumList>('/spectra', { query: listQueryParams(query), ...(signal ? { signal } : {}) })
+
+export const getSpectrum = (id: number) => http.get<SpectrumPage>(`/spectra/${id}`)
+
+/** Metadata as the forms send it: text as typed, numbers as numbers or empty to clear. */
+export interface SpectrumMetadataInput {
+  objectName?: string
+  ra?: string
+  dec?: string
+  obsDate?: string
+  instrument?: string
+  resolutionFwhm?: number | ''
+  resolvingPower?: number | ''
+  vMag?: number | ''
+  parallaxMas?: number | ''
+  parallaxErrorMas?: number | ''
+  ebv?: number | ''
+  notes?: string
+}
+
+export const updateSpectrum = async (id: number, changes: SpectrumMetadataInput): Promise<SpectrumDetail> =>
+  (await http.patch<{ spectrum: SpectrumDetail }>(`/spectra/${id}`, changes)).spectrum
+
+export const processSpectrumAgain = (id: number) => http.post<{ message: string }>(`/spectra/${id}/process`)
+
+export interface SeriesRange {
+  from?: number
+  to?: number
+  maxPoints?: number
+}
+
+async function errorOf(response: Response): Promise<ApiError> {
+  try {
+    const body = (await response.json()) as { error?: { code?: string; message?: string; details?: ApiErrorDetails | null } }
+    if (body.error?.code) return new ApiError(response.status, body.error.code, body.error.message ?? response.statusText, body.error.details ?? null)
+  } catch {
+    // not JSON
+  }
+  return new ApiError(response.status, `http_${response.status}`, response.statusText || `The server answered ${response.status}.`)
+}
+
+async function getSeries(path: string, range: SeriesRange, signal?: AbortSignal): Promise<DecodedSeries> {
+  const params = new URLSearchParams()
+  if (range.from !== undefined) params.set('from', range.from.toFixed(3))
+  if (range.to !== undefined) params.set('to', range.to.toFixed(3))
+  params.set('maxPoints', String(Math.round(range.maxPoints ?? 4000)))
+  let response: Response
+  try {
+    response = await fetch(`/api${path}?${params}`, { credentials: 'same-origin', headers: { accept: 'application/octet-stream' }, ...(signal ? { signal } : {}) })
+  } catch (cause) {
+    if ((cause as Error)?.name === 'AbortError') throw cause
+    throw new ApiError(0, NETWORK_ERROR, NETWORK_MESSAGE)
+  }
+  if (!response.ok) throw await errorOf(response)
+  const layout = parseSeriesLayout(response.headers.get('x-series-layout'))
+  return decodeSeries(await response.arrayBuffer(), layout)
+}
+
+/** The observed spectrum (wavelength, flux[, error]) between from and to, at most maxPoints points. */
+export const getSpectrumData = (id: number, range: SeriesRange = {}, signal?: AbortSignal) => getSeries(`/spectra/${id}/data`, range, signal)
+
+/** The prepared spectrum on the library grid: wavelength, flux, continuum, rectified. */
+export const getPreparedData = (id: number, range: SeriesRange = {}, signal?: AbortSignal) => getSeries(`/spectra/${id}/prepared`, range, signal)
+
+/** The server's answer for one uploaded file (zip archives give one per entry). */
+export type FileResult =
+  | { file: string; outcome: 'accepted'; spectrumId: number; pixels: number; wavelengthRange: [number, number]; dispersion: number; snr: number | null; objectName: string; notes: string[] }
+  | { file: string; outcome: 'duplicate'; spectrumId: number | null; message: string }
+  | { file: string; outcome: 'refused'; code: string; message: string }
+
+export interface SubmitReply {
+  results: FileResult[]
+  accepted: number
+  refused: number
+}
+
+/** Batch metadata, as the multipart fields of POST /api/spectra (server: submitBody). */
+export interface SubmitFields {
+  campaignId: number
+  batchId: string
+  objectName?: string
+  ra?: string
+  dec?: string
+  obsDate?: string
+  instrument?: string
+  resolutionFwhm?: number
+  resolvingPower?: number
+  vMag?: number
+  parallaxMas?: number
+  parallaxErrorMas?: number
+  ebv?: number
+  wavelengthMedium: 'file' | 'air' | 'vacuum'
+  hdu?: number
+  notes?: string
+}
+
+/** The multipart body for one file: the batch fields (empty ones left out) and the file. */
+export function submitFormData(fields: SubmitFields, file: Blob, name: string): FormData {
+  const form = new FormData()
+  for (const [key, value] of Object.entries(fields)) {
+    if (value === undefined || value === null || value === '') continue
+    form.append(key, String(value))
+  }
+  form.append('files', file, name)
+  return form
+}
+
+export interface UploadHandle {
+  promise: Promise<SubmitReply>
+  abort: () => void
+}
+
+/**
+ * Sends one file with XMLHttpRequest, so its progress can be drawn (fetch cannot report upload progress).
+ * Resolves with the per-file results (also on a 422 that carries them); rejects with an ApiError otherwise.
+ */
+export function uploadSpectrumFile(fields: SubmitFields, file: Blob, name: string, onProgress: (fraction: number) => void): UploadHandle {
+  let xhr: XMLHttpRequest | null = null
+  let aborted = false
+  const send = (token: string) =>
+    new Promise<{ status: number; body: unknown }>((resolve, reject) => {
+      const req = new XMLHttpRequest()
+      xhr = req
+      req.open('POST', '/api/spectra')
+      req.withCredentials = true
+      req.responseType = 'text'
+      req.setRequestHeader('accept', 'application/json')
+      req.setRequestHeader('x-csrf-token', token)
+      req.upload.onprogress = (e) => {
+        if (e.lengthComputable && e.total > 0) onProgress(e.loaded / e.total)
+      }
+      req.onload = () => {
+        let body: unknown = null
+        try {
+          body = req.responseText ? JSON.parse(req.responseText) : null
+        } catch {
+          // a proxy page
+        }
+        resolve({ status: req.status, body })
+      }
+      req.onerror = () => reject(new ApiError(0, NETWORK_ERROR, NETWORK_MESSAGE))
+      req.onabort = () => reject(new ApiError(0, 'aborted', 'The upload was stopped.'))
+      req.send(submitFormData(fields, file, name))
+    })
+
+  const promise = (async (): Promise<SubmitReply> => {
+    let reply = await send(await currentCsrfToken())
+    const code = (reply.body as { error?: { code?: string } } | null)?.error?.code
+    if (reply.status === 403 && code === 'csrf_failed' && !aborted) {
+      setCsrfToken(null)
+      reply = await send(await currentCsrfToken())
+    }
+    const body = reply.body as Partial<SubmitReply> & { error?: { code?: string; message?: string; details?: ApiErrorDetails | null } }
+    if (reply.status >= 200 && reply.status < 300 && Array.isArray(body?.results)) return body as SubmitReply
+    if (reply.status === 413) {
+      throw new ApiError(413, 'file_too_large', body?.error?.message ?? 'This file is larger than the server accepts.')
+    }
+    if (body?.error?.code) throw new ApiError(reply.status, body.error.code, body.error.message ?? `The server answered ${reply.status}.`, body.error.details ?? null)
+    throw new ApiError(reply.status, `http_${reply.status}`, `The server answered ${reply.status}.`)
+  })()
+  onProgress(0)
+  return {
+    promise,
+    abort: () => {
+      aborted = true
+      ;(xhr as XMLHttpRequest | null)?.abort()
+    },
+  }
+}

@@ -1,0 +1,258 @@
+import { computed, reactive, ref, shallowRef } from 'vue'
+import { parseDeclination, parseRightAscension } from '@shared/coords'
+import { ApiError, messageOf } from '@/api/http'
+import { uploadSpectrumFile, type FileResult, type SubmitFields, type UploadHandle } from '@/api/spectra'
+
+/** The batch form as the person fills it in; empty means "take it from the file". */
+export interface BatchMetadata {
+  campaignId: number | null
+  objectName: string
+  ra: string
+  dec: string
+  obsDate: string | null
+  instrument: string
+  resolutionKind: 'fwhm' | 'power'
+  resolution: number | null
+  vMag: number | null
+  parallaxMas: number | null
+  parallaxErrorMas: number | null
+  ebv: number | null
+  wavelengthMedium: 'file' | 'air' | 'vacuum'
+  hdu: number | null
+  notes: string
+}
+
+export const emptyBatchMetadata = (): BatchMetadata => ({
+  campaignId: null,
+  objectName: '',
+  ra: '',
+  dec: '',
+  obsDate: null,
+  instrument: '',
+  resolutionKind: 'fwhm',
+  resolution: null,
+  vMag: null,
+  parallaxMas: null,
+  parallaxErrorMas: null,
+  ebv: null,
+  wavelengthMedium: 'file',
+  hdu: null,
+  notes: '',
+})
+
+const num = (v: number | null) => (v === null || !Number.isFinite(v) ? undefined : v)
+const text = (v: string | null) => (v && v.trim() !== '' ? v.trim() : undefined)
+
+/** The multipart fields for the batch (undefined ones are not sent). */
+export function toSubmitFields(meta: BatchMetadata, batchId: string): SubmitFields {
+  return {
+    campaignId: meta.campaignId ?? 0,
+    batchId,
+    objectName: text(meta.objectName),
+    ra: text(meta.ra),
+    dec: text(meta.dec),
+    obsDate: text(meta.obsDate),
+    instrument: text(meta.instrument),
+    resolutionFwhm: meta.resolutionKind === 'fwhm' ? num(meta.resolution) : undefined,
+    resolvingPower: meta.resolutionKind === 'power' ? num(meta.resolution) : undefined,
+    vMag: num(meta.vMag),
+    parallaxMas: num(meta.parallaxMas),
+    parallaxErrorMas: num(meta.parallaxErrorMas),
+    ebv: num(meta.ebv),
+    wavelengthMedium: meta.wavelengthMedium,
+    hdu: num(meta.hdu),
+    notes: text(meta.notes),
+  }
+}
+
+/** Checks the browser can make before sending anything; the server checks everything again. */
+export function checkBatchMetadata(meta: BatchMetadata): Record<string, string> {
+  const errors: Record<string, string> = {}
+  if (meta.campaignId === null) errors.campaignId = 'choose a campaign'
+  if (meta.ra.trim() !== '') {
+    const ra = parseRightAscension(meta.ra)
+    if (!ra.ok) errors.ra = ra.message
+  }
+  if (meta.dec.trim() !== '') {
+    const dec = parseDeclination(meta.dec)
+    if (!dec.ok) errors.dec = dec.message
+  }
+  if (meta.parallaxErrorMas !== null && meta.parallaxMas === null) errors.parallaxMas = 'is needed when an error is given'
+  return errors
+}
+
+export type UploadStatus = 'waiting' | 'uploading' | 'done' | 'failed'
+
+export interface UploadItem {
+  key: string
+  file: File
+  status: UploadStatus
+  progress: number
+  results: FileResult[]
+  error: { status: number; code: string; message: string } | null
+}
+
+export type ResultKind = 'waiting' | 'uploading' | 'accepted' | 'duplicate' | 'refused' | 'failed'
+
+/** One row of the results table: a server result per file (a zip gives one per entry), or the upload's own state. */
+export interface ResultRow {
+  key: string
+  file: string
+  kind: ResultKind
+  progress: number
+  result: FileResult | null
+  message: string | null
+  code: string | null
+}
+
+export function resultRows(items: readonly UploadItem[]): ResultRow[] {
+  const rows: ResultRow[] = []
+  for (const item of items) {
+    if (item.status === 'done' && item.results.length > 0) {
+      item.results.forEach((r, i) =>
+        rows.push({
+          key: `${item.key}:${i}`,
+          file: r.file,
+          kind: r.outcome,
+          progress: 1,
+          result: r,
+          message: r.outcome === 'accepted' ? null : r.message,
+          code: r.outcome === 'refused' ? r.code : null,
+        }),
+      )
+      continue
+    }
+    const kind: ResultKind = item.status === 'done' ? 'refused' : item.status
+    rows.push({
+      key: item.key,
+      file: item.file.name,
+      kind,
+      progress: item.progress,
+      result: null,
+      message: item.status === 'done' ? 'The server returned no result for this file.' : (item.error?.message ?? null),
+      code: item.error?.code ?? null,
+    })
+  }
+  return rows
+}
+
+export interface ResultCounts {
+  files: number
+  accepted: number
+  duplicate: number
+  refused: number
+  failed: number
+  pending: number
+}
+
+export function countResults(rows: readonly ResultRow[]): ResultCounts {
+  const c: ResultCounts = { files: rows.length, accepted: 0, duplicate: 0, refused: 0, failed: 0, pending: 0 }
+  for (const r of rows) {
+    if (r.kind === 'waiting' || r.kind === 'uploading') c.pending++
+    else c[r.kind]++
+  }
+  return c
+}
+
+/** Errors that would be the same for every file of the batch: stop and show them on the form. */
+function isBatchError(e: ApiError): boolean {
+  return (e.status === 422 && Object.keys(e.fields).length > 0) || e.status === 401 || (e.status === 403 && e.code !== 'csrf_failed') || e.status === 404
+}
+
+let keySeq = 0
+
+/**
+ * A batch upload: one file per request, a few in flight at once, each with its own progress.
+ * One bad file never stops the others; an error about the form itself (a 422 with field messages,
+ * a campaign one may not submit to) stops the batch and is shown on the form.
+ */
+export function useSubmit(options: { parallel?: number } = {}) {
+  const parallel = options.parallel ?? 3
+  const items = ref<UploadItem[]>([])
+  const running = ref(false)
+  const batchId = ref<string | null>(null)
+  const fieldErrors = ref<Record<string, string>>({})
+  const formError = ref<string | null>(null)
+  const handles = shallowRef(new Map<string, UploadHandle>())
+  const state = computed(() => (running.value ? 'loading' : items.value.some((i) => i.status === 'done' || i.status === 'failed') ? 'done' : 'idle'))
+
+  const rows = computed(() => resultRows(items.value))
+  const counts = computed(() => countResults(rows.value))
+
+  function add(files: Iterable<File>): void {
+    for (const file of files) items.value.push(reactive({ key: `f${++keySeq}`, file, status: 'waiting', progress: 0, results: [], error: null }) as UploadItem)
+  }
+
+  function remove(key: string): void {
+    items.value = items.value.filter((i) => i.key !== key || i.status === 'uploading')
+  }
+
+  /** Forgets the finished batch so a new one can start (files not yet sent stay). */
+  function clearFinished(): void {
+    items.value = items.value.filter((i) => i.status === 'waiting')
+    batchId.value = null
+  }
+
+  async function start(meta: BatchMetadata): Promise<void> {
+    if (running.value) return
+    formError.value = null
+    fieldErrors.value = checkBatchMetadata(meta)
+    if (Object.keys(fieldErrors.value).length > 0) return
+    const queue = items.value.filter((i) => i.status === 'waiting' || i.status === 'failed')
+    if (queue.length === 0) {
+      formError.value = 'Add at least one file.'
+      return
+    }
+    batchId.value ??= globalThis.crypto.randomUUID()
+    const fields = toSubmitFields(meta, batchId.value)
+    running.value = true
+    let stop = false
+    for (const i of queue) {
+      i.status = 'waiting'
+      i.error = null
+      i.progress = 0
+    }
+
+    const worker = async () => {
+      for (;;) {
+        if (stop) return
+        const item = queue.shift()
+        if (!item) return
+        item.status = 'uploading'
+        const handle = uploadSpectrumFile(fields, item.file, item.file.name, (f) => (item.progress = f))
+        handles.value.set(item.key, handle)
+        try {
+          const reply = await handle.promise
+          item.results = reply.results
+          item.progress = 1
+          item.status = 'done'
+        } catch (e) {
+          const err = e instanceof ApiError ? e : new ApiError(0, 'client_error', messageOf(e))
+          if (isBatchError(err)) {
+            stop = true
+            item.status = 'waiting'
+            item.progress = 0
+            fieldErrors.value = err.fields
+            formError.value = Object.keys(err.fields).length > 0 ? 'The server did not accept the batch details; see the marked fields.' : err.message
+          } else {
+            item.status = 'failed'
+            item.error = { status: err.status, code: err.status === 0 ? 'network' : err.status === 413 ? 'too_large' : err.code, message: err.message }
+          }
+        } finally {
+          handles.value.delete(item.key)
+        }
+      }
+    }
+    try {
+      await Promise.all(Array.from({ length: Math.min(parallel, queue.length) }, worker))
+    } finally {
+      running.value = false
+    }
+  }
+
+  function cancel(): void {
+    for (const h of handles.value.values()) h.abort()
+  }
+
+  return { items, rows, counts, running, state, batchId, fieldErrors, formError, add, remove, clearFinished, start, cancel }
+}
