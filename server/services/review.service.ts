@@ -141,7 +141,8 @@ export function judgeCalls(calls: JudgedCall[], rules: { typeTolerance: number; 
     classSpread,
     agreement: typeSpread < EPSILON && classSpread < EPSILON ? 'exact' : 'within',
     source: calls.every((c) => c.acceptedSuggestion) ? 'accepted-suggestion' : 'consensus',
-    consensus,
+    // The codes are the medians themselves, whatever precision the text carries.
+    consensus: { ...consensus, typeCode, classCode },
   }
 }
 
@@ -543,8 +544,10 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
     if (input.acceptedSuggestion) {
       if (!suggestion) throw new HttpError(422, 'no_suggestion', 'There is no suggestion to accept.')
       if (!shown) throw new HttpError(422, 'suggestion_not_shown', 'Blind review: record your own call before the suggestion is shown.')
-      parsed = input.spectralType && input.luminosityClass ? parseCallType(input.spectralType, input.luminosityClass, input.peculiarities ?? '') : suggestionAsCall(suggestion)
-      if (Math.abs(parsed.typeCode - suggestion.typeCode) > EPSILON || Math.abs(parsed.classCode - suggestion.classCode) > EPSILON) {
+      const explicit = input.spectralType !== undefined && input.luminosityClass !== undefined
+      // Without values of their own the call is the suggestion, codes included.
+      parsed = explicit ? parseCallType(input.spectralType!, input.luminosityClass!, input.peculiarities ?? '') : { ...suggestionAsCall(suggestion), typeCode: suggestion.typeCode, classCode: suggestion.classCode }
+      if (explicit && (Math.abs(parsed.typeCode - suggestion.typeCode) > 0.01 || Math.abs(parsed.classCode - suggestion.classCode) > 0.01)) {
         throw new HttpError(422, 'not_the_suggestion', `The suggestion is ${suggestion.spectralType}; record your own call if you see something else.`, {
           fields: { spectralType: `differs from the suggestion ${suggestion.spectralType}` },
         })
