@@ -81,38 +81,41 @@ export function depthScaledChiSquareRows(
     Sf += w * flux[i]!
     Sff += w * flux[i]! * flux[i]!
   }
+  // Usable columns, gathered once so the inner loop has no branch on the weight.
+  const cols = scratchColumns(to - from)
+  const wv = scratchWeights(to - from)
+  const fv = scratchFlux(to - from)
+  let m = 0
+  for (let i = from; i < to; i++) {
+    if (weights[i]! > 0) {
+      cols[m] = i
+      wv[m] = weights[i]!
+      fv[m] = flux[i]!
+      m++
+    }
+  }
   for (let s = 0; s < count; s++) {
     const base = s * pixels
     let St = 0
     let Sft = 0
     let Stt = 0
-    let n = 0
-    let missing = false
-    for (let i = from; i < to; i++) {
-      const w = weights[i]!
-      if (w <= 0) continue
-      const t = rows[base + i]!
-      if (t !== t) {
-        missing = true
-        continue
-      }
-      const wt = w * t
+    for (let k = 0; k < m; k++) {
+      const t = rows[base + cols[k]!]!
+      const wt = wv[k]! * t
       St += wt
-      Sft += wt * flux[i]!
+      Sft += wt * fv[k]!
       Stt += wt * t
-      n++
     }
-    if (missing) {
-      // Rare (observed standards with gaps): redo the fixed sums over the shared pixels.
-      scaledPair(flux, weights, rows, base, from, to, chi2, scale, s)
-      used[s] = n
+    used[s] = m
+    if (St !== St) {
+      // Some template pixels are missing (observed standards with gaps): sum over the shared pixels.
+      used[s] = scaledPair(flux, weights, rows, base, from, to, chi2, scale, s)
       continue
     }
     const det = S * Stt - St * St
-    if (n < 3 || !(det > 0)) {
+    if (m < 3 || !(det > 0)) {
       chi2[s] = Infinity
       scale[s] = Number.NaN
-      used[s] = n
       continue
     }
     let b = (S * Sft - St * Sf) / det
@@ -121,22 +124,30 @@ export function depthScaledChiSquareRows(
     const a = (Sf - b * St) / S
     chi2[s] = Math.max(0, Sff - 2 * a * Sf - 2 * b * Sft + a * a * S + 2 * a * b * St + b * b * Stt)
     scale[s] = b
-    used[s] = n
   }
 }
 
-function scaledPair(flux: Float64Array, weights: Float64Array, rows: Float32Array, base: number, from: number, to: number, chi2: Float64Array, scale: Float64Array, s: number): void {
+let colBuf = new Int32Array(0)
+let wBuf = new Float64Array(0)
+let fBuf = new Float64Array(0)
+const scratchColumns = (n: number) => (colBuf.length >= n ? colBuf : (colBuf = new Int32Array(n)))
+const scratchWeights = (n: number) => (wBuf.length >= n ? wBuf : (wBuf = new Float64Array(n)))
+const scratchFlux = (n: number) => (fBuf.length >= n ? fBuf : (fBuf = new Float64Array(n)))
+
+function scaledPair(flux: Float64Array, weights: Float64Array, rows: Float32Array, base: number, from: number, to: number, chi2: Float64Array, scale: Float64Array, s: number): number {
   let S = 0
   let Sf = 0
   let Sff = 0
   let St = 0
   let Sft = 0
   let Stt = 0
+  let n = 0
   for (let i = from; i < to; i++) {
     const w = weights[i]!
     const t = rows[base + i]!
     if (w <= 0 || t !== t) continue
     const f = flux[i]!
+    n++
     S += w
     Sf += w * f
     Sff += w * f * f
@@ -145,15 +156,16 @@ function scaledPair(flux: Float64Array, weights: Float64Array, rows: Float32Arra
     Stt += w * t * t
   }
   const det = S * Stt - St * St
-  if (!(det > 0)) {
+  if (n < 3 || !(det > 0)) {
     chi2[s] = Infinity
     scale[s] = Number.NaN
-    return
+    return n
   }
   const b = Math.min(DEPTH_SCALE_BOUNDS[1], Math.max(DEPTH_SCALE_BOUNDS[0], (S * Sft - St * Sf) / det))
   const a = (Sf - b * St) / S
   chi2[s] = Math.max(0, Sff - 2 * a * Sf - 2 * b * Sft + a * a * S + 2 * a * b * St + b * b * Stt)
   scale[s] = b
+  return n
 }
 
 /**

@@ -189,7 +189,7 @@ function fitLevel(library: PreparedMatchLibrary, level: LibraryLevel, s: Scratch
  * 5. Uncertainties: the standard deviations of type code and class code under the distribution
  *    (at least 0.5 subtype and 0.25 class).
  * Flags: 'low-snr' (S/N < lowSnr), 'emission' (a Balmer line measured with a significant negative
- * equivalent width; "e" is appended to the type), 'poor-fit' (χ²_ν > poorFit), 'outside-grid' (the
+ * equivalent width and no absorption core; "e" is appended to the type), 'poor-fit' (χ²_ν > poorFit), 'outside-grid' (the
  * minimum lies at the hot or cool end of the grid), 'possible-composite' (a second, separate
  * minimum along type nearly as good), 'not-mk' (Balmer wings broader than any dwarf standard's,
  * as in white dwarfs).
@@ -466,14 +466,15 @@ function criterionAtType(library: PreparedMatchLibrary, level: LibraryLevel, ci:
   return b.v + ((a.v - b.v) * (typeCode - b.t)) / (a.t - b.t)
 }
 
-/** True when Hβ, Hγ or Hα is measured with a negative equivalent width beyond 3σ and 0.5 Å. */
+/** True when Hα, Hβ or Hγ is measured with a negative equivalent width beyond 3σ and 1 Å and its deepest point above the continuum (depth < −0.05). */
 function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined): boolean {
   if (!lines) return false
   return lines.some(
     (l) =>
       l.measured &&
       (l.id === 'h-alpha' || l.id === 'h-beta' || l.id === 'h-gamma') &&
-      l.equivalentWidth < -0.5 &&
+      l.equivalentWidth < -1 &&
+      l.depth < -0.05 &&
       (l.equivalentWidthError === null || -l.equivalentWidth > 3 * l.equivalentWidthError),
   )
 }
