@@ -1,7 +1,7 @@
 import type { Role } from '@shared/roles'
 import { roleMayOpen, type AppRouteName } from './routes'
 
-export type NavIconName = 'people' | 'mail' | 'account'
+export type NavIconName = 'people' | 'mail' | 'account' | 'upload' | 'spectra'
 
 export interface NavEntry {
   route: AppRouteName
@@ -14,6 +14,8 @@ export interface NavEntry {
  * follows the route's `meta.roles` in routes.ts, so the nav never offers a screen the router refuses.
  */
 export const NAV_ENTRIES: readonly NavEntry[] = [
+  { route: 'submit', label: 'Submit', icon: 'upload' },
+  { route: 'spectra', label: 'My spectra', icon: 'spectra' },
   { route: 'people', label: 'People', icon: 'people' },
   { route: 'outbox', label: 'Outbox', icon: 'mail' },
   { route: 'account', label: 'My account', icon: 'account' },

@@ -15,7 +15,7 @@ declare module 'vue-router' {
 }
 
 /** Every screen's route name, so links and the nav table are checked by the compiler. */
-export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound'
+export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound' | 'submit' | 'spectra' | 'spectrum'
 
 type AppRoute = RouteRecordRaw & { name: AppRouteName }
 
@@ -28,6 +28,9 @@ export const routes: AppRoute[] = [
   { path: '/account', name: 'account', component: () => import('@/views/AccountView.vue'), meta: { title: 'My account' } },
   { path: '/people', name: 'people', component: () => import('@/views/PeopleView.vue'), meta: { roles: ['lead'], title: 'People' } },
   { path: '/outbox', name: 'outbox', component: () => import('@/views/OutboxView.vue'), meta: { roles: ['lead'], title: 'Outbox' } },
+  { path: '/submit', name: 'submit', component: () => import('@/views/SubmitView.vue'), meta: { roles: ['observer', 'lead'], title: 'Submit' } },
+  { path: '/spectra', name: 'spectra', component: () => import('@/views/MySpectraView.vue'), meta: { title: 'My spectra' } },
+  { path: '/spectra/:id(\\d+)', name: 'spectrum', component: () => import('@/views/SpectrumView.vue'), meta: { title: 'Spectrum' } },
   { path: '/:pathMatch(.*)*', name: 'notFound', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Not found' } },
 ]
 
