@@ -4,6 +4,7 @@ import * as m0002 from './0002-spectra'
 import * as m0003 from './0003-measurements'
 import * as m0004 from './0004-standards-suggestions'
 import * as m0006 from './0006-review'
+import * as m0007 from './0007-releases'
 
 export interface Migration {
   name: string
@@ -18,4 +19,5 @@ export const migrations: Migration[] = [
   { name: '0003-measurements', ...m0003 },
   { name: '0004-standards-suggestions', ...m0004 },
   { name: '0006-review', ...m0006 },
+  { name: '0007-releases', ...m0007 },
 ]

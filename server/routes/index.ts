@@ -4,6 +4,7 @@ import { authRoutes } from './auth.routes'
 import { campaignRoutes } from './campaigns.routes'
 import { healthRoutes } from './health.routes'
 import { outboxRoutes } from './outbox.routes'
+import { derivedRoutes, releaseRoutes } from './releases.routes'
 import { reviewRoutes } from './review.routes'
 import type { RouteDef } from './route'
 import { spectraRoutes } from './spectra.routes'
@@ -12,5 +13,5 @@ import { userRoutes } from './users.routes'
 
 /** Every API route in one table: the app mounts it and the role-matrix test walks it. */
 export function apiRoutes(ctx: AppContext): RouteDef[] {
-  return [...healthRoutes(ctx), ...authRoutes(ctx), ...userRoutes(ctx), ...outboxRoutes(), ...campaignRoutes(ctx), ...spectraRoutes(ctx), ...reviewRoutes(ctx), ...standardsRoutes(ctx), ...auditRoutes()]
+  return [...healthRoutes(ctx), ...authRoutes(ctx), ...userRoutes(ctx), ...outboxRoutes(), ...campaignRoutes(ctx), ...spectraRoutes(ctx), ...reviewRoutes(ctx), ...standardsRoutes(ctx), ...auditRoutes(), ...releaseRoutes(), ...derivedRoutes()]
 }

@@ -1,0 +1,24 @@
+import { z } from 'zod'
+import { EXPORT_FORMATS } from '../exports'
+import { paging } from './paging'
+
+const title = z.string().trim().min(1, 'is required').max(200, 'must be at most 200 characters')
+const description = z.string().trim().max(5000, 'must be at most 5000 characters').default('')
+
+export const createReleaseBody = z.object({
+  campaignId: z.coerce.number({ message: 'choose a campaign' }).int().positive({ message: 'choose a campaign' }),
+  title,
+  description,
+})
+
+export const supersedeReleaseBody = z.object({ title, description })
+
+export const listReleasesQuery = z.object({
+  campaign: z.preprocess((v) => (v === '' ? undefined : v), z.coerce.number().int().positive().optional()),
+})
+
+export const releaseRowsQuery = z.object(paging)
+
+export const downloadQuery = z.object({
+  format: z.enum(EXPORT_FORMATS, { message: `must be one of ${EXPORT_FORMATS.join(', ')}` }),
+})

@@ -1,0 +1,327 @@
+import { Op, type Transaction } from 'sequelize'
+import type { DerivedParameters } from '../../shared/derived'
+import { CATALOGUE_COLUMNS, CATALOGUE_NOTES, isoTimestamp, writeTable, type ExportColumn, type ExportFormat, type ExportRow, type ExportTable, type TableParam } from '../exports'
+import { HttpError, notFound } from '../lib/http-error'
+import { Campaign, Classification, LibraryVersion, Measurement, Release, ReleaseRow, ReviewCall, Spectrum, Suggestion, User } from '../models'
+import { decisionUncertainty, estimatesFor, observerInputs } from './derived.service'
+
+/** Spectra in these states have a decided classification and go into a release. */
+export const RELEASED_STATUSES = ['agreed', 'settled'] as const
+
+// ---------------------------------------------------------------------------------------------
+// One catalogue row
+// ---------------------------------------------------------------------------------------------
+
+export interface CatalogueSources {
+  spectrum: Pick<Spectrum, 'id' | 'objectName' | 'raDeg' | 'decDeg' | 'obsDate' | 'snr' | 'vMag' | 'ebv' | 'parallaxMas' | 'parallaxErrorMas'>
+  classification: Pick<Classification, 'source' | 'spectralType' | 'typeCode' | 'luminosityClass' | 'classCode' | 'peculiarities' | 'nCalls' | 'agreement' | 'typeSpread' | 'classSpread'>
+  suggestion: Pick<Suggestion, 'pipelineVersion' | 'uncertaintySubtypes' | 'uncertaintyClasses'> | null
+  libraryVersion: string | null
+  measurement: Pick<Measurement, 'snr' | 'rv' | 'rvError' | 'pipelineVersion'> | null
+  /** The settling lead, or the classifiers whose calls the decision rests on. */
+  decidedBy: string[]
+}
+
+/** How a decision came about, in the words of the catalogue. */
+export function decisionText(c: Pick<Classification, 'source' | 'nCalls'>): string {
+  if (c.source === 'settled') return 'settled by lead'
+  if (c.source === 'accepted-suggestion') return 'accepted suggestion'
+  return `consensus of ${c.nCalls}`
+}
+
+const num = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? null : v)
+
+function derivedCells(d: DerivedParameters): ExportRow {
+  if (!d.ok) return { DFlag: d.flag }
+  return {
+    Teff: d.teff.value,
+    e_Teff: d.teff.uncertainty,
+    MV: d.absoluteMagnitudeV.value,
+    e_MV: d.absoluteMagnitudeV.uncertainty,
+    BC: d.bolometricCorrectionV.value,
+    Dist: num(d.spectroscopicDistancePc?.value),
+    e_Dist: num(d.spectroscopicDistancePc?.uncertainty),
+    DistPlx: num(d.parallaxDistancePc?.value),
+    e_DistPlx: num(d.parallaxDistancePc?.uncertainty),
+    Lum: d.luminositySolar.value,
+    e_Lum: d.luminositySolar.uncertainty,
+    Rad: d.radiusSolar.value,
+    e_Rad: d.radiusSolar.uncertainty,
+    DFlag: null,
+  }
+}
+
+/** The values of every catalogue column for one decided spectrum (labels of {@link CATALOGUE_COLUMNS}). */
+export function catalogueRow(src: CatalogueSources): ExportRow {
+  const { spectrum: s, classification: c, measurement: m } = src
+  const u = decisionUncertainty(c, src.suggestion)
+  const peculiarities = (JSON.parse(c.peculiarities || '[]') as string[]).join(' ')
+  const derived = estimatesFor({ source: 'classification', spectralType: c.spectralType, typeUncertainty: u.type, classUncertainty: u.class }, observerInputs(s))
+  const row: ExportRow = {
+    SpId: s.id,
+    Object: s.objectName,
+    RAdeg: num(s.raDeg),
+    DEdeg: num(s.decDeg),
+    ObsDate: s.obsDate ? isoTimestamp(s.obsDate) : null,
+    SpType: c.spectralType,
+    TypeCode: num(c.typeCode),
+    LumClass: c.luminosityClass || null,
+    ClassCode: num(c.classCode),
+    e_TypeCode: u.type,
+    e_ClassCode: u.class,
+    Pec: peculiarities || null,
+    Decision: decisionText(c),
+    DecidedBy: src.decidedBy.length ? src.decidedBy.join('; ') : null,
+    Ncalls: c.nCalls,
+    Agreement: c.agreement,
+    LibVer: src.libraryVersion,
+    PipeVer: src.suggestion?.pipelineVersion ?? m?.pipelineVersion ?? null,
+    SNR: num(m?.snr ?? s.snr),
+    RV: num(m?.rv),
+    e_RV: num(m?.rvError),
+    Vmag: num(s.vMag),
+    EBV: num(s.ebv),
+    Plx: num(s.parallaxMas),
+    e_Plx: num(s.parallaxErrorMas),
+    Teff: null,
+    e_Teff: null,
+    MV: null,
+    e_MV: null,
+    BC: null,
+    Dist: null,
+    e_Dist: null,
+    DistPlx: null,
+    e_DistPlx: null,
+    Lum: null,
+    e_Lum: null,
+    Rad: null,
+    e_Rad: null,
+    DFlag: null,
+    ...derivedCells(derived),
+  }
+  return row
+}
+
+/** Latest decided classification of each released spectrum of a campaign, with what its row needs. */
+async function gatherRows(campaignId: number, transaction: Transaction): Promise<Array<{ spectrumId: number; cells: ExportRow }>> {
+  const spectra = await Spectrum.findAll({
+    where: { campaignId, status: { [Op.in]: [...RELEASED_STATUSES] } },
+    attributes: ['id', 'objectName', 'raDeg', 'decDeg', 'obsDate', 'snr', 'vMag', 'ebv', 'parallaxMas', 'parallaxErrorMas'],
+    order: [['id', 'ASC']],
+    transaction,
+  })
+  if (spectra.length === 0) return []
+  const ids = spectra.map((s) => s.id)
+  const latest = new Map<number, Classification>()
+  for (const c of await Classification.findAll({ where: { spectrumId: { [Op.in]: ids } }, order: [['id', 'ASC']], transaction })) latest.set(c.spectrumId, c)
+  const decided = spectra.filter((s) => latest.has(s.id))
+  const classifications = decided.map((s) => latest.get(s.id)!)
+
+  const suggestions = await Suggestion.findAll({
+    where: { [Op.or]: [{ id: { [Op.in]: [0, ...classifications.map((c) => c.suggestionId ?? 0)] } }, { spectrumId: { [Op.in]: ids }, isCurrent: true }] },
+    attributes: ['id', 'spectrumId', 'isCurrent', 'libraryVersionId', 'pipelineVersion', 'uncertaintySubtypes', 'uncertaintyClasses'],
+    transaction,
+  })
+  const versions = new Map((await LibraryVersion.findAll({ attributes: ['id', 'name'], transaction })).map((v) => [v.id, v.name]))
+  const measurements = new Map(
+    (await Measurement.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: ['id', 'spectrumId', 'snr', 'rv', 'rvError', 'pipelineVersion'], transaction })).map((m) => [m.spectrumId, m]),
+  )
+  const callIds = classifications.flatMap((c) => JSON.parse(c.callIds || '[]') as number[])
+  const callers = new Map(
+    (callIds.length ? await ReviewCall.findAll({ where: { id: { [Op.in]: callIds } }, attributes: ['id', 'userId'], transaction }) : []).map((r) => [r.id, r.userId]),
+  )
+  const userIds = new Set<number>([...callers.values(), ...classifications.map((c) => c.decidedBy ?? 0)])
+  const names = new Map((await User.findAll({ where: { id: { [Op.in]: [...userIds] } }, attributes: ['id', 'name'], transaction })).map((u) => [u.id, u.name]))
+
+  return decided.map((s) => {
+    const c = latest.get(s.id)!
+    const suggestion = suggestions.find((x) => x.id === c.suggestionId) ?? suggestions.find((x) => x.spectrumId === s.id && x.isCurrent) ?? null
+    const who =
+      c.source === 'settled'
+        ? [c.decidedBy ? (names.get(c.decidedBy) ?? `#${c.decidedBy}`) : null]
+        : [...new Set((JSON.parse(c.callIds || '[]') as number[]).map((id) => callers.get(id)).filter((x): x is number => x !== undefined))].map((id) => names.get(id) ?? `#${id}`)
+    return {
+      spectrumId: s.id,
+      cells: catalogueRow({
+        spectrum: s,
+        classification: c,
+        suggestion,
+        libraryVersion: suggestion ? (versions.get(suggestion.libraryVersionId) ?? `#${suggestion.libraryVersionId}`) : null,
+        measurement: measurements.get(s.id) ?? null,
+        decidedBy: who.filter((x): x is string => x !== null),
+      }),
+    }
+  })
+}
+
+/** The distinct non-empty values of one column, joined, for the release keywords. */
+const distinct = (rows: ExportRow[], key: string) => [...new Set(rows.map((r) => r[key]).filter((v) => v !== null && v !== ''))].map(String).sort().join(', ')
+
+// ---------------------------------------------------------------------------------------------
+// Releases
+// ---------------------------------------------------------------------------------------------
+
+export interface ReleaseSummary {
+  id: number
+  campaign: { id: number; code: string; name: string }
+  version: number
+  title: string
+  description: string
+  rows: number
+  createdBy: { id: number; name: string }
+  createdAt: string
+  supersededBy: number | null
+  downloads: Record<ExportFormat, string>
+}
+
+async function summaries(releases: Release[]): Promise<ReleaseSummary[]> {
+  const campaigns = new Map((await Campaign.findAll({ where: { id: { [Op.in]: [0, ...releases.map((r) => r.campaignId)] } } })).map((c) => [c.id, c]))
+  const users = new Map((await User.findAll({ where: { id: { [Op.in]: [0, ...releases.map((r) => r.createdBy)] } }, attributes: ['id', 'name'] })).map((u) => [u.id, u.name]))
+  return releases.map((r) => {
+    const c = campaigns.get(r.campaignId)
+    return {
+      id: r.id,
+      campaign: { id: r.campaignId, code: c?.code ?? '', name: c?.name ?? '' },
+      version: r.version,
+      title: r.title,
+      description: r.description,
+      rows: r.rowCount,
+      createdBy: { id: r.createdBy, name: users.get(r.createdBy) ?? '' },
+      createdAt: r.createdAt.toISOString(),
+      supersededBy: r.supersededBy ?? null,
+      downloads: {
+        csv: `/api/releases/${r.id}/download?format=csv`,
+        votable: `/api/releases/${r.id}/download?format=votable`,
+        fits: `/api/releases/${r.id}/download?format=fits`,
+        mrt: `/api/releases/${r.id}/download?format=mrt`,
+      },
+    }
+  })
+}
+
+export interface ReleaseInput {
+  campaignId: number
+  title: string
+  description: string
+}
+
+/**
+ * Freezes every agreed or settled spectrum of the campaign into a new release, numbered one
+ * above the campaign's latest, which it supersedes. The campaign row is locked so two leads
+ * releasing at once get consecutive versions.
+ */
+export async function createRelease(user: User, input: ReleaseInput): Promise<ReleaseSummary> {
+  const sequelize = Release.sequelize!
+  const release = await sequelize.transaction(async (transaction) => {
+    const campaign = await Campaign.findByPk(input.campaignId, { transaction, lock: transaction.LOCK.UPDATE })
+    if (!campaign) throw notFound('The campaign')
+    const previous = await Release.findOne({ where: { campaignId: campaign.id }, order: [['version', 'DESC']], transaction })
+    const rows = await gatherRows(campaign.id, transaction)
+    if (rows.length === 0) throw new HttpError(409, 'nothing_to_release', 'No spectrum of this campaign is agreed or settled yet, so there is nothing to release.')
+    const version = (previous?.version ?? 0) + 1
+    const createdAt = new Date()
+    const cells = rows.map((r) => r.cells)
+    const params: TableParam[] = [
+      { key: 'CAMPAIGN', name: 'campaign', value: campaign.code, description: 'campaign code', ucd: 'meta.id;meta.dataset' },
+      { key: 'RELEASE', name: 'release', value: version, description: 'release version within the campaign', ucd: 'meta.version' },
+      { key: 'LIBVER', name: 'library_versions', value: distinct(cells, 'LibVer'), description: 'standards-library versions of the rows', ucd: 'meta.version;meta.dataset' },
+      { key: 'PIPEVER', name: 'pipeline_versions', value: distinct(cells, 'PipeVer'), description: 'pipeline versions of the rows', ucd: 'meta.version' },
+      { key: 'NOBJ', name: 'rows', value: rows.length, description: 'number of rows', ucd: 'meta.number' },
+    ]
+    const created = await Release.create(
+      {
+        campaignId: campaign.id,
+        version,
+        title: input.title,
+        description: input.description,
+        rowCount: rows.length,
+        columns: JSON.stringify(CATALOGUE_COLUMNS),
+        params: JSON.stringify(params),
+        notes: JSON.stringify(CATALOGUE_NOTES),
+        createdBy: user.id,
+        createdAt,
+      },
+      { transaction },
+    )
+    await ReleaseRow.bulkCreate(
+      rows.map((r, i) => ({ releaseId: created.id, position: i + 1, spectrumId: r.spectrumId, cells: JSON.stringify(r.cells) })),
+      { transaction },
+    )
+    if (previous && previous.supersededBy === null) await previous.update({ supersededBy: created.id }, { transaction })
+    return created
+  })
+  return (await summaries([release]))[0]!
+}
+
+/** A newer release of the same campaign that supersedes this one; only the latest release can be superseded. */
+export async function supersedeRelease(user: User, releaseId: number, input: Omit<ReleaseInput, 'campaignId'>): Promise<ReleaseSummary> {
+  const release = await Release.findByPk(releaseId)
+  if (!release) throw notFound('The release')
+  if (release.supersededBy !== null) throw new HttpError(409, 'already_superseded', `Release ${release.version} is already superseded by a newer release.`)
+  return createRelease(user, { campaignId: release.campaignId, ...input })
+}
+
+export async function listReleases(query: { campaignId?: number }): Promise<ReleaseSummary[]> {
+  const rows = await Release.findAll({ where: query.campaignId ? { campaignId: query.campaignId } : {}, order: [['campaignId', 'ASC'], ['version', 'DESC']] })
+  return summaries(rows)
+}
+
+export interface ReleaseDetail {
+  release: ReleaseSummary
+  columns: ExportColumn[]
+  params: TableParam[]
+  notes: string[]
+  rows: ExportRow[]
+  total: number
+  page: number
+  pageSize: number
+}
+
+export async function getRelease(id: number, paging: { page: number; pageSize: number }): Promise<ReleaseDetail> {
+  const release = await Release.findByPk(id)
+  if (!release) throw notFound('The release')
+  const rows = await ReleaseRow.findAll({ where: { releaseId: id }, order: [['position', 'ASC']], offset: (paging.page - 1) * paging.pageSize, limit: paging.pageSize })
+  return {
+    release: (await summaries([release]))[0]!,
+    columns: JSON.parse(release.columns) as ExportColumn[],
+    params: JSON.parse(release.params) as TableParam[],
+    notes: JSON.parse(release.notes) as string[],
+    rows: rows.map((r) => JSON.parse(r.cells) as ExportRow),
+    total: release.rowCount,
+    page: paging.page,
+    pageSize: paging.pageSize,
+  }
+}
+
+/** The frozen release as one table for the writers. */
+export async function releaseTable(id: number): Promise<{ table: ExportTable; campaignCode: string; version: number }> {
+  const release = await Release.findByPk(id)
+  if (!release) throw notFound('The release')
+  const campaign = await Campaign.findByPk(release.campaignId, { attributes: ['id', 'code', 'name'] })
+  const rows = await ReleaseRow.findAll({ where: { releaseId: id }, order: [['position', 'ASC']] })
+  return {
+    campaignCode: campaign?.code ?? `campaign-${release.campaignId}`,
+    version: release.version,
+    table: {
+      name: 'catalogue',
+      title: release.title,
+      description: release.description,
+      date: isoTimestamp(release.createdAt),
+      params: JSON.parse(release.params) as TableParam[],
+      columns: JSON.parse(release.columns) as ExportColumn[],
+      notes: JSON.parse(release.notes) as string[],
+      rows: rows.map((r) => JSON.parse(r.cells) as ExportRow),
+    },
+  }
+}
+
+/** File-name-safe text: letters, digits, dot, dash and underscore. */
+const safeName = (s: string) => s.replace(/[^A-Za-z0-9._-]+/g, '_').replace(/^_+|_+$/g, '') || 'catalogue'
+
+/** The bytes of a release in one format, with its media type and a file name such as "TF-1_release-2.vot". */
+export async function downloadRelease(id: number, format: ExportFormat): Promise<{ body: Buffer; contentType: string; fileName: string }> {
+  const { table, campaignCode, version } = await releaseTable(id)
+  const file = writeTable(table, format)
+  const suffix = format === 'mrt' ? '_mrt' : ''
+  return { body: file.body, contentType: file.contentType, fileName: `${safeName(campaignCode)}_release-${version}${suffix}.${file.extension}` }
+}
