@@ -1,0 +1,65 @@
+import { ref, watch, type Ref } from 'vue'
+import { ApiError } from '@/api/http'
+import { claimQueueItem, listQueue, nextQueueItem, type QueueFilters } from '@/api/queue'
+import { useAsync } from './useAsync'
+
+const STORAGE_KEY = 'lineweight.queueFilters'
+
+/** The filters last used on the queue screen; Spectrum review's "next" follows the same order. */
+export function savedQueueFilters(): QueueFilters {
+  try {
+    const raw = typeof sessionStorage === 'undefined' ? null : sessionStorage.getItem(STORAGE_KEY)
+    const parsed = raw ? (JSON.parse(raw) as unknown) : null
+    return parsed && typeof parsed === 'object' ? (parsed as QueueFilters) : { order: 'oldest' }
+  } catch {
+    return { order: 'oldest' }
+  }
+}
+
+export function saveQueueFilters(filters: QueueFilters): void {
+  try {
+    sessionStorage.setItem(STORAGE_KEY, JSON.stringify(filters))
+  } catch {
+    // private mode or no storage: the queue still works, it just forgets the filters
+  }
+}
+
+/** The caller's review queue with its filters; reloads whenever a filter changes. */
+export function useQueue(initial: QueueFilters = savedQueueFilters()) {
+  const filters: Ref<QueueFilters> = ref({ ...initial })
+  const queue = useAsync(() => listQueue(filters.value))
+  watch(
+    filters,
+    (f) => {
+      saveQueueFilters(f)
+      void queue.reload()
+    },
+    { deep: true },
+  )
+  return { ...queue, filters }
+}
+
+/**
+ * Claims the item after `currentId` in the saved queue order and returns its id; null when nothing
+ * is left. An item another classifier claims first is skipped.
+ */
+export async function claimNext(currentId: number | null): Promise<number | null> {
+  const filters = savedQueueFilters()
+  let after = currentId ?? undefined
+  for (let tries = 0; tries < 20; tries++) {
+    const item = await nextQueueItem(filters, after)
+    if (!item) return null
+    try {
+      await claimQueueItem(item.spectrumId)
+      return item.spectrumId
+    } catch (e) {
+      // Claimed by someone else in the meantime, or no longer waiting: try the one after it.
+      if (e instanceof ApiError && (e.status === 409 || e.status === 404)) {
+        after = item.spectrumId
+        continue
+      }
+      throw e
+    }
+  }
+  return null
+}

@@ -1,0 +1,62 @@
+/** Reads the JSON parts of a suggestion (candidates, votes) for display, without trusting their shape. */
+
+export interface Candidate {
+  standardId: number
+  spectralType: string
+  chi2: number | null
+  reducedChi2: number | null
+  probability: number | null
+}
+
+export interface Vote {
+  criterion: string
+  name: string
+  value: number | null
+  /** The luminosity class this criterion prefers; null when it does not apply. */
+  vote: string | null
+  /** The criterion's value for each class's standards at the suggested type. */
+  standards: Record<string, number>
+  note: string | null
+}
+
+type Raw = Record<string, unknown>
+const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null)
+const str = (v: unknown): string | null => (typeof v === 'string' ? v : null)
+const isObject = (v: unknown): v is Raw => v !== null && typeof v === 'object' && !Array.isArray(v)
+
+export function readCandidates(raw: unknown): Candidate[] {
+  if (!Array.isArray(raw)) return []
+  return raw.filter(isObject).flatMap((c) => {
+    const id = num(c.standardId) ?? num(c.id)
+    if (id === null) return []
+    return [{ standardId: id, spectralType: str(c.spectralType) ?? `#${id}`, chi2: num(c.chi2), reducedChi2: num(c.reducedChi2), probability: num(c.probability) }]
+  })
+}
+
+export function readVotes(raw: unknown): Vote[] {
+  const list = Array.isArray(raw) ? raw : isObject(raw) && Array.isArray(raw.votes) ? raw.votes : []
+  return list.filter(isObject).map((v, i) => {
+    const standards: Record<string, number> = {}
+    if (isObject(v.standards)) for (const [k, x] of Object.entries(v.standards)) if (typeof x === 'number' && Number.isFinite(x)) standards[k] = x
+    return {
+      criterion: str(v.criterion) ?? str(v.id) ?? `criterion-${i}`,
+      name: str(v.name) ?? str(v.criterion) ?? 'Criterion',
+      value: num(v.value),
+      vote: str(v.vote),
+      standards,
+      note: str(v.note),
+    }
+  })
+}
+
+/** Plain words for the pipeline's quality flags. */
+export const FLAG_LABELS: Record<string, string> = {
+  'low-snr': 'Low S/N',
+  emission: 'Emission',
+  'poor-fit': 'Poor fit',
+  'outside-grid': 'Outside the grid',
+  'possible-composite': 'Possible composite',
+  'not-mk': 'White dwarf / non-MK',
+}
+
+export const flagLabel = (flag: string): string => FLAG_LABELS[flag] ?? FLAG_LABELS[flag.replace(/_/g, '-')] ?? flag.replace(/[-_]/g, ' ')
