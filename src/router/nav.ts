@@ -1,7 +1,7 @@
 import type { Role } from '@shared/roles'
 import { roleMayOpen, type AppRouteName } from './routes'
 
-export type NavIconName = 'people' | 'mail' | 'account' | 'upload' | 'spectra'
+export type NavIconName = 'people' | 'mail' | 'account' | 'upload' | 'spectra' | 'queue' | 'dispute' | 'campaign'
 
 export interface NavEntry {
   route: AppRouteName
@@ -16,6 +16,9 @@ export interface NavEntry {
 export const NAV_ENTRIES: readonly NavEntry[] = [
   { route: 'submit', label: 'Submit', icon: 'upload' },
   { route: 'spectra', label: 'My spectra', icon: 'spectra' },
+  { route: 'reviewQueue', label: 'Review queue', icon: 'queue' },
+  { route: 'disputes', label: 'Disputes', icon: 'dispute' },
+  { route: 'campaigns', label: 'Campaigns', icon: 'campaign' },
   { route: 'people', label: 'People', icon: 'people' },
   { route: 'outbox', label: 'Outbox', icon: 'mail' },
   { route: 'account', label: 'My account', icon: 'account' },
@@ -24,7 +27,7 @@ export const NAV_ENTRIES: readonly NavEntry[] = [
 /** Where each role lands after signing in, and when it opens a screen it may not see. */
 export const HOME_ROUTE: Record<Role, AppRouteName> = {
   observer: 'account',
-  classifier: 'account',
+  classifier: 'reviewQueue',
   lead: 'people',
 }
 

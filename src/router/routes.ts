@@ -15,7 +15,7 @@ declare module 'vue-router' {
 }
 
 /** Every screen's route name, so links and the nav table are checked by the compiler. */
-export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound' | 'submit' | 'spectra' | 'spectrum'
+export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound' | 'submit' | 'spectra' | 'spectrum' | 'reviewQueue' | 'spectrumReview' | 'disputes' | 'campaigns'
 
 type AppRoute = RouteRecordRaw & { name: AppRouteName }
 
@@ -31,6 +31,10 @@ export const routes: AppRoute[] = [
   { path: '/submit', name: 'submit', component: () => import('@/views/SubmitView.vue'), meta: { roles: ['observer', 'lead'], title: 'Submit' } },
   { path: '/spectra', name: 'spectra', component: () => import('@/views/MySpectraView.vue'), meta: { title: 'My spectra' } },
   { path: '/spectra/:id(\\d+)', name: 'spectrum', component: () => import('@/views/SpectrumView.vue'), meta: { title: 'Spectrum' } },
+  { path: '/review', name: 'reviewQueue', component: () => import('@/views/ReviewQueueView.vue'), meta: { roles: ['classifier', 'lead'], title: 'Review queue' } },
+  { path: '/review/:id(\\d+)', name: 'spectrumReview', component: () => import('@/views/SpectrumReviewView.vue'), meta: { roles: ['classifier', 'lead'], title: 'Spectrum review' } },
+  { path: '/disputes', name: 'disputes', component: () => import('@/views/DisputesView.vue'), meta: { roles: ['lead'], title: 'Disputes' } },
+  { path: '/campaigns', name: 'campaigns', component: () => import('@/views/CampaignsView.vue'), meta: { roles: ['lead'], title: 'Campaigns' } },
   { path: '/:pathMatch(.*)*', name: 'notFound', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Not found' } },
 ]
 
