@@ -4,6 +4,7 @@ import { currentUser } from '../middleware/auth'
 import { idParams } from '../schemas/common'
 import { dataQuery, listQuery, spectrumMetadata, submitBody } from '../schemas/spectra.schemas'
 import { getPreparedSeries, measurementsOf, requeueSpectrum } from '../services/measurements.service'
+import { visibleSuggestionsOf } from '../services/suggestions.service'
 import { getRawFile, getSpectrumDetail, getSpectrumSeries, listSpectra, submitFiles, updateSpectrumMetadata } from '../services/spectra.service'
 import { SUBMITTERS, defineRoutes } from './route'
 
@@ -46,8 +47,10 @@ export function spectraRoutes(ctx: AppContext) {
       access: 'signed-in',
       schema: { params: idParams },
       handler: async (req, res) => {
-        const spectrum = await getSpectrumDetail(currentUser(req), res.locals.params.id)
-        res.json({ spectrum, measurements: await measurementsOf(spectrum.id) })
+        const user = currentUser(req)
+        const spectrum = await getSpectrumDetail(user, res.locals.params.id)
+        const [measurements, suggestions] = await Promise.all([measurementsOf(spectrum.id), visibleSuggestionsOf(user, spectrum.id)])
+        res.json({ spectrum, measurements, suggestions })
       },
     },
     {

@@ -12,6 +12,7 @@ import type { SpectrumMetadataInput } from '../schemas/spectra.schemas'
 import { readSpectrum, unpackZip, type ReadMeta, type ReadSuccess } from '../spectra/io'
 import { estimateSpectrumSnr } from '../spectra/prepare/snr'
 import { campaignForSubmission, campaignIdsOf } from './campaigns.service'
+import { finalClassificationsFor, type FinalClassification } from './review.service'
 
 export interface UploadedFile {
   name: string
@@ -219,9 +220,11 @@ export interface SpectrumListItem {
   dispersion: number
   raDeg: number | null
   decDeg: number | null
+  /** The decided classification (agreed or settled), when there is one. */
+  classification: FinalClassification | null
 }
 
-function toListItem(s: Spectrum & { campaign?: Campaign; submitter?: User }): SpectrumListItem {
+function toListItem(s: Spectrum & { campaign?: Campaign; submitter?: User }, classification: FinalClassification | null = null): SpectrumListItem {
   return {
     id: s.id,
     objectName: s.objectName,
@@ -238,6 +241,7 @@ function toListItem(s: Spectrum & { campaign?: Campaign; submitter?: User }): Sp
     dispersion: s.dispersion,
     raDeg: s.raDeg,
     decDeg: s.decDeg,
+    classification,
   }
 }
 
@@ -281,7 +285,13 @@ export async function listSpectra(user: User, query: ListQuery): Promise<{ items
     limit: query.pageSize,
     offset: (query.page - 1) * query.pageSize,
   })
-  return { items: rows.map((r) => toListItem(r as Spectrum & { campaign?: Campaign; submitter?: User })), total: count, page: query.page, pageSize: query.pageSize }
+  const decided = await finalClassificationsFor(rows.map((r) => r.id))
+  return {
+    items: rows.map((r) => toListItem(r as Spectrum & { campaign?: Campaign; submitter?: User }, decided.get(r.id) ?? null)),
+    total: count,
+    page: query.page,
+    pageSize: query.pageSize,
+  }
 }
 
 export interface SpectrumDetail extends SpectrumListItem {
@@ -304,9 +314,13 @@ export interface SpectrumDetail extends SpectrumListItem {
 
 export async function getSpectrumDetail(user: User, id: number): Promise<SpectrumDetail> {
   const s = await findVisibleSpectrum(user, id)
-  const [campaign, submitter] = await Promise.all([Campaign.findByPk(s.campaignId), User.findByPk(s.submittedBy, { attributes: ['id', 'name'] })])
+  const [campaign, submitter, decided] = await Promise.all([
+    Campaign.findByPk(s.campaignId),
+    User.findByPk(s.submittedBy, { attributes: ['id', 'name'] }),
+    finalClassificationsFor([s.id]),
+  ])
   return {
-    ...toListItem(Object.assign(s, { campaign: campaign ?? undefined, submitter: submitter ?? undefined })),
+    ...toListItem(Object.assign(s, { campaign: campaign ?? undefined, submitter: submitter ?? undefined }), decided.get(s.id) ?? null),
     instrument: s.instrument,
     exposureS: s.exposureS,
     resolutionFwhm: s.resolutionFwhm,

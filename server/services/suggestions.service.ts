@@ -1,7 +1,8 @@
 import { Op, type Transaction } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError, notFound } from '../lib/http-error'
-import { Campaign, ProcessingJob, Spectrum, Suggestion, type User } from '../models'
+import { Campaign, ProcessingJob, ReviewCall, Spectrum, Suggestion, type User } from '../models'
+import { isBlindFor } from './review.service'
 import type { MatchResult } from '../spectra/match'
 import { activeVersionId } from './standards.service'
 
@@ -89,6 +90,22 @@ export async function suggestionsOf(spectrumId: number): Promise<{ current: Sugg
   const all = await Suggestion.findAll({ where: { spectrumId }, order: [['id', 'DESC']] })
   const current = all.find((s) => s.isCurrent)
   return { current: current ? toSuggestionSummary(current) : null, history: all.filter((s) => !s.isCurrent).map(toSuggestionSummary) }
+}
+
+/**
+ * The suggestions as this user may see them: under blind review a classifier or lead who has not
+ * called yet gets none, however they ask (the review screen and this page alike).
+ */
+export async function visibleSuggestionsOf(user: User, spectrumId: number): Promise<{ current: SuggestionSummary | null; history: SuggestionSummary[]; hidden: boolean }> {
+  if (user.role !== 'observer') {
+    const spectrum = await Spectrum.findByPk(spectrumId, { attributes: ['id', 'campaignId', 'status'] })
+    const campaign = spectrum ? await Campaign.findByPk(spectrum.campaignId) : null
+    if (spectrum && campaign) {
+      const hasCalled = (await ReviewCall.count({ where: { spectrumId, userId: user.id } })) > 0
+      if (isBlindFor(campaign, spectrum, hasCalled)) return { current: null, history: [], hidden: true }
+    }
+  }
+  return { ...(await suggestionsOf(spectrumId)), hidden: false }
 }
 
 /**
