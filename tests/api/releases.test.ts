@@ -1,4 +1,8 @@
+import { execFileSync, spawnSync } from 'node:child_process'
 import { randomBytes } from 'node:crypto'
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Campaign, Classification, LibraryVersion, Measurement, Release, ReleaseRow, ReviewCall, Spectrum, Suggestion, type User } from '../../server/models'
 import { DERIVED_CAUTION } from '../../server/services/derived.service'
@@ -184,6 +188,36 @@ describe('GET /api/releases/:id/download', () => {
     expect(bad.body.error.details.fields.format).toBe('must be one of csv, votable, fits, mrt')
     await lead.agent.get('/api/releases/999999999/download?format=csv').expect(404)
   })
+})
+
+// Debian's Python with astropy (tests/reference/check_exports.py); the check is skipped where it is missing.
+const hasAstropy = spawnSync('/usr/bin/python3', ['-c', 'import astropy'], { stdio: 'ignore' }).status === 0
+
+describe('a downloaded release read back with astropy', () => {
+  it.skipIf(!hasAstropy)('has every column, unit, UCD and value of the release in all four formats', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'lw-release-'))
+    try {
+      const detail = (await lead.agent.get(`/api/releases/${first.id}`).expect(200)).body
+      writeFileSync(join(dir, 'expected.json'), JSON.stringify({ columns: detail.columns, params: detail.params, rows: detail.rows }))
+      const names = { votable: 'catalogue.vot', fits: 'catalogue.fits', csv: 'catalogue.csv', mrt: 'catalogue.mrt.txt' }
+      for (const [format, name] of Object.entries(names)) writeFileSync(join(dir, name), (await download(lead, first.id, format).expect(200)).body as Buffer)
+      const report = join(dir, 'report.json')
+      try {
+        execFileSync('/usr/bin/python3', ['tests/reference/check_exports.py', '--downloads', dir, report], { stdio: 'pipe', timeout: 60_000 })
+      } catch {
+        // the report below says what failed
+      }
+      const result = JSON.parse(readFileSync(report, 'utf8')) as { ok: boolean; checks: Array<{ file: string; ok: boolean; valuesCompared: number; problems: string[] }> }
+      for (const c of result.checks) {
+        expect(c.problems, c.file).toEqual([])
+        expect(c.valuesCompared, c.file).toBe(detail.columns.length * 3)
+      }
+      expect(result.checks.map((c) => c.file)).toEqual(['catalogue.vot', 'catalogue.fits', 'catalogue.csv', 'catalogue.mrt.txt'])
+      expect(result.ok).toBe(true)
+    } finally {
+      rmSync(dir, { recursive: true, force: true })
+    }
+  }, 60_000)
 })
 
 describe('a frozen release', () => {
