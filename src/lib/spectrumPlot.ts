@@ -108,17 +108,19 @@ export function markersPlugin(getMarkers: () => readonly PlotMarker[], palette: 
             const x = Math.round(u.valToPos(m.wavelength, 'x', true)) + 0.5
             const colour = m.color ?? (m.family ? colours.families[m.family] : colours.axis)
             const textWidth = ctx.measureText(m.label).width
-            let row = rows.findIndex((right) => right < x - textWidth / 2 - 4 * ratio)
-            if (row < 0) row = rows.indexOf(Math.min(...rows))
-            rows[row] = x + textWidth / 2
-            const labelTop = top + 2 * ratio + row * rowHeight
-            ctx.fillStyle = colours.markerText
-            ctx.fillText(m.label, x, labelTop)
+            // No free row: the line is drawn without its label rather than over another one (zoom in to read it).
+            const row = rows.findIndex((right) => right < x - textWidth / 2 - 4 * ratio)
+            const labelTop = top + 2 * ratio + Math.max(row, 0) * rowHeight
+            if (row >= 0) {
+              rows[row] = x + textWidth / 2
+              ctx.fillStyle = colours.markerText
+              ctx.fillText(m.label, x, labelTop)
+            }
             ctx.strokeStyle = colour
             ctx.lineWidth = ratio
             ctx.setLineDash([4 * ratio, 3 * ratio])
             ctx.beginPath()
-            ctx.moveTo(x, labelTop + rowHeight - 2 * ratio)
+            ctx.moveTo(x, row >= 0 ? labelTop + rowHeight - 2 * ratio : top + 3 * rowHeight)
             ctx.lineTo(x, top + height)
             ctx.stroke()
           }
