@@ -1,7 +1,7 @@
 import type { Role } from '@shared/roles'
 import { roleMayOpen, type AppRouteName } from './routes'
 
-export type NavIconName = 'people' | 'mail' | 'account' | 'upload' | 'spectra' | 'queue' | 'dispute' | 'campaign'
+export type NavIconName = 'people' | 'mail' | 'account' | 'upload' | 'spectra' | 'queue' | 'dispute' | 'campaign' | 'standards' | 'audit' | 'release'
 
 export interface NavEntry {
   route: AppRouteName
@@ -19,6 +19,9 @@ export const NAV_ENTRIES: readonly NavEntry[] = [
   { route: 'reviewQueue', label: 'Review queue', icon: 'queue' },
   { route: 'disputes', label: 'Disputes', icon: 'dispute' },
   { route: 'campaigns', label: 'Campaigns', icon: 'campaign' },
+  { route: 'standards', label: 'Standards library', icon: 'standards' },
+  { route: 'audit', label: 'Agreement audit', icon: 'audit' },
+  { route: 'releases', label: 'Catalogue releases', icon: 'release' },
   { route: 'people', label: 'People', icon: 'people' },
   { route: 'outbox', label: 'Outbox', icon: 'mail' },
   { route: 'account', label: 'My account', icon: 'account' },

@@ -15,7 +15,7 @@ declare module 'vue-router' {
 }
 
 /** Every screen's route name, so links and the nav table are checked by the compiler. */
-export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound' | 'submit' | 'spectra' | 'spectrum' | 'reviewQueue' | 'spectrumReview' | 'disputes' | 'campaigns'
+export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound' | 'submit' | 'spectra' | 'spectrum' | 'reviewQueue' | 'spectrumReview' | 'disputes' | 'campaigns' | 'standards' | 'audit' | 'releases' | 'release'
 
 type AppRoute = RouteRecordRaw & { name: AppRouteName }
 
@@ -35,6 +35,10 @@ export const routes: AppRoute[] = [
   { path: '/review/:id(\\d+)', name: 'spectrumReview', component: () => import('@/views/SpectrumReviewView.vue'), meta: { roles: ['classifier', 'lead'], title: 'Spectrum review' } },
   { path: '/disputes', name: 'disputes', component: () => import('@/views/DisputesView.vue'), meta: { roles: ['lead'], title: 'Disputes' } },
   { path: '/campaigns', name: 'campaigns', component: () => import('@/views/CampaignsView.vue'), meta: { roles: ['lead'], title: 'Campaigns' } },
+  { path: '/standards', name: 'standards', component: () => import('@/views/StandardsView.vue'), meta: { roles: ['classifier', 'lead'], title: 'Standards library' } },
+  { path: '/audit', name: 'audit', component: () => import('@/views/AuditView.vue'), meta: { roles: ['lead'], title: 'Agreement audit' } },
+  { path: '/releases', name: 'releases', component: () => import('@/views/ReleasesView.vue'), meta: { title: 'Catalogue releases' } },
+  { path: '/releases/:id(\\d+)', name: 'release', component: () => import('@/views/ReleasesView.vue'), meta: { title: 'Catalogue release' } },
   { path: '/:pathMatch(.*)*', name: 'notFound', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Not found' } },
 ]
 
