@@ -47,12 +47,10 @@ export const fetchPrepared = (spectrumId: number, maxPoints = 6000) => fetchSeri
 /** A standard's rectified series on the library grid. */
 export const fetchStandardSeries = (standardId: number, maxPoints = 6000) => fetchSeries(`/standards/${standardId}/data`, { maxPoints })
 
-/** The standards of the active library version that are still in use, for overlays. */
+/** Every standard still in use (any library version), for overlays. */
 export async function listOverlayStandards(): Promise<OverlayStandardSummary[]> {
-  const body = await http.get<{ activeVersionId?: number | null; standards?: Array<Partial<OverlayStandardSummary> & { versionIds?: number[] }> }>('/standards')
-  const active = body.activeVersionId ?? null
+  const body = await http.get<{ standards?: Array<Partial<OverlayStandardSummary>> }>('/standards')
   return (body.standards ?? [])
-    .filter((s): s is OverlayStandardSummary & { versionIds?: number[] } => typeof s.id === 'number' && typeof s.typeCode === 'number' && typeof s.classCode === 'number' && !s.retiredAt)
-    .filter((s) => active === null || !Array.isArray(s.versionIds) || s.versionIds.includes(active))
+    .filter((s): s is OverlayStandardSummary => typeof s.id === 'number' && typeof s.typeCode === 'number' && typeof s.classCode === 'number' && !s.retiredAt)
     .map((s) => ({ id: s.id, spectralType: s.spectralType ?? '', typeCode: s.typeCode, luminosityClass: s.luminosityClass ?? '', classCode: s.classCode, source: s.source === 'observed' ? 'observed' : 'model', retiredAt: null }))
 }
