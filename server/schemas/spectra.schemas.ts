@@ -3,10 +3,14 @@ import { parseDeclination, parseRightAscension } from '../../shared/coords'
 import { SPECTRUM_STATUSES } from '../../shared/status'
 import { paging } from './paging'
 
+/**
+ * An optional number: absent or '' leaves the stored value alone, null clears it (a JSON PATCH can say
+ * "no V magnitude" that way; multipart forms never send null, so on upload it only means "not given").
+ */
 const optionalNumber = (min: number, max: number, what: string) =>
   z.preprocess(
-    (v) => (v === '' || v === null || v === undefined ? undefined : v),
-    z.coerce.number({ message: `must be a number` }).min(min, `${what} must be at least ${min}`).max(max, `${what} must be at most ${max}`).optional(),
+    (v) => (v === '' || v === undefined ? undefined : v),
+    z.coerce.number({ message: `must be a number` }).min(min, `${what} must be at least ${min}`).max(max, `${what} must be at most ${max}`).nullable().optional(),
   )
 const optionalText = (max: number) => z.preprocess((v) => (v === null ? undefined : v), z.string().trim().max(max).optional())
 const ra = z.string().trim().max(40).refine((v) => v === '' || parseRightAscension(v).ok, { message: 'must be hh:mm:ss or degrees (0–360)' })

@@ -348,8 +348,12 @@ export async function updateSpectrumMetadata(user: User, id: number, input: Spec
   if (input.ra !== undefined) changes.raDeg = input.ra === '' ? null : (parseRightAscension(input.ra) as { degrees: number }).degrees
   if (input.dec !== undefined) changes.decDeg = input.dec === '' ? null : (parseDeclination(input.dec) as { degrees: number }).degrees
   if (input.obsDate !== undefined) changes.obsDate = input.obsDate === '' ? null : new Date(input.obsDate)
-  for (const key of ['instrument', 'resolutionFwhm', 'resolvingPower', 'vMag', 'parallaxMas', 'parallaxErrorMas', 'ebv', 'notes'] as const) {
-    if (input[key] !== undefined) (changes as Record<string, unknown>)[key] = input[key]
+  if (input.instrument !== undefined) changes.instrument = input.instrument
+  if (input.notes !== undefined) changes.notes = input.notes
+  // Numbers: undefined leaves the stored value, null clears it.
+  for (const key of ['resolutionFwhm', 'resolvingPower', 'vMag', 'parallaxMas', 'parallaxErrorMas', 'ebv'] as const) {
+    const value = input[key]
+    if (value !== undefined) changes[key] = value
   }
   await s.update(changes)
   return getSpectrumDetail(user, id)

@@ -178,4 +178,31 @@ describe('PATCH /api/spectra/:id', () => {
     const blobAfter = await SpectrumBlob.findByPk(id)
     expect(Buffer.compare(blobBefore!.flux, blobAfter!.flux)).toBe(0)
   })
+
+  it('clears a number given as null and leaves one sent empty or not at all', async () => {
+    const res = await post(observer).field('vMag', '8.3').field('ebv', '0.12').field('parallaxMas', '2.5').attach('files', syntheticTextSpectrum(seed++), 'clear.txt').expect(200)
+    const id = res.body.results[0].spectrumId
+    const before = await Spectrum.findByPk(id)
+    expect(before).toMatchObject({ vMag: 8.3, parallaxMas: 2.5 })
+    expect(before!.ebv).toBeCloseTo(0.12, 6)
+
+    const patched = await observer.agent.patch(`/api/spectra/${id}`).set('x-csrf-token', observer.csrf).send({ vMag: null, ebv: '', notes: 'cloud at the end' }).expect(200)
+    expect(patched.body.spectrum.vMag).toBeNull()
+    expect(patched.body.spectrum.ebv).toBeCloseTo(0.12, 6)
+    expect(patched.body.spectrum.parallaxMas).toBe(2.5)
+
+    const after = await Spectrum.findByPk(id)
+    expect(after!.vMag).toBeNull()
+    expect(after!.ebv).toBeCloseTo(0.12, 6)
+    expect(after!.parallaxMas).toBe(2.5)
+    expect(after!.notes).toBe('cloud at the end')
+  })
+
+  it('still refuses a number out of range rather than clearing it', async () => {
+    const res = await post(observer).field('vMag', '9.1').attach('files', syntheticTextSpectrum(seed++), 'range.txt').expect(200)
+    const id = res.body.results[0].spectrumId
+    const refused = await observer.agent.patch(`/api/spectra/${id}`).set('x-csrf-token', observer.csrf).send({ vMag: 99 }).expect(422)
+    expect(refused.body.error.details).toBeTruthy()
+    expect((await Spectrum.findByPk(id))!.vMag).toBe(9.1)
+  })
 })
