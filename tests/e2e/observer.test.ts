@@ -88,7 +88,7 @@ describe('the observer submits a night and looks at a spectrum', () => {
           await page.getByTestId('spectrum-plot-observed').locator('canvas').waitFor()
           return (await page.getByTestId('spectrum-plot-rectified').count()) > 0
         },
-        { timeout: 60_000, intervals: [1000, 2000, 3000] },
+        { timeout: 60_000, interval: 2000 },
       )
       .toBe(true)
     await page.getByTestId('spectrum-plot-rectified').locator('canvas').waitFor()
