@@ -1,0 +1,93 @@
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { openBrowser, screenshot } from './browser'
+
+// A lead settles a dispute of the seeded demo; the observer who submitted the spectrum sees the
+// result, and the mail that tells them is in the Outbox. The dispute is picked from the list.
+const baseUrl = inject('baseUrl')
+const LEAD = { email: 'lead@kestrel-ridge.example', password: 'lead-demo-2026' }
+const OBSERVER = { email: 'observer@kestrel-ridge.example', password: 'observer-demo-2026' }
+let browser: Awaited<ReturnType<typeof openBrowser>>
+
+beforeAll(async () => {
+  browser = await openBrowser()
+})
+afterAll(async () => {
+  await browser.close()
+})
+
+async function signIn(page: Page, who: { email: string; password: string }) {
+  await page.context().clearCookies()
+  await page.goto(`${baseUrl}/sign-in`)
+  await page.getByTestId('signin-email').fill(who.email)
+  await page.getByTestId('signin-password').fill(who.password)
+  await page.getByTestId('signin-password').press('Enter')
+  await page.getByTestId('user-name').waitFor()
+}
+
+describe('settling a dispute', () => {
+  let settled: { spectrumId: number; objectName: string; type: string } | null = null
+
+  it('lets the lead compare the calls and settle one', async () => {
+    const { page } = browser
+    // Prefer a dispute on a spectrum the demo observer submitted, so the rest of the journey can follow it.
+    await signIn(page, OBSERVER)
+    const mine = (await (await page.request.get(`${baseUrl}/api/spectra?status=disputed&pageSize=100`)).json()) as { items: { id: number }[] }
+    const theirs = new Set(mine.items.map((s) => s.id))
+
+    await signIn(page, LEAD)
+    await page.goto(`${baseUrl}/disputes`)
+    await page.getByTestId('dispute-row').first().waitFor()
+    const rows = await page.getByTestId('dispute-row').evaluateAll((els) => els.map((e) => Number(e.getAttribute('data-spectrum-id'))))
+    const pick = rows.findIndex((id) => theirs.has(id))
+    const row = page.getByTestId('dispute-row').nth(Math.max(0, pick))
+    const spectrumId = Number(await row.getAttribute('data-spectrum-id'))
+    await row.click()
+    await page.getByTestId('dispute-detail').waitFor()
+    expect(await page.getByTestId('dispute-call').count()).toBeGreaterThanOrEqual(2)
+    await page.getByTestId('dispute-plot').waitFor()
+    await screenshot(page, 'dispute-detail')
+
+    await page.getByTestId('settle-submit').click()
+    await page.getByText('Say why you settled it this way.').waitFor()
+
+    await page.getByTestId('settle-preset').first().click()
+    await page.getByTestId('settle-note').fill('The Balmer wings and Ca II K agree with the first call.')
+    const preview = (await page.getByText(/Settles as/).textContent()) ?? ''
+    const type = preview.replace('Settles as', '').trim()
+    const objectName = (await page.locator('.disputes__title').textContent())?.trim() ?? ''
+    await page.getByTestId('settle-submit').click()
+    await page.getByText(`is settled as ${type}`).waitFor()
+
+    const after = (await (await page.request.get(`${baseUrl}/api/disputes?state=settled`)).json()) as { disputes: { spectrum: { id: number }; settlement: { spectralType: string } | null }[] }
+    const found = after.disputes.find((d) => d.spectrum.id === spectrumId)
+    expect(found?.settlement?.spectralType).toBe(type)
+    await page.getByTestId('disputes-show').getByText('Settled').click()
+    await page.locator(`[data-testid="dispute-row"][data-spectrum-id="${spectrumId}"][data-state="settled"]`).click()
+    await page.getByTestId('dispute-settlement').waitFor()
+    await screenshot(page, 'dispute-settled')
+    settled = { spectrumId, objectName, type }
+  })
+
+  it('shows the observer the settled classification', async (ctx) => {
+    const { page } = browser
+    if (!settled) return ctx.skip()
+    await signIn(page, OBSERVER)
+    const res = await page.request.get(`${baseUrl}/api/spectra/${settled.spectrumId}`)
+    if (res.status() !== 200) return ctx.skip()
+    await page.goto(`${baseUrl}/spectra/${settled.spectrumId}`)
+    await expect.poll(async () => (await page.getByTestId('spectrum-classification').textContent()) ?? '').toContain(settled.type)
+    await screenshot(page, 'observer-settled')
+  })
+
+  it('puts the mail to the observer in the Outbox', async (ctx) => {
+    const { page } = browser
+    if (!settled) return ctx.skip()
+    await signIn(page, LEAD)
+    await page.goto(`${baseUrl}/outbox`)
+    const row = page.getByTestId('outbox-row').filter({ hasText: `${settled.objectName} is classified ${settled.type}` })
+    await row.first().waitFor()
+    await row.first().click()
+    await screenshot(page, 'outbox-settled-mail')
+  })
+})

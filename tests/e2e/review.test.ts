@@ -1,0 +1,144 @@
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { openBrowser, screenshot } from './browser'
+
+// A classifier of the seeded demo works three queue items with the keyboard alone: no clicks
+// after signing in. Items are taken from the queue as the server orders it, never by fixed id.
+const baseUrl = inject('baseUrl')
+const CLASSIFIER = { email: 'classifier@kestrel-ridge.example', password: 'classifier-demo-2026' }
+let browser: Awaited<ReturnType<typeof openBrowser>>
+
+beforeAll(async () => {
+  browser = await openBrowser()
+})
+afterAll(async () => {
+  await browser.close()
+})
+
+async function signIn(page: Page, who: { email: string; password: string }) {
+  await page.context().clearCookies()
+  await page.goto(`${baseUrl}/sign-in`)
+  await page.getByTestId('signin-email').fill(who.email)
+  await page.getByTestId('signin-password').fill(who.password)
+  await page.getByTestId('signin-password').press('Enter')
+  await page.getByTestId('user-name').waitFor()
+}
+
+const reviewId = (page: Page): number | null => {
+  const m = /\/review\/(\d+)$/.exec(new URL(page.url()).pathname)
+  return m ? Number(m[1]) : null
+}
+
+describe('Spectrum review from the keyboard', () => {
+  const called: number[] = []
+
+  it('lands the classifier on the review queue, with the items that need a call', async () => {
+    const { page } = browser
+    await signIn(page, CLASSIFIER)
+    await page.waitForURL(`${baseUrl}/review`)
+    await page.getByTestId('queue-row').first().waitFor()
+    expect(await page.getByTestId('queue-row').count()).toBeGreaterThanOrEqual(3)
+    await screenshot(page, 'review-queue')
+  })
+
+  it('reviews three spectra in a row using only keys', async () => {
+    const { page } = browser
+    await page.locator('body').focus()
+    await page.keyboard.press('n')
+    await page.waitForURL(/\/review\/\d+$/)
+
+    for (let k = 0; k < 3; k++) {
+      const id = reviewId(page)
+      expect(id).not.toBeNull()
+      await page.getByTestId('call-form').waitFor()
+      await page.getByTestId('review-plot').waitFor()
+      await page.getByTestId('key-legend').waitFor()
+      const blind = await page.getByTestId('blind-note').isVisible()
+
+      if (k === 0) {
+        // Overlay keys: choose a standard by type, then step to its neighbours; zoom to Hδ.
+        await page.keyboard.press('s')
+        await page.keyboard.type('A0 V')
+        await page.keyboard.press('Enter')
+        await page.keyboard.press('Escape')
+        await expect.poll(() => page.getByTestId('overlay-current').textContent()).toContain('A0 V')
+        await page.keyboard.press('.')
+        await expect.poll(() => page.getByTestId('overlay-current').textContent()).toContain('one subtype later')
+        await page.keyboard.press('-')
+        await expect.poll(() => page.getByTestId('overlay-current').textContent()).toContain('one class brighter')
+        await page.keyboard.press('2')
+        await expect.poll(() => page.getByTestId('zoom-hdelta').getAttribute('class')).toContain('--on')
+        await page.keyboard.press('Shift+M')
+        await page.getByTestId('review-plot-residual').waitFor()
+        await screenshot(page, blind ? 'review-blind' : 'review-spectrum')
+        await page.keyboard.press('0')
+      }
+
+      if (blind) {
+        expect(await page.getByTestId('call-accept').count()).toBe(0)
+        expect(await page.getByTestId('suggestion-type').count()).toBe(0)
+      }
+      if (!blind && (await page.getByTestId('call-accept').isVisible())) {
+        await page.keyboard.press('a')
+      } else {
+        await page.keyboard.press('t')
+        await page.keyboard.type(k === 1 ? 'B9.5' : 'A1')
+        await page.keyboard.press('Tab')
+        await page.keyboard.type(k === 1 ? 'IV' : 'V')
+        await page.keyboard.press('Alt+3')
+        if (k === 2) {
+          await page.keyboard.press('Escape')
+          await page.keyboard.press('Control+Enter')
+        } else await page.keyboard.press('Enter')
+      }
+      try {
+        await page.waitForURL((url) => url.pathname !== `/review/${id}`, { timeout: 15_000 })
+      } catch (e) {
+        await screenshot(page, `review-stuck-${k}`)
+        throw e
+      }
+      called.push(id!)
+    }
+    await screenshot(page, 'review-after-three')
+  })
+
+  it('recorded one call of the classifier on each, and the queue no longer offers them', async () => {
+    const { page } = browser
+    for (const id of called) {
+      const res = await page.request.get(`${baseUrl}/api/spectra/${id}/review`)
+      expect(res.status()).toBe(200)
+      const body = (await res.json()) as { myCall: { confidence: number; spectralType: string } | null }
+      expect(body.myCall).not.toBeNull()
+    }
+    const queue = (await (await page.request.get(`${baseUrl}/api/queue`)).json()) as { items: { spectrumId: number }[] }
+    for (const id of called) expect(queue.items.map((i) => i.spectrumId)).not.toContain(id)
+  })
+
+  it('shows the spectrum’s history in the side tab', async () => {
+    const { page } = browser
+    await page.goto(`${baseUrl}/review/${called[0]}`)
+    await page.getByTestId('call-closed').waitFor()
+    await page.locator('.n-tabs-tab', { hasText: 'History' }).click()
+    await page.getByTestId('history-event').first().waitFor()
+    const kinds = await page.getByTestId('history-event').evaluateAll((els) => els.map((e) => e.getAttribute('data-kind')))
+    expect(kinds[0]).toBe('upload')
+    expect(kinds).toContain('call')
+    await screenshot(page, 'review-history')
+  })
+
+  it('looks right in the dark theme', async () => {
+    const { page } = browser
+    await page.evaluate("localStorage.setItem('lineweight.theme', 'dark')")
+    await page.goto(`${baseUrl}/review`)
+    await page.getByTestId('queue-filters').waitFor()
+    await screenshot(page, 'review-queue-dark')
+    const first = page.getByTestId('queue-row').first()
+    if (await first.count()) {
+      await first.click()
+      await page.getByTestId('review-plot').waitFor()
+      await page.waitForTimeout(500)
+      await screenshot(page, 'review-spectrum-dark')
+    }
+    await page.evaluate("localStorage.removeItem('lineweight.theme')")
+  })
+})
