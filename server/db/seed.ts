@@ -7,6 +7,7 @@ import { startFakeSmtp } from '../mail/fake-smtp'
 import { createMailer } from '../mail/mailer'
 import { Campaign, CampaignMember, Dispute, Spectrum, User } from '../models'
 import { settleDispute } from '../services/disputes.service'
+import { createRelease } from '../services/releases.service'
 import { recordCall } from '../services/review.service'
 import { submitFiles } from '../services/spectra.service'
 import { ensureDefaultLibrary } from '../services/standards.service'
@@ -113,6 +114,11 @@ async function seedDemoSpectra(sequelize: Sequelize, config: Config, people: See
     }
     await runner.idle()
     await walkToStates(ctx, people, ids, now)
+    await createRelease(people.users['lead@kestrel-ridge.example']!, {
+      campaignId: people.survey.id,
+      title: 'Northern Fields Survey 2026, early release',
+      description: 'The spectra agreed or settled in the first weeks of the survey.',
+    })
   } finally {
     await runner.stop()
     mailer.close()
