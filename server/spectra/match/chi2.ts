@@ -55,7 +55,10 @@ export const DEPTH_SCALE_BOUNDS: readonly [number, number] = [0.6, 1.4]
  * (the model Balmer lines are too strong, templates/README.md; metallicity) so that line ratios
  * and shapes decide the type. b is held within {@link DEPTH_SCALE_BOUNDS} (a refitted at the
  * bound), so a weak-lined standard cannot be stretched into a strong-lined one.
- * Writes χ², b and the pixel count per standard into the output arrays (no allocation).
+ * Pixels with weight ≤ 0 are left out; a row with missing (NaN) pixels is summed over the
+ * pixels it shares with the spectrum.
+ * Writes χ², b and the pixel count per standard into the output arrays (no allocation after
+ * the first call of a given size).
  */
 export function depthScaledChiSquareRows(
   flux: Float64Array,
@@ -68,69 +71,157 @@ export function depthScaledChiSquareRows(
   scale: Float64Array,
   used: Float64Array,
 ): void {
-  const count = chi2.length
-  const [bMin, bMax] = DEPTH_SCALE_BOUNDS
-  // Sums that do not depend on the standard.
+  depthScaledChiSquareSelected(flux, weights, rows, pixels, from, to, identityList(chi2.length), chi2.length, chi2, scale, used)
+}
+
+/**
+ * As {@link depthScaledChiSquareRows}, but only for the rows `list[0 … count)`; the other
+ * entries of the output arrays are left as they are. Four rows are summed in one pass over the
+ * spectrum, so each weight and flux value is loaded once for four standards (the loop is bound
+ * by loads and by the latency of the running sums, not by arithmetic).
+ * @param list row numbers into `rows`; @param count how many of them to use
+ */
+export function depthScaledChiSquareSelected(
+  flux: Float64Array,
+  weights: Float64Array,
+  rows: Float32Array,
+  pixels: number,
+  from: number,
+  to: number,
+  list: Int32Array,
+  count: number,
+  chi2: Float64Array,
+  scale: Float64Array,
+  used: Float64Array,
+): void {
+  const width = to - from
+  // Weight and flux set to 0 where a pixel is not used, so the inner loops need no branch.
+  const wv = scratchWeights(width)
+  const fv = scratchFlux(width)
+  const sums = scratchSums
+  let m = 0
   let S = 0
   let Sf = 0
   let Sff = 0
-  for (let i = from; i < to; i++) {
-    const w = weights[i]!
-    if (w <= 0) continue
-    S += w
-    Sf += w * flux[i]!
-    Sff += w * flux[i]! * flux[i]!
-  }
-  // Usable columns, gathered once so the inner loop has no branch on the weight.
-  const cols = scratchColumns(to - from)
-  const wv = scratchWeights(to - from)
-  const fv = scratchFlux(to - from)
-  let m = 0
-  for (let i = from; i < to; i++) {
-    if (weights[i]! > 0) {
-      cols[m] = i
-      wv[m] = weights[i]!
-      fv[m] = flux[i]!
+  for (let k = 0; k < width; k++) {
+    const w = weights[from + k]!
+    if (w > 0) {
+      const f = flux[from + k]!
+      wv[k] = w
+      fv[k] = f
+      S += w
+      Sf += w * f
+      Sff += w * f * f
       m++
+    } else {
+      wv[k] = 0
+      fv[k] = 0
     }
   }
-  for (let s = 0; s < count; s++) {
-    const base = s * pixels
+  sums[0] = S
+  sums[1] = Sf
+  sums[2] = Sff
+  sums[3] = m
+  let q = 0
+  for (; q + 4 <= count; q += 4) {
+    const r0 = list[q]!
+    const r1 = list[q + 1]!
+    const r2 = list[q + 2]!
+    const r3 = list[q + 3]!
+    const b0 = r0 * pixels + from
+    const b1 = r1 * pixels + from
+    const b2 = r2 * pixels + from
+    const b3 = r3 * pixels + from
+    let t0 = 0, ft0 = 0, tt0 = 0, t1 = 0, ft1 = 0, tt1 = 0, t2 = 0, ft2 = 0, tt2 = 0, t3 = 0, ft3 = 0, tt3 = 0
+    for (let k = 0; k < width; k++) {
+      const w = wv[k]!
+      const f = fv[k]!
+      const a0 = rows[b0 + k]!
+      const a1 = rows[b1 + k]!
+      const a2 = rows[b2 + k]!
+      const a3 = rows[b3 + k]!
+      let wt = w * a0
+      t0 += wt
+      ft0 += wt * f
+      tt0 += wt * a0
+      wt = w * a1
+      t1 += wt
+      ft1 += wt * f
+      tt1 += wt * a1
+      wt = w * a2
+      t2 += wt
+      ft2 += wt * f
+      tt2 += wt * a2
+      wt = w * a3
+      t3 += wt
+      ft3 += wt * f
+      tt3 += wt * a3
+    }
+    solveRow(r0, t0, ft0, tt0, flux, weights, rows, pixels, from, to, chi2, scale, used)
+    solveRow(r1, t1, ft1, tt1, flux, weights, rows, pixels, from, to, chi2, scale, used)
+    solveRow(r2, t2, ft2, tt2, flux, weights, rows, pixels, from, to, chi2, scale, used)
+    solveRow(r3, t3, ft3, tt3, flux, weights, rows, pixels, from, to, chi2, scale, used)
+  }
+  for (; q < count; q++) {
+    const r = list[q]!
+    const b = r * pixels + from
     let St = 0
     let Sft = 0
     let Stt = 0
-    for (let k = 0; k < m; k++) {
-      const t = rows[base + cols[k]!]!
+    for (let k = 0; k < width; k++) {
+      const t = rows[b + k]!
       const wt = wv[k]! * t
       St += wt
       Sft += wt * fv[k]!
       Stt += wt * t
     }
-    used[s] = m
-    if (St !== St) {
-      // Some template pixels are missing (observed standards with gaps): sum over the shared pixels.
-      used[s] = scaledPair(flux, weights, rows, base, from, to, chi2, scale, s)
-      continue
-    }
-    const det = S * Stt - St * St
-    if (m < 3 || !(det > 0)) {
-      chi2[s] = Infinity
-      scale[s] = Number.NaN
-      continue
-    }
-    let b = (S * Sft - St * Sf) / det
-    if (b < bMin) b = bMin
-    if (b > bMax) b = bMax
-    const a = (Sf - b * St) / S
-    chi2[s] = Math.max(0, Sff - 2 * a * Sf - 2 * b * Sft + a * a * S + 2 * a * b * St + b * b * Stt)
-    scale[s] = b
+    solveRow(r, St, Sft, Stt, flux, weights, rows, pixels, from, to, chi2, scale, used)
   }
 }
 
-let colBuf = new Int32Array(0)
+/** Spectrum sums S, Σwf, Σwf², pixel count of the last {@link depthScaledChiSquareSelected} call. */
+const scratchSums = new Float64Array(4)
+
+/** Solves the 2 × 2 normal equations of one row from its sums (spectrum sums in scratchSums). */
+function solveRow(
+  s: number, St: number, Sft: number, Stt: number,
+  flux: Float64Array, weights: Float64Array, rows: Float32Array, pixels: number, from: number, to: number,
+  chi2: Float64Array, scale: Float64Array, used: Float64Array,
+): void {
+  const S = scratchSums[0]!
+  const Sf = scratchSums[1]!
+  const Sff = scratchSums[2]!
+  const m = scratchSums[3]!
+  used[s] = m
+  if (St !== St) {
+    // Some template pixels are missing (observed standards with gaps): sum over the shared pixels.
+    used[s] = scaledPair(flux, weights, rows, s * pixels, from, to, chi2, scale, s)
+    return
+  }
+  const det = S * Stt - St * St
+  if (m < 3 || !(det > 0)) {
+    chi2[s] = Infinity
+    scale[s] = Number.NaN
+    return
+  }
+  let b = (S * Sft - St * Sf) / det
+  if (b < DEPTH_SCALE_BOUNDS[0]) b = DEPTH_SCALE_BOUNDS[0]
+  if (b > DEPTH_SCALE_BOUNDS[1]) b = DEPTH_SCALE_BOUNDS[1]
+  const a = (Sf - b * St) / S
+  chi2[s] = Math.max(0, Sff - 2 * a * Sf - 2 * b * Sft + a * a * S + 2 * a * b * St + b * b * Stt)
+  scale[s] = b
+}
+
+let idBuf = new Int32Array(0)
 let wBuf = new Float64Array(0)
 let fBuf = new Float64Array(0)
-const scratchColumns = (n: number) => (colBuf.length >= n ? colBuf : (colBuf = new Int32Array(n)))
+function identityList(n: number): Int32Array {
+  if (idBuf.length < n) {
+    idBuf = new Int32Array(n)
+    for (let i = 0; i < n; i++) idBuf[i] = i
+  }
+  return idBuf
+}
 const scratchWeights = (n: number) => (wBuf.length >= n ? wBuf : (wBuf = new Float64Array(n)))
 const scratchFlux = (n: number) => (fBuf.length >= n ? fBuf : (fBuf = new Float64Array(n)))
 

@@ -1,7 +1,7 @@
 import { DEFAULT_CLASSIFICATION_REGION } from '../../../shared/grid'
 import { formatMK, formatTypeCode, parseMK, typeFromCode } from '../../../shared/mk'
 import type { LineMeasurement } from '../measure/types'
-import { depthScaledChiSquareRows, parabolaVertex } from './chi2'
+import { depthScaledChiSquareRows, depthScaledChiSquareSelected, parabolaVertex } from './chi2'
 import { CRITERIA, criterionNoise, criterionValue, lowerBound } from './criteria'
 import { nearestLevel, type LibraryLevel, type PreparedMatchLibrary } from './library'
 
@@ -46,6 +46,15 @@ export interface MatchOptions {
   lowSnr?: number
   /** Reduced χ² (noise plus model error) above which 'poor-fit' is set. @default 4 */
   poorFit?: number
+  /**
+   * Full χ² for every standard instead of the two-stage search (coarse screening on every
+   * `coarseStep`-th pixel, then the full χ² for the plausible standards). @default false
+   */
+  exhaustive?: boolean
+  /** Standards always refined with the full χ² in the two-stage search. @default 32 */
+  refineCount?: number
+  /** Screened log-probability margin within which standards are refined. @default 30 */
+  refineMargin?: number
 }
 
 export interface Candidate {
@@ -101,6 +110,13 @@ interface Scratch {
   chi2: Float64Array
   scale: Float64Array
   used: Float64Array
+  /** Decimated flux and weights for the coarse pass. */
+  coarseFlux: Float64Array
+  coarseWeights: Float64Array
+  /** Standards to refine, and which have an exact χ². */
+  list: Int32Array
+  exact: Uint8Array
+  sorted: Float64Array
 }
 const scratchByLibrary = new WeakMap<PreparedMatchLibrary, Scratch>()
 
@@ -114,6 +130,11 @@ function scratchFor(library: PreparedMatchLibrary): Scratch {
       chi2: new Float64Array(n),
       scale: new Float64Array(n),
       used: new Float64Array(n),
+      coarseFlux: new Float64Array(library.coarsePixels),
+      coarseWeights: new Float64Array(library.coarsePixels),
+      list: new Int32Array(n),
+      exact: new Uint8Array(n),
+      sorted: new Float64Array(n),
     }
     scratchByLibrary.set(library, s)
   }
@@ -163,11 +184,104 @@ interface LevelFit {
   best: number
 }
 
-function fitLevel(library: PreparedMatchLibrary, level: LibraryLevel, s: Scratch, from: number, to: number): LevelFit {
-  depthScaledChiSquareRows(s.flux, s.weights, level.flux, library.pixels, from, to, s.chi2, s.scale, s.used)
+/** Search settings of {@link fitLevel}. */
+interface SearchSettings {
+  exhaustive: boolean
+  refineCount: number
+  refineMargin: number
+}
+
+/**
+ * χ² of every standard at one level. Exhaustive: the full χ² of each. Otherwise in two stages:
+ * the χ² on every `coarseStep`-th pixel (scaled to the full pixel count) screens all standards,
+ * then the full χ² is computed for the best `refineCount`, for every standard whose screened
+ * log-probability lies within `refineMargin` of the best (so every standard with a
+ * non-negligible probability, p > e^−margin, is exact), and for the best point of each class
+ * with its neighbours along type (which the subtype parabola reads). Standards left out keep
+ * their screened χ²: their probabilities are below e^−margin either way.
+ */
+function fitLevel(library: PreparedMatchLibrary, level: LibraryLevel, s: Scratch, from: number, to: number, good: number, pixelsPerElement: number, search: SearchSettings): LevelFit {
+  const n = library.standards.length
+  const { list, exact, chi2 } = s
+  if (search.exhaustive || n <= 2 * search.refineCount) {
+    depthScaledChiSquareRows(s.flux, s.weights, level.flux, library.pixels, from, to, s.chi2, s.scale, s.used)
+  } else {
+    const step = library.coarseStep
+    const cp = library.coarsePixels
+    for (let j = 0; j < cp; j++) {
+      s.coarseFlux[j] = s.flux[j * step]!
+      s.coarseWeights[j] = s.weights[j * step]!
+    }
+    depthScaledChiSquareRows(s.coarseFlux, s.coarseWeights, level.coarse, cp, Math.ceil(from / step), Math.ceil(to / step), chi2, s.scale, s.used)
+    for (let k = 0; k < n; k++) {
+      const u = s.used[k]!
+      chi2[k] = u > 0 ? (chi2[k]! * good) / u : Infinity
+      s.used[k] = good
+      s.sorted[k] = chi2[k]!
+      exact[k] = 0
+    }
+    s.sorted.sort()
+    const least = s.sorted[0]!
+    const temperature = Math.max(1, least / pixelsPerElement / Math.max(1, good / pixelsPerElement - 1))
+    const threshold = Math.max(s.sorted[search.refineCount - 1]!, least + 2 * search.refineMargin * pixelsPerElement * temperature)
+    let count = 0
+    for (let k = 0; k < n; k++) {
+      if (chi2[k]! <= threshold) {
+        list[count++] = k
+        exact[k] = 1
+      }
+    }
+    count = addClassMinima(library, chi2, exact, list, count)
+    depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, from, to, list, count, chi2, s.scale, s.used)
+    // The exact values can move a class minimum to a point whose neighbours are still screened.
+    for (let round = 0; round < 3; round++) {
+      const more = addClassMinima(library, chi2, exact, list, 0)
+      if (more === 0) break
+      depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, from, to, list, more, chi2, s.scale, s.used)
+    }
+  }
   let best = 0
-  for (let k = 1; k < s.chi2.length; k++) if (s.chi2[k]! < s.chi2[best]!) best = k
-  return { level, chi2: s.chi2.slice(), scale: s.scale.slice(), used: s.used.slice(), best }
+  for (let k = 1; k < n; k++) if (chi2[k]! < chi2[best]!) best = k
+  return { level, chi2: chi2.slice(), scale: s.scale.slice(), used: s.used.slice(), best }
+}
+
+/**
+ * Appends to `list` (from `count`) every standard not yet exact at the best point of each class
+ * and at that point's neighbours along type; marks them exact. Returns the new count.
+ */
+function addClassMinima(library: PreparedMatchLibrary, chi2: Float64Array, exact: Uint8Array, list: Int32Array, count: number): number {
+  const { points } = library
+  const np = points.typeCode.length
+  const add = (p: number) => {
+    if (p < 0) return
+    for (let q = points.start[p]!; q < points.start[p + 1]!; q++) {
+      const k = points.members[q]!
+      if (exact[k] === 0) {
+        exact[k] = 1
+        list[count++] = k
+      }
+    }
+  }
+  let p = 0
+  while (p < np) {
+    // Points of one class are contiguous.
+    const cc = points.classCode[p]!
+    let bestPoint = p
+    let bestValue = Infinity
+    for (; p < np && points.classCode[p] === cc; p++) {
+      for (let q = points.start[p]!; q < points.start[p + 1]!; q++) {
+        const v = chi2[points.members[q]!]!
+        if (v < bestValue) {
+          bestValue = v
+          bestPoint = p
+        }
+      }
+    }
+    add(bestPoint)
+    add(points.earlier[bestPoint]!)
+    add(points.later[bestPoint]!)
+  }
+  return count
 }
 
 /**
@@ -204,6 +318,9 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
     criteriaWeight = 0.5,
     lowSnr = 20,
     poorFit = 4,
+    exhaustive = false,
+    refineCount = 32,
+    refineMargin = 30,
   } = options
   if (input.rectified.length !== library.grid.length) throw new Error(`spectrum has ${input.rectified.length} pixels, the library grid ${library.grid.length}`)
   const s = scratchFor(library)
@@ -212,22 +329,24 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   for (let i = from; i < to; i++) if (s.weights[i]! > 0) good++
   if (good < 10) throw new Error(`only ${good} usable pixels in the classification region ${region[0]}–${region[1]} Å`)
 
+  // Noise in neighbouring pixels is correlated over about one resolution element.
+  const centre = (region[0] + region[1]) / 2
+  const elementPixels = (l: LibraryLevel) => Math.max(1, l.fwhm / (centre * library.grid.step))
+  const search: SearchSettings = { exhaustive, refineCount: Math.max(1, refineCount), refineMargin }
   let fit: LevelFit
   if (input.fwhm !== undefined && input.fwhm > 0) {
-    fit = fitLevel(library, nearestLevel(library, input.fwhm), s, from, to)
+    const l = nearestLevel(library, input.fwhm)
+    fit = fitLevel(library, l, s, from, to, good, elementPixels(l), search)
   } else {
-    fit = fitLevel(library, library.levels[0]!, s, from, to)
+    fit = fitLevel(library, library.levels[0]!, s, from, to, good, elementPixels(library.levels[0]!), search)
     for (const level of library.levels.slice(1)) {
-      const f = fitLevel(library, level, s, from, to)
+      const f = fitLevel(library, level, s, from, to, good, elementPixels(level), search)
       if (f.chi2[f.best]! < fit.chi2[fit.best]!) fit = f
     }
   }
   const { level, chi2, scale, used, best } = fit
   const n = library.standards.length
-
-  // Noise in neighbouring pixels is correlated over about one resolution element.
-  const centre = (region[0] + region[1]) / 2
-  const pixelsPerElement = Math.max(1, level.fwhm / (centre * library.grid.step))
+  const pixelsPerElement = elementPixels(level)
   const dof = Math.max(1, used[best]! / pixelsPerElement - 1)
   const chi2Min = chi2[best]! / pixelsPerElement
   const reducedChi2 = chi2Min / dof
@@ -313,7 +432,7 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   // χ² vote: the class marginal.
   let chi2Class = bestStd.classCode
   for (const [c, p] of classP) if (p > (classP.get(chi2Class) ?? 0)) chi2Class = c
-  votes.unshift({ criterion: 'chi2', name: 'χ² class probability', value: classP.get(chi2Class) ?? null, vote: classText(chi2Class) })
+  votes.unshift({ criterion: 'chi2', name: 'χ² class probability', value: round(classP.get(chi2Class) ?? 0, 5), vote: classText(chi2Class) })
 
   // Combined class score.
   const score = new Map<number, number>()
@@ -447,8 +566,8 @@ function snapType(x: number, types: number[], j: number): number {
   return Math.min(69.5, Math.max(0, Math.round(x / step) * step))
 }
 
-/** A criterion's value for one class at a type code, interpolated linearly between that class's standards. */
-function criterionAtType(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number): number | null {
+/** A criterion's value for one class at a type code, interpolated linearly between that class's standards; null outside their types. */
+export function criterionAtType(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number): number | null {
   const n = library.standards.length
   let below: { t: number; v: number } | null = null
   let above: { t: number; v: number } | null = null

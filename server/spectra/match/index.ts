@@ -1,9 +1,10 @@
-export { scaledChiSquare, depthScaledChiSquareRows, DEPTH_SCALE_BOUNDS, parabolaVertex, type ScaledChiSquare } from './chi2'
+export { scaledChiSquare, depthScaledChiSquareRows, depthScaledChiSquareSelected, DEPTH_SCALE_BOUNDS, parabolaVertex, type ScaledChiSquare } from './chi2'
 export { CRITERIA, criterionValue, criterionNoise, type Criterion } from './criteria'
 export {
   prepareMatchLibrary,
   replaceModelsByObserved,
   nearestLevel,
+  type GridPoints,
   type LibraryLevel,
   type MatchLibraryOptions,
   type MatchStandardInfo,

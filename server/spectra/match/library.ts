@@ -34,6 +34,11 @@ export interface MatchLibraryOptions {
   resolutions?: readonly number[]
   /** Wavelength span kept, Å; every campaign region must lie inside it. @default [3750, 5600] */
   span?: readonly [number, number]
+  /**
+   * Decimation of the coarse blocks used to screen standards, pixels. 4 keeps about one pixel
+   * per resolution element at the sharpest level (1.5 Å ≈ 3.4 pixels at 4400 Å). @default 4
+   */
+  coarseStep?: number
 }
 
 /** A standard's classification, without its arrays. */
@@ -47,6 +52,11 @@ export interface LibraryLevel {
   flux: Float32Array
   /** Criterion values per standard: criteria × standards (NaN when not measurable). */
   criteria: Float64Array
+  /**
+   * Every `coarseStep`-th pixel of `flux` (span pixels 0, step, 2·step, …), standards ×
+   * `coarsePixels`, for the cheap first pass of the search (see matchSpectrum).
+   */
+  coarse: Float32Array
 }
 
 /** Everything matching needs for one library version, computed once and shared by every spectrum. */
@@ -65,6 +75,29 @@ export interface PreparedMatchLibrary {
   /** Sorted distinct class codes and type codes present. */
   classCodes: number[]
   typeCodes: number[]
+  /** Decimation of the coarse blocks, pixels. @default 4 */
+  coarseStep: number
+  /** Pixels per standard in a coarse block: ⌈pixels / coarseStep⌉. */
+  coarsePixels: number
+  /** The (type, class) points of the grid and which standards sit at each (see {@link GridPoints}). */
+  points: GridPoints
+}
+
+/**
+ * The (type, class) points of a library, computed once so that matching needs no maps or
+ * string keys per spectrum. Points are numbered in order of class code, then type code.
+ */
+export interface GridPoints {
+  typeCode: Float64Array
+  classCode: Float64Array
+  /** Point of each standard. */
+  ofStandard: Int32Array
+  /** Standards of point p: members[start[p] … start[p + 1]). */
+  start: Int32Array
+  members: Int32Array
+  /** Point at the next lower (earlier) / higher (later) type code within the same class; −1 at the ends. */
+  earlier: Int32Array
+  later: Int32Array
 }
 
 /**
@@ -86,7 +119,7 @@ export function replaceModelsByObserved<T extends Pick<MatchStandardInput, 'sour
  * @throws when no standard is given, or a standard's array does not match the grid
  */
 export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], options: MatchLibraryOptions): PreparedMatchLibrary {
-  const { grid, resolutions = [1.5, 2, 3, 4, 5, 6, 8], span = [3750, 5600] } = options
+  const { grid, resolutions = [1.5, 2, 3, 4, 5, 6, 8], span = [3750, 5600], coarseStep = 4 } = options
   const kept = replaceModelsByObserved(inputs)
   if (kept.length === 0) throw new Error('a library needs at least one standard')
   const offset = Math.max(0, Math.ceil(gridIndex(grid, span[0])))
@@ -94,10 +127,12 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
   const pixels = end - offset
   const all = gridWavelengths(grid)
   const wavelength = all.slice(offset, end)
+  const coarsePixels = Math.ceil(pixels / coarseStep)
   const levels: LibraryLevel[] = [...resolutions].sort((a, b) => a - b).map((fwhm) => ({
     fwhm,
     flux: new Float32Array(kept.length * pixels),
     criteria: new Float64Array(CRITERIA.length * kept.length),
+    coarse: new Float32Array(kept.length * coarsePixels),
   }))
   kept.forEach((s, row) => {
     if (s.rectified.length !== grid.length) throw new Error(`standard ${s.spectralType} has ${s.rectified.length} pixels, the grid ${grid.length}`)
@@ -111,6 +146,7 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
           : flux
       const slice = smoothed.subarray(offset, end)
       level.flux.set(slice, row * pixels)
+      for (let j = 0; j < coarsePixels; j++) level.coarse[row * coarsePixels + j] = slice[j * coarseStep]!
       CRITERIA.forEach((c, k) => {
         level.criteria[k * kept.length + row] = criterionValue(c, slice, wavelength)
       })
@@ -128,6 +164,44 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
     levels,
     classCodes: [...new Set(standards.map((s) => s.classCode))].sort((a, b) => a - b),
     typeCodes: [...new Set(standards.map((s) => s.typeCode))].sort((a, b) => a - b),
+    coarseStep,
+    coarsePixels,
+    points: gridPoints(standards),
+  }
+}
+
+function gridPoints(standards: readonly MatchStandardInfo[]): GridPoints {
+  const keys = [...new Map(standards.map((s) => [`${s.classCode}|${s.typeCode}`, s])).values()]
+    .map((s) => ({ typeCode: s.typeCode, classCode: s.classCode }))
+    .sort((a, b) => a.classCode - b.classCode || a.typeCode - b.typeCode)
+  const index = new Map(keys.map((k, p) => [`${k.classCode}|${k.typeCode}`, p]))
+  const np = keys.length
+  const ofStandard = Int32Array.from(standards, (s) => index.get(`${s.classCode}|${s.typeCode}`)!)
+  const start = new Int32Array(np + 1)
+  for (const p of ofStandard) start[p + 1] = start[p + 1]! + 1
+  for (let p = 0; p < np; p++) start[p + 1] = start[p + 1]! + start[p]!
+  const fill = start.slice(0, np)
+  const members = new Int32Array(standards.length)
+  ofStandard.forEach((p, k) => {
+    members[fill[p]!] = k
+    fill[p] = fill[p]! + 1
+  })
+  const earlier = new Int32Array(np).fill(-1)
+  const later = new Int32Array(np).fill(-1)
+  for (let p = 1; p < np; p++) {
+    if (keys[p]!.classCode === keys[p - 1]!.classCode) {
+      earlier[p] = p - 1
+      later[p - 1] = p
+    }
+  }
+  return {
+    typeCode: Float64Array.from(keys, (k) => k.typeCode),
+    classCode: Float64Array.from(keys, (k) => k.classCode),
+    ofStandard,
+    start,
+    members,
+    earlier,
+    later,
   }
 }
 

@@ -3,6 +3,7 @@ import { DEFAULT_GRID, gridWavelengths, makeLogGrid } from '../../../../shared/g
 import {
   DEPTH_SCALE_BOUNDS,
   depthScaledChiSquareRows,
+  depthScaledChiSquareSelected,
   matchSpectrum,
   parabolaVertex,
   prepareMatchLibrary,
@@ -172,5 +173,61 @@ describe('matchSpectrum', () => {
     expect(() => prepareMatchLibrary([], { versionId: 1, versionName: 'x', grid: DEFAULT_GRID })).toThrow('a library needs at least one standard')
     const bad = { ...toyLibrary()[0]!, rectified: new Float32Array(5) }
     expect(() => prepareMatchLibrary([bad], { versionId: 1, versionName: 'x', grid: makeLogGrid(3700, 7000, 1e-4) })).toThrow('has 5 pixels, the grid 6376')
+  })
+})
+
+describe('depthScaledChiSquareSelected', () => {
+  // Five rows: one batch of four and one left over; row 2 has a gap (NaN).
+  const pixels = 6
+  const rows = new Float32Array([
+    1, 0.5, 0.8, 1, 0.2, 0.9,
+    0.9, 0.6, 0.7, 1, 0.3, 1,
+    1, Number.NaN, 0.8, 1, 0.2, 0.9,
+    0.8, 0.8, 0.8, 0.9, 0.9, 0.9,
+    1, 0.4, 0.9, 0.95, 0.25, 0.85,
+  ])
+  const f = Float64Array.from([1, 0.5, 0.8, 1, 0.2, 0.9], (v) => 0.05 + 0.95 * v)
+  const w = new Float64Array([1, 2, 1, 0, 1, 1])
+
+  it('gives the same χ², scale and pixel count as every row computed one at a time', () => {
+    const all = { chi2: new Float64Array(5), scale: new Float64Array(5), used: new Float64Array(5) }
+    depthScaledChiSquareRows(f, w, rows, pixels, 0, pixels, all.chi2, all.scale, all.used)
+    for (let r = 0; r < 5; r++) {
+      const one = { chi2: new Float64Array(1), scale: new Float64Array(1), used: new Float64Array(1) }
+      depthScaledChiSquareRows(f, w, rows.subarray(r * pixels, (r + 1) * pixels), pixels, 0, pixels, one.chi2, one.scale, one.used)
+      expect(all.chi2[r]).toBe(one.chi2[0])
+      expect(all.scale[r]).toBe(one.scale[0])
+      expect(all.used[r]).toBe(one.used[0])
+    }
+    // Row 0 is the data's own template: level 0.05, depth scale 0.95, χ² 0 (worked by hand).
+    expect(all.scale[0]).toBeCloseTo(0.95, 6)
+    expect(all.chi2[0]).toBeCloseTo(0, 9)
+    // The zero-weight pixel is left out, and the gap in row 2 as well.
+    expect(all.used[0]).toBe(5)
+    expect(all.used[2]).toBe(4)
+  })
+
+  it('writes only the listed rows', () => {
+    const chi2 = new Float64Array(5).fill(-1)
+    const scale = new Float64Array(5).fill(-1)
+    const used = new Float64Array(5).fill(-1)
+    depthScaledChiSquareSelected(f, w, rows, pixels, 0, pixels, new Int32Array([4, 1]), 2, chi2, scale, used)
+    expect([chi2[0], chi2[2], chi2[3]]).toEqual([-1, -1, -1])
+    expect(chi2[1]).toBeGreaterThan(0)
+    expect(chi2[4]).toBeGreaterThan(0)
+  })
+})
+
+describe('matchSpectrum two-stage search', () => {
+  it('gives the same result as the exhaustive search when only some standards are refined (ten standards, three always refined)', () => {
+    const inputs = toyLibrary()
+    for (const id of [1, 4, 6, 9]) {
+      const s = Float64Array.from(inputs.find((x) => x.id === id)!.rectified)
+      const next = Float64Array.from(inputs.find((x) => x.id === Math.min(10, id + 2))!.rectified)
+      const mixed = s.map((v, i) => 0.7 * v + 0.3 * next[i]!)
+      const two = matchSpectrum(toy, { rectified: mixed, snr: 80, fwhm: 1.5 }, { refineCount: 3 })
+      const all = matchSpectrum(toy, { rectified: mixed, snr: 80, fwhm: 1.5 }, { exhaustive: true })
+      expect(two).toEqual(all)
+    }
   })
 })
