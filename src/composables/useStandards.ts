@@ -8,7 +8,8 @@ import { useAsync, type AsyncData } from './useAsync'
 export function useStandards(versionId: Ref<number | null>) {
   const library = useAsync(getStandardsLibrary)
 
-  const versions = computed(() => [...(library.data.value?.versions ?? [])].sort((a, b) => b.id - a.id))
+  // The active version first, then the newest.
+  const versions = computed(() => [...(library.data.value?.versions ?? [])].sort((a, b) => Number(b.isActive) - Number(a.isActive) || b.id - a.id))
   const activeVersion = computed(() => versions.value.find((v) => v.isActive) ?? null)
   const shownVersion = computed<LibraryVersionSummary | null>(() => versions.value.find((v) => v.id === versionId.value) ?? activeVersion.value)
   /** The shown version's standards; with `pending` on, also the live standards not yet in any version. */
