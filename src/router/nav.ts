@@ -7,6 +7,8 @@ export interface NavEntry {
   route: AppRouteName
   label: string
   icon: NavIconName
+  /** Screens reached from this one (detail pages) that keep its entry highlighted. */
+  covers?: readonly AppRouteName[]
 }
 
 /**
@@ -15,13 +17,13 @@ export interface NavEntry {
  */
 export const NAV_ENTRIES: readonly NavEntry[] = [
   { route: 'submit', label: 'Submit', icon: 'upload' },
-  { route: 'spectra', label: 'My spectra', icon: 'spectra' },
-  { route: 'reviewQueue', label: 'Review queue', icon: 'queue' },
+  { route: 'spectra', label: 'My spectra', icon: 'spectra', covers: ['spectrum'] },
+  { route: 'reviewQueue', label: 'Review queue', icon: 'queue', covers: ['spectrumReview'] },
   { route: 'disputes', label: 'Disputes', icon: 'dispute' },
   { route: 'campaigns', label: 'Campaigns', icon: 'campaign' },
   { route: 'standards', label: 'Standards library', icon: 'standards' },
   { route: 'audit', label: 'Agreement audit', icon: 'audit' },
-  { route: 'releases', label: 'Catalogue releases', icon: 'release' },
+  { route: 'releases', label: 'Catalogue releases', icon: 'release', covers: ['release'] },
   { route: 'people', label: 'People', icon: 'people' },
   { route: 'outbox', label: 'Outbox', icon: 'mail' },
   { route: 'account', label: 'My account', icon: 'account' },
@@ -29,9 +31,16 @@ export const NAV_ENTRIES: readonly NavEntry[] = [
 
 /** Where each role lands after signing in, and when it opens a screen it may not see. */
 export const HOME_ROUTE: Record<Role, AppRouteName> = {
-  observer: 'account',
+  observer: 'spectra',
   classifier: 'reviewQueue',
-  lead: 'people',
+  lead: 'disputes',
+}
+
+/** The nav entry to highlight on a screen: its own, or the one whose detail page it is. */
+export function navEntryFor(routeName: string | null): AppRouteName | null {
+  if (!routeName) return null
+  const entry = NAV_ENTRIES.find((e) => e.route === routeName || e.covers?.includes(routeName as AppRouteName))
+  return entry?.route ?? null
 }
 
 export function navFor(role: Role): NavEntry[] {

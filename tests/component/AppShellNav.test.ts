@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest'
 import { createMemoryHistory, createRouter } from 'vue-router'
 import { ROLES, type Role } from '@shared/roles'
 import AppShellNav from '@/components/AppShellNav.vue'
-import { HOME_ROUTE, NAV_ENTRIES, navFor } from '@/router/nav'
+import { HOME_ROUTE, NAV_ENTRIES, navEntryFor, navFor } from '@/router/nav'
 import { roleMayOpen, routes } from '@/router/routes'
 
 async function navTestIds(role: Role): Promise<string[]> {
@@ -14,13 +14,13 @@ async function navTestIds(role: Role): Promise<string[]> {
 }
 
 describe('AppShellNav', () => {
-  it('shows a lead People, Outbox and My account', async () => {
-    expect(await navTestIds('lead')).toEqual(['nav-people', 'nav-outbox', 'nav-account'])
+  it('shows a lead every screen, in the order of the nav table', async () => {
+    expect(await navTestIds('lead')).toEqual(NAV_ENTRIES.map((e) => `nav-${e.route}`))
   })
 
-  it('shows observers and classifiers only My account', async () => {
-    expect(await navTestIds('observer')).toEqual(['nav-account'])
-    expect(await navTestIds('classifier')).toEqual(['nav-account'])
+  it('shows observers and classifiers only the screens of their role', async () => {
+    expect(await navTestIds('observer')).toEqual(['nav-submit', 'nav-spectra', 'nav-releases', 'nav-account'])
+    expect(await navTestIds('classifier')).toEqual(['nav-spectra', 'nav-reviewQueue', 'nav-standards', 'nav-releases', 'nav-account'])
   })
 
   it('links each entry to its route', async () => {
@@ -34,6 +34,14 @@ describe('AppShellNav', () => {
 describe('the nav table', () => {
   it('offers every role only screens its router lets it open', () => {
     for (const role of ROLES) for (const entry of navFor(role)) expect(roleMayOpen(entry.route, role)).toBe(true)
+  })
+
+  it('keeps the list entry highlighted on its detail pages', () => {
+    expect(navEntryFor('spectrum')).toBe('spectra')
+    expect(navEntryFor('release')).toBe('releases')
+    expect(navEntryFor('spectrumReview')).toBe('reviewQueue')
+    expect(navEntryFor('people')).toBe('people')
+    expect(navEntryFor('notFound')).toBeNull()
   })
 
   it('names only routes that exist, and gives every role a home it may open', () => {

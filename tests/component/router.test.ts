@@ -10,15 +10,26 @@ vi.mock('@/lib/discrete', () => ({ notify: { warning: (t: string) => warning(t),
 
 // The screens themselves are not under test here; stand-ins keep the run fast.
 const stub = vi.hoisted(() => () => ({ default: { render: () => null } }))
-vi.mock('@/views/HomeRedirectView.vue', stub)
-vi.mock('@/views/SignInView.vue', stub)
-vi.mock('@/views/SetPasswordView.vue', stub)
 vi.mock('@/views/AccountView.vue', stub)
-vi.mock('@/views/PeopleView.vue', stub)
-vi.mock('@/views/OutboxView.vue', stub)
+vi.mock('@/views/AuditView.vue', stub)
+vi.mock('@/views/CampaignsView.vue', stub)
+vi.mock('@/views/DisputesView.vue', stub)
+vi.mock('@/views/HomeRedirectView.vue', stub)
+vi.mock('@/views/MySpectraView.vue', stub)
 vi.mock('@/views/NotFoundView.vue', stub)
+vi.mock('@/views/OutboxView.vue', stub)
+vi.mock('@/views/PeopleView.vue', stub)
+vi.mock('@/views/ReleasesView.vue', stub)
+vi.mock('@/views/ReviewQueueView.vue', stub)
+vi.mock('@/views/SetPasswordView.vue', stub)
+vi.mock('@/views/SignInView.vue', stub)
+vi.mock('@/views/SpectrumReviewView.vue', stub)
+vi.mock('@/views/SpectrumView.vue', stub)
+vi.mock('@/views/StandardsView.vue', stub)
+vi.mock('@/views/SubmitView.vue', stub)
 
 const { createAppRouter, safeNext } = await import('@/router')
+const { HOME_ROUTE } = await import('@/router/nav')
 
 const person = (role: PublicUser['role']): PublicUser => ({
   id: 7,
@@ -69,14 +80,14 @@ describe('the router guard', () => {
   it('sends a person of the wrong role to their home with a message', async () => {
     fetchMe.mockResolvedValue(person('observer'))
     const here = await open('/outbox')
-    expect(here.name).toBe('account')
+    expect(here.name).toBe(HOME_ROUTE.observer)
     expect(warning).toHaveBeenCalledWith(expect.stringContaining('Outbox is for leads only'))
   })
 
   it('sends "/" and the sign-in screen to the signed-in person’s home', async () => {
     fetchMe.mockResolvedValue(person('lead'))
-    expect((await open('/')).name).toBe('people')
-    expect((await open('/sign-in')).name).toBe('people')
+    expect((await open('/')).name).toBe(HOME_ROUTE.lead)
+    expect((await open('/sign-in')).name).toBe(HOME_ROUTE.lead)
   })
 
   it('follows only in-app paths in ?next=', () => {
