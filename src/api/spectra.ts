@@ -1,4 +1,5 @@
 import type { SpectrumStatus } from '@shared/status'
+import type { FinalClassification, HistoryEvent } from './calls'
 import { ApiError, NETWORK_ERROR, NETWORK_MESSAGE, currentCsrfToken, http, setCsrfToken, type ApiErrorDetails } from './http'
 import { decodeSeries, parseSeriesLayout, type DecodedSeries } from '@/lib/series'
 
@@ -58,6 +59,8 @@ export interface SpectrumDetail extends SpectrumListItem {
   vacuumConverted: boolean
   read: ReadInfo
   canEdit: boolean
+  /** The decision (agreed, settled or an accepted suggestion), or null while there is none. */
+  classification: FinalClassification | null
 }
 
 /** One classification line's measurement; unmeasured lines carry a reason and nulls, never zeros. */
@@ -99,9 +102,73 @@ export interface SpectrumMeasurements {
   history: Omit<MeasurementSummary, 'lines'>[]
 }
 
+/** One of the nearest standards the matcher found (server: match CandidateStandard). */
+export interface SuggestionCandidate {
+  standardId: number
+  spectralType: string
+  source?: 'model' | 'observed'
+  chi2: number
+  reducedChi2: number
+  scale?: number
+  probability: number
+}
+
+/** One luminosity criterion and the class it prefers; `standards` holds its value at each class's standard. */
+export interface SuggestionVote {
+  criterion: string
+  name: string
+  value: number | null
+  vote: string | null
+  standards?: Record<string, number>
+  note?: string
+}
+
+/** The pipeline's suggested classification (server: suggestions.service SuggestionSummary). */
+export interface SpectrumSuggestion {
+  id: number
+  spectrumId: number
+  measurementId: number
+  libraryVersionId: number
+  pipelineVersion: string
+  isCurrent: boolean
+  /** MK notation with the class, e.g. "B5 Ib". */
+  spectralType: string
+  letter: string
+  subtype: number
+  typeCode: number
+  luminosityClass: string
+  classCode: number
+  uncertainty: { subtypes: number; classes: number }
+  bestStandardId: number | null
+  candidates: SuggestionCandidate[]
+  votes: SuggestionVote[]
+  flags: string[]
+  probabilities: unknown[]
+  createdAt: string
+}
+
+/** Suggestions as the caller may see them: withheld (`hidden`) under blind review until they have called. */
+export interface SpectrumSuggestions {
+  current: SpectrumSuggestion | null
+  history: SpectrumSuggestion[]
+  hidden: boolean
+}
+
 export interface SpectrumPage {
   spectrum: SpectrumDetail
   measurements: SpectrumMeasurements
+  suggestions: SpectrumSuggestions
+}
+
+/** A history entry with what the server adds for each kind (the call, the decision, …). */
+export interface SpectrumHistoryEvent extends HistoryEvent {
+  details?: Record<string, unknown>
+}
+
+/** The whole history, oldest first; `hidden` when blind review keeps some of it back from the caller. */
+export interface SpectrumHistory {
+  events: SpectrumHistoryEvent[]
+  hidden: boolean
 }
 
 export type SpectrumSortField = 'createdAt' | 'objectName' | 'snr' | 'status' | 'obsDate' | 'id'
@@ -147,24 +214,26 @@ export const listSpectra = (query: SpectrumListQuery, signal?: AbortSignal) =>
 
 export const getSpectrum = (id: number) => http.get<SpectrumPage>(`/spectra/${id}`)
 
-/** Metadata as the forms send it: text as typed, numbers as numbers or empty to clear. */
+/** Metadata as the forms send it: text as typed (empty clears); numbers as numbers, null to clear, absent to leave. */
 export interface SpectrumMetadataInput {
   objectName?: string
   ra?: string
   dec?: string
   obsDate?: string
   instrument?: string
-  resolutionFwhm?: number | ''
-  resolvingPower?: number | ''
-  vMag?: number | ''
-  parallaxMas?: number | ''
-  parallaxErrorMas?: number | ''
-  ebv?: number | ''
+  resolutionFwhm?: number | null
+  resolvingPower?: number | null
+  vMag?: number | null
+  parallaxMas?: number | null
+  parallaxErrorMas?: number | null
+  ebv?: number | null
   notes?: string
 }
 
 export const updateSpectrum = async (id: number, changes: SpectrumMetadataInput): Promise<SpectrumDetail> =>
   (await http.patch<{ spectrum: SpectrumDetail }>(`/spectra/${id}`, changes)).spectrum
+
+export const getSpectrumHistory = (id: number) => http.get<SpectrumHistory>(`/spectra/${id}/history`)
 
 export const processSpectrumAgain = (id: number) => http.post<{ message: string }>(`/spectra/${id}/process`)
 
