@@ -1,4 +1,4 @@
-import { computed, onBeforeUnmount, ref, shallowRef, watch } from 'vue'
+import { computed, onBeforeUnmount, ref, shallowRef, toValue, watch, type MaybeRefOrGetter } from 'vue'
 import { ApiError } from '@/api/http'
 import { getPreparedData, getSpectrum, getSpectrumData, processSpectrumAgain, updateSpectrum, type SpectrumMetadataInput, type SpectrumPage } from '@/api/spectra'
 import type { DecodedSeries } from '@/lib/series'
@@ -12,13 +12,14 @@ export const ZOOM_POINTS = 20000
 /**
  * One spectrum's page: its details and measurements, the observed and prepared arrays, and the
  * visible region. Zooming in fetches that range again at full resolution; zooming out goes back
- * to the overview already loaded.
+ * to the overview already loaded. A new id (the route moved to another spectrum) starts again from scratch.
  */
-export function useSpectrum(id: number) {
-  const page = useAsync<SpectrumPage>(() => getSpectrum(id))
-  const overview = useAsync<DecodedSeries>(() => getSpectrumData(id, { maxPoints: OVERVIEW_POINTS }))
+export function useSpectrum(spectrumId: MaybeRefOrGetter<number>) {
+  const current = () => toValue(spectrumId)
+  const page = useAsync<SpectrumPage>(() => getSpectrum(current()))
+  const overview = useAsync<DecodedSeries>(() => getSpectrumData(current(), { maxPoints: OVERVIEW_POINTS }))
   const preparedOverview = useAsync<DecodedSeries | null>(() =>
-    getPreparedData(id, { maxPoints: OVERVIEW_POINTS }).catch((e: unknown) => {
+    getPreparedData(current(), { maxPoints: OVERVIEW_POINTS }).catch((e: unknown) => {
       // Not measured yet (or it failed): the page says so instead of an error.
       if (e instanceof ApiError && e.status === 404) return null
       throw e
@@ -34,6 +35,7 @@ export function useSpectrum(id: number) {
   const prepared = computed(() => (zoomed.value ? zoomed.value.prepared : preparedOverview.data.value))
 
   async function fetchRange(r: WavelengthRegion): Promise<void> {
+    const id = current()
     abort?.abort()
     const mine = new AbortController()
     abort = mine
@@ -77,12 +79,12 @@ export function useSpectrum(id: number) {
   })
 
   async function save(changes: SpectrumMetadataInput): Promise<void> {
-    const spectrum = await updateSpectrum(id, changes)
+    const spectrum = await updateSpectrum(current(), changes)
     if (page.data.value) page.data.value = { ...page.data.value, spectrum }
   }
 
   async function processAgain(): Promise<string> {
-    const reply = await processSpectrumAgain(id)
+    const reply = await processSpectrumAgain(current())
     await page.reload()
     return reply.message
   }
@@ -92,6 +94,20 @@ export function useSpectrum(id: number) {
     void overview.reload()
     void preparedOverview.reload()
   }
+
+  watch(current, (next, before) => {
+    if (next === before) return
+    if (timer) clearTimeout(timer)
+    abort?.abort()
+    zoomed.value = null
+    zoomState.value = 'idle'
+    region.value = null
+    // What the last spectrum showed must not linger under the new one's title.
+    page.data.value = null
+    overview.data.value = null
+    preparedOverview.data.value = null
+    reloadAll()
+  })
 
   return {
     data: page.data,
