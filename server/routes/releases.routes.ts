@@ -2,6 +2,7 @@ import { currentUser } from '../middleware/auth'
 import { idParams } from '../schemas/common'
 import { createReleaseBody, downloadQuery, listReleasesQuery, releaseRowsQuery, supersedeReleaseBody } from '../schemas/releases.schemas'
 import { derivedFor } from '../services/derived.service'
+import { suggestionHiddenFrom } from '../services/suggestions.service'
 import { createRelease, downloadRelease, getRelease, listReleases, supersedeRelease } from '../services/releases.service'
 import { findVisibleSpectrum } from '../services/spectra.service'
 import { LEAD, defineRoutes } from './route'
@@ -68,8 +69,10 @@ export function derivedRoutes() {
       access: 'signed-in',
       schema: { params: idParams },
       handler: async (req, res) => {
-        const spectrum = await findVisibleSpectrum(currentUser(req), res.locals.params.id)
-        res.json({ derived: await derivedFor(spectrum.id, spectrum) })
+        const user = currentUser(req)
+        const spectrum = await findVisibleSpectrum(user, res.locals.params.id)
+        const hidden = await suggestionHiddenFrom(user, spectrum.id)
+        res.json({ derived: await derivedFor(spectrum.id, spectrum, { suggestion: !hidden }) })
       },
     },
   ])

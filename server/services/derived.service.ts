@@ -72,13 +72,14 @@ export interface DerivedView {
 }
 
 /** The basis for derived values: the decided classification, else the current suggestion. */
-export async function basisFor(spectrumId: number): Promise<ClassificationBasis | null> {
+export async function basisFor(spectrumId: number, options: { suggestion?: boolean } = {}): Promise<ClassificationBasis | null> {
   const decision = await Classification.findOne({ where: { spectrumId }, order: [['id', 'DESC']] })
   if (decision) {
     const suggestion = decision.suggestionId ? await Suggestion.findByPk(decision.suggestionId, { attributes: ['id', 'uncertaintySubtypes', 'uncertaintyClasses'] }) : null
     const u = decisionUncertainty(decision, suggestion)
     return { source: 'classification', spectralType: decision.spectralType, typeUncertainty: u.type, classUncertainty: u.class }
   }
+  if (options.suggestion === false) return null
   const s = await Suggestion.findOne({ where: { spectrumId, isCurrent: true }, order: [['id', 'DESC']], attributes: ['id', 'spectralType', 'uncertaintySubtypes', 'uncertaintyClasses'] })
   if (!s) return null
   return { source: 'suggestion', spectralType: s.spectralType, typeUncertainty: Math.max(MIN_TYPE_UNCERTAINTY, s.uncertaintySubtypes), classUncertainty: Math.max(MIN_CLASS_UNCERTAINTY, s.uncertaintyClasses) }
@@ -91,11 +92,15 @@ export const observerInputs = (s: Pick<Spectrum, 'vMag' | 'ebv' | 'parallaxMas' 
   parallaxErrorMas: s.parallaxErrorMas,
 })
 
-/** Teff, M_V, BC, L, R and distances of a spectrum the caller may see (checked by the caller), with the caution. */
-export async function derivedFor(spectrumId: number, spectrum?: Spectrum): Promise<DerivedView> {
+/**
+ * Teff, M_V, BC, L, R and distances of a spectrum the caller may see (checked by the caller), with
+ * the caution. `suggestion: false` leaves an undecided spectrum underived, for callers from whom
+ * blind review withholds the suggestion.
+ */
+export async function derivedFor(spectrumId: number, spectrum?: Spectrum, options: { suggestion?: boolean } = {}): Promise<DerivedView> {
   const s = spectrum ?? (await Spectrum.findByPk(spectrumId))
   if (!s) throw notFound('The spectrum')
-  const basis = await basisFor(s.id)
+  const basis = await basisFor(s.id, options)
   const inputs = observerInputs(s)
   return { spectrumId: s.id, basis, inputs, estimates: basis ? estimatesFor(basis, inputs) : null, caution: DERIVED_CAUTION }
 }

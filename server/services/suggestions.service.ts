@@ -92,19 +92,19 @@ export async function suggestionsOf(spectrumId: number): Promise<{ current: Sugg
   return { current: current ? toSuggestionSummary(current) : null, history: all.filter((s) => !s.isCurrent).map(toSuggestionSummary) }
 }
 
-/**
- * The suggestions as this user may see them: under blind review a classifier or lead who has not
- * called yet gets none, however they ask (the review screen and this page alike).
- */
+/** Whether blind review withholds this spectrum's suggestion from the user (a classifier or lead who has not called yet). */
+export async function suggestionHiddenFrom(user: User, spectrumId: number): Promise<boolean> {
+  if (user.role === 'observer') return false
+  const spectrum = await Spectrum.findByPk(spectrumId, { attributes: ['id', 'campaignId', 'status'] })
+  const campaign = spectrum ? await Campaign.findByPk(spectrum.campaignId) : null
+  if (!spectrum || !campaign) return false
+  const hasCalled = (await ReviewCall.count({ where: { spectrumId, userId: user.id } })) > 0
+  return isBlindFor(campaign, spectrum, hasCalled)
+}
+
+/** The suggestions as this user may see them: none under blind review, however they ask. */
 export async function visibleSuggestionsOf(user: User, spectrumId: number): Promise<{ current: SuggestionSummary | null; history: SuggestionSummary[]; hidden: boolean }> {
-  if (user.role !== 'observer') {
-    const spectrum = await Spectrum.findByPk(spectrumId, { attributes: ['id', 'campaignId', 'status'] })
-    const campaign = spectrum ? await Campaign.findByPk(spectrum.campaignId) : null
-    if (spectrum && campaign) {
-      const hasCalled = (await ReviewCall.count({ where: { spectrumId, userId: user.id } })) > 0
-      if (isBlindFor(campaign, spectrum, hasCalled)) return { current: null, history: [], hidden: true }
-    }
-  }
+  if (await suggestionHiddenFrom(user, spectrumId)) return { current: null, history: [], hidden: true }
   return { ...(await suggestionsOf(spectrumId)), hidden: false }
 }
 

@@ -30,8 +30,8 @@ const post = (client: typeof observer, campaignId = campaign.id) =>
 
 describe('POST /api/spectra', () => {
   it('takes the good files of a mixed batch, refuses the bad ones and says why', async () => {
-    // The real file may be stored by an earlier run against the same database.
-    await Spectrum.destroy({ where: { fileSha256: createHash('sha256').update(realA0V()).digest('hex') } })
+    // An earlier run against the same database may hold the real file already (it is then a duplicate).
+    const earlier = await Spectrum.findOne({ where: { fileSha256: createHash('sha256').update(realA0V()).digest('hex') } })
     const before = await Spectrum.count()
     const res = await post(observer)
       .field('objectName', '')
@@ -41,7 +41,7 @@ describe('POST /api/spectra', () => {
       .attach('files', syntheticTextSpectrum(seed++, { from: 5500, to: 6800 }), 'red-only.csv')
       .expect(200)
     const byFile = Object.fromEntries(res.body.results.map((r: { file: string }) => [r.file, r]))
-    expect(byFile['a0v.fits'].outcome).toBe('accepted')
+    expect(byFile['a0v.fits'].outcome).toBe(earlier ? 'duplicate' : 'accepted')
     expect(byFile['field-star-017.txt']).toMatchObject({ outcome: 'accepted', pixels: 2000 })
     expect(byFile['field-star-017.txt'].wavelengthRange[0]).toBeCloseTo(3800, 6)
     expect(byFile["field-star-017.txt"].dispersion).toBeCloseTo(1400 / 1999, 3)
@@ -50,9 +50,10 @@ describe('POST /api/spectra', () => {
     expect(byFile['red-only.csv']).toMatchObject({ outcome: 'refused', code: 'NO_COVERAGE' })
     expect(byFile['red-only.csv'].message).toContain('red-only.csv')
     // Refused files leave no trace.
-    expect(await Spectrum.count()).toBe(before + 2)
-    const stored = await Spectrum.findByPk(byFile['a0v.fits'].spectrumId)
-    expect(stored).toMatchObject({ status: 'received', submittedBy: observerId, format: 'fits-table', vacuumConverted: true })
+    expect(await Spectrum.count()).toBe(before + (earlier ? 1 : 2))
+    const stored = await Spectrum.findByPk(byFile['a0v.fits'].spectrumId ?? earlier?.id)
+    expect(stored).toMatchObject({ format: 'fits-table', vacuumConverted: true })
+    if (!earlier) expect(stored).toMatchObject({ status: 'received', submittedBy: observerId })
     const blob = await SpectrumBlob.findByPk(stored!.id)
     expect(Buffer.compare(blob!.raw, realA0V())).toBe(0)
   })

@@ -34,6 +34,14 @@ describe('GET /api/spectra/:id under blind review', () => {
     const res = await classifier.agent.get(`/api/spectra/${spectrumId}`).expect(200)
     expect(res.body.suggestions).toEqual({ current: null, history: [], hidden: true })
     expect(JSON.stringify(res.body)).not.toContain('A2 V')
+    const derived = await classifier.agent.get(`/api/spectra/${spectrumId}/derived`).expect(200)
+    expect(derived.body.derived.basis).toBeNull()
+  })
+
+  it('derives parameters from the suggestion for the observer before any decision', async () => {
+    // The observer is no classifier; blind review does not apply to them.
+    const res = await observer.agent.get(`/api/spectra/${spectrumId}/derived`).expect(200)
+    expect(res.body.derived.basis.source).toBe('suggestion')
   })
 
   it('shows the suggestion once the classifier has recorded a call', async () => {
