@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { Campaign, CampaignMember, LibraryVersion, Measurement, Spectrum, Suggestion } from '../../server/models'
+import { Campaign, CampaignMember, Measurement, Spectrum, Suggestion } from '../../server/models'
+import { ensureDefaultLibrary } from '../../server/services/standards.service'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
 import { syntheticTextSpectrum } from '../helpers/spectra'
 
@@ -19,7 +20,7 @@ beforeAll(async () => {
   const res = await observer.agent.post('/api/spectra').set('x-csrf-token', observer.csrf).field('campaignId', String(campaign.id)).attach('files', syntheticTextSpectrum(Date.now() % 100000), 'blind.txt').expect(200)
   spectrumId = res.body.results[0].spectrumId
   // A suggestion written directly, as the job runner would, so this file does not depend on the matcher.
-  const version = (await LibraryVersion.findOne()) ?? (await LibraryVersion.create({ name: `t-${Date.now()}`, description: '', publishedAt: null, publishedBy: null }))
+  const version = await ensureDefaultLibrary(t.ctx.sequelize)
   const measurement = await Measurement.create({ spectrumId, pipelineVersion: 'test', isCurrent: true, snr: 50, rv: 0, rvError: 1, pseudoContinuum: false, warnings: '[]', ratios: '[]', gridStart: 3700, gridStep: 1e-4, gridLength: 1, flux: Buffer.alloc(4), continuum: Buffer.alloc(4), rectified: Buffer.alloc(4), mask: Buffer.alloc(1), seconds: 0 })
   await Suggestion.create({ spectrumId, measurementId: measurement.id, libraryVersionId: version.id, pipelineVersion: 'test', isCurrent: true, spectralType: 'A2 V', letter: 'A', subtype: 2, typeCode: 22, luminosityClass: 'V', classCode: 6, uncertaintySubtypes: 1, uncertaintyClasses: 0.5, bestStandardId: null, candidates: '[]', votes: '[]', flags: '[]', probabilities: '[]' })
   await Spectrum.update({ status: 'suggested' }, { where: { id: spectrumId } })

@@ -20,7 +20,8 @@ beforeAll(async () => {
   // The dev database is shared between runs: start from the shipped version with no observed standards.
   await Standard.update({ retiredAt: new Date() }, { where: { source: 'observed', retiredAt: null } })
   await LibraryVersion.update({ isActive: false }, { where: {} })
-  await base.update({ isActive: true })
+  // Through the table, not the instance: the instance may already think it is active and skip the write.
+  await LibraryVersion.update({ isActive: true }, { where: { id: base.id } })
   runner = new JobRunner({ sequelize: t.ctx.sequelize, logger: createLogger('silent'), threads: 1, inline: true })
   t.ctx.jobs = runner
   await runner.start()
