@@ -61,7 +61,8 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   const fwhm = input.inputFwhm !== undefined ? Math.max(input.inputFwhm, sharpest ?? 0) : undefined
   const matchOptions = input.region ? { region: input.region } : {}
   t = performance.now()
-  const coarse = matchSpectrum(library, matchInput(first, fwhm), matchOptions)
+  // Only the best standard and the level are used from it, so the class step can be the cheapest.
+  const coarse = matchSpectrum(library, matchInput(first, fwhm), { ...matchOptions, classFit: 'points' })
   steps.match = (performance.now() - t) / 1000
   const row = library.standards.findIndex((s) => s.id === coarse.bestStandardId)
   const level = library.levels.find((l) => l.fwhm === coarse.levelFwhm) ?? library.levels[0]!

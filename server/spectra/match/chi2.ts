@@ -272,3 +272,280 @@ export function parabolaVertex(x0: number, y0: number, x1: number, y1: number, x
   const vertex = (x0 + x1) / 2 - d0 / (2 * curvature)
   return Math.min(x2, Math.max(x0, vertex))
 }
+
+/** Result of {@link depthScaledPairChiSquare}. */
+export interface PairChiSquare {
+  chi2: number
+  /** Fraction x of the second template in the mix (0 … 1). */
+  fraction: number
+  /** Depth scale b of the mix. */
+  scale: number
+}
+
+/**
+ * χ² of the model f ≈ a + b·((1 − x)·t₁ + x·t₂) over [from, to): a spectrum between two
+ * standards, as a linear mix of their rectified spectra with a free level a and depth scale b
+ * (weighted linear least squares in a, b(1 − x) and b·x, normal equations, Press et al.,
+ * *Numerical Recipes*, 3rd ed., §15.4, from memory). x is held within [0, 1] and b within
+ * {@link DEPTH_SCALE_BOUNDS}; when the free solution leaves them, the best of the constrained
+ * edges is returned (x = 0 or 1 is the single-standard fit of {@link depthScaledChiSquareRows}).
+ * Pixels with weight ≤ 0 or a non-finite template value are left out.
+ * @param rows row-major block; @param row1, row2 the two rows; @param pixels row length
+ * @returns χ² = Infinity when fewer than 4 pixels are usable or the system is singular
+ */
+export function depthScaledPairChiSquare(
+  flux: Float64Array,
+  weights: Float64Array,
+  rows: Float32Array,
+  pixels: number,
+  row1: number,
+  row2: number,
+  from: number,
+  to: number,
+): PairChiSquare {
+  const b1 = row1 * pixels
+  const b2 = row2 * pixels
+  let S = 0, Sf = 0, Sff = 0, S1 = 0, S2 = 0, Sf1 = 0, Sf2 = 0, S11 = 0, S22 = 0, S12 = 0
+  let n = 0
+  for (let i = from; i < to; i++) {
+    const w = weights[i]!
+    const t1 = rows[b1 + i]!
+    const t2 = rows[b2 + i]!
+    if (!(w > 0) || t1 !== t1 || t2 !== t2) continue
+    const f = flux[i]!
+    n++
+    S += w
+    Sf += w * f
+    Sff += w * f * f
+    S1 += w * t1
+    S2 += w * t2
+    Sf1 += w * f * t1
+    Sf2 += w * f * t2
+    S11 += w * t1 * t1
+    S22 += w * t2 * t2
+    S12 += w * t1 * t2
+  }
+  const none: PairChiSquare = { chi2: Infinity, fraction: Number.NaN, scale: Number.NaN }
+  if (n < 4) return none
+  // χ²(a, p, q) for f ≈ a + p·t₁ + q·t₂, from the sums.
+  const chi = (a: number, p: number, q: number) =>
+    Math.max(0, Sff - 2 * (a * Sf + p * Sf1 + q * Sf2) + a * a * S + p * p * S11 + q * q * S22 + 2 * (a * p * S1 + a * q * S2 + p * q * S12))
+  // Free solution of the 3 × 3 normal equations (Cramer's rule).
+  const det3 = S * (S11 * S22 - S12 * S12) - S1 * (S1 * S22 - S12 * S2) + S2 * (S1 * S12 - S11 * S2)
+  const [bMin, bMax] = DEPTH_SCALE_BOUNDS
+  if (det3 > 0) {
+    const a = (Sf * (S11 * S22 - S12 * S12) - S1 * (Sf1 * S22 - S12 * Sf2) + S2 * (Sf1 * S12 - S11 * Sf2)) / det3
+    const p = (S * (Sf1 * S22 - S12 * Sf2) - Sf * (S1 * S22 - S12 * S2) + S2 * (S1 * Sf2 - Sf1 * S2)) / det3
+    const q = (S * (S11 * Sf2 - Sf1 * S12) - S1 * (S1 * Sf2 - Sf1 * S2) + Sf * (S1 * S12 - S11 * S2)) / det3
+    const b = p + q
+    if (p >= 0 && q >= 0 && b >= bMin && b <= bMax) return { chi2: chi(a, p, q), fraction: q / b, scale: b }
+  }
+  // Constrained edges: b at a bound with x free, and x at 0 or 1 with b free; the least χ² wins.
+  let best = none
+  const consider = (a: number, b: number, x: number) => {
+    const c = chi(a, b * (1 - x), b * x)
+    if (c < best.chi2) best = { chi2: c, fraction: x, scale: b }
+  }
+  for (const b of [bMin, bMax]) {
+    // f − b·t₁ ≈ a + y·(t₂ − t₁), y = b·x.
+    const Sd = S2 - S1
+    const Sdd = S22 - 2 * S12 + S11
+    const Sgd = Sf2 - Sf1 - b * (S12 - S11)
+    const Sg = Sf - b * S1
+    const det = S * Sdd - Sd * Sd
+    if (!(det > 0)) continue
+    const y = (S * Sgd - Sd * Sg) / det
+    const x = Math.min(1, Math.max(0, y / b))
+    consider((Sg - b * x * Sd) / S, b, x)
+  }
+  for (const [St, Sft, Stt, x] of [[S1, Sf1, S11, 0], [S2, Sf2, S22, 1]] as const) {
+    const det = S * Stt - St * St
+    if (!(det > 0)) continue
+    const b = Math.min(bMax, Math.max(bMin, (S * Sft - St * Sf) / det))
+    consider((Sf - b * St) / S, b, x)
+  }
+  return best
+}
+
+/** Result of {@link smoothPairChiSquare}. */
+export interface SmoothPairChiSquare {
+  chi2: number
+  /** Fraction x of the second template in the mix (0 … 1). */
+  fraction: number
+}
+
+/**
+ * χ² of a mix of two templates with a level and a depth scale that vary smoothly across
+ * [from, to): f ≈ c₀ + c₁X + c₂X² + (b₀ + b₁X)·((1 − x)t₁ + x t₂), X = 2(i − from)/(to − from) − 1
+ * (weighted linear least squares in c and b for each x, normal equations, Press et al.,
+ * *Numerical Recipes*, 3rd ed., §15.4, from memory). The smooth terms absorb the difference
+ * between a continuum fitted to an observed spectrum and the model continuum of the standards,
+ * which otherwise tilts the line depths across the region. The 7 × 7 moment matrix of
+ * (1, X, X², t₁, X t₁, t₂ − t₁, X(t₂ − t₁)) is summed once; x is searched on a grid of
+ * `steps` + 1 values and refined by a parabola through the best three.
+ * Pixels with weight ≤ 0 or a non-finite template value are left out.
+ * @param steps grid of the search in x @default 10
+ * @returns χ² = Infinity when fewer than 8 pixels are usable
+ */
+export function smoothPairChiSquare(
+  flux: Float64Array,
+  weights: Float64Array,
+  rows: Float32Array,
+  pixels: number,
+  row1: number,
+  row2: number,
+  from: number,
+  to: number,
+  steps = 10,
+): SmoothPairChiSquare {
+  // Moments in scalar locals: the loop then touches no array but the inputs.
+  let m00 = 0, m01 = 0, m02 = 0, m03 = 0, m04 = 0, m05 = 0, m06 = 0, m11 = 0, m12 = 0, m13 = 0, m14 = 0, m15 = 0, m16 = 0, m22 = 0, m23 = 0, m24 = 0, m25 = 0, m26 = 0, m33 = 0, m34 = 0, m35 = 0, m36 = 0, m44 = 0, m45 = 0, m46 = 0, m55 = 0, m56 = 0, m66 = 0
+  let h0 = 0, h1 = 0, h2 = 0, h3 = 0, h4 = 0, h5 = 0, h6 = 0
+  let Sff = 0
+  let n = 0
+  const b1 = row1 * pixels
+  const b2 = row2 * pixels
+  const span = Math.max(1, to - from - 1)
+  for (let i = from; i < to; i++) {
+    const w = weights[i]!
+    const t1 = rows[b1 + i]!
+    const t2 = rows[b2 + i]!
+    if (!(w > 0) || t1 !== t1 || t2 !== t2) continue
+    const f = flux[i]!
+    const X = (2 * (i - from)) / span - 1
+    const d = t2 - t1
+    const g1 = X
+    const g2 = X * X
+    const g3 = t1
+    const g4 = X * t1
+    const g5 = d
+    const g6 = X * d
+    const wf = w * f
+    Sff += wf * f
+    n++
+    h0 += wf
+    h1 += wf * g1
+    h2 += wf * g2
+    h3 += wf * g3
+    h4 += wf * g4
+    h5 += wf * g5
+    h6 += wf * g6
+    m00 += w
+    m01 += w * g1
+    m02 += w * g2
+    m03 += w * g3
+    m04 += w * g4
+    m05 += w * g5
+    m06 += w * g6
+    const w1 = w * g1
+    m11 += w1 * g1
+    m12 += w1 * g2
+    m13 += w1 * g3
+    m14 += w1 * g4
+    m15 += w1 * g5
+    m16 += w1 * g6
+    const w2 = w * g2
+    m22 += w2 * g2
+    m23 += w2 * g3
+    m24 += w2 * g4
+    m25 += w2 * g5
+    m26 += w2 * g6
+    const w3 = w * g3
+    m33 += w3 * g3
+    m34 += w3 * g4
+    m35 += w3 * g5
+    m36 += w3 * g6
+    const w4 = w * g4
+    m44 += w4 * g4
+    m45 += w4 * g5
+    m46 += w4 * g6
+    const w5 = w * g5
+    m55 += w5 * g5
+    m56 += w5 * g6
+    const w6 = w * g6
+    m66 += w6 * g6
+  }
+  if (n < 8) return { chi2: Infinity, fraction: Number.NaN }
+  const G = Float64Array.from([m00, m01, m02, m03, m04, m05, m06, m01, m11, m12, m13, m14, m15, m16, m02, m12, m22, m23, m24, m25, m26, m03, m13, m23, m33, m34, m35, m36, m04, m14, m24, m34, m44, m45, m46, m05, m15, m25, m35, m45, m55, m56, m06, m16, m26, m36, m46, m56, m66])
+  const h = Float64Array.from([h0, h1, h2, h3, h4, h5, h6])
+  const M = new Float64Array(25)
+  const v = new Float64Array(5)
+  const A = new Float64Array(35)
+  const chiAt = (x: number): number => {
+    // e = A g: (1, X, X², t₁ + x d, X(t₁ + x d)).
+    A.fill(0)
+    A[0] = 1
+    A[8] = 1
+    A[16] = 1
+    A[24] = 1
+    A[26] = x
+    A[32] = 1
+    A[34] = x
+    for (let r = 0; r < 5; r++) {
+      let s = 0
+      for (let k = 0; k < 7; k++) s += A[r * 7 + k]! * h[k]!
+      v[r] = s
+      for (let c = 0; c < 5; c++) {
+        let m = 0
+        for (let k = 0; k < 7; k++) {
+          const a = A[r * 7 + k]!
+          if (a === 0) continue
+          for (let l = 0; l < 7; l++) m += a * G[k * 7 + l]! * A[c * 7 + l]!
+        }
+        M[r * 5 + c] = m
+      }
+    }
+    const solution = solveSymmetric(M, v, 5)
+    if (solution === null) return Infinity
+    let fit = 0
+    for (let r = 0; r < 5; r++) fit += solution[r]! * v[r]!
+    return Math.max(0, Sff - fit)
+  }
+  let bestK = 0
+  const values: number[] = []
+  for (let k = 0; k <= steps; k++) {
+    values.push(chiAt(k / steps))
+    if (values[k]! < values[bestK]!) bestK = k
+  }
+  if (!Number.isFinite(values[bestK]!)) return { chi2: Infinity, fraction: Number.NaN }
+  let x = bestK / steps
+  if (bestK > 0 && bestK < steps) {
+    x = parabolaVertex((bestK - 1) / steps, values[bestK - 1]!, x, values[bestK]!, (bestK + 1) / steps, values[bestK + 1]!)
+  }
+  const c = chiAt(x)
+  return c <= values[bestK]! ? { chi2: c, fraction: x } : { chi2: values[bestK]!, fraction: bestK / steps }
+}
+
+/** Solves M c = v for a symmetric positive-definite n × n M by Gaussian elimination with partial pivoting; null when singular. */
+function solveSymmetric(M: Float64Array, v: Float64Array, n: number): Float64Array | null {
+  const a = Float64Array.from(M)
+  const b = Float64Array.from(v)
+  for (let col = 0; col < n; col++) {
+    let piv = col
+    for (let r = col + 1; r < n; r++) if (Math.abs(a[r * n + col]!) > Math.abs(a[piv * n + col]!)) piv = r
+    if (!(Math.abs(a[piv * n + col]!) > 1e-300)) return null
+    if (piv !== col) {
+      for (let c = 0; c < n; c++) {
+        const tmp = a[col * n + c]!
+        a[col * n + c] = a[piv * n + c]!
+        a[piv * n + c] = tmp
+      }
+      const tb = b[col]!
+      b[col] = b[piv]!
+      b[piv] = tb
+    }
+    for (let r = col + 1; r < n; r++) {
+      const factor = a[r * n + col]! / a[col * n + col]!
+      if (factor === 0) continue
+      for (let c = col; c < n; c++) a[r * n + c] = a[r * n + c]! - factor * a[col * n + c]!
+      b[r] = b[r]! - factor * b[col]!
+    }
+  }
+  const out = new Float64Array(n)
+  for (let r = n - 1; r >= 0; r--) {
+    let s = b[r]!
+    for (let c = r + 1; c < n; c++) s -= a[r * n + c]! * out[c]!
+    out[r] = s / a[r * n + r]!
+  }
+  return out
+}

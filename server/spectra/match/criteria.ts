@@ -18,6 +18,13 @@ export interface Criterion {
   offsets?: readonly [number, number]
   /** Larger values mean a more luminous star (true) or a fainter one (false). */
   risesWithLuminosity: boolean
+  /**
+   * Scatter of the value about the standards of the true class at the true type, beyond the
+   * photon noise (type interpolation, continuum placement, blends): 1.4826 × the median absolute
+   * deviation on the tuning set of bench/tune.ts (seed 7a110b1e, 300 spectra), in the units of
+   * the value. Enters the criterion's Gaussian likelihood in quadrature with the noise.
+   */
+  scatter: number
 }
 
 /** The criteria; line wavelengths are the air values of shared/lines.ts (NIST ASD, from memory). */
@@ -25,19 +32,28 @@ export const CRITERIA: readonly Criterion[] = [
   {
     // Pressure (Stark) broadening makes the Balmer wings of B–A dwarfs much wider than those of giants and supergiants.
     id: 'balmer-wings', name: 'Hγ and Hδ wing depth, 6–20 Å from the core', types: [10, 32], kind: 'wing-depth',
-    centres: [4340.47, 4101.74], offsets: [6, 20], risesWithLuminosity: false,
+    centres: [4340.47, 4101.74], offsets: [6, 20], risesWithLuminosity: false, scatter: 0.0033,
   },
   {
-    id: 'sr-ii-4077/fe-i-4071', name: 'Sr II 4077 / Fe I 4071 depth ratio', types: [27, 59.9], kind: 'depth-ratio',
-    centres: [4077.71, 4071.74], risesWithLuminosity: true,
+    id: 'sr-ii-4077/fe-i-4071', name: 'Sr II 4077 / Fe I 4071 depth ratio', types: [27, 69.9], kind: 'depth-ratio',
+    centres: [4077.71, 4071.74], risesWithLuminosity: true, scatter: 0.059,
   },
   {
-    id: 'y-ii-4375/fe-i-4383', name: 'Y II 4376 / Fe I 4383 depth ratio', types: [30, 59.9], kind: 'depth-ratio',
-    centres: [4374.94, 4383.55], risesWithLuminosity: true,
+    id: 'sr-ii-4077/fe-i-4063', name: 'Sr II 4077 / Fe I 4063 depth ratio', types: [27, 69.9], kind: 'depth-ratio',
+    centres: [4077.71, 4063.59], risesWithLuminosity: true, scatter: 0.054,
   },
   {
-    id: 'sr-ii-4216/ca-i-4227', name: 'Sr II 4216 / Ca I 4226 depth ratio', types: [40, 59.9], kind: 'depth-ratio',
-    centres: [4215.52, 4226.73], risesWithLuminosity: true,
+    id: 'y-ii-4375/fe-i-4383', name: 'Y II 4376 / Fe I 4383 depth ratio', types: [30, 69.9], kind: 'depth-ratio',
+    centres: [4374.94, 4383.55], risesWithLuminosity: true, scatter: 0.033,
+  },
+  {
+    id: 'sr-ii-4216/ca-i-4227', name: 'Sr II 4216 / Ca I 4226 depth ratio', types: [40, 69.9], kind: 'depth-ratio',
+    centres: [4215.52, 4226.73], risesWithLuminosity: true, scatter: 0.038,
+  },
+  {
+    // The MgH band near 4780 Å grows with surface gravity: strong in M dwarfs, weak in giants.
+    id: 'mgh-4780', name: 'MgH band depth, 4750–4790 Å', types: [58, 69.9], kind: 'wing-depth',
+    centres: [4770], offsets: [0, 20], risesWithLuminosity: false, scatter: 0.022,
   },
 ]
 

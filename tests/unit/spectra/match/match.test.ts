@@ -1,6 +1,10 @@
 import { describe, expect, it } from 'vitest'
 import { DEFAULT_GRID, gridWavelengths, makeLogGrid } from '../../../../shared/grid'
 import {
+  CRITERIA,
+  criterionValue,
+  depthScaledPairChiSquare,
+  smoothPairChiSquare,
   DEPTH_SCALE_BOUNDS,
   depthScaledChiSquareRows,
   depthScaledChiSquareSelected,
@@ -229,5 +233,68 @@ describe('matchSpectrum two-stage search', () => {
       const all = matchSpectrum(toy, { rectified: mixed, snr: 80, fwhm: 1.5 }, { exhaustive: true })
       expect(two).toEqual(all)
     }
+  })
+})
+
+describe('depthScaledPairChiSquare', () => {
+  const t1 = new Float32Array([1, 0.5, 0.8, 1, 0.2, 0.9, 0.7, 1])
+  const t2 = new Float32Array([0.9, 0.7, 0.6, 1, 0.4, 0.95, 0.5, 0.8])
+  const rows = new Float32Array([...t1, ...t2])
+  const w = new Float64Array(8).fill(1)
+
+  it('recovers the mixing fraction, depth scale and level of an exact mix (worked by hand: f = 0.02 + 0.9(0.3t₁ + 0.7t₂))', () => {
+    const f = Float64Array.from(t1, (v, i) => 0.02 + 0.9 * (0.3 * v + 0.7 * t2[i]!))
+    const r = depthScaledPairChiSquare(f, w, rows, 8, 0, 1, 0, 8)
+    expect(r.fraction).toBeCloseTo(0.7, 6)
+    expect(r.scale).toBeCloseTo(0.9, 6)
+    expect(r.chi2).toBeCloseTo(0, 9)
+  })
+
+  it('falls back to the nearer single template when the best mix lies outside 0 … 1', () => {
+    // f = t₁ + 0.5(t₁ − t₂) is "beyond" t₁: the constrained best is x = 0.
+    const f = Float64Array.from(t1, (v, i) => v + 0.5 * (v - t2[i]!))
+    const r = depthScaledPairChiSquare(f, w, rows, 8, 0, 1, 0, 8)
+    expect(r.fraction).toBe(0)
+    expect(r.chi2).toBeGreaterThan(0)
+  })
+
+  it('reports an infinite χ² with fewer than four usable pixels', () => {
+    expect(depthScaledPairChiSquare(new Float64Array(8), new Float64Array(8), rows, 8, 0, 1, 0, 8).chi2).toBe(Infinity)
+  })
+})
+
+describe('smoothPairChiSquare', () => {
+  it('recovers the mixing fraction of a mix with a level and depth scale that vary linearly across the range', () => {
+    const n = 200
+    const t1 = new Float32Array(n)
+    const t2 = new Float32Array(n)
+    // Lines of two kinds alternate across the range, so a depth scale linear in X cannot mimic a change of mix.
+    const line = (i: number, c: number) => Math.exp(-0.5 * ((i - c) / 3) ** 2)
+    for (let i = 0; i < n; i++) {
+      const a = line(i, 25) + line(i, 105)
+      const b = line(i, 65) + line(i, 145)
+      const c = line(i, 180)
+      t1[i] = 1 - 0.5 * a - 0.2 * b - 0.3 * c
+      t2[i] = 1 - 0.2 * a - 0.6 * b - 0.3 * c
+    }
+    const rows = new Float32Array([...t1, ...t2])
+    const f = new Float64Array(n)
+    for (let i = 0; i < n; i++) {
+      const X = (2 * i) / (n - 1) - 1
+      f[i] = 0.05 + 0.02 * X + (0.9 + 0.05 * X) * (0.6 * t1[i]! + 0.4 * t2[i]!)
+    }
+    const r = smoothPairChiSquare(f, new Float64Array(n).fill(1), rows, n, 0, 1, 0, n)
+    // The χ² is exactly quadratic in x only near the minimum, so the parabola refinement is good to ~1e-3.
+    expect(r.fraction).toBeCloseTo(0.4, 2)
+    expect(r.chi2).toBeLessThan(1e-6)
+  })
+})
+
+describe('the MgH criterion', () => {
+  it('is the mean depth of a flat-bottomed band 4750–4790 Å', () => {
+    const wl = gridWavelengths(DEFAULT_GRID)
+    const flux = Float64Array.from(wl, (l) => (l >= 4750 && l < 4790 ? 0.8 : 1))
+    const c = CRITERIA.find((x) => x.id === 'mgh-4780')!
+    expect(criterionValue(c, flux, wl)).toBeCloseTo(0.2, 12)
   })
 })
