@@ -466,41 +466,45 @@ export function smoothPairChiSquare(
     m66 += w6 * g6
   }
   if (n < 8) return { chi2: Infinity, fraction: Number.NaN }
-  const G = Float64Array.from([m00, m01, m02, m03, m04, m05, m06, m01, m11, m12, m13, m14, m15, m16, m02, m12, m22, m23, m24, m25, m26, m03, m13, m23, m33, m34, m35, m36, m04, m14, m24, m34, m44, m45, m46, m05, m15, m25, m35, m45, m55, m56, m06, m16, m26, m36, m46, m56, m66])
-  const h = Float64Array.from([h0, h1, h2, h3, h4, h5, h6])
-  const M = new Float64Array(25)
-  const v = new Float64Array(5)
-  const A = new Float64Array(35)
-  const chiAt = (x: number): number => {
-    // e = A g: (1, X, X², t₁ + x d, X(t₁ + x d)).
-    A.fill(0)
-    A[0] = 1
-    A[8] = 1
-    A[16] = 1
-    A[24] = 1
-    A[26] = x
-    A[32] = 1
-    A[34] = x
-    for (let r = 0; r < 5; r++) {
-      let s = 0
-      for (let k = 0; k < 7; k++) s += A[r * 7 + k]! * h[k]!
-      v[r] = s
-      for (let c = 0; c < 5; c++) {
-        let m = 0
-        for (let k = 0; k < 7; k++) {
-          const a = A[r * 7 + k]!
-          if (a === 0) continue
-          for (let l = 0; l < 7; l++) m += a * G[k * 7 + l]! * A[c * 7 + l]!
-        }
-        M[r * 5 + c] = m
-      }
-    }
-    const solution = solveSymmetric(M, v, 5)
-    if (solution === null) return Infinity
-    let fit = 0
-    for (let r = 0; r < 5; r++) fit += solution[r]! * v[r]!
-    return Math.max(0, Sff - fit)
-  }
+  // The moments leave the loop through a scratch array: a closure over them would keep them out of registers.
+  const q = smoothScratch.q
+  q[0] = m00
+  q[1] = m01
+  q[2] = m02
+  q[3] = m03
+  q[4] = m04
+  q[5] = m05
+  q[6] = m06
+  q[7] = m11
+  q[8] = m12
+  q[9] = m13
+  q[10] = m14
+  q[11] = m15
+  q[12] = m16
+  q[13] = m22
+  q[14] = m23
+  q[15] = m24
+  q[16] = m25
+  q[17] = m26
+  q[18] = m33
+  q[19] = m34
+  q[20] = m35
+  q[21] = m36
+  q[22] = m44
+  q[23] = m45
+  q[24] = m46
+  q[25] = m55
+  q[26] = m56
+  q[27] = m66
+  q[28] = h0
+  q[29] = h1
+  q[30] = h2
+  q[31] = h3
+  q[32] = h4
+  q[33] = h5
+  q[34] = h6
+  q[35] = Sff
+  const chiAt = smoothChiAt
   let bestK = 0
   const values: number[] = []
   for (let k = 0; k <= steps; k++) {
@@ -516,10 +520,34 @@ export function smoothPairChiSquare(
   return c <= values[bestK]! ? { chi2: c, fraction: x } : { chi2: values[bestK]!, fraction: bestK / steps }
 }
 
-/** Solves M c = v for a symmetric positive-definite n × n M by Gaussian elimination with partial pivoting; null when singular. */
+/** χ² of smoothPairChiSquare at mixing fraction x, from the moments in smoothScratch.q. */
+function smoothChiAt(x: number): number {
+  const q = smoothScratch.q
+  const M = smoothScratch.M
+  const v = smoothScratch.v
+  // Normal equations in the basis (1, X, X², t₁ + x d, X(t₁ + x d)), assembled from the moments.
+  const x2 = x * x
+  M[0] = q[0]!; M[1] = q[1]!; M[2] = q[2]!; M[3] = q[3]! + x * q[5]!; M[4] = q[4]! + x * q[6]!
+  M[6] = q[7]!; M[7] = q[8]!; M[8] = q[9]! + x * q[11]!; M[9] = q[10]! + x * q[12]!
+  M[12] = q[13]!; M[13] = q[14]! + x * q[16]!; M[14] = q[15]! + x * q[17]!
+  M[18] = q[18]! + 2 * x * q[20]! + x2 * q[25]!
+  M[19] = q[19]! + x * (q[21]! + q[23]!) + x2 * q[26]!
+  M[24] = q[22]! + 2 * x * q[24]! + x2 * q[27]!
+  for (let r = 1; r < 5; r++) for (let c = 0; c < r; c++) M[r * 5 + c] = M[c * 5 + r]!
+  v[0] = q[28]!; v[1] = q[29]!; v[2] = q[30]!; v[3] = q[31]! + x * q[33]!; v[4] = q[32]! + x * q[34]!
+  const solution = solveSymmetric(M, v, 5)
+  if (solution === null) return Infinity
+  let fit = 0
+  for (let r = 0; r < 5; r++) fit += solution[r]! * v[r]!
+  return Math.max(0, q[35]! - fit)
+}
+
+/** Solves M c = v (n ≤ 5) by Gaussian elimination with partial pivoting; null when singular. The solution is a scratch array, valid until the next call. */
 function solveSymmetric(M: Float64Array, v: Float64Array, n: number): Float64Array | null {
-  const a = Float64Array.from(M)
-  const b = Float64Array.from(v)
+  const a = smoothScratch.a
+  const b = smoothScratch.b
+  a.set(M)
+  b.set(v)
   for (let col = 0; col < n; col++) {
     let piv = col
     for (let r = col + 1; r < n; r++) if (Math.abs(a[r * n + col]!) > Math.abs(a[piv * n + col]!)) piv = r
@@ -541,11 +569,21 @@ function solveSymmetric(M: Float64Array, v: Float64Array, n: number): Float64Arr
       b[r] = b[r]! - factor * b[col]!
     }
   }
-  const out = new Float64Array(n)
+  const out = smoothScratch.out
   for (let r = n - 1; r >= 0; r--) {
     let s = b[r]!
     for (let c = r + 1; c < n; c++) s -= a[r * n + c]! * out[c]!
     out[r] = s / a[r * n + r]!
   }
   return out
+}
+
+/** Scratch of smoothPairChiSquare and its 5 × 5 solver (one spectrum at a time per thread). */
+const smoothScratch = {
+  q: new Float64Array(36),
+  M: new Float64Array(25),
+  v: new Float64Array(5),
+  a: new Float64Array(25),
+  b: new Float64Array(5),
+  out: new Float64Array(5),
 }
