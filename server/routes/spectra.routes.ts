@@ -1,5 +1,6 @@
 import multer from 'multer'
 import type { AppContext } from '../context'
+import { sendSeries } from '../lib/series'
 import { currentUser } from '../middleware/auth'
 import { idParams } from '../schemas/common'
 import { dataQuery, listQuery, spectrumMetadata, submitBody } from '../schemas/spectra.schemas'
@@ -69,10 +70,7 @@ export function spectraRoutes(ctx: AppContext) {
       access: 'signed-in',
       schema: { params: idParams, query: dataQuery },
       handler: async (req, res) => {
-        const series = await getPreparedSeries(currentUser(req), res.locals.params.id, res.locals.query)
-        res.set('content-type', 'application/octet-stream')
-        res.set('x-series-layout', JSON.stringify(series.layout))
-        res.send(series.body)
+        sendSeries(res, await getPreparedSeries(currentUser(req), res.locals.params.id, res.locals.query))
       },
     },
     {
@@ -90,10 +88,7 @@ export function spectraRoutes(ctx: AppContext) {
       access: 'signed-in',
       schema: { params: idParams, query: dataQuery },
       handler: async (req, res) => {
-        const series = await getSpectrumSeries(currentUser(req), res.locals.params.id, res.locals.query)
-        res.set('content-type', 'application/octet-stream')
-        res.set('x-series-layout', JSON.stringify(series.layout))
-        res.send(series.body)
+        sendSeries(res, await getSpectrumSeries(currentUser(req), res.locals.params.id, res.locals.query))
       },
     },
     {

@@ -1,4 +1,5 @@
 import type { AppContext } from '../context'
+import { sendSeries } from '../lib/series'
 import { currentUser } from '../middleware/auth'
 import { idParams } from '../schemas/common'
 import { addStandardBody, publishVersionBody } from '../schemas/standards.schemas'
@@ -49,10 +50,7 @@ export function standardsRoutes(ctx: AppContext) {
       access: STAFF,
       schema: { params: idParams },
       handler: async (_req, res) => {
-        const series = await standardSeries(res.locals.params.id)
-        res.set('content-type', 'application/octet-stream')
-        res.set('x-series-layout', JSON.stringify(series.layout))
-        res.send(series.body)
+        sendSeries(res, await standardSeries(res.locals.params.id))
       },
     },
     {
