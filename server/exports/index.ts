@@ -1,6 +1,7 @@
 import { writeCsv } from './csv'
 import { writeFits } from './fits'
 import { writeFixedWidth } from './mrt'
+import type { ExportFormat } from '../../shared/api/releases'
 import type { ExportTable } from './table'
 import { writeVotable } from './votable'
 
@@ -11,8 +12,8 @@ export { writeFits, headerCards, commentCards, FITS_BLOCK, FITS_INT_NULL } from 
 export { writeFixedWidth, cdsUnit } from './mrt'
 export { writeVotable, xmlEscape } from './votable'
 
-export const EXPORT_FORMATS = ['csv', 'votable', 'fits', 'mrt'] as const
-export type ExportFormat = (typeof EXPORT_FORMATS)[number]
+export type { ExportFormat }
+export const EXPORT_FORMATS = ['csv', 'votable', 'fits', 'mrt'] as const satisfies readonly ExportFormat[]
 
 /** File bytes, media type and file-name extension of one table in one format. */
 export function writeTable(table: ExportTable, format: ExportFormat): { body: Buffer; contentType: string; extension: string } {

@@ -7,48 +7,9 @@
  * words (UCD1+ controlled vocabulary 1.4), checked by tests/reference/check_exports.py.
  */
 
-/** Storage type of a column. `datetime` values are ISO 8601 UTC strings "YYYY-MM-DDThh:mm:ss.sss". */
-export type ColumnType = 'int' | 'double' | 'string' | 'datetime' | 'boolean'
+import type { CellValue, ColumnType, ExportColumn, ExportRow, NumberFormat, TableParam } from '../../shared/api/releases'
 
-/** Fixed-width display of a double: `F` with `decimals` after the point, or `E` with `decimals` in the mantissa. */
-export interface NumberFormat {
-  notation: 'F' | 'E'
-  /** Total characters, sign included. */
-  width: number
-  decimals: number
-}
-
-export interface ExportColumn {
-  /** Label: a letter, then letters, digits and underscores (≤ 16 characters, so FITS and CDS take it as is). */
-  name: string
-  description: string
-  /** IVOA VOUnit; '' when dimensionless. */
-  unit: string
-  /** IVOA UCD1+. */
-  ucd: string
-  type: ColumnType
-  /** Doubles: display format. */
-  format?: NumberFormat
-  /** Ints: digits shown (sign included); strings: the least width of the fixed-width column. @default ints 6, strings 1 */
-  width?: number
-  /** Whether a value may be missing (null). */
-  nullable: boolean
-}
-
-export type CellValue = number | string | boolean | null
-export type ExportRow = Record<string, CellValue>
-
-/** A descriptive keyword of the whole table (VOTable PARAM, FITS header keyword, ECSV meta, ReadMe line). */
-export interface TableParam {
-  /** ≤ 8 characters, upper case (the FITS keyword); the other writers use it too. */
-  key: string
-  /** The VOTable PARAM name. */
-  name: string
-  value: string | number
-  description: string
-  ucd: string
-  unit?: string
-}
+export type { CellValue, ColumnType, ExportColumn, ExportRow, NumberFormat, TableParam }
 
 export interface ExportTable {
   /** A short machine name, e.g. "catalogue". */

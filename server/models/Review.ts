@@ -1,4 +1,7 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize'
+import type { Agreement, CallKind, ClassificationSource } from '../../shared/api/review'
+
+export type { Agreement, CallKind, ClassificationSource }
 
 /** Calls, disputes and classifications are history: written once, never changed or removed. */
 const writeOnce = (what: string) => {
@@ -27,8 +30,6 @@ export class ReviewClaim extends Model<InferAttributes<ReviewClaim>, InferCreati
     )
   }
 }
-
-export type CallKind = 'call' | 'correction'
 
 /** One person's classification of one spectrum; a correction is a later row that points at the call. */
 export class ReviewCall extends Model<InferAttributes<ReviewCall>, InferCreationAttributes<ReviewCall>> {
@@ -117,9 +118,6 @@ export class Dispute extends Model<InferAttributes<Dispute>, InferCreationAttrib
     )
   }
 }
-
-export type ClassificationSource = 'consensus' | 'settled' | 'accepted-suggestion'
-export type Agreement = 'exact' | 'within' | 'settled'
 
 /** The decided classification of a spectrum; the latest row per spectrum wins. */
 export class Classification extends Model<InferAttributes<Classification>, InferCreationAttributes<Classification>> {

@@ -1,4 +1,5 @@
 import multer from 'multer'
+import type { SpectrumPage } from '../../shared/api/spectra'
 import type { AppContext } from '../context'
 import { sendSeries } from '../lib/series'
 import { currentUser } from '../middleware/auth'
@@ -51,7 +52,7 @@ export function spectraRoutes(ctx: AppContext) {
         const user = currentUser(req)
         const spectrum = await getSpectrumDetail(user, res.locals.params.id)
         const [measurements, suggestions] = await Promise.all([measurementsOf(spectrum.id), visibleSuggestionsOf(user, spectrum.id)])
-        res.json({ spectrum, measurements, suggestions })
+        res.json({ spectrum, measurements, suggestions } satisfies SpectrumPage)
       },
     },
     {

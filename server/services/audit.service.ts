@@ -3,6 +3,9 @@ import { agreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa }
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { Campaign, Classification, LibraryVersion, ReviewCall, Spectrum, Suggestion, User } from '../models'
+import type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef } from '../../shared/api/audit'
+
+export type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef }
 
 // ---------------------------------------------------------------------------------------------
 // Inputs: plain rows, so the figures can be computed (and tested) without a database.
@@ -32,96 +35,6 @@ export interface AuditSpectrum {
 
 /** Below this many items a figure is marked `smallSample`. */
 export const SMALL_SAMPLE = 10
-
-/** A figure with the number of items behind it; `value` is null when it is undefined (no items, or κ with one category). */
-export interface Figure {
-  value: number | null
-  n: number
-  smallSample: boolean
-}
-
-export interface AgreementFigures {
-  /** Items both raters rated. */
-  n: number
-  exactType: Figure
-  withinOneSubtype: Figure
-  exactClass: Figure
-  withinOneClass: Figure
-  /** Cohen's κ on the luminosity-class codes. */
-  kappaClass: Figure
-  /** Weighted κ (Cohen 1968) on the numeric type scale. */
-  weightedKappaTypeLinear: Figure
-  weightedKappaTypeQuadratic: Figure
-}
-
-export interface RaterRef {
-  kind: 'classifier' | 'suggestion'
-  id: number | null
-  name: string
-}
-
-export interface PairFigures extends AgreementFigures {
-  a: RaterRef
-  b: RaterRef
-}
-
-export interface ClassifierFigures {
-  id: number
-  name: string
-  calls: number
-  /** Mean signed offset of the classifier's calls from the consensus (positive = later type / fainter class). */
-  typeOffset: Figure
-  classOffset: Figure
-  medianSecondsPerCall: Figure
-}
-
-export interface MatrixCell {
-  count: number
-  spectrumIds: number[]
-}
-
-/** Rows: the first rater's category; columns: the second's. */
-export interface ConfusionMatrix {
-  rowsAre: string
-  columnsAre: string
-  labels: string[]
-  cells: MatrixCell[][]
-  n: number
-}
-
-export interface GroupFigures {
-  /** ISO week "2025-W03", or a library-version name. */
-  key: string
-  calls: number
-  /** Calls against the consensus. */
-  vsConsensus: { exactType: Figure; withinOneSubtype: Figure; exactClass: Figure; withinOneClass: Figure }
-  /** Calls against the suggestion. */
-  vsSuggestion: { exactType: Figure; withinOneSubtype: Figure; exactClass: Figure; withinOneClass: Figure }
-}
-
-export interface BlindFigures {
-  /** Calls made with the suggestion on screen. */
-  shown: { calls: number; acceptedSuggestion: Figure; agreeWithSuggestion: Figure; exactTypeVsConsensus: Figure }
-  /** Calls made before the suggestion was shown. */
-  blind: { calls: number; agreeWithSuggestion: Figure; exactTypeVsConsensus: Figure }
-}
-
-export interface AuditFigures {
-  spectra: number
-  calls: number
-  classifiers: ClassifierFigures[]
-  pairs: PairFigures[]
-  vsSuggestion: PairFigures[]
-  fleiss: { type: Figure; class: Figure; ratersPerItem: number | null }
-  confusion: {
-    callsVsConsensus: { type: ConfusionMatrix; class: ConfusionMatrix }
-    suggestionVsConsensus: { type: ConfusionMatrix; class: ConfusionMatrix }
-  }
-  byWeek: GroupFigures[]
-  byLibraryVersion: GroupFigures[]
-  blind: BlindFigures
-  notes: string[]
-}
 
 // ---------------------------------------------------------------------------------------------
 // Pure figures
@@ -402,12 +315,6 @@ export interface AuditQuery {
   from?: Date
   /** Calls made before this time. */
   to?: Date
-}
-
-export interface AuditReport extends AuditFigures {
-  campaign: { id: number; code: string; name: string }
-  from: string | null
-  to: string | null
 }
 
 /** The audit of one campaign over a date range, from the stored calls, suggestions and decisions. */

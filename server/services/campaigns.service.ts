@@ -3,20 +3,9 @@ import type { AppContext } from '../context'
 import { HttpError, forbidden, notFound } from '../lib/http-error'
 import { Campaign, CampaignMember, User } from '../models'
 import type { CreateCampaignInput, UpdateCampaignInput } from '../schemas/campaigns.schemas'
+import type { CampaignDetail, CampaignMemberSummary, CampaignSummary } from '../../shared/api/campaigns'
 
-export interface CampaignSummary {
-  id: number
-  code: string
-  name: string
-  description: string
-  observatory: string
-  regionMin: number
-  regionMax: number
-  callsRequired: number
-  blindReview: boolean
-  typeTolerance: number
-  classTolerance: number
-}
+export type { CampaignDetail, CampaignMemberSummary, CampaignSummary }
 
 export const toCampaignSummary = (c: Campaign): CampaignSummary => ({
   id: c.id,
@@ -52,21 +41,6 @@ export async function campaignForSubmission(user: User, campaignId: number): Pro
   const ids = await campaignIdsOf(user)
   if (ids !== 'all' && !ids.includes(campaignId)) throw forbidden('You are not a member of this campaign.')
   return campaign
-}
-
-export interface CampaignMemberSummary {
-  id: number
-  name: string
-  role: User['role']
-  active: boolean
-  /** Only leads see addresses. */
-  email?: string
-}
-
-export interface CampaignDetail extends CampaignSummary {
-  members: CampaignMemberSummary[]
-  createdAt: string
-  updatedAt: string
 }
 
 async function membersOf(campaignId: number, viewer: User): Promise<CampaignMemberSummary[]> {

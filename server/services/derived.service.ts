@@ -2,6 +2,9 @@ import { deriveParameters, type DerivedInput, type DerivedParameters } from '../
 import { parseMK } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { Classification, Spectrum, Suggestion } from '../models'
+import type { ClassificationBasis, DerivedView, ObserverInputs } from '../../shared/api/derived'
+
+export type { ClassificationBasis, DerivedView, ObserverInputs }
 
 /** Shown beside every derived value. */
 export const DERIVED_CAUTION = 'Calibration estimates, not measurements: derived from the MK type and class with published calibrations.'
@@ -9,23 +12,6 @@ export const DERIVED_CAUTION = 'Calibration estimates, not measurements: derived
 /** The least uncertainty of a decided type or class: half a step, the resolution of the notation. */
 export const MIN_TYPE_UNCERTAINTY = 0.5
 export const MIN_CLASS_UNCERTAINTY = 0.5
-
-export interface ClassificationBasis {
-  source: 'classification' | 'suggestion'
-  spectralType: string
-  /** Subtypes. */
-  typeUncertainty: number
-  /** Classes. */
-  classUncertainty: number
-}
-
-/** What the observer supplied about the star. */
-export interface ObserverInputs {
-  vMag: number | null
-  ebv: number | null
-  parallaxMas: number | null
-  parallaxErrorMas: number | null
-}
 
 /**
  * The uncertainty of a decided classification: half the spread of the calls it rests on, or the
@@ -60,15 +46,6 @@ export function estimatesFor(basis: ClassificationBasis, inputs: ObserverInputs)
   const parsed = parseMK(basis.spectralType)
   if (!parsed.ok) return { ok: false, flag: 'outside the MK grid', reason: `the type "${basis.spectralType}" does not parse: ${parsed.reason}` }
   return deriveParameters(parsed.value, derivedInput(basis, inputs))
-}
-
-export interface DerivedView {
-  spectrumId: number
-  /** What the estimates rest on; null when the spectrum has neither a decision nor a suggestion. */
-  basis: ClassificationBasis | null
-  inputs: ObserverInputs
-  estimates: DerivedParameters | null
-  caution: string
 }
 
 /** The basis for derived values: the decided classification, else the current suggestion. */

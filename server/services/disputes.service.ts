@@ -1,29 +1,11 @@
 import { Op, UniqueConstraintError, type WhereOptions } from 'sequelize'
-import type { SpectrumStatus } from '../../shared/status'
 import type { AppContext } from '../context'
 import { HttpError, notFound } from '../lib/http-error'
 import { Campaign, Classification, Dispute, ReviewCall, Spectrum, Suggestion, type User } from '../models'
-import { namesOf, notifySubmitter, parseCallType, standingCalls, toCallView, toFinalClassification, toSuggestionView, type CallView, type FinalClassification, type SuggestionView } from './review.service'
+import { namesOf, notifySubmitter, parseCallType, standingCalls, toCallView, toFinalClassification, toSuggestionView } from './review.service'
+import type { DisputeState, DisputeView, SettleInput } from '../../shared/api/disputes'
 
-export type DisputeState = 'open' | 'settled'
-
-export interface DisputeView {
-  id: number
-  state: DisputeState
-  openedAt: string
-  spectrum: { id: number; objectName: string; status: SpectrumStatus; snr: number | null; createdAt: string }
-  campaign: { id: number; code: string; name: string }
-  typeSpread: number
-  classSpread: number
-  typeTolerance: number
-  classTolerance: number
-  /** The disputed calls side by side, in the order they were made. */
-  calls: CallView[]
-  /** Every call row on the spectrum, corrections included. */
-  allCalls: CallView[]
-  suggestion: SuggestionView | null
-  settlement: FinalClassification | null
-}
+export type { DisputeState, DisputeView, SettleInput }
 
 async function disputeViews(disputes: Dispute[]): Promise<DisputeView[]> {
   if (disputes.length === 0) return []
@@ -82,13 +64,6 @@ export async function getDispute(id: number): Promise<DisputeView> {
   const d = await Dispute.findByPk(id)
   if (!d) throw notFound('The dispute')
   return (await disputeViews([d]))[0]!
-}
-
-export interface SettleInput {
-  spectralType: string
-  luminosityClass: string
-  peculiarities?: string
-  note: string
 }
 
 /** A lead's final call on a disputed spectrum: a settled classification, and the spectrum is settled. */

@@ -1,20 +1,9 @@
 import { Campaign, Classification, Dispute, Measurement, ReviewCall, Suggestion, type User } from '../models'
 import { isBlindFor, namesOf, toCallView, toFinalClassification, type PersonRef } from './review.service'
 import { findVisibleSpectrum } from './spectra.service'
+import type { HistoryEvent, HistoryKind, SpectrumHistory } from '../../shared/api/history'
 
-export type HistoryKind = 'upload' | 'measurement' | 'suggestion' | 'call' | 'correction' | 'dispute' | 'agreed' | 'settled'
-
-export interface HistoryEvent {
-  at: string
-  kind: HistoryKind
-  /** Null for the pipeline. */
-  who: PersonRef | null
-  summary: string
-  /** For calls: whether the suggestion had been shown to the caller, and the time they spent. */
-  suggestionShown?: boolean
-  secondsSpent?: number | null
-  details: Record<string, unknown>
-}
+export type { HistoryEvent, HistoryKind }
 
 const KIND_ORDER: HistoryKind[] = ['upload', 'measurement', 'suggestion', 'call', 'correction', 'dispute', 'agreed', 'settled']
 
@@ -22,7 +11,7 @@ const KIND_ORDER: HistoryKind[] = ['upload', 'measurement', 'suggestion', 'call'
  * Everything that happened to a spectrum, oldest first, from rows that are never changed. Blind
  * review applies: a classifier who has not called yet sees neither the suggestions nor others' calls.
  */
-export async function historyOf(user: User, spectrumId: number): Promise<{ events: HistoryEvent[]; hidden: boolean }> {
+export async function historyOf(user: User, spectrumId: number): Promise<SpectrumHistory> {
   const spectrum = await findVisibleSpectrum(user, spectrumId)
   const [campaign, measurements, suggestions, calls, disputes, classifications] = await Promise.all([
     Campaign.findByPk(spectrum.campaignId, { rejectOnEmpty: true }),

@@ -6,39 +6,9 @@ import { HttpError, notFound } from '../lib/http-error'
 import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, type User } from '../models'
 import type { AppContext } from '../context'
 import { findVisibleSpectrum } from './spectra.service'
+import type { LineRow, MeasurementSummary, SpectrumMeasurements } from '../../shared/api/measurements'
 
-export interface LineRow {
-  id: string
-  name: string
-  wavelength: number
-  family: string
-  measured: boolean
-  reason: string | null
-  ew: number | null
-  ewError: number | null
-  depth: number | null
-  fwhm: number | null
-  centroid: number | null
-  snr: number | null
-  gaussianFwhm: number | null
-  lorentzianFwhm: number | null
-  lorentzianError: number | null
-}
-
-export interface MeasurementSummary {
-  id: number
-  pipelineVersion: string
-  isCurrent: boolean
-  snr: number | null
-  rv: number | null
-  rvError: number | null
-  pseudoContinuum: boolean
-  warnings: string[]
-  ratios: unknown[]
-  seconds: number
-  createdAt: string
-  lines: LineRow[]
-}
+export type { LineRow, MeasurementSummary }
 
 const LINE_INFO = new Map(CLASSIFICATION_LINES.map((l) => [l.id, l]))
 
@@ -79,7 +49,7 @@ function toSummary(m: Measurement, lines: LineMeasurementRow[]): MeasurementSumm
 }
 
 /** The current measurement with its lines, and the older runs (without lines) as history. */
-export async function measurementsOf(spectrumId: number): Promise<{ current: MeasurementSummary | null; history: Omit<MeasurementSummary, 'lines'>[] }> {
+export async function measurementsOf(spectrumId: number): Promise<SpectrumMeasurements> {
   const all = await Measurement.findAll({
     where: { spectrumId },
     attributes: { exclude: ['flux', 'continuum', 'rectified', 'mask'] },

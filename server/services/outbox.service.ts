@@ -1,21 +1,12 @@
 import { notFound } from '../lib/http-error'
 import { MailMessage } from '../models'
+import type { MailDetail, MailPage, MailSummary } from '../../shared/api/outbox'
 
-export interface MailSummary {
-  id: number
-  from: string
-  to: string
-  subject: string
-  receivedAt: string
-}
-
-export interface MailDetail extends MailSummary {
-  text: string
-}
+export type { MailDetail, MailSummary }
 
 const summary = (m: MailMessage): MailSummary => ({ id: m.id, from: m.fromAddress, to: m.toAddresses, subject: m.subject, receivedAt: m.receivedAt.toISOString() })
 
-export async function listMail(page: number, pageSize: number): Promise<{ items: MailSummary[]; total: number }> {
+export async function listMail(page: number, pageSize: number): Promise<MailPage> {
   const { rows, count } = await MailMessage.findAndCountAll({
     attributes: ['id', 'fromAddress', 'toAddresses', 'subject', 'receivedAt'],
     order: [['id', 'DESC']],

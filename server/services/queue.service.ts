@@ -3,13 +3,14 @@ import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
 import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
-import { OPEN_FOR_CALLS, namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView, type SuggestionView } from './review.service'
+import { OPEN_FOR_CALLS, namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView } from './review.service'
 import { findVisibleSpectrum } from './spectra.service'
+import type { QueueItem, QueueOrder, QueuePage } from '../../shared/api/queue'
+
+export type { QueueItem, QueueOrder }
 
 /** How long a claim holds an item before it lapses by itself. */
 export const CLAIM_MINUTES = 10
-
-export type QueueOrder = 'oldest' | 'snr' | 'flagged'
 
 export interface QueueQuery {
   campaign?: number
@@ -22,21 +23,6 @@ export interface QueueQuery {
   snrMax?: number
   order: QueueOrder
   limit: number
-}
-
-export interface QueueItem {
-  spectrumId: number
-  objectName: string
-  campaign: { id: number; code: string; name: string; blindReview: boolean }
-  snr: number | null
-  flags: string[]
-  createdAt: string
-  status: 'suggested' | 'under_review'
-  claim: { state: 'free' } | { state: 'mine'; claimedAt: string; expiresAt: string }
-  calls: { count: number; needed: number }
-  /** Shown only where the campaign does not review blind. */
-  suggestion: SuggestionView | null
-  hidden: boolean
 }
 
 /** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
@@ -149,7 +135,7 @@ async function queueItems(user: User, ids: number[], now: Date): Promise<QueueIt
 }
 
 /** The caller's queue: their campaigns' suggested spectra that still need their call. */
-export async function listQueue(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery, now = new Date()): Promise<{ items: QueueItem[]; claimMinutes: number }> {
+export async function listQueue(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery, now = new Date()): Promise<QueuePage> {
   return { items: await queueItems(user, await queueIds(ctx, user, q, now), now), claimMinutes: CLAIM_MINUTES }
 }
 

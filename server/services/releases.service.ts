@@ -4,6 +4,9 @@ import { CATALOGUE_COLUMNS, CATALOGUE_NOTES, isoTimestamp, writeTable, type Expo
 import { HttpError, notFound } from '../lib/http-error'
 import { Campaign, Classification, LibraryVersion, Measurement, Release, ReleaseRow, ReviewCall, Spectrum, Suggestion, User } from '../models'
 import { decisionUncertainty, estimatesFor, observerInputs } from './derived.service'
+import type { ReleaseDetail, ReleaseSummary } from '../../shared/api/releases'
+
+export type { ReleaseDetail, ReleaseSummary }
 
 /** Spectra in these states have a decided classification and go into a release. */
 export const RELEASED_STATUSES = ['agreed', 'settled'] as const
@@ -161,19 +164,6 @@ const distinct = (rows: ExportRow[], key: string) => [...new Set(rows.map((r) =>
 // Releases
 // ---------------------------------------------------------------------------------------------
 
-export interface ReleaseSummary {
-  id: number
-  campaign: { id: number; code: string; name: string }
-  version: number
-  title: string
-  description: string
-  rows: number
-  createdBy: { id: number; name: string }
-  createdAt: string
-  supersededBy: number | null
-  downloads: Record<ExportFormat, string>
-}
-
 async function summaries(releases: Release[]): Promise<ReleaseSummary[]> {
   const campaigns = new Map((await Campaign.findAll({ where: { id: { [Op.in]: [0, ...releases.map((r) => r.campaignId)] } } })).map((c) => [c.id, c]))
   const users = new Map((await User.findAll({ where: { id: { [Op.in]: [0, ...releases.map((r) => r.createdBy)] } }, attributes: ['id', 'name'] })).map((u) => [u.id, u.name]))
@@ -264,17 +254,6 @@ export async function supersedeRelease(user: User, releaseId: number, input: Omi
 export async function listReleases(query: { campaignId?: number }): Promise<ReleaseSummary[]> {
   const rows = await Release.findAll({ where: query.campaignId ? { campaignId: query.campaignId } : {}, order: [['campaignId', 'ASC'], ['version', 'DESC']] })
   return summaries(rows)
-}
-
-export interface ReleaseDetail {
-  release: ReleaseSummary
-  columns: ExportColumn[]
-  params: TableParam[]
-  notes: string[]
-  rows: ExportRow[]
-  total: number
-  page: number
-  pageSize: number
 }
 
 export async function getRelease(id: number, paging: { page: number; pageSize: number }): Promise<ReleaseDetail> {

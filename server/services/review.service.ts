@@ -3,9 +3,12 @@ import { classCodeOf, formatMK, parseMK, type MKValue } from '../../shared/mk'
 import type { SpectrumStatus } from '../../shared/status'
 import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
-import { Campaign, Classification, Dispute, ReviewCall, ReviewClaim, Spectrum, Suggestion, User, type Agreement, type CallKind, type ClassificationSource } from '../models'
-import { measurementsOf, type MeasurementSummary } from './measurements.service'
+import { Campaign, Classification, Dispute, ReviewCall, ReviewClaim, Spectrum, Suggestion, User, type Agreement, type ClassificationSource } from '../models'
+import { measurementsOf } from './measurements.service'
 import { findVisibleSpectrum } from './spectra.service'
+import type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInput, RecordCallResult, ReviewCampaign, ReviewView, SuggestionView } from '../../shared/api/review'
+
+export type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInput, RecordCallResult, ReviewCampaign, ReviewView, SuggestionView }
 
 /** Statuses in which a spectrum takes calls. */
 export const OPEN_FOR_CALLS: readonly SpectrumStatus[] = ['suggested', 'under_review']
@@ -150,30 +153,6 @@ export function judgeCalls(calls: JudgedCall[], rules: { typeTolerance: number; 
 // Views
 // ---------------------------------------------------------------------------------------------
 
-export interface PersonRef {
-  id: number
-  name: string
-}
-
-export interface SuggestionView {
-  id: number
-  spectralType: string
-  letter: string
-  subtype: number
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  uncertaintySubtypes: number
-  uncertaintyClasses: number
-  libraryVersionId: number
-  pipelineVersion: string
-  bestStandardId: number | null
-  candidates: unknown[]
-  votes: unknown
-  flags: string[]
-  createdAt: string
-}
-
 export const suggestionFlags = (s: Suggestion | null): string[] => (s ? parseJson<unknown>(s.flags, []) : []) as string[]
 
 export function toSuggestionView(s: Suggestion): SuggestionView {
@@ -195,28 +174,6 @@ export function toSuggestionView(s: Suggestion): SuggestionView {
     flags: suggestionFlags(s),
     createdAt: s.createdAt.toISOString(),
   }
-}
-
-export interface CallView {
-  id: number
-  kind: CallKind
-  correctsCallId: number | null
-  by: PersonRef
-  spectralType: string
-  letter: string
-  subtype: number
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  peculiarities: string[]
-  notes: string
-  confidence: number
-  uncertain: boolean
-  acceptedSuggestion: boolean
-  suggestionId: number | null
-  suggestionShown: boolean
-  secondsSpent: number | null
-  createdAt: string
 }
 
 export function toCallView(c: ReviewCall, names: Map<number, string>): CallView {
@@ -241,29 +198,6 @@ export function toCallView(c: ReviewCall, names: Map<number, string>): CallView 
     secondsSpent: c.secondsSpent,
     createdAt: c.createdAt.toISOString(),
   }
-}
-
-export interface FinalClassification {
-  id: number
-  spectrumId: number
-  source: ClassificationSource
-  spectralType: string
-  letter: string
-  subtype: number
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  peculiarities: string[]
-  decidedBy: PersonRef | null
-  decidedAt: string
-  nCalls: number
-  callIds: number[]
-  agreement: Agreement
-  typeSpread: number | null
-  classSpread: number | null
-  suggestionId: number | null
-  disputeId: number | null
-  note: string
 }
 
 export function toFinalClassification(c: Classification, names: Map<number, string>): FinalClassification {
@@ -342,15 +276,6 @@ export function isBlindFor(campaign: Campaign, spectrum: Spectrum, hasCalled: bo
 // Review view
 // ---------------------------------------------------------------------------------------------
 
-export interface ClaimView {
-  spectrumId: number
-  mine: boolean
-  by: PersonRef
-  claimedAt: string
-  expiresAt: string
-  live: boolean
-}
-
 export function toClaimView(c: ReviewClaim, user: User, names: Map<number, string>, now = new Date()): ClaimView {
   return {
     spectrumId: c.spectrumId,
@@ -362,19 +287,7 @@ export function toClaimView(c: ReviewClaim, user: User, names: Map<number, strin
   }
 }
 
-export interface CampaignRules {
-  id: number
-  code: string
-  name: string
-  callsRequired: number
-  blindReview: boolean
-  typeTolerance: number
-  classTolerance: number
-  regionMin: number
-  regionMax: number
-}
-
-const toRules = (c: Campaign): CampaignRules => ({
+const toRules = (c: Campaign): ReviewCampaign => ({
   id: c.id,
   code: c.code,
   name: c.name,
@@ -385,42 +298,6 @@ const toRules = (c: Campaign): CampaignRules => ({
   regionMin: c.regionMin,
   regionMax: c.regionMax,
 })
-
-export interface ReviewView {
-  spectrum: {
-    id: number
-    objectName: string
-    status: SpectrumStatus
-    statusReason: string | null
-    submittedBy: PersonRef
-    createdAt: string
-    obsDate: string | null
-    instrument: string
-    snr: number | null
-    wavelengthRange: [number, number]
-    dispersion: number
-    resolvingPower: number | null
-    vMag: number | null
-    notes: string
-  }
-  campaign: CampaignRules
-  measurement: MeasurementSummary | null
-  /** Null when there is none, or while blind review hides it (`hidden`). */
-  suggestion: SuggestionView | null
-  hidden: boolean
-  /** The claim on the spectrum, if any; another person's lapsed claim is left out. */
-  claim: ClaimView | null
-  /** With `othersHidden`, only the caller's own rows. */
-  calls: CallView[]
-  othersHidden: boolean
-  callsSoFar: number
-  callsRequired: number
-  myCall: CallView | null
-  canCall: { allowed: boolean; reason: string | null; code: string | null }
-  canCorrect: boolean
-  dispute: { id: number; openedAt: string; settled: boolean } | null
-  classification: FinalClassification | null
-}
 
 function callRefusal(user: User, spectrum: Spectrum, hasCalled: boolean): { code: string; reason: string } | null {
   if (spectrum.submittedBy === user.id) return { code: 'own_submission', reason: 'You submitted this spectrum; someone else classifies it.' }
@@ -487,31 +364,6 @@ export async function getReviewView(user: User, spectrumId: number, now = new Da
 // ---------------------------------------------------------------------------------------------
 // Recording a call
 // ---------------------------------------------------------------------------------------------
-
-export interface RecordCallInput {
-  spectralType?: string
-  luminosityClass?: string
-  /** MK peculiarity notes written after the class, e.g. "n", "e", "Si Sr". */
-  peculiarities?: string
-  notes?: string
-  confidence: number
-  uncertain?: boolean
-  acceptedSuggestion: boolean
-  /** Time on the item; from the caller's claim when not given. */
-  secondsSpent?: number
-  /** Set to record a correction of the caller's standing call (only while the spectrum waits for calls). */
-  correctsCallId?: number
-}
-
-export interface RecordCallResult {
-  call: CallView
-  spectrum: { id: number; status: SpectrumStatus }
-  outcome: 'waiting' | 'agreed' | 'disputed'
-  callsSoFar: number
-  callsRequired: number
-  classification: FinalClassification | null
-  dispute: { id: number } | null
-}
 
 const conflict = (code: string, message: string) => new HttpError(409, code, message)
 

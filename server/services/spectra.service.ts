@@ -13,6 +13,9 @@ import { readSpectrum, unpackZip, type ReadMeta, type ReadSuccess } from '../spe
 import { estimateSpectrumSnr } from '../spectra/prepare/snr'
 import { campaignForSubmission, campaignIdsOf } from './campaigns.service'
 import { finalClassificationsFor, type FinalClassification } from './review.service'
+import type { FileResult, SpectrumDetail, SpectrumList, SpectrumListItem } from '../../shared/api/spectra'
+
+export type { FileResult, SpectrumDetail, SpectrumListItem }
 
 export interface UploadedFile {
   name: string
@@ -25,11 +28,6 @@ export interface SubmitOptions extends SpectrumMetadataInput {
   wavelengthMedium: 'file' | 'air' | 'vacuum'
   hdu?: number
 }
-
-export type FileResult =
-  | { file: string; outcome: 'accepted'; spectrumId: number; pixels: number; wavelengthRange: [number, number]; dispersion: number; snr: number | null; objectName: string; notes: string[] }
-  | { file: string; outcome: 'duplicate'; spectrumId: number | null; message: string }
-  | { file: string; outcome: 'refused'; code: string; message: string }
 
 const ZIP_MAGIC = [0x50, 0x4b, 0x03, 0x04]
 const isZip = (b: Uint8Array) => ZIP_MAGIC.every((v, i) => b[i] === v)
@@ -204,26 +202,6 @@ export async function findVisibleSpectrum(user: User, id: number): Promise<Spect
   return spectrum
 }
 
-export interface SpectrumListItem {
-  id: number
-  objectName: string
-  status: SpectrumStatus
-  statusReason: string | null
-  campaign: { id: number; code: string; name: string }
-  submittedBy: { id: number; name: string }
-  fileName: string
-  obsDate: string | null
-  createdAt: string
-  snr: number | null
-  pixels: number
-  wavelengthRange: [number, number]
-  dispersion: number
-  raDeg: number | null
-  decDeg: number | null
-  /** The decided classification (agreed or settled), when there is one. */
-  classification: FinalClassification | null
-}
-
 function toListItem(s: Spectrum & { campaign?: Campaign; submitter?: User }, classification: FinalClassification | null = null): SpectrumListItem {
   return {
     id: s.id,
@@ -259,7 +237,7 @@ export interface ListQuery {
   sort: string
 }
 
-export async function listSpectra(user: User, query: ListQuery): Promise<{ items: SpectrumListItem[]; total: number; page: number; pageSize: number }> {
+export async function listSpectra(user: User, query: ListQuery): Promise<SpectrumList> {
   const and: WhereOptions<Spectrum>[] = [await visibilityWhere(user)]
   if (query.status) and.push({ status: query.status })
   if (query.campaign) and.push({ campaignId: query.campaign })
@@ -292,24 +270,6 @@ export async function listSpectra(user: User, query: ListQuery): Promise<{ items
     page: query.page,
     pageSize: query.pageSize,
   }
-}
-
-export interface SpectrumDetail extends SpectrumListItem {
-  instrument: string
-  exposureS: number | null
-  resolutionFwhm: number | null
-  resolvingPower: number | null
-  vMag: number | null
-  parallaxMas: number | null
-  parallaxErrorMas: number | null
-  ebv: number | null
-  notes: string
-  format: string
-  fileSize: number
-  fileSha256: string
-  vacuumConverted: boolean
-  read: ReadMeta
-  canEdit: boolean
 }
 
 export async function getSpectrumDetail(user: User, id: number): Promise<SpectrumDetail> {

@@ -10,6 +10,9 @@ import { HttpError, notFound } from '../lib/http-error'
 import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, type User } from '../models'
 import { replaceModelsByObserved } from '../spectra/match'
 import { resolutionFwhm } from '../spectra/pipeline'
+import type { StandardSummary, StandardsLibrary, VersionSummary } from '../../shared/api/standards'
+
+export type { StandardSummary, VersionSummary }
 
 /** Name of the version made from the shipped model library. */
 export const DEFAULT_VERSION_NAME = 'model-v1'
@@ -67,39 +70,10 @@ function classCodeOrThrow(text: string): number {
   return code
 }
 
-export interface StandardSummary {
-  id: number
-  source: 'model' | 'observed'
-  modelId: string | null
-  spectrumId: number | null
-  spectralType: string
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  teff: number | null
-  logg: number | null
-  note: string
-  addedBy: number | null
-  retiredAt: string | null
-  createdAt: string
-  versionIds: number[]
-}
-
-export interface VersionSummary {
-  id: number
-  name: string
-  description: string
-  status: 'draft' | 'published'
-  isActive: boolean
-  publishedAt: string | null
-  publishedBy: number | null
-  standardCount: number
-}
-
 const SUMMARY_ATTRIBUTES = { exclude: ['rectified'] }
 
 /** Every version and every standard (without arrays), and which version is active. */
-export async function listLibrary(): Promise<{ activeVersionId: number | null; versions: VersionSummary[]; standards: StandardSummary[] }> {
+export async function listLibrary(): Promise<StandardsLibrary> {
   const [versions, standards, links] = await Promise.all([
     LibraryVersion.findAll({ order: [['id', 'ASC']] }),
     Standard.findAll({ attributes: SUMMARY_ATTRIBUTES, order: [['typeCode', 'ASC'], ['classCode', 'DESC'], ['id', 'ASC']] }),

@@ -5,29 +5,9 @@ import { Campaign, ProcessingJob, ReviewCall, Spectrum, Suggestion, type User } 
 import { isBlindFor } from './review.service'
 import type { MatchResult } from '../spectra/match'
 import { activeVersionId } from './standards.service'
+import type { SpectrumSuggestions, SuggestionSummary } from '../../shared/api/suggestions'
 
-/** The stored form of a suggestion, as the API returns it. */
-export interface SuggestionSummary {
-  id: number
-  spectrumId: number
-  measurementId: number
-  libraryVersionId: number
-  pipelineVersion: string
-  isCurrent: boolean
-  spectralType: string
-  letter: string
-  subtype: number
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  uncertainty: { subtypes: number; classes: number }
-  bestStandardId: number | null
-  candidates: unknown[]
-  votes: unknown[]
-  flags: string[]
-  probabilities: unknown[]
-  createdAt: string
-}
+export type { SuggestionSummary }
 
 /** Stores a matcher result as the spectrum's current suggestion; earlier ones stay with is_current = false. */
 export async function storeSuggestion(
@@ -103,7 +83,7 @@ export async function suggestionHiddenFrom(user: User, spectrumId: number): Prom
 }
 
 /** The suggestions as this user may see them: none under blind review, however they ask. */
-export async function visibleSuggestionsOf(user: User, spectrumId: number): Promise<{ current: SuggestionSummary | null; history: SuggestionSummary[]; hidden: boolean }> {
+export async function visibleSuggestionsOf(user: User, spectrumId: number): Promise<SpectrumSuggestions> {
   if (await suggestionHiddenFrom(user, spectrumId)) return { current: null, history: [], hidden: true }
   return { ...(await suggestionsOf(spectrumId)), hidden: false }
 }

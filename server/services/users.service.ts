@@ -1,21 +1,12 @@
 import bcrypt from 'bcryptjs'
 import { Op } from 'sequelize'
-import type { Role } from '../../shared/roles'
 import type { AppContext } from '../context'
 import { HttpError, notFound } from '../lib/http-error'
 import { randomToken, sha256Hex } from '../lib/tokens'
 import { Session, User, UserToken, type TokenPurpose } from '../models'
+import type { InviteInput, PublicUser, UserChanges } from '../../shared/api/users'
 
-export interface PublicUser {
-  id: number
-  email: string
-  name: string
-  role: Role
-  active: boolean
-  invited: boolean
-  lastLoginAt: string | null
-  createdAt: string
-}
+export type { InviteInput, PublicUser, UserChanges }
 
 export function toPublicUser(u: User): PublicUser {
   return {
@@ -71,12 +62,6 @@ function link(ctx: AppContext, token: string): string {
   return `${ctx.config.publicUrl.replace(/\/$/, '')}/set-password?token=${encodeURIComponent(token)}`
 }
 
-export interface InviteInput {
-  email: string
-  name: string
-  role: Role
-}
-
 /** Creates the account without a password and mails a single-use link to set one. */
 export async function inviteUser(ctx: AppContext, input: InviteInput, invitedBy: User): Promise<PublicUser> {
   const email = normaliseEmail(input.email)
@@ -106,12 +91,6 @@ export async function resendInvitation(ctx: AppContext, userId: number, invitedB
     subject: 'Your Lineweight invitation',
     text: `Hello ${user.name},\n\n${invitedBy.name} sent you a new link to set your Lineweight password (it works once and expires in ${ctx.config.INVITE_HOURS} hours):\n\n${link(ctx, token)}\n`,
   })
-}
-
-export interface UserChanges {
-  role?: Role
-  active?: boolean
-  name?: string
 }
 
 /** Changes role, name or active state; deactivating ends the person's sessions at once. */

@@ -1,40 +1,14 @@
-import type { Role } from '@shared/roles'
+import type { CampaignDetail, CampaignMemberSummary, CampaignSummary } from '@shared/api/campaigns'
 import { http } from './http'
 
-export interface CampaignRules {
-  name: string
-  description: string
-  observatory: string
-  regionMin: number
-  regionMax: number
-  callsRequired: number
-  blindReview: boolean
-  typeTolerance: number
-  classTolerance: number
-}
+export type { CampaignDetail, CampaignSummary }
+export { listCampaigns } from './campaigns'
+export type CampaignMember = CampaignMemberSummary
 
-export interface CampaignSummary extends CampaignRules {
-  id: number
-  code: string
-}
-
-export interface CampaignMember {
-  id: number
-  name: string
-  role: Role
-  active: boolean
-  email?: string
-}
-
-export interface CampaignDetail extends CampaignSummary {
-  members: CampaignMember[]
-  createdAt: string
-  updatedAt: string
-}
+/** The settings a lead edits; the code is fixed once the campaign exists. */
+export type CampaignRules = Omit<CampaignSummary, 'id' | 'code'>
 
 export type CampaignCreateInput = CampaignRules & { code: string }
-
-export const listCampaigns = async (): Promise<CampaignSummary[]> => (await http.get<{ campaigns: CampaignSummary[] }>('/campaigns')).campaigns
 
 export const getCampaign = async (id: number): Promise<CampaignDetail> => (await http.get<{ campaign: CampaignDetail }>(`/campaigns/${id}`)).campaign
 

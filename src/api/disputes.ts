@@ -1,33 +1,7 @@
-import type { SpectrumStatus } from '@shared/status'
-import type { CallView, FinalClassification, SuggestionView } from './calls'
+import type { DisputeState, DisputeView, SettleInput } from '@shared/api/disputes'
 import { http } from './http'
 
-export type DisputeState = 'open' | 'settled'
-
-/** A disputed spectrum with its calls side by side (server: disputes.service DisputeView). */
-export interface DisputeView {
-  id: number
-  state: DisputeState
-  openedAt: string
-  spectrum: { id: number; objectName: string; status: SpectrumStatus; snr: number | null; createdAt: string }
-  campaign: { id: number; code: string; name: string }
-  typeSpread: number
-  classSpread: number
-  typeTolerance: number
-  classTolerance: number
-  calls: CallView[]
-  allCalls: CallView[]
-  suggestion: SuggestionView | null
-  settlement: FinalClassification | null
-}
-
-export interface SettleInput {
-  /** Letter and subtype, e.g. "B8". */
-  spectralType: string
-  luminosityClass: string
-  peculiarities: string
-  note: string
-}
+export type { DisputeState, DisputeView, SettleInput }
 
 export const listDisputes = async (state: DisputeState | 'all' = 'all'): Promise<DisputeView[]> =>
   (await http.get<{ disputes: DisputeView[] }>('/disputes', { query: { state } })).disputes

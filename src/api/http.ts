@@ -157,6 +157,22 @@ export const http = {
   delete: <T>(path: string, options?: RequestOptions) => request<T>('DELETE', path, undefined, options),
 }
 
+/**
+ * GET for a binary body (series data): same cookies, network error and typed API errors as `http`,
+ * without the uniform failure handling (a missing series is drawn by the page, not redirected).
+ */
+export async function getBinary(path: string, options: Pick<RequestOptions, 'query' | 'signal'> = {}): Promise<Response> {
+  let response: Response
+  try {
+    response = await fetch(buildUrl(path, options.query), { credentials: 'same-origin', headers: { accept: 'application/octet-stream' }, signal: options.signal })
+  } catch (cause) {
+    if ((cause as Error)?.name === 'AbortError') throw cause
+    throw new ApiError(0, NETWORK_ERROR, NETWORK_MESSAGE)
+  }
+  if (!response.ok) throw await errorFrom(response)
+  return response
+}
+
 /** Field errors from any thrown value (empty unless it is an ApiError that carries them). */
 export function fieldErrorsOf(error: unknown): Record<string, string> {
   return error instanceof ApiError ? error.fields : {}

@@ -1,21 +1,7 @@
+import type { MailDetail, MailPage } from '@shared/api/outbox'
 import { http } from './http'
 
-export interface MailSummary {
-  id: number
-  from: string
-  to: string
-  subject: string
-  receivedAt: string
-}
-
-export interface MailDetail extends MailSummary {
-  text: string
-}
-
-export interface MailPage {
-  items: MailSummary[]
-  total: number
-}
+export type { MailDetail, MailPage, MailSummary } from '@shared/api/outbox'
 
 export const listMail = (page: number, pageSize: number) => http.get<MailPage>('/outbox', { query: { page, pageSize } })
 

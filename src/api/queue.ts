@@ -1,9 +1,12 @@
-import type { SuggestionView } from './calls'
+import type { QueueItem, QueueOrder, QueuePage } from '@shared/api/queue'
+import type { ClaimView } from '@shared/api/review'
 import { http } from './http'
 
+export type { QueueItem, QueueOrder, QueuePage }
+export type { ClaimView }
+
 /** Priority orders the server offers for the queue. */
-export const QUEUE_ORDERS = ['oldest', 'snr', 'flagged'] as const
-export type QueueOrder = (typeof QUEUE_ORDERS)[number]
+export const QUEUE_ORDERS = ['oldest', 'snr', 'flagged'] as const satisfies readonly QueueOrder[]
 
 export interface QueueFilters {
   campaign?: number
@@ -15,36 +18,6 @@ export interface QueueFilters {
   snrMin?: number
   snrMax?: number
   order?: QueueOrder
-}
-
-/** One spectrum waiting for the caller's call (server: queue.service QueueItem). */
-export interface QueueItem {
-  spectrumId: number
-  objectName: string
-  campaign: { id: number; code: string; name: string; blindReview: boolean }
-  snr: number | null
-  flags: string[]
-  createdAt: string
-  status: 'suggested' | 'under_review'
-  claim: { state: 'free' } | { state: 'mine'; claimedAt: string; expiresAt: string }
-  calls: { count: number; needed: number }
-  /** Null under blind review (then `hidden`) or when there is no suggestion. */
-  suggestion: SuggestionView | null
-  hidden: boolean
-}
-
-export interface QueuePage {
-  items: QueueItem[]
-  claimMinutes: number
-}
-
-export interface ClaimView {
-  spectrumId: number
-  mine: boolean
-  by: { id: number; name: string }
-  claimedAt: string
-  expiresAt: string
-  live: boolean
 }
 
 function queryOf(f: QueueFilters): Record<string, string | number | undefined> {

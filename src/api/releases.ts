@@ -1,60 +1,24 @@
+import type { CellValue, ExportColumn, ExportFormat, ExportRow, ReleaseDetail as ReleasePage, ReleaseSummary, TableParam } from '@shared/api/releases'
 import { http } from './http'
 
-// Mirrors /api/releases (server/services/releases.service.ts).
+export type { ReleaseSummary }
 
 export const DOWNLOAD_FORMATS = [
   { format: 'csv', label: 'CSV', hint: 'Comma-separated, one header line' },
   { format: 'votable', label: 'VOTable', hint: 'IVOA VOTable (XML)' },
   { format: 'fits', label: 'FITS', hint: 'FITS binary table' },
   { format: 'mrt', label: 'Fixed-width + ReadMe', hint: 'Byte-by-byte description, as journals take it' },
-] as const
+] as const satisfies readonly { format: ExportFormat; label: string; hint: string }[]
 
-export type DownloadFormat = (typeof DOWNLOAD_FORMATS)[number]['format']
+export type DownloadFormat = ExportFormat
 
-export interface ReleaseSummary {
-  id: number
-  campaign: { id: number; code: string; name: string }
-  /** 1, 2, … within the campaign. */
-  version: number
-  title: string
-  description: string
-  rows: number
-  createdBy: { id: number; name: string }
-  createdAt: string
-  /** Id of the release that replaced this one. */
-  supersededBy: number | null
-  downloads: Record<DownloadFormat, string>
-}
+export type ReleaseColumn = ExportColumn
+export type ReleaseParam = TableParam
+export type ReleaseCell = CellValue
+export type ReleaseRow = ExportRow
 
-export interface ReleaseColumn {
-  name: string
-  description: string
-  /** IVOA VOUnit; '' when dimensionless. */
-  unit: string
-  ucd: string
-  type: string
-  nullable: boolean
-}
-
-export interface ReleaseParam {
-  key: string
-  name: string
-  value: string | number
-  description: string
-  unit?: string
-}
-
-export type ReleaseCell = string | number | boolean | null
-export type ReleaseRow = Record<string, ReleaseCell>
-
-export interface ReleaseDetail {
-  release: ReleaseSummary
-  columns: ReleaseColumn[]
-  params: ReleaseParam[]
-  notes: string[]
-  rows: ReleaseRow[]
-  total: number
-}
+/** A release with all its rows. */
+export type ReleaseDetail = Omit<ReleasePage, 'page' | 'pageSize'>
 
 export interface FreezeInput {
   campaignId: number
@@ -71,10 +35,9 @@ export async function listReleases(): Promise<ReleaseSummary[]> {
 
 /** A release with all its rows (fetched page by page; releases are a few thousand rows at most). */
 export async function getRelease(id: number): Promise<ReleaseDetail> {
-  type Page = ReleaseDetail & { page: number; pageSize: number }
-  const first = await http.get<Page>(`/releases/${id}`, { query: { page: 1, pageSize: PAGE } })
+  const first = await http.get<ReleasePage>(`/releases/${id}`, { query: { page: 1, pageSize: PAGE } })
   const pages = Math.ceil(first.total / PAGE)
-  const rest = await Promise.all(Array.from({ length: Math.max(0, pages - 1) }, (_, i) => http.get<Page>(`/releases/${id}`, { query: { page: i + 2, pageSize: PAGE } })))
+  const rest = await Promise.all(Array.from({ length: Math.max(0, pages - 1) }, (_, i) => http.get<ReleasePage>(`/releases/${id}`, { query: { page: i + 2, pageSize: PAGE } })))
   return { release: first.release, columns: first.columns, params: first.params, notes: first.notes, total: first.total, rows: [...first.rows, ...rest.flatMap((p) => p.rows)] }
 }
 

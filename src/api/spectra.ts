@@ -1,106 +1,24 @@
+import type { HistoryEvent, SpectrumHistory } from '@shared/api/history'
+import type { LineRow } from '@shared/api/measurements'
+import type { ReadMeta, SpectrumDetail, SpectrumList, SpectrumPage, SubmitReply } from '@shared/api/spectra'
+import type { SuggestionSummary } from '@shared/api/suggestions'
 import type { SpectrumStatus } from '@shared/status'
-import type { FinalClassification, HistoryEvent } from './calls'
 import { ApiError, NETWORK_ERROR, NETWORK_MESSAGE, currentCsrfToken, http, setCsrfToken, type ApiErrorDetails } from './http'
-import { decodeSeries, parseSeriesLayout, type DecodedSeries } from '@/lib/series'
+import { getSeries } from './series'
 
-/** One row of GET /api/spectra (server: SpectrumListItem). */
-export interface SpectrumListItem {
-  id: number
-  objectName: string
-  status: SpectrumStatus
-  statusReason: string | null
-  campaign: { id: number; code: string; name: string }
-  submittedBy: { id: number; name: string }
-  fileName: string
-  obsDate: string | null
-  createdAt: string
-  snr: number | null
-  pixels: number
-  wavelengthRange: [number, number]
-  dispersion: number
-  raDeg: number | null
-  decDeg: number | null
-  /** The decided classification, once there is one, e.g. "A0 V". */
-  classification?: string | { spectralType?: string; luminosityClass?: string; text?: string } | null
-}
+export type { SpectrumHistory }
+export type { MeasurementSummary, SpectrumMeasurements } from '@shared/api/measurements'
+export type { FileResult, HeaderValue, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumPage, SubmitReply } from '@shared/api/spectra'
+export type { SpectrumSuggestions } from '@shared/api/suggestions'
 
-export type HeaderValue = string | number | boolean | null
-
-/** What the reader learned from the file (server: ReadMeta). */
-export interface ReadInfo {
-  format: string
-  hdu?: number
-  hdus?: { index: number; name?: string; kind?: string; pixels?: number }[]
-  vacuumConverted: boolean
-  vacuumSource: string
-  wavelengthUnit: string
-  fluxUnit?: string
-  header: Record<string, HeaderValue>
-  pixels: number
-  maskedPixels: number
-  coverage: number
-  reversed: boolean
-  notes: string[]
-}
-
-export interface SpectrumDetail extends SpectrumListItem {
-  instrument: string
-  exposureS: number | null
-  resolutionFwhm: number | null
-  resolvingPower: number | null
-  vMag: number | null
-  parallaxMas: number | null
-  parallaxErrorMas: number | null
-  ebv: number | null
-  notes: string
-  format: string
-  fileSize: number
-  fileSha256: string
-  vacuumConverted: boolean
-  read: ReadInfo
-  canEdit: boolean
-  /** The decision (agreed, settled or an accepted suggestion), or null while there is none. */
-  classification: FinalClassification | null
-}
-
+/** What the reader learned from the file. */
+export type ReadInfo = ReadMeta
 /** One classification line's measurement; unmeasured lines carry a reason and nulls, never zeros. */
-export interface LineMeasurement {
-  id: string
-  name: string
-  wavelength: number
-  family: string
-  measured: boolean
-  reason: string | null
-  ew: number | null
-  ewError: number | null
-  depth: number | null
-  fwhm: number | null
-  centroid: number | null
-  snr: number | null
-  gaussianFwhm: number | null
-  lorentzianFwhm: number | null
-  lorentzianError: number | null
-}
-
-export interface MeasurementSummary {
-  id: number
-  pipelineVersion: string
-  isCurrent: boolean
-  snr: number | null
-  rv: number | null
-  rvError: number | null
-  pseudoContinuum: boolean
-  warnings: string[]
-  ratios: unknown[]
-  seconds: number
-  createdAt: string
-  lines: LineMeasurement[]
-}
-
-export interface SpectrumMeasurements {
-  current: MeasurementSummary | null
-  history: Omit<MeasurementSummary, 'lines'>[]
-}
+export type LineMeasurement = LineRow
+/** The pipeline's suggested classification; candidates and votes are read leniently (see composables/useSpectrumSuggestion.ts). */
+export type SpectrumSuggestion = SuggestionSummary
+/** A history entry with what the server adds for each kind (the call, the decision, …). */
+export type SpectrumHistoryEvent = HistoryEvent
 
 /** One of the nearest standards the matcher found (server: match CandidateStandard). */
 export interface SuggestionCandidate {
@@ -123,54 +41,6 @@ export interface SuggestionVote {
   note?: string
 }
 
-/** The pipeline's suggested classification (server: suggestions.service SuggestionSummary). */
-export interface SpectrumSuggestion {
-  id: number
-  spectrumId: number
-  measurementId: number
-  libraryVersionId: number
-  pipelineVersion: string
-  isCurrent: boolean
-  /** MK notation with the class, e.g. "B5 Ib". */
-  spectralType: string
-  letter: string
-  subtype: number
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  uncertainty: { subtypes: number; classes: number }
-  bestStandardId: number | null
-  candidates: SuggestionCandidate[]
-  votes: SuggestionVote[]
-  flags: string[]
-  probabilities: unknown[]
-  createdAt: string
-}
-
-/** Suggestions as the caller may see them: withheld (`hidden`) under blind review until they have called. */
-export interface SpectrumSuggestions {
-  current: SpectrumSuggestion | null
-  history: SpectrumSuggestion[]
-  hidden: boolean
-}
-
-export interface SpectrumPage {
-  spectrum: SpectrumDetail
-  measurements: SpectrumMeasurements
-  suggestions: SpectrumSuggestions
-}
-
-/** A history entry with what the server adds for each kind (the call, the decision, …). */
-export interface SpectrumHistoryEvent extends HistoryEvent {
-  details?: Record<string, unknown>
-}
-
-/** The whole history, oldest first; `hidden` when blind review keeps some of it back from the caller. */
-export interface SpectrumHistory {
-  events: SpectrumHistoryEvent[]
-  hidden: boolean
-}
-
 export type SpectrumSortField = 'createdAt' | 'objectName' | 'snr' | 'status' | 'obsDate' | 'id'
 export type SpectrumSort = SpectrumSortField | `-${SpectrumSortField}`
 
@@ -185,13 +55,6 @@ export interface SpectrumListQuery {
   to?: string
   snrMin?: number
   snrMax?: number
-}
-
-export interface SpectrumList {
-  items: SpectrumListItem[]
-  total: number
-  page: number
-  pageSize: number
 }
 
 /** The query string values for a list request: empty filters are left out. */
@@ -243,50 +106,19 @@ export interface SeriesRange {
   maxPoints?: number
 }
 
-async function errorOf(response: Response): Promise<ApiError> {
-  try {
-    const body = (await response.json()) as { error?: { code?: string; message?: string; details?: ApiErrorDetails | null } }
-    if (body.error?.code) return new ApiError(response.status, body.error.code, body.error.message ?? response.statusText, body.error.details ?? null)
-  } catch {
-    // not JSON
-  }
-  return new ApiError(response.status, `http_${response.status}`, response.statusText || `The server answered ${response.status}.`)
-}
-
-async function getSeries(path: string, range: SeriesRange, signal?: AbortSignal): Promise<DecodedSeries> {
-  const params = new URLSearchParams()
-  if (range.from !== undefined) params.set('from', range.from.toFixed(3))
-  if (range.to !== undefined) params.set('to', range.to.toFixed(3))
-  params.set('maxPoints', String(Math.round(range.maxPoints ?? 4000)))
-  let response: Response
-  try {
-    response = await fetch(`/api${path}?${params}`, { credentials: 'same-origin', headers: { accept: 'application/octet-stream' }, ...(signal ? { signal } : {}) })
-  } catch (cause) {
-    if ((cause as Error)?.name === 'AbortError') throw cause
-    throw new ApiError(0, NETWORK_ERROR, NETWORK_MESSAGE)
-  }
-  if (!response.ok) throw await errorOf(response)
-  const layout = parseSeriesLayout(response.headers.get('x-series-layout'))
-  return decodeSeries(await response.arrayBuffer(), layout)
+function seriesQuery(range: SeriesRange): Record<string, string> {
+  const query: Record<string, string> = {}
+  if (range.from !== undefined) query.from = range.from.toFixed(3)
+  if (range.to !== undefined) query.to = range.to.toFixed(3)
+  query.maxPoints = String(Math.round(range.maxPoints ?? 4000))
+  return query
 }
 
 /** The observed spectrum (wavelength, flux[, error]) between from and to, at most maxPoints points. */
-export const getSpectrumData = (id: number, range: SeriesRange = {}, signal?: AbortSignal) => getSeries(`/spectra/${id}/data`, range, signal)
+export const getSpectrumData = (id: number, range: SeriesRange = {}, signal?: AbortSignal) => getSeries(`/spectra/${id}/data`, { query: seriesQuery(range), signal })
 
 /** The prepared spectrum on the library grid: wavelength, flux, continuum, rectified. */
-export const getPreparedData = (id: number, range: SeriesRange = {}, signal?: AbortSignal) => getSeries(`/spectra/${id}/prepared`, range, signal)
-
-/** The server's answer for one uploaded file (zip archives give one per entry). */
-export type FileResult =
-  | { file: string; outcome: 'accepted'; spectrumId: number; pixels: number; wavelengthRange: [number, number]; dispersion: number; snr: number | null; objectName: string; notes: string[] }
-  | { file: string; outcome: 'duplicate'; spectrumId: number | null; message: string }
-  | { file: string; outcome: 'refused'; code: string; message: string }
-
-export interface SubmitReply {
-  results: FileResult[]
-  accepted: number
-  refused: number
-}
+export const getPreparedData = (id: number, range: SeriesRange = {}, signal?: AbortSignal) => getSeries(`/spectra/${id}/prepared`, { query: seriesQuery(range), signal })
 
 /** Batch metadata, as the multipart fields of POST /api/spectra (server: submitBody). */
 export interface SubmitFields {

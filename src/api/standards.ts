@@ -1,47 +1,11 @@
-import { decodeSeries, parseSeriesLayout, type DecodedSeries } from '@/lib/series'
-import { ApiError, http, NETWORK_ERROR, NETWORK_MESSAGE } from './http'
+import type { StandardSummary, StandardsLibrary, VersionSummary } from '@shared/api/standards'
+import type { DecodedSeries } from '@/lib/series'
+import { http } from './http'
+import { getSeries } from './series'
 
+export type { StandardSource, StandardSummary, StandardsLibrary } from '@shared/api/standards'
 /** A published (or draft) set of standards; suggestions record which one made them. */
-export interface LibraryVersionSummary {
-  id: number
-  name: string
-  description: string
-  status: 'draft' | 'published'
-  isActive: boolean
-  publishedAt: string | null
-  /** User id of the lead who published it; null for the library shipped with Lineweight. */
-  publishedBy: number | null
-  standardCount: number
-}
-
-export type StandardSource = 'model' | 'observed'
-
-export interface StandardSummary {
-  id: number
-  source: StandardSource
-  modelId: string | null
-  /** The uploaded spectrum behind an observed standard. */
-  spectrumId: number | null
-  /** MK notation with the class, e.g. "B5 IV". */
-  spectralType: string
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  teff: number | null
-  logg: number | null
-  note: string
-  addedBy: number | null
-  retiredAt: string | null
-  createdAt: string
-  /** Ids of the versions that hold this standard. */
-  versionIds: number[]
-}
-
-export interface StandardsLibrary {
-  activeVersionId: number | null
-  versions: LibraryVersionSummary[]
-  standards: StandardSummary[]
-}
+export type LibraryVersionSummary = VersionSummary
 
 export interface AddObservedStandardInput {
   spectrumId: number
@@ -126,34 +90,7 @@ export interface ResuggestResult {
 export const resuggestCampaign = (campaignId: number) => http.post<ResuggestResult>(`/campaigns/${campaignId}/resuggest`)
 
 /** The standard's flux on the library grid (binary, not JSON, so it bypasses the JSON wrapper). */
-export async function getStandardSeries(id: number, signal?: AbortSignal): Promise<DecodedSeries> {
-  let response: Response
-  try {
-    response = await fetch(`/api/standards/${id}/data`, { credentials: 'same-origin', signal, headers: { accept: 'application/octet-stream' } })
-  } catch (cause) {
-    if ((cause as Error)?.name === 'AbortError') throw cause
-    throw new ApiError(0, NETWORK_ERROR, NETWORK_MESSAGE)
-  }
-  if (!response.ok) {
-    let message = response.statusText || `The server answered ${response.status}.`
-    let code = `http_${response.status}`
-    try {
-      const body = (await response.json()) as { error?: { code?: string; message?: string } }
-      message = body.error?.message ?? message
-      code = body.error?.code ?? code
-    } catch {
-      // not JSON
-    }
-    throw new ApiError(response.status, code, message)
-  }
-  const layoutHeader = response.headers.get('x-series-layout')
-  const body = await response.arrayBuffer()
-  try {
-    return decodeSeries(body, parseSeriesLayout(layoutHeader))
-  } catch (e) {
-    throw new ApiError(0, 'bad_series', e instanceof Error ? e.message : String(e))
-  }
-}
+export const getStandardSeries = (id: number, signal?: AbortSignal): Promise<DecodedSeries> => getSeries(`/standards/${id}/data`, { signal })
 
 /** A spectrum that could become an observed standard, as the picker shows it. */
 export interface SpectrumChoice {

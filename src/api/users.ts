@@ -1,18 +1,8 @@
-import type { Role } from '@shared/roles'
+import type { InviteInput, UserChanges } from '@shared/api/users'
 import { http } from './http'
 import type { MessageReply, PublicUser } from './types'
 
-export interface InviteInput {
-  email: string
-  name: string
-  role: Role
-}
-
-export interface UserChanges {
-  role?: Role
-  active?: boolean
-  name?: string
-}
+export type { InviteInput, UserChanges }
 
 export const listUsers = async (): Promise<PublicUser[]> => (await http.get<{ users: PublicUser[] }>('/users')).users
 

@@ -37,7 +37,7 @@ function review(id: number, blind: boolean): ReviewData {
     measurement: null,
     suggestion: blind ? null : suggestion,
     hidden: blind,
-    claim: { mine: true, by: { id: 2, name: 'Ilse Varga' }, expiresAt: '2026-03-01T10:10:00.000Z', live: true },
+    claim: { spectrumId: id, mine: true, by: { id: 2, name: 'Ilse Varga' }, claimedAt: '2026-03-01T10:00:00.000Z', expiresAt: '2026-03-01T10:10:00.000Z', live: true },
     calls: [],
     othersHidden: blind,
     callsSoFar: 0,

@@ -6,7 +6,7 @@ import { createMemoryHistory, createRouter } from 'vue-router'
 import type { SpectrumSuggestion, SpectrumSuggestions } from '@/api/spectra'
 import SpectrumSuggestionOverlayBar from '@/components/SpectrumSuggestionOverlayBar.vue'
 import SpectrumSuggestionPanel from '@/components/SpectrumSuggestionPanel.vue'
-import { useSpectrumSuggestionOverlay } from '@/composables/useSpectrumSuggestion'
+import { candidatesOf, useSpectrumSuggestionOverlay } from '@/composables/useSpectrumSuggestion'
 
 // Invented values in the shape GET /api/spectra/:id returns them.
 function suggestion(overrides: Partial<SpectrumSuggestion> = {}): SpectrumSuggestion {
@@ -129,7 +129,7 @@ describe('SpectrumSuggestionPanel', () => {
 
 describe('SpectrumSuggestionOverlayBar', () => {
   it('marks the candidate on the plot and offers the others and none', async () => {
-    const wrapper = mount(SpectrumSuggestionOverlayBar, { props: { candidates: suggestion().candidates, overlayId: 44, state: 'done' } })
+    const wrapper = mount(SpectrumSuggestionOverlayBar, { props: { candidates: candidatesOf(suggestion().candidates), overlayId: 44, state: 'done' } })
     expect(wrapper.get('[data-testid="spectrum-overlay-44"]').attributes('aria-pressed')).toBe('true')
     expect(wrapper.get('[data-testid="spectrum-overlay-38"]').attributes('aria-pressed')).toBe('false')
     await wrapper.get('[data-testid="spectrum-overlay-38"]').trigger('click')

@@ -1,4 +1,7 @@
 import type { Spectrum1D } from '../../../shared/spectrum'
+import type { HeaderValue, ReadMeta, SpectrumFormat, SpectrumHdu } from '../../../shared/api/spectra'
+
+export type { HeaderValue, ReadMeta, SpectrumFormat, SpectrumHdu }
 
 /** Why a file was refused. Stable strings: the API and the client show them. */
 export type RefusalCode =
@@ -31,8 +34,6 @@ export const REFUSAL_CODES: readonly RefusalCode[] = [
   'DUPLICATE_WAVELENGTHS', 'NO_VALID_FLUX', 'TOO_FEW_PIXELS', 'TOO_MANY_PIXELS', 'NOT_OPTICAL',
   'NO_COVERAGE',
 ]
-
-export type SpectrumFormat = 'fits-image' | 'fits-table' | 'text'
 
 /** Options of {@link readSpectrum}; every field is optional. */
 export interface ReadOptions {
@@ -68,41 +69,6 @@ export const DEFAULT_READ_OPTIONS: Omit<ResolvedReadOptions, 'hdu' | 'assumeVacu
   minPixels: 100,
   classificationRegion: [3900, 4900],
   minCoverage: 0.8,
-}
-
-export type HeaderValue = string | number | boolean
-
-/** One HDU that holds a spectrum, as listed in {@link ReadMeta.hdus}. */
-export interface SpectrumHdu {
-  index: number
-  name?: string
-  kind: 'image' | 'table'
-}
-
-export interface ReadMeta {
-  format: SpectrumFormat
-  /** HDU the spectrum came from (FITS only). */
-  hdu?: number
-  /** Every HDU that holds a spectrum (FITS only), so a user can pick another. */
-  hdus?: SpectrumHdu[]
-  /** True when the file's wavelengths were vacuum and have been turned into air. */
-  vacuumConverted: boolean
-  /** Where the air/vacuum decision came from, e.g. "CTYPE1 = 'WAVE'" or "user's choice". */
-  vacuumSource: string
-  /** Wavelength unit as the file gave it, or "Angstrom (assumed)". */
-  wavelengthUnit: string
-  fluxUnit?: string
-  /** Observation keywords kept as the file has them (OBJECT, RA, DEC, DATE-OBS, EXPTIME, …). */
-  header: Record<string, HeaderValue>
-  pixels: number
-  /** Pixels flagged in `mask`. */
-  maskedPixels: number
-  /** Fraction of the classification region spanned by valid pixels. */
-  coverage: number
-  /** True when the file stored wavelengths in descending order and they were reversed. */
-  reversed: boolean
-  /** Things a person may want to know (e.g. "read the first of 2 rows"). */
-  notes: string[]
 }
 
 export type ReadSuccess = { ok: true; spectrum: ReadSpectrum; meta: ReadMeta }
