@@ -321,14 +321,19 @@ function addClassMinima(library: PreparedMatchLibrary, chi2: Float64Array, exact
  *
  * 1. χ² with a free line-depth scale and level (see depthScaledChiSquareRows) against every standard over the classification region, at the library
  *    level nearest the spectrum's resolution (every level when the resolution is unknown; the
- *    lowest χ² wins). Weights from the errors or the S/N with a model-error floor.
+ *    lowest χ² wins). Weights from the errors or the S/N with a model-error floor. Unless
+ *    `exhaustive`, the standards are first screened on every 4th pixel and the full χ² is
+ *    computed for the plausible ones (see fitLevel): the result is the same to rounding.
  * 2. Probabilities over the (type, class) grid, P ∝ exp(−Δχ²/(2T)), where χ² is divided by the
  *    pixels per resolution element (neighbouring pixels are not independent) and the temperature
  *    T = max(1, χ²_min/dof) widens the distribution when even the best standard fits badly
  *    (the usual rescaling of errors by √χ²_ν, e.g. Press et al., *Numerical Recipes*, §15.1).
- * 3. Luminosity class: the class marginal of that distribution, combined (in log-likelihood,
- *    weighted by `criteriaWeight`) with the line criteria of criteria.ts read off the standards
- *    at the suggested type; each criterion's vote is recorded.
+ * 3. Luminosity class: per class, the least χ² of mixes of its best standard with each
+ *    neighbour along type (`classFit`, default a smooth level and depth scale, see
+ *    smoothPairChiSquare), as P ∝ exp(−Δχ²/(2T·classTemperature)); times the Gaussian
+ *    likelihoods of the line criteria of criteria.ts read off the standards at the suggested
+ *    type, to the power `criteriaWeight` (0 by default: see that option). Each criterion's vote
+ *    is recorded.
  * 4. Fractional subtype: vertex of the parabola through the χ² minimum along type within the
  *    chosen class and its two neighbours; reported to 0.5 subtype where the grid steps by ≤ 1
  *    subtype, else to whole subtypes.
