@@ -105,6 +105,7 @@ async function seedDemoSpectra(sequelize: Sequelize, config: Config, people: See
         ...(entry.parallaxMas !== undefined ? { parallaxMas: entry.parallaxMas, parallaxErrorMas: 0.1 * entry.parallaxMas } : {}),
         resolutionFwhm: DEMO_RESOLUTION_FWHM,
         instrument: 'KRO-LRS, 600 l/mm grating',
+        obsDate: `${date}Z`,
       })
       if (result?.outcome !== 'accepted') throw new Error(`demo spectrum ${entry.objectName} was not accepted: ${JSON.stringify(result)}`)
       ids.set(entry, result.spectrumId)
@@ -168,7 +169,10 @@ async function walkToStates(ctx: AppContext, people: SeedPeople, ids: Map<DemoEn
         if (entry.fate === 'settled') {
           const dispute = await Dispute.findOne({ where: { spectrumId: id } })
           if (dispute) {
-            await settleDispute(ctx, lead, dispute.id, { ...truth, note: 'Checked the He I and Mg II 4481 strengths against the standards; the first call stands.' }, at(entry, 30))
+            const note = ['K', 'M'].includes(type[0]!)
+              ? 'Compared the TiO band depths and Ca I 4226 with the standards; the first call stands.'
+              : 'Checked He I 4471 against Mg II 4481 and the Balmer wings with the standards; the first call stands.'
+            await settleDispute(ctx, lead, dispute.id, { ...truth, note }, at(entry, 30))
           }
         }
         break
