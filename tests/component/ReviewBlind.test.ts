@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest'
 import type { SuggestionView } from '@/api/calls'
 import ReviewKeyLegend from '@/components/ReviewKeyLegend.vue'
 import ReviewSuggestionCard from '@/components/ReviewSuggestionCard.vue'
-import ReviewVotesTable from '@/components/ReviewVotesTable.vue'
+import SuggestionVotesTable from '@/components/SuggestionVotesTable.vue'
 
 const suggestion: SuggestionView = {
   id: 7,
@@ -36,7 +36,7 @@ describe('blind review', () => {
   })
 
   it('hides the criteria votes too', () => {
-    const wrapper = mount(ReviewVotesTable, { props: { votes: [], hidden: true } })
+    const wrapper = mount(SuggestionVotesTable, { props: { votes: [], hidden: true, compact: true } })
     expect(wrapper.text()).toContain('Hidden under blind review')
     expect(wrapper.find('[data-testid="vote-row"]').exists()).toBe(false)
   })
@@ -51,7 +51,7 @@ describe('blind review', () => {
   })
 
   it('lists the votes with the class each criterion prefers', () => {
-    const wrapper = mount(ReviewVotesTable, { props: { votes: suggestion.votes, hidden: false } })
+    const wrapper = mount(SuggestionVotesTable, { props: { votes: suggestion.votes, hidden: false, compact: true } })
     const row = wrapper.get('[data-testid="vote-row"]')
     expect(row.text()).toContain('Hγ and Hδ wing depth')
     expect(row.text()).toContain('III')
