@@ -1,7 +1,7 @@
 import { mount } from '@vue/test-utils'
 import { describe, expect, it } from 'vitest'
 import type { SpectrumHistoryEvent } from '@/api/spectra'
-import SpectrumHistoryPanel, { durationText } from '@/components/SpectrumHistoryPanel.vue'
+import SpectrumHistoryList, { durationText } from '@/components/SpectrumHistoryList.vue'
 
 // An invented spectrum's life, oldest first, in the shape GET /api/spectra/:id/history returns it.
 const events: SpectrumHistoryEvent[] = [
@@ -15,9 +15,9 @@ const events: SpectrumHistoryEvent[] = [
   { at: '2026-11-20T07:58:00.000Z', kind: 'settled', who: { id: 1, name: 'Lead One' }, summary: 'Settled as B5 Ib: the first call stands.', details: {} },
 ]
 
-describe('SpectrumHistoryPanel', () => {
+describe('SpectrumHistoryList', () => {
   it('lists every event in order with what, who and when', () => {
-    const wrapper = mount(SpectrumHistoryPanel, { props: { events, hidden: false } })
+    const wrapper = mount(SpectrumHistoryList, { props: { events, hidden: false } })
     const items = wrapper.findAll('[data-testid="spectrum-history-event"]')
     expect(items.map((i) => i.attributes('data-kind'))).toEqual(['upload', 'measurement', 'suggestion', 'call', 'call', 'correction', 'dispute', 'settled'])
     expect(items[0]!.text()).toContain('Submitted')
@@ -33,7 +33,7 @@ describe('SpectrumHistoryPanel', () => {
   })
 
   it('says for each call whether the suggestion had been shown and how long it took', () => {
-    const wrapper = mount(SpectrumHistoryPanel, { props: { events, hidden: false } })
+    const wrapper = mount(SpectrumHistoryList, { props: { events, hidden: false } })
     const items = wrapper.findAll('[data-testid="spectrum-history-event"]')
     expect(items[3]!.get('[data-testid="spectrum-history-blind"]').text()).toContain('suggestion not shown')
     expect(items[3]!.get('[data-testid="spectrum-history-seconds"]').text()).toContain('1 min 37 s spent')
@@ -46,9 +46,9 @@ describe('SpectrumHistoryPanel', () => {
   })
 
   it('says when blind review keeps part of the history back, and when there is nothing yet', () => {
-    const hidden = mount(SpectrumHistoryPanel, { props: { events: events.slice(0, 2), hidden: true } })
+    const hidden = mount(SpectrumHistoryList, { props: { events: events.slice(0, 2), hidden: true } })
     expect(hidden.get('[data-testid="spectrum-history-hidden"]').text()).toContain('until you have recorded your own call')
-    const empty = mount(SpectrumHistoryPanel, { props: { events: [], hidden: false } })
+    const empty = mount(SpectrumHistoryList, { props: { events: [], hidden: false } })
     expect(empty.get('[data-testid="spectrum-history-empty"]').text()).toContain('Nothing has happened')
   })
 })
