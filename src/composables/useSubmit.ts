@@ -1,25 +1,13 @@
 import { computed, reactive, ref, shallowRef } from 'vue'
-import { parseDeclination, parseRightAscension } from '@shared/coords'
 import { ApiError, messageOf } from '@/api/http'
 import { uploadSpectrumFile, type FileResult, type SubmitFields, type UploadHandle } from '@/api/spectra'
+import { coordinateError, type MetadataDraft } from '@/lib/spectrumMetadata'
 
 /** The batch form as the person fills it in; empty means "take it from the file". */
-export interface BatchMetadata {
+export interface BatchMetadata extends MetadataDraft {
   campaignId: number | null
-  objectName: string
-  ra: string
-  dec: string
-  obsDate: string | null
-  instrument: string
-  resolutionKind: 'fwhm' | 'power'
-  resolution: number | null
-  vMag: number | null
-  parallaxMas: number | null
-  parallaxErrorMas: number | null
-  ebv: number | null
   wavelengthMedium: 'file' | 'air' | 'vacuum'
   hdu: number | null
-  notes: string
 }
 
 export const emptyBatchMetadata = (): BatchMetadata => ({
@@ -69,13 +57,9 @@ export function toSubmitFields(meta: BatchMetadata, batchId: string): SubmitFiel
 export function checkBatchMetadata(meta: BatchMetadata): Record<string, string> {
   const errors: Record<string, string> = {}
   if (meta.campaignId === null) errors.campaignId = 'choose a campaign'
-  if (meta.ra.trim() !== '') {
-    const ra = parseRightAscension(meta.ra)
-    if (!ra.ok) errors.ra = ra.message
-  }
-  if (meta.dec.trim() !== '') {
-    const dec = parseDeclination(meta.dec)
-    if (!dec.ok) errors.dec = dec.message
+  for (const kind of ['ra', 'dec'] as const) {
+    const message = coordinateError(kind, meta[kind])
+    if (message) errors[kind] = message
   }
   if (meta.parallaxErrorMas !== null && meta.parallaxMas === null) errors.parallaxMas = 'is needed when an error is given'
   return errors
