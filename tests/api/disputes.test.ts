@@ -1,15 +1,11 @@
 import { randomBytes } from 'node:crypto'
 import { Op } from 'sequelize'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { Campaign, CampaignMember, Classification, LibraryVersion, MailMessage, Measurement, Spectrum, Suggestion, type User } from '../../server/models'
+import { Campaign, CampaignMember, Classification, LibraryVersion, MailMessage, Spectrum } from '../../server/models'
 import { finalClassificationsFor } from '../../server/services/review.service'
-import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
+import { closeDatabase, createTestContext, type TestContext } from '../helpers/context'
+import { createSuggestedSpectrum, send, signedInPerson, type Person } from '../helpers/review'
 
-type Client = Awaited<ReturnType<typeof signedInAgent>>
-interface Person {
-  user: User
-  client: Client
-}
 let t: TestContext
 let library: LibraryVersion
 let observer: Person
@@ -17,30 +13,23 @@ let alice: Person
 let bob: Person
 let lead: Person
 
-async function person(role: 'observer' | 'classifier' | 'lead', name: string): Promise<Person> {
-  const { user, password } = await makeUser(role, { name })
-  return { user, client: await signedInAgent(t.app, user.email, password) }
-}
-const send = (c: Client, method: 'post', path: string, body: object = {}) => c.agent[method](path).set('x-csrf-token', c.csrf).send(body)
+const person = (role: 'observer' | 'classifier' | 'lead', name: string) => signedInPerson(t.app, role, name)
 
 /** A suggested spectrum (B8 III) that Alice and Bob called three subtypes apart, so it is disputed. */
 async function disputedSpectrum(objectName: string) {
   const campaign = await Campaign.create({ code: `D-${randomBytes(4).toString('hex')}`, name: 'Disputed fields', description: '', callsRequired: 2, typeTolerance: 1, classTolerance: 1 })
   for (const p of [observer, alice, bob]) await CampaignMember.create({ campaignId: campaign.id, userId: p.user.id })
-  const spectrum = await Spectrum.create({
-    campaignId: campaign.id, submittedBy: observer.user.id, batchId: null, status: 'suggested', statusReason: null, objectName,
-    raDeg: null, decDeg: null, obsDate: null, exposureS: null, instrument: '', resolutionFwhm: null, resolvingPower: null, vMag: null,
-    parallaxMas: null, parallaxErrorMas: null, ebv: null, notes: '', fileName: 'field.txt', fileSha256: randomBytes(32).toString('hex'),
-    fileSize: 100, format: 'text', hdu: null, pixels: 2000, wlMin: 3800, wlMax: 5200, dispersion: 0.7, snr: 40, vacuumConverted: false, readInfo: '{}',
-  })
-  const empty = Buffer.alloc(0)
-  const m = await Measurement.create({
-    spectrumId: spectrum.id, pipelineVersion: 'test', isCurrent: true, snr: 40, rv: null, rvError: null, pseudoContinuum: false, warnings: '[]', ratios: '[]',
-    gridStart: 3800, gridStep: 1e-4, gridLength: 0, flux: empty, continuum: empty, rectified: empty, mask: empty, seconds: 0,
-  })
-  await Suggestion.create({
-    spectrumId: spectrum.id, measurementId: m.id, libraryVersionId: library.id, pipelineVersion: 'test', isCurrent: true, spectralType: 'B8 III', letter: 'B', subtype: 8,
-    typeCode: 18, luminosityClass: 'III', classCode: 4, uncertaintySubtypes: 1, uncertaintyClasses: 0.5, bestStandardId: null, candidates: '[]', votes: '[]', flags: '[]', probabilities: '[]',
+  const { spectrum } = await createSuggestedSpectrum({
+    campaignId: campaign.id,
+    submittedBy: observer.user.id,
+    libraryVersionId: library.id,
+    objectName,
+    snr: 40,
+    instrument: '',
+    type: ['B', 'III', 8, 18, 4],
+    candidates: '[]',
+    votes: '[]',
+    flags: '[]',
   })
   await send(alice.client, 'post', `/api/spectra/${spectrum.id}/calls`, { spectralType: 'B8', luminosityClass: 'III', confidence: 2 }).expect(201)
   const res = await send(bob.client, 'post', `/api/spectra/${spectrum.id}/calls`, { spectralType: 'A1', luminosityClass: 'III', confidence: 1, notes: 'Ca II K strong' }).expect(201)

@@ -1,16 +1,11 @@
 import { randomBytes } from 'node:crypto'
 import { Op } from 'sequelize'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { Campaign, CampaignMember, Classification, Dispute, LibraryVersion, MailMessage, Measurement, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../../server/models'
+import { Campaign, CampaignMember, Classification, Dispute, LibraryVersion, MailMessage, ReviewCall, ReviewClaim, Spectrum } from '../../server/models'
 import { CLAIM_MINUTES } from '../../server/services/queue.service'
 import { finalClassificationsFor, judgeCalls, medianOf, recordCall } from '../../server/services/review.service'
-import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
-
-type Client = Awaited<ReturnType<typeof signedInAgent>>
-interface Person {
-  user: User
-  client: Client
-}
+import { closeDatabase, createTestContext, type TestContext } from '../helpers/context'
+import { createSuggestedSpectrum, send, signedInPerson, type Client, type Person } from '../helpers/review'
 
 let t: TestContext
 let library: LibraryVersion
@@ -22,10 +17,7 @@ let carol: Person
 let outsider: Person
 let lead: Person
 
-async function person(role: 'observer' | 'classifier' | 'lead', name: string): Promise<Person> {
-  const { user, password } = await makeUser(role, { name })
-  return { user, client: await signedInAgent(t.app, user.email, password) }
-}
+const person = (role: 'observer' | 'classifier' | 'lead', name: string) => signedInPerson(t.app, role, name)
 
 async function makeCampaign(rules: Partial<Pick<Campaign, 'callsRequired' | 'blindReview' | 'typeTolerance' | 'classTolerance'>>, members: Person[]) {
   const campaign = await Campaign.create({ code: `R-${randomBytes(4).toString('hex')}`, name: 'Review fields', description: '', ...rules })
@@ -35,83 +27,22 @@ async function makeCampaign(rules: Partial<Pick<Campaign, 'callsRequired' | 'bli
 
 /** A stored, measured spectrum with a current suggestion, as the pipeline would leave it. */
 async function suggestedSpectrum(campaign: Campaign, submitter: Person, options: { objectName?: string; snr?: number; type?: [string, string, number, number, number]; flags?: string[] } = {}) {
-  const [letter, cls, subtype, typeCode, classCode] = options.type ?? ['B', 'III', 8, 18, 4]
-  const spectrum = await Spectrum.create({
+  const type = options.type ?? ['B', 'III', 8, 18, 4]
+  const [letter, cls, subtype] = type
+  return createSuggestedSpectrum({
     campaignId: campaign.id,
     submittedBy: submitter.user.id,
-    batchId: null,
-    status: 'suggested',
-    statusReason: null,
-    objectName: options.objectName ?? `Field star ${randomBytes(2).toString('hex')}`,
-    raDeg: null,
-    decDeg: null,
-    obsDate: null,
-    exposureS: null,
-    instrument: 'test spectrograph',
-    resolutionFwhm: null,
-    resolvingPower: null,
-    vMag: null,
-    parallaxMas: null,
-    parallaxErrorMas: null,
-    ebv: null,
-    notes: '',
-    fileName: 'field.txt',
-    fileSha256: randomBytes(32).toString('hex'),
-    fileSize: 100,
-    format: 'text',
-    hdu: null,
-    pixels: 2000,
-    wlMin: 3800,
-    wlMax: 5200,
-    dispersion: 0.7,
-    snr: options.snr ?? 50,
-    vacuumConverted: false,
-    readInfo: '{}',
-  })
-  const empty = Buffer.alloc(0)
-  const m = await Measurement.create({
-    spectrumId: spectrum.id,
-    pipelineVersion: 'test',
-    isCurrent: true,
-    snr: options.snr ?? 50,
-    rv: null,
-    rvError: null,
-    pseudoContinuum: false,
-    warnings: '[]',
-    ratios: '[]',
-    gridStart: 3800,
-    gridStep: 1e-4,
-    gridLength: 0,
-    flux: empty,
-    continuum: empty,
-    rectified: empty,
-    mask: empty,
-    seconds: 0,
-  })
-  const suggestion = await Suggestion.create({
-    spectrumId: spectrum.id,
-    measurementId: m.id,
     libraryVersionId: library.id,
-    pipelineVersion: 'test',
-    isCurrent: true,
-    spectralType: `${letter}${subtype} ${cls}`,
-    letter,
-    subtype,
-    typeCode,
-    luminosityClass: cls,
-    classCode,
-    uncertaintySubtypes: 1,
-    uncertaintyClasses: 0.5,
-    bestStandardId: null,
+    objectName: options.objectName ?? `Field star ${randomBytes(2).toString('hex')}`,
+    snr: options.snr ?? 50,
+    instrument: 'test spectrograph',
+    type,
     candidates: JSON.stringify([{ spectralType: `${letter}${subtype} ${cls}`, chi2: 1.1 }]),
     votes: JSON.stringify([{ criterion: 'He I 4471 / Mg II 4481', vote: `${letter}${subtype}` }]),
     flags: JSON.stringify(options.flags ?? []),
-    probabilities: '[]',
   })
-  return { spectrum, suggestion }
 }
 
-const send = (c: Client, method: 'post' | 'patch' | 'put' | 'delete', path: string, body: object = {}) => c.agent[method](path).set('x-csrf-token', c.csrf).send(body)
 const call = (c: Client, id: number, body: object) => send(c, 'post', `/api/spectra/${id}/calls`, { confidence: 2, ...body })
 
 beforeAll(async () => {
