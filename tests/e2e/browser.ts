@@ -29,3 +29,13 @@ export async function screenshot(page: Page, name: string): Promise<void> {
   mkdirSync(SCREENSHOTS, { recursive: true })
   await page.screenshot({ path: join(SCREENSHOTS, `${name}.png`), fullPage: true })
 }
+
+/** Signs in through the form, starting from no session, and waits for the signed-in header. */
+export async function signIn(page: Page, baseUrl: string, who: { email: string; password: string }): Promise<void> {
+  await page.context().clearCookies()
+  await page.goto(`${baseUrl}/sign-in`)
+  await page.getByTestId('signin-email').fill(who.email)
+  await page.getByTestId('signin-password').fill(who.password)
+  await page.getByTestId('signin-password').press('Enter')
+  await page.getByTestId('user-name').waitFor()
+}

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import type { Page } from 'playwright-core'
-import { openBrowser, screenshot } from './browser'
+import { openBrowser, screenshot, signIn as signInAt } from './browser'
 
 // A lead settles a dispute of the seeded demo; the observer who submitted the spectrum sees the
 // result, and the mail that tells them is in the Outbox. The dispute is picked from the list.
@@ -16,14 +16,7 @@ afterAll(async () => {
   await browser.close()
 })
 
-async function signIn(page: Page, who: { email: string; password: string }) {
-  await page.context().clearCookies()
-  await page.goto(`${baseUrl}/sign-in`)
-  await page.getByTestId('signin-email').fill(who.email)
-  await page.getByTestId('signin-password').fill(who.password)
-  await page.getByTestId('signin-password').press('Enter')
-  await page.getByTestId('user-name').waitFor()
-}
+const signIn = (page: Page, who: { email: string; password: string }) => signInAt(page, baseUrl, who)
 
 describe('settling a dispute', () => {
   let settled: { spectrumId: number; objectName: string; type: string } | null = null

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import type { Page } from 'playwright-core'
-import { openBrowser, screenshot } from './browser'
+import { openBrowser, screenshot, signIn as signInAt } from './browser'
 
 // A classifier of the seeded demo works three queue items with the keyboard alone: no clicks
 // after signing in. Items are taken from the queue as the server orders it, never by fixed id.
@@ -15,14 +15,7 @@ afterAll(async () => {
   await browser.close()
 })
 
-async function signIn(page: Page, who: { email: string; password: string }) {
-  await page.context().clearCookies()
-  await page.goto(`${baseUrl}/sign-in`)
-  await page.getByTestId('signin-email').fill(who.email)
-  await page.getByTestId('signin-password').fill(who.password)
-  await page.getByTestId('signin-password').press('Enter')
-  await page.getByTestId('user-name').waitFor()
-}
+const signIn = (page: Page, who: { email: string; password: string }) => signInAt(page, baseUrl, who)
 
 const reviewId = (page: Page): number | null => {
   const m = /\/review\/(\d+)$/.exec(new URL(page.url()).pathname)

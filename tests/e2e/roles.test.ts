@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import type { Page } from 'playwright-core'
-import { openBrowser, screenshot } from './browser'
+import { openBrowser, screenshot, signIn as signInAt } from './browser'
 
 // Demo sign-ins from the seeded scenario (server/db/seed.ts).
 const PEOPLE = {
@@ -19,14 +19,7 @@ afterAll(async () => {
   await browser.close()
 })
 
-async function signIn(page: Page, role: keyof typeof PEOPLE) {
-  await page.context().clearCookies()
-  await page.goto(`${baseUrl}/sign-in`)
-  await page.getByTestId('signin-email').fill(PEOPLE[role].email)
-  await page.getByTestId('signin-password').fill(PEOPLE[role].password)
-  await page.getByTestId('signin-password').press('Enter')
-  await page.getByTestId('user-name').waitFor()
-}
+const signIn = (page: Page, role: keyof typeof PEOPLE) => signInAt(page, baseUrl, PEOPLE[role])
 
 async function navEntries(page: Page): Promise<string[]> {
   const ids = await page.locator('[data-testid^="nav-"]').evaluateAll((els) => els.map((e) => e.getAttribute('data-testid') ?? ''))
