@@ -7,72 +7,25 @@
  * CCM89 applied to the model continuum × rectified flux, so the continuum fit has to cope.
  */
 import { readFileSync } from 'node:fs'
-import { DEFAULT_GRID, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../shared/grid'
-import { extinctionMagnitudes } from '../shared/extinction'
-import { DEFAULT_MODEL_DIR, defaultLibrary, modelLibraryAt } from '../server/jobs/worker'
+import { defaultLibrary } from '../server/jobs/worker'
 import { readSpectrum } from '../server/spectra/io'
 import { toSpectrum1D } from '../server/spectra/io/types'
 import { runPipeline } from '../server/spectra/pipeline'
-import { smoothSpectrumToFwhm } from '../server/spectra/prepare/smooth'
+import { CLASSES, rng, syntheticSpectrum } from './synthetic'
 
 const HELD_OUT_SEED = 0x5eed_2026
 const PER_SNR = Number(process.env.ACCURACY_PER_SNR ?? 60)
 
-function rng(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
-
-const models = modelLibraryAt(DEFAULT_MODEL_DIR)
 const library = defaultLibrary()
-const wl = gridWavelengths(DEFAULT_GRID)
-const CLASSES = ['Ia', 'Ib', 'II', 'III', 'IV', 'V']
 const LETTERS = ['O', 'B', 'A', 'F', 'G', 'K', 'M']
 
 interface Case { truthType: number; truthClass: string; snr: number; fwhm: number; rv: number; ebv: number }
 
+// Observed: 4000 pixels, linear in λ, 3800–5500 Å; mixing fraction 0.15–0.85.
 function makeCase(random: () => number, snr: number): { c: Case; spectrum: { wavelength: Float64Array; flux: Float64Array } } {
-  const cls = CLASSES[Math.floor(random() * CLASSES.length)]!
-  const rows = models.standards.filter((s) => s.entry.luminosityClass === cls).sort((a, b) => a.entry.typeCode - b.entry.typeCode)
-  const j = Math.floor(random() * (rows.length - 1))
-  const a = rows[j]!
-  const b = rows[j + 1]!
-  const t = 0.15 + 0.7 * random()
-  const truthType = a.entry.typeCode + t * (b.entry.typeCode - a.entry.typeCode)
-  const fwhm = 1.5 + 3.5 * random()
-  const rv = -300 + 600 * random()
-  const ebv = random()
-  const n = DEFAULT_GRID.length
-  const rest = new Float64Array(n)
-  for (let i = 0; i < n; i++) rest[i] = ((1 - t) * a.rectified[i]! + t * b.rectified[i]!) * ((1 - t) * a.continuum[i]! + t * b.continuum[i]!)
-  const smooth = fwhm > 1.5 ? smoothSpectrumToFwhm({ wavelength: wl, flux: rest }, { grid: DEFAULT_GRID, targetFwhm: fwhm, inputFwhm: 1.5 }).flux : rest
-  // Observed: 4000 pixels, linear in λ, 3800–5500 Å, Doppler-shifted, reddened, with Gaussian noise.
-  const m = 4000
-  const wavelength = new Float64Array(m)
-  const flux = new Float64Array(m)
-  const shift = 1 + rv / SPEED_OF_LIGHT_KMS
-  let median = 0
-  for (let i = 0; i < m; i++) {
-    const obs = 3800 + (1700 * i) / (m - 1)
-    wavelength[i] = obs
-    const x = Math.log(obs / shift / DEFAULT_GRID.start) / DEFAULT_GRID.step
-    const k = Math.min(n - 2, Math.max(0, Math.floor(x)))
-    const v = smooth[k]! + (smooth[k + 1]! - smooth[k]!) * (x - k)
-    flux[i] = v * 10 ** (-0.4 * extinctionMagnitudes(obs, { ebv }))
-    median += flux[i]! / m
-  }
-  for (let i = 0; i < m; i++) {
-    const g = Math.sqrt(-2 * Math.log(random() + 1e-12)) * Math.cos(2 * Math.PI * random())
-    flux[i] = flux[i]! / median
-    flux[i] = flux[i]! * (1 + g / snr)
-  }
-  return { c: { truthType, truthClass: cls, snr, fwhm, rv, ebv }, spectrum: { wavelength, flux } }
+  const made = syntheticSpectrum(random, (r) => ({ t: 0.15 + 0.7 * r(), snr, fwhm: 1.5 + 3.5 * r(), rv: -300 + 600 * r(), ebv: r(), lo: 3800, hi: 5500, pixels: 4000 }))
+  const { fwhm, rv, ebv } = made.perturbation
+  return { c: { truthType: made.truthType, truthClass: made.truthClass, snr, fwhm, rv, ebv }, spectrum: made.spectrum }
 }
 
 const letterOf = (code: number) => LETTERS[Math.min(6, Math.floor(code / 10))]!

@@ -10,18 +10,7 @@ import { defaultLibrary, modelLibraryAt, DEFAULT_MODEL_DIR } from '../server/job
 import { analyseSpectrum } from '../server/spectra/analyse'
 import { matchSpectrum, modelMatchInputs, prepareMatchLibrary } from '../server/spectra/match'
 import { runPipeline } from '../server/spectra/pipeline'
-
-/** Deterministic pseudo-random numbers (mulberry32). */
-function rng(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
+import { rng } from './synthetic'
 
 /** A 4000-pixel linear-dispersion spectrum 3800–5600 Å from a model standard, S/N 80, sloped continuum. */
 function benchSpectrum(row: number, seed: number) {

@@ -9,73 +9,34 @@
  * `TUNE_COUNT` spectra (default 300); `TUNE_CHECK=1` also compares the two-stage search with the
  * exhaustive one on every spectrum.
  */
-import { DEFAULT_GRID, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../shared/grid'
-import { extinctionMagnitudes } from '../shared/extinction'
-import { DEFAULT_MODEL_DIR, defaultLibrary, modelLibraryAt } from '../server/jobs/worker'
+import { defaultLibrary } from '../server/jobs/worker'
 import { CRITERIA, criterionValue, matchSpectrum, type MatchInput, type MatchOptions } from '../server/spectra/match'
 import { criterionAtType } from '../server/spectra/match/classify'
 import { runPipeline } from '../server/spectra/pipeline'
-import { smoothSpectrumToFwhm } from '../server/spectra/prepare/smooth'
+import { CLASSES, rng, syntheticSpectrum } from './synthetic'
 
 const TUNING_SEED = 0x7a11_0b1e
 const COUNT = Number(process.env.TUNE_COUNT ?? 300)
-const CLASSES = ['Ia', 'Ib', 'II', 'III', 'IV', 'V']
 const CLASS_CODES: Record<string, number> = { Ia: 1, Ib: 2, II: 3, III: 4, IV: 5, V: 6 }
 
-/** Deterministic pseudo-random numbers (mulberry32). */
-function rng(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
-
-const models = modelLibraryAt(DEFAULT_MODEL_DIR)
 const library = defaultLibrary()
-const wl = gridWavelengths(DEFAULT_GRID)
 
 export interface TuningCase { truthType: number; truthClass: string; snr: number; fwhm: number; rv: number; ebv: number; input: MatchInput }
 
 function makeCase(random: () => number): TuningCase {
-  const cls = CLASSES[Math.floor(random() * CLASSES.length)]!
-  const rows = models.standards.filter((s) => s.entry.luminosityClass === cls).sort((a, b) => a.entry.typeCode - b.entry.typeCode)
-  const j = Math.floor(random() * (rows.length - 1))
-  const a = rows[j]!
-  const b = rows[j + 1]!
-  const t = 0.1 + 0.8 * random()
-  const truthType = a.entry.typeCode + t * (b.entry.typeCode - a.entry.typeCode)
-  const snr = 35 * (160 / 35) ** random()
-  const fwhm = 1.5 + 4.5 * random()
-  const rv = -250 + 500 * random()
-  const ebv = 0.8 * random()
-  const rV = 2.8 + 0.6 * random()
-  const lo = 3760 + 60 * random()
-  const hi = 5300 + 300 * random()
-  const m = 3000 + Math.floor(2000 * random())
-  const n = DEFAULT_GRID.length
-  const restFlux = new Float64Array(n)
-  for (let i = 0; i < n; i++) restFlux[i] = ((1 - t) * a.rectified[i]! + t * b.rectified[i]!) * ((1 - t) * a.continuum[i]! + t * b.continuum[i]!)
-  const smooth = fwhm > 1.5 ? smoothSpectrumToFwhm({ wavelength: wl, flux: restFlux }, { grid: DEFAULT_GRID, targetFwhm: fwhm, inputFwhm: 1.5 }).flux : restFlux
-  const wavelength = new Float64Array(m)
-  const flux = new Float64Array(m)
-  const shift = 1 + rv / SPEED_OF_LIGHT_KMS
-  let mean = 0
-  for (let i = 0; i < m; i++) {
-    const obs = lo + ((hi - lo) * i) / (m - 1)
-    wavelength[i] = obs
-    const x = Math.log(obs / shift / DEFAULT_GRID.start) / DEFAULT_GRID.step
-    const k = Math.min(n - 2, Math.max(0, Math.floor(x)))
-    flux[i] = (smooth[k]! + (smooth[k + 1]! - smooth[k]!) * (x - k)) * 10 ** (-0.4 * extinctionMagnitudes(obs, { ebv, rv: rV }))
-    mean += flux[i]! / m
-  }
-  for (let i = 0; i < m; i++) {
-    const g = Math.sqrt(-2 * Math.log(random() + 1e-12)) * Math.cos(2 * Math.PI * random())
-    flux[i] = (flux[i]! / mean) * (1 + g / snr)
-  }
+  const made = syntheticSpectrum(random, (r) => ({
+    t: 0.1 + 0.8 * r(),
+    snr: 35 * (160 / 35) ** r(),
+    fwhm: 1.5 + 4.5 * r(),
+    rv: -250 + 500 * r(),
+    ebv: 0.8 * r(),
+    rV: 2.8 + 0.6 * r(),
+    lo: 3760 + 60 * r(),
+    hi: 5300 + 300 * r(),
+    pixels: 3000 + Math.floor(2000 * r()),
+  }))
+  const { truthType, truthClass: cls, spectrum: { wavelength, flux } } = made
+  const { snr, fwhm, rv, ebv } = made.perturbation
   const out = runPipeline({ spectrum: { wavelength, flux }, inputFwhm: fwhm }, library)
   const p = out.analysis.prepared
   const input: MatchInput = { rectified: p.rectified, mask: p.mask, snr: out.analysis.snr, fwhm: out.suggestion!.levelFwhm, lines: out.analysis.lines }
