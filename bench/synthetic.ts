@@ -1,3 +1,4 @@
+import { seededRandom } from '../shared/random'
 /**
  * The made-up spectra of the accuracy and tuning sets: a linear mix of two neighbouring model
  * standards of one luminosity class (rectified flux × continuum), smoothed to the drawn FWHM,
@@ -10,19 +11,11 @@ import { extinctionMagnitudes } from '../shared/extinction'
 import { DEFAULT_MODEL_DIR, modelLibraryAt } from '../server/jobs/worker'
 import { smoothSpectrumToFwhm } from '../server/spectra/prepare/smooth'
 
+/** Deterministic pseudo-random numbers in [0, 1). */
+export const rng = seededRandom
+
 export const CLASSES = ['Ia', 'Ib', 'II', 'III', 'IV', 'V']
 
-/** Deterministic pseudo-random numbers in [0, 1) (mulberry32). */
-export function rng(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
 
 /** How one spectrum departs from the grid: drawn by each set after the class and the pair of standards. */
 export interface Perturbation {

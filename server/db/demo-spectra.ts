@@ -2,7 +2,10 @@
 import { fileURLToPath } from 'node:url'
 import { DEFAULT_GRID, SPEED_OF_LIGHT_KMS, gridWavelength } from '../../shared/grid'
 import { loadModelLibrary, type ModelLibrary } from '../../templates/generator/library'
+import { seededRandom } from '../../shared/random'
 import { smoothSpectrumToFwhm } from '../spectra/prepare/smooth'
+
+export { seededRandom }
 
 export interface DemoTarget {
   objectName: string
@@ -17,17 +20,6 @@ export interface DemoTarget {
   parallaxMas?: number
 }
 
-/** Small deterministic PRNG (mulberry32) so the demo is the same on every machine. */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
 
 function gaussian(rand: () => number): number {
   const u = Math.max(rand(), 1e-12)

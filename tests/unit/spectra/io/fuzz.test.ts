@@ -4,18 +4,8 @@ import { describe, expect, it } from 'vitest'
 import { REFUSAL_CODES, readSpectrum, type ReadResult } from '../../../../server/spectra/io'
 import { unpackZip } from '../../../../server/spectra/io/zip'
 import { zipSync } from 'fflate'
+import { seededRandom as prng } from '../../../../shared/random'
 
-/** mulberry32: a small seeded PRNG (common practice), so every run fuzzes the same cases. */
-function prng(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
 
 const FIX = join(__dirname, '../../../fixtures')
 const SEEDS = [

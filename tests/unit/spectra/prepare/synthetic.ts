@@ -4,18 +4,9 @@ import { readFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
 import type { Spectrum1D } from '../../../../shared/spectrum'
 import { voigtProfile } from '../../../../server/spectra/measure/voigt'
+import { seededRandom } from '../../../../shared/random'
 
-/** Mulberry32: a small, well-mixed 32-bit PRNG (common practice for seeded tests). */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
+export { seededRandom }
 
 /** Standard normal deviates by Box–Muller from a uniform source. */
 export function seededNormal(seed: number): () => number {

@@ -1,0 +1,14 @@
+/**
+ * Mulberry32, a small well-mixed 32-bit generator (common practice): seeded, so tests, benchmarks
+ * and the demo draw the same numbers on every machine. Returns uniform deviates in [0, 1).
+ */
+export function seededRandom(seed: number): () => number {
+  let a = seed >>> 0
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0
+    let t = a
+    t = Math.imul(t ^ (t >>> 15), t | 1)
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
+  }
+}
