@@ -528,7 +528,7 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   // Flags.
   const flags: SuggestionFlag[] = []
   if (input.snr === null || input.snr < lowSnr) flags.push('low-snr')
-  const emission = hasBalmerEmission(input.lines)
+  const emission = hasBalmerEmission(input.lines, typeCode)
   if (emission) flags.push('emission')
   if (reducedChi2 > poorFit) flags.push('poor-fit')
   if (along.atEdge) flags.push('outside-grid')
@@ -678,12 +678,21 @@ export function criterionAtType(library: PreparedMatchLibrary, level: LibraryLev
 }
 
 /** True when Hα, Hβ or Hγ is measured with a negative equivalent width beyond 3σ and 1 Å and its deepest point above the continuum (depth < −0.05). */
-function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined): boolean {
+/**
+ * Whether the Balmer lines show emission: a line of the table measured with a significantly
+ * negative equivalent width and its extreme point above the continuum. Hβ and Hγ count only for
+ * types earlier than G0 (type code 40); Hα counts for every type.
+ */
+export function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined, typeCode: number): boolean {
   if (!lines) return false
+  // From G on, the side bands of Hβ and Hγ sit in metal lines and the G band, so their
+  // side-band equivalent widths go negative without any emission (the Lick HγA index of a K giant
+  // is about −6 Å, common practice); there only Hα speaks for emission.
+  const ids = typeCode < 40 ? ['h-alpha', 'h-beta', 'h-gamma'] : ['h-alpha']
   return lines.some(
     (l) =>
       l.measured &&
-      (l.id === 'h-alpha' || l.id === 'h-beta' || l.id === 'h-gamma') &&
+      ids.includes(l.id) &&
       l.equivalentWidth < -1 &&
       l.depth < -0.05 &&
       (l.equivalentWidthError === null || -l.equivalentWidth > 3 * l.equivalentWidthError),

@@ -13,5 +13,5 @@ export {
   type ModelLibraryLike,
   type PreparedMatchLibrary,
 } from './library'
-export { matchSpectrum, type Candidate, type MatchInput, type MatchOptions, type MatchResult, type SuggestionFlag, type Vote } from './classify'
+export { hasBalmerEmission, matchSpectrum, type Candidate, type MatchInput, type MatchOptions, type MatchResult, type SuggestionFlag, type Vote } from './classify'
 export { standardOnGrid } from './reference'

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { DEFAULT_GRID, gridWavelengths, makeLogGrid } from '../../../../shared/grid'
+import type { LineMeasurement } from '../../../../server/spectra/measure/types'
 import {
   CRITERIA,
   criterionValue,
@@ -8,6 +9,7 @@ import {
   DEPTH_SCALE_BOUNDS,
   depthScaledChiSquareRows,
   depthScaledChiSquareSelected,
+  hasBalmerEmission,
   matchSpectrum,
   parabolaVertex,
   prepareMatchLibrary,
@@ -117,6 +119,31 @@ describe('replaceModelsByObserved', () => {
       { id: 3, source: 'observed' as const, typeCode: 20, classCode: 6 },
     ])
     expect(kept.map((s) => s.id)).toEqual([2, 3])
+  })
+})
+
+describe('hasBalmerEmission', () => {
+  const line = (id: string, ew: number, depth: number): LineMeasurement => ({
+    id, name: id, wavelength: 4340.47, family: 'balmer', measured: true, equivalentWidth: ew, equivalentWidthError: 0.2, depth, depthError: 0.01, fwhm: 5, centroid: 4340, continuum: { blue: 1, red: 1 }, snr: 80,
+  })
+
+  it('sees emission in Hγ of an A star', () => {
+    expect(hasBalmerEmission([line('h-gamma', -3, -0.3)], 22)).toBe(true)
+  })
+
+  it('does not read the negative side-band Hγ width of a K giant as emission', () => {
+    // Lick-style Hγ widths of K giants are about −6 Å without any emission (common practice).
+    expect(hasBalmerEmission([line('h-gamma', -6.5, -0.1)], 51)).toBe(false)
+  })
+
+  it('still sees Hα emission in an M dwarf', () => {
+    expect(hasBalmerEmission([line('h-alpha', -4, -0.6)], 64)).toBe(true)
+  })
+
+  it('ignores absorption and weak or noisy negatives', () => {
+    expect(hasBalmerEmission([line('h-beta', 8, 0.5)], 20)).toBe(false)
+    expect(hasBalmerEmission([line('h-beta', -0.5, -0.02)], 20)).toBe(false)
+    expect(hasBalmerEmission(undefined, 20)).toBe(false)
   })
 })
 
