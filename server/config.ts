@@ -33,6 +33,7 @@ const schema = z.object({
   SMTP_PASSWORD: z.string().optional(),
   SMTP_SECURE: bool.default(false),
   UPLOAD_MAX_BYTES: int(50 * 1024 * 1024, 1024),
+  UPLOAD_MAX_REQUEST_BYTES: int(200 * 1024 * 1024, 1024),
   UPLOAD_MAX_FILES: int(500, 1),
   UPLOAD_MAX_PIXELS: int(2_000_000, 100),
   UPLOAD_MIN_PIXELS: int(100, 2),

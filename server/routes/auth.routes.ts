@@ -1,4 +1,5 @@
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit'
+import type { Request } from 'express'
 import passport from 'passport'
 import type { Config } from '../config'
 import type { AppContext } from '../context'
@@ -10,19 +11,28 @@ import { changePasswordBody, forgotBody, loginBody, setPasswordBody, tokenQuery 
 import { changePassword, describeToken, requestPasswordReset, setPasswordWithToken, toPublicUser } from '../services/users.service'
 import { defineRoutes } from './route'
 
+/**
+ * Failed attempts are counted per address and account, so one person's typos do not lock out the
+ * whole office, and per address alone (ten times as many), so trying many accounts is limited too.
+ */
 function loginLimiter(config: Config) {
-  return rateLimit({
-    windowMs: config.LOGIN_WINDOW_MINUTES * 60_000,
-    limit: config.LOGIN_MAX_ATTEMPTS,
-    skipSuccessfulRequests: true,
-    standardHeaders: 'draft-7',
-    legacyHeaders: false,
-    // Per address and account, so one person's typos do not lock out the whole office.
-    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String(req.body?.email ?? '').trim().toLowerCase()}`,
-    handler: () => {
-      throw new HttpError(429, 'too_many_attempts', `Too many failed sign-in attempts; try again in ${config.LOGIN_WINDOW_MINUTES} minutes.`)
-    },
-  })
+  const limiter = (limit: number, key: (req: Request) => string) =>
+    rateLimit({
+      windowMs: config.LOGIN_WINDOW_MINUTES * 60_000,
+      limit,
+      skipSuccessfulRequests: true,
+      standardHeaders: 'draft-7',
+      legacyHeaders: false,
+      keyGenerator: key,
+      handler: () => {
+        throw new HttpError(429, 'too_many_attempts', `Too many failed sign-in attempts; try again in ${config.LOGIN_WINDOW_MINUTES} minutes.`)
+      },
+    })
+  const address = (req: Request) => ipKeyGenerator(req.ip ?? '')
+  return [
+    limiter(config.LOGIN_MAX_ATTEMPTS * 10, address),
+    limiter(config.LOGIN_MAX_ATTEMPTS, (req) => `${address(req)}|${String(req.body?.email ?? '').trim().toLowerCase()}`),
+  ]
 }
 
 export function authRoutes(ctx: AppContext) {
@@ -39,7 +49,7 @@ export function authRoutes(ctx: AppContext) {
       method: 'post',
       path: '/auth/login',
       access: 'public',
-      before: [loginLimiter(ctx.config)],
+      before: loginLimiter(ctx.config),
       schema: { body: loginBody },
       handler: (req, res, next) => {
         passport.authenticate('local', (err: unknown, user: User | false, info?: { reason?: string }) => {
@@ -77,7 +87,7 @@ export function authRoutes(ctx: AppContext) {
       method: 'post',
       path: '/auth/forgot',
       access: 'public',
-      before: [loginLimiter(ctx.config)],
+      before: loginLimiter(ctx.config),
       schema: { body: forgotBody },
       handler: async (_req, res) => {
         await requestPasswordReset(ctx, res.locals.body.email)

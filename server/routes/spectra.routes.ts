@@ -3,6 +3,7 @@ import type { SpectrumPage } from '../../shared/api/spectra'
 import type { AppContext } from '../context'
 import { sendSeries } from '../lib/series'
 import { currentUser } from '../middleware/auth'
+import { boundedUpload } from '../middleware/body-limit'
 import { idParams } from '../schemas/common'
 import { dataQuery, listQuery, spectrumMetadata, submitBody } from '../schemas/spectra.schemas'
 import { getPreparedSeries, measurementsOf, requeueSpectrum } from '../services/measurements.service'
@@ -20,7 +21,7 @@ export function spectraRoutes(ctx: AppContext) {
       method: 'post',
       path: '/spectra',
       access: SUBMITTERS,
-      before: [upload.array('files')],
+      before: [boundedUpload(ctx.config.UPLOAD_MAX_REQUEST_BYTES), upload.array('files')],
       schema: { body: submitBody },
       handler: async (req, res) => {
         const files = ((req.files as Express.Multer.File[] | undefined) ?? []).map((f) => ({ name: Buffer.from(f.originalname, 'latin1').toString('utf8'), bytes: f.buffer }))

@@ -88,6 +88,25 @@ describe('POST /api/auth/login', () => {
   })
 })
 
+describe('sign-in rate limit per address', () => {
+  it('also stops one address trying many accounts', async () => {
+    const limited = await import('../helpers/context').then((m) => m.createTestContext({ LOGIN_MAX_ATTEMPTS: 1 }))
+    try {
+      const client = await agentFor(limited.app)
+      const codes: number[] = []
+      // Ten accounts, one wrong password each: the per-account rule alone would allow them all.
+      for (let i = 0; i < 11; i++) {
+        const res = await client.agent.post('/api/auth/login').set('x-csrf-token', client.csrf).send({ email: `nobody-${i}@test.example`, password: 'wrong-password' })
+        codes.push(res.status)
+      }
+      expect(codes.slice(0, 10).every((c) => c === 401)).toBe(true)
+      expect(codes[10]).toBe(429)
+    } finally {
+      await limited.close()
+    }
+  })
+})
+
 describe('sessions', () => {
   it('signs out, after which the API refuses the old cookie', async () => {
     const { user, password } = await makeUser('lead')

@@ -101,6 +101,21 @@ describe('POST /api/spectra', () => {
     expect(res.body.error.code).toBe('no_files')
   })
 
+  it('refuses a request over the per-request limit before reading it', async () => {
+    const small = await createTestContext({ UPLOAD_MAX_REQUEST_BYTES: 8192 })
+    try {
+      const { user, password } = await makeUser('lead')
+      const lead = await signedInAgent(small.app, user.email, password)
+      const before = await Spectrum.count()
+      const res = await lead.agent.post('/api/spectra').set('x-csrf-token', lead.csrf).field('campaignId', String(campaign.id)).attach('files', syntheticTextSpectrum(seed++), 'one.txt').attach('files', syntheticTextSpectrum(seed++), 'two.txt')
+      expect(res.status).toBe(413)
+      expect(res.body.error.code).toBe('upload_too_large')
+      expect(await Spectrum.count()).toBe(before)
+    } finally {
+      await small.close()
+    }
+  })
+
   it('refuses a file over the size limit with 413 and stores nothing', async () => {
     const small = await createTestContext({ UPLOAD_MAX_BYTES: 4096 })
     try {
