@@ -5,7 +5,7 @@ import { matchSpectrum, standardOnGrid, type MatchResult, type PreparedMatchLibr
 import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
 
 /** Version of the numeric pipeline; stored with every measurement and suggestion it makes. */
-export const PIPELINE_VERSION = '1.2.1'
+export const PIPELINE_VERSION = '1.2.2'
 
 export interface PipelineInput {
   spectrum: Spectrum1D

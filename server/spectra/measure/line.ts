@@ -139,7 +139,9 @@ export function measureCheckedSpectrumLine(spectrum: Spectrum1D, line: Classific
     }
     const sigma = error ? error[deepest]! : snr !== null ? cAt(deepest) / snr : Number.NaN
     centreDepthError = Number.isFinite(sigma) ? Math.sqrt(noiseCorrelation) * (sigma / cAt(deepest)) : null
-    fwhm = halfDepthWidth(spectrum, line.window, deepest, depth / 2, blue.mean, slope, wb)
+    // A width at half depth exists only for a line that dips below its side bands.
+    if (depth > 0) fwhm = halfDepthWidth(spectrum, line.window, deepest, depth / 2, blue.mean, slope, wb)
+    if (fwhm !== null && !(fwhm > 0)) fwhm = null
   }
   if (isBand) {
     const width = line.window[1] - line.window[0]

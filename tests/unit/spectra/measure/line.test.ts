@@ -40,6 +40,16 @@ describe('measureSpectrumLine', () => {
     expect(inWindow / ew).toBeCloseTo(1 - (2 / Math.PI) * Math.atan(gamma / 100), 12)
     expect(m.fwhm).toBeCloseTo(2 * gamma, 2)
   })
+  it('gives no FWHM when the window sits above its side bands, as in a blanketed cool star', () => {
+    // Side bands depressed by absorption, the window itself clear: no line core to measure a width of.
+    const spectrum = syntheticSpectrum(wavelength, [
+      { centre: 4325, ew: 20, sigma: 20, gamma: 0 },
+      { centre: 4675, ew: 20, sigma: 20, gamma: 0 },
+    ])
+    const m = measured(measureSpectrumLine(spectrum, line()))
+    expect(m.equivalentWidth).toBeLessThan(0)
+    expect(m.fwhm).toBeNull()
+  })
   it('takes the continuum as the straight line through the side-band means', () => {
     const spectrum = syntheticSpectrum(wavelength, [{ centre: 4500, ew: 2, sigma: 3, gamma: 0 }], {
       continuum: (w) => 1 + (w - 4500) / 1000,
