@@ -14,6 +14,27 @@ export interface CallDraft {
 
 export const emptyDraft = (): CallDraft => ({ type: '', luminosityClass: '', peculiarities: '', uncertain: false, confidence: 2, note: '' })
 
+/** A recorded call as the form needs it to start a correction from. */
+export interface StandingCall {
+  letter: string
+  subtype: number
+  luminosityClass: string
+  peculiarities: string[]
+  uncertain: boolean
+  confidence: number
+  notes: string
+}
+
+/** The draft a correction starts from: the standing call as it was recorded. */
+export const draftFromCall = (call: StandingCall): CallDraft => ({
+  type: `${call.letter}${call.subtype}`,
+  luminosityClass: call.luminosityClass,
+  peculiarities: call.peculiarities.join(' '),
+  uncertain: call.uncertain,
+  confidence: [1, 2, 3].includes(call.confidence) ? call.confidence : 2,
+  note: call.notes,
+})
+
 export type CallField = 'type' | 'luminosityClass' | 'peculiarities' | 'confidence'
 
 /** A call the server can take: canonical MK text plus its parts. */
