@@ -4,6 +4,7 @@
  * χ²_min = Σwf² − (Σwft)² / Σwt² (linear least squares in one parameter; Press et al.,
  * *Numerical Recipes*, 3rd ed., §15.4, from memory).
  */
+import { solveLinearInPlace } from '../linear'
 
 export interface ScaledChiSquare {
   chi2: number
@@ -542,40 +543,11 @@ function smoothChiAt(x: number): number {
   return Math.max(0, q[35]! - fit)
 }
 
-/** Solves M c = v (n ≤ 5) by Gaussian elimination with partial pivoting; null when singular. The solution is a scratch array, valid until the next call. */
+/** Solves M c = v (n ≤ 5) without touching M or v; null when singular. The solution is a scratch array, valid until the next call. */
 function solveSymmetric(M: Float64Array, v: Float64Array, n: number): Float64Array | null {
   const a = smoothScratch.a
-  const b = smoothScratch.b
   a.set(M)
-  b.set(v)
-  for (let col = 0; col < n; col++) {
-    let piv = col
-    for (let r = col + 1; r < n; r++) if (Math.abs(a[r * n + col]!) > Math.abs(a[piv * n + col]!)) piv = r
-    if (!(Math.abs(a[piv * n + col]!) > 1e-300)) return null
-    if (piv !== col) {
-      for (let c = 0; c < n; c++) {
-        const tmp = a[col * n + c]!
-        a[col * n + c] = a[piv * n + c]!
-        a[piv * n + c] = tmp
-      }
-      const tb = b[col]!
-      b[col] = b[piv]!
-      b[piv] = tb
-    }
-    for (let r = col + 1; r < n; r++) {
-      const factor = a[r * n + col]! / a[col * n + col]!
-      if (factor === 0) continue
-      for (let c = col; c < n; c++) a[r * n + c] = a[r * n + c]! - factor * a[col * n + c]!
-      b[r] = b[r]! - factor * b[col]!
-    }
-  }
-  const out = smoothScratch.out
-  for (let r = n - 1; r >= 0; r--) {
-    let s = b[r]!
-    for (let c = r + 1; c < n; c++) s -= a[r * n + c]! * out[c]!
-    out[r] = s / a[r * n + r]!
-  }
-  return out
+  return solveLinearInPlace(a, v, smoothScratch.out, n, 1e-300) ? smoothScratch.out : null
 }
 
 /** Scratch of smoothPairChiSquare and its 5 × 5 solver (one spectrum at a time per thread). */
@@ -584,6 +556,5 @@ const smoothScratch = {
   M: new Float64Array(25),
   v: new Float64Array(5),
   a: new Float64Array(25),
-  b: new Float64Array(5),
   out: new Float64Array(5),
 }

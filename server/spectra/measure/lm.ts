@@ -4,6 +4,7 @@
  * λ divided by 10 after an accepted step and multiplied by 10 after a rejected one, parameters
  * projected back into their bounds after each step.
  */
+import { solveLinearInPlace } from '../linear'
 
 /**
  * Evaluates the model at every data point: writes model values into `values` and the Jacobian,
@@ -89,7 +90,7 @@ export function fitLevenbergMarquardt(
         system[j * p + j] = 1
         beta[j] = 0
       }
-      if (!solveInPlace(system, beta, step, p)) {
+      if (!solveLinearInPlace(system, beta, step, p)) {
         damping *= 10
         continue
       }
@@ -156,39 +157,6 @@ function normalEquations(
   for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) alpha[a * p + b] = alpha[b * p + a]!
 }
 
-/** Gaussian elimination with partial pivoting; overwrites `m` and writes the solution into `x`. */
-function solveInPlace(m: Float64Array, rhs: Float64Array, x: Float64Array, p: number): boolean {
-  x.set(rhs)
-  for (let c = 0; c < p; c++) {
-    let pivot = c
-    for (let r = c + 1; r < p; r++) if (Math.abs(m[r * p + c]!) > Math.abs(m[pivot * p + c]!)) pivot = r
-    const pv = m[pivot * p + c]!
-    if (!(Math.abs(pv) > 0) || !Number.isFinite(pv)) return false
-    if (pivot !== c) {
-      for (let k = 0; k < p; k++) {
-        const t = m[c * p + k]!
-        m[c * p + k] = m[pivot * p + k]!
-        m[pivot * p + k] = t
-      }
-      const t = x[c]!
-      x[c] = x[pivot]!
-      x[pivot] = t
-    }
-    for (let r = c + 1; r < p; r++) {
-      const f = m[r * p + c]! / m[c * p + c]!
-      if (f === 0) continue
-      for (let k = c; k < p; k++) m[r * p + k] = m[r * p + k]! - f * m[c * p + k]!
-      x[r] = x[r]! - f * x[c]!
-    }
-  }
-  for (let r = p - 1; r >= 0; r--) {
-    let s = x[r]!
-    for (let k = r + 1; k < p; k++) s -= m[r * p + k]! * x[k]!
-    x[r] = s / m[r * p + r]!
-  }
-  return true
-}
-
 function invert(a: Float64Array, p: number): Float64Array {
   const out = new Float64Array(p * p)
   const work = new Float64Array(p * p)
@@ -198,7 +166,7 @@ function invert(a: Float64Array, p: number): Float64Array {
     work.set(a)
     e.fill(0)
     e[j] = 1
-    if (!solveInPlace(work, e, col, p)) return out.fill(Number.NaN)
+    if (!solveLinearInPlace(work, e, col, p)) return out.fill(Number.NaN)
     for (let i = 0; i < p; i++) out[i * p + j] = col[i]!
   }
   return out
