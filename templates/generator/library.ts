@@ -1,11 +1,13 @@
 /**
  * The on-disk layout of a model standards library and its loader (see templates/README.md).
  */
-import { createHash } from 'node:crypto'
 import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import type { LuminosityClass, SpectralLetter } from '../../shared/calibration'
 import type { LogGrid } from '../../shared/grid'
+import { readFloat32, type ManifestFile } from '../format'
+
+export { float32LittleEndian, sha256, type ManifestFile } from '../format'
 
 /** One standard as listed in manifest.json; rows of the data files follow this order. */
 export interface ManifestStandard {
@@ -27,15 +29,6 @@ export interface ManifestStandard {
   checksum: string
   /** SHA-256 (hex) of this standard's row of continuum.f32. */
   continuumChecksum: string
-}
-
-/** A data file of the library: little-endian float32, rows × columns, row-major. */
-export interface ManifestFile {
-  path: string
-  dtype: 'float32le'
-  rows: number
-  columns: number
-  sha256: string
 }
 
 export interface ModelLibraryManifest {
@@ -69,31 +62,6 @@ export interface ModelLibrary {
   /** All continuum rows on the stored continuum grid, standards × continuumGrid.length. */
   storedContinuum: Float32Array
   standards: ModelStandard[]
-}
-
-/** SHA-256 hex digest of bytes. */
-export function sha256(bytes: Uint8Array): string {
-  return createHash('sha256').update(bytes).digest('hex')
-}
-
-/** Little-endian float32 bytes of an array, whatever the host's byte order. */
-export function float32LittleEndian(values: Float32Array): Uint8Array {
-  const out = new Uint8Array(values.length * 4)
-  const view = new DataView(out.buffer)
-  for (let i = 0; i < values.length; i++) view.setFloat32(i * 4, values[i]!, true)
-  return out
-}
-
-function readFloat32(path: string, expected: ManifestFile, verify: boolean): Float32Array {
-  const bytes = readFileSync(path)
-  if (bytes.length !== expected.rows * expected.columns * 4) {
-    throw new Error(`${expected.path} holds ${bytes.length} bytes, the manifest expects ${expected.rows * expected.columns * 4}`)
-  }
-  if (verify && sha256(bytes) !== expected.sha256) throw new Error(`${expected.path} does not match its SHA-256 in the manifest`)
-  const out = new Float32Array(expected.rows * expected.columns)
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength)
-  for (let i = 0; i < out.length; i++) out[i] = view.getFloat32(i * 4, true)
-  return out
 }
 
 /**
