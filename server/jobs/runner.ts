@@ -8,7 +8,7 @@ import { Campaign, LibraryVersion, LineMeasurementRow, Measurement, ProcessingJo
 import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
 import type { ProcessingQueue } from '../context'
 import { librarySpecFor } from '../services/standards.service'
-import { storeSuggestion } from '../services/suggestions.service'
+import { storeSuggestion, suggestionDetails } from '../services/suggestions.service'
 import runTask, { type LibrarySpec, type WorkerTask } from './worker'
 
 export interface RunnerOptions {
@@ -224,7 +224,14 @@ async function storeOutput(sequelize: Sequelize, job: ProcessingJob, output: Pip
     await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date() }, { where: { id: job.id }, transaction })
     if (output.suggestion && libraryVersionId !== undefined) {
       await storeSuggestion(
-        { spectrumId: job.spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: output.suggestion },
+        {
+          spectrumId: job.spectrumId,
+          measurementId: m.id,
+          libraryVersionId,
+          pipelineVersion: output.pipelineVersion,
+          result: output.suggestion,
+          details: suggestionDetails(output.suggestion, output.resolution, output.notes),
+        },
         transaction,
       )
       await Spectrum.update(

@@ -33,13 +33,21 @@ export class Standard extends Model<InferAttributes<Standard>, InferCreationAttr
   declare id: CreationOptional<number>
   declare source: 'model' | 'observed'
   declare modelId: string | null
+  /** Id in the shipped observed library (templates/observed-v1), e.g. "miles-0892". */
+  declare templateId: CreationOptional<string | null>
   declare spectrumId: number | null
+  /** Star name and the library it comes from, for shipped observed standards. */
+  declare star: CreationOptional<string | null>
+  declare origin: CreationOptional<string | null>
   declare spectralType: string
   declare typeCode: number
   declare luminosityClass: string
   declare classCode: number
   declare teff: number | null
   declare logg: number | null
+  declare feh: CreationOptional<number | null>
+  /** Resolution of the standard's spectrum, FWHM Å, when known. */
+  declare resolutionFwhm: CreationOptional<number | null>
   declare note: string
   /** Observed standards: rectified flux on the grid, float32 LE, frozen when added. */
   declare rectified: Buffer | null
@@ -53,13 +61,18 @@ export class Standard extends Model<InferAttributes<Standard>, InferCreationAttr
         id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
         source: { type: DataTypes.STRING(16), allowNull: false },
         modelId: { type: DataTypes.STRING(32), allowNull: true, unique: true },
+        templateId: { type: DataTypes.STRING(48), allowNull: true, unique: true },
         spectrumId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        star: { type: DataTypes.STRING(60), allowNull: true },
+        origin: { type: DataTypes.STRING(120), allowNull: true },
         spectralType: { type: DataTypes.STRING(40), allowNull: false },
         typeCode: { type: DataTypes.DOUBLE, allowNull: false },
         luminosityClass: { type: DataTypes.STRING(12), allowNull: false },
         classCode: { type: DataTypes.DOUBLE, allowNull: false },
         teff: { type: DataTypes.DOUBLE, allowNull: true },
         logg: { type: DataTypes.DOUBLE, allowNull: true },
+        feh: { type: DataTypes.DOUBLE, allowNull: true },
+        resolutionFwhm: { type: DataTypes.DOUBLE, allowNull: true },
         note: { type: DataTypes.TEXT, allowNull: false },
         rectified: { type: DataTypes.BLOB('medium'), allowNull: true },
         addedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
@@ -112,6 +125,8 @@ export class Suggestion extends Model<InferAttributes<Suggestion>, InferCreation
   declare flags: string
   /** JSON: probability over the (type, class) grid. */
   declare probabilities: string
+  /** JSON SuggestionDetails (shared/api/suggestions.ts); null for suggestions made before pipeline 2. */
+  declare details: CreationOptional<string | null>
   declare createdAt: CreationOptional<Date>
 
   static initModel(sequelize: Sequelize): void {
@@ -137,6 +152,7 @@ export class Suggestion extends Model<InferAttributes<Suggestion>, InferCreation
         votes: { type: DataTypes.TEXT('medium'), allowNull: false },
         flags: { type: DataTypes.TEXT, allowNull: false },
         probabilities: { type: DataTypes.TEXT('medium'), allowNull: false },
+        details: { type: DataTypes.TEXT('medium'), allowNull: true },
         createdAt: DataTypes.DATE(3),
       },
       { sequelize, tableName: 'suggestions', updatedAt: false },

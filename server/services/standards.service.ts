@@ -3,8 +3,8 @@ import { join } from 'node:path'
 import { Op, type Sequelize } from 'sequelize'
 import { DEFAULT_GRID, gridWavelength } from '../../shared/grid'
 import { formatMK, parseMK } from '../../shared/mk'
-import type { ModelLibraryManifest } from '../../templates/generator/library'
-import { DEFAULT_MODEL_DIR, modelLibraryAt, type LibrarySpec } from '../jobs/worker'
+import type { ObservedLibraryManifest } from '../../templates/observed/library'
+import { DEFAULT_MODEL_DIR, DEFAULT_OBSERVED_DIR, modelLibraryAt, observedLibraryAt, type LibrarySpec } from '../jobs/worker'
 import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
 import { HttpError, notFound } from '../lib/http-error'
 import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, type User } from '../models'
@@ -14,48 +14,73 @@ import type { StandardSummary, StandardsLibrary, VersionSummary } from '../../sh
 
 export type { StandardSummary, VersionSummary }
 
-/** Name of the version made from the shipped model library. */
-export const DEFAULT_VERSION_NAME = 'model-v1'
+/** Name of the version made from the shipped observed library: the default standards. */
+export const DEFAULT_VERSION_NAME = 'observed-v1'
+/** Name of the version made from the model library, the default before the observed library. */
+export const MODEL_VERSION_NAME = 'model-v1'
 
 /**
- * Makes sure the default version exists: one `standards` row per model standard of the shipped
- * library (model_id = manifest id) and a published version holding them all, active when no other
- * version is. Safe to call at every start.
+ * Makes sure the default version exists: one `standards` row per standard of the shipped observed
+ * library (template_id = its id, with star, source, published type and parameters) and a published
+ * version holding them all. It becomes the active version when none is active or when the active
+ * one is the old model library. Safe to call at every start.
  */
-export async function ensureDefaultLibrary(sequelize: Sequelize, modelDir = DEFAULT_MODEL_DIR): Promise<LibraryVersion> {
-  const manifest = JSON.parse(readFileSync(join(modelDir, 'manifest.json'), 'utf8')) as ModelLibraryManifest
+export async function ensureDefaultLibrary(sequelize: Sequelize, observedDir = DEFAULT_OBSERVED_DIR): Promise<LibraryVersion> {
+  const manifest = JSON.parse(readFileSync(join(observedDir, 'manifest.json'), 'utf8')) as ObservedLibraryManifest
   return sequelize.transaction(async (transaction) => {
+    const active = await LibraryVersion.findOne({ where: { isActive: true }, transaction })
     const existing = await LibraryVersion.findOne({ where: { name: manifest.version }, transaction })
     if (existing) {
-      if ((await LibraryVersion.count({ where: { isActive: true }, transaction })) === 0) await existing.update({ isActive: true }, { transaction })
+      if (!active || active.name === MODEL_VERSION_NAME) {
+        await LibraryVersion.update({ isActive: false }, { where: { isActive: true }, transaction })
+        await existing.update({ isActive: true }, { transaction })
+      }
       return existing
     }
-    const have = new Set((await Standard.findAll({ where: { source: 'model' }, attributes: ['modelId'], transaction })).map((s) => s.modelId))
+    const sources = new Map(manifest.sources.map((src) => [src.key, src]))
+    const kept = manifest.entries.filter((e) => e.row !== undefined)
+    const have = new Set((await Standard.findAll({ where: { templateId: { [Op.ne]: null } }, attributes: ['templateId'], transaction })).map((s) => s.templateId))
     await Standard.bulkCreate(
-      manifest.standards
+      kept
         .filter((e) => !have.has(e.id))
-        .map((e) => ({
-          source: 'model' as const,
-          modelId: e.id,
-          spectrumId: null,
-          spectralType: e.spectralType,
-          typeCode: e.typeCode,
-          luminosityClass: e.luminosityClass,
-          classCode: classCodeOrThrow(e.luminosityClass),
-          teff: e.Teff,
-          logg: e.logg,
-          note: `model standard, ${manifest.version} (generator ${manifest.generatorVersion})`,
-          rectified: null,
-          addedBy: null,
-          retiredAt: null,
-        })),
+        .map((e) => {
+          const src = sources.get(e.source)!
+          return {
+            source: 'observed' as const,
+            modelId: null,
+            templateId: e.id,
+            spectrumId: null,
+            star: e.star,
+            origin: src.name,
+            spectralType: e.spectralType!,
+            typeCode: e.typeCode!,
+            luminosityClass: e.luminosityClass!,
+            classCode: e.classCode!,
+            teff: e.teff,
+            logg: e.logg,
+            feh: e.feh,
+            resolutionFwhm: src.resolutionFwhm,
+            note: `${e.star}, published as "${e.publishedType}": ${src.name} (${src.reference}); ${manifest.version}`,
+            rectified: null,
+            addedBy: null,
+            retiredAt: null,
+          }
+        }),
       { transaction },
     )
-    const ids = new Set(manifest.standards.map((e) => e.id))
-    const rows = (await Standard.findAll({ where: { source: 'model' }, attributes: ['id', 'modelId'], transaction })).filter((s) => ids.has(s.modelId!))
-    const anyActive = (await LibraryVersion.count({ where: { isActive: true }, transaction })) > 0
+    const ids = new Set(kept.map((e) => e.id))
+    const rows = (await Standard.findAll({ where: { templateId: { [Op.ne]: null } }, attributes: ['id', 'templateId'], transaction })).filter((s) => ids.has(s.templateId!))
+    const takeOver = !active || active.name === MODEL_VERSION_NAME
+    if (takeOver) await LibraryVersion.update({ isActive: false }, { where: { isActive: true }, transaction })
     const version = await LibraryVersion.create(
-      { name: manifest.version, description: `The shipped model standards (${rows.length}), templates/${manifest.version}.`, status: 'published', isActive: !anyActive, publishedAt: new Date(), publishedBy: null },
+      {
+        name: manifest.version,
+        description: `The shipped observed standards (${rows.length} real stars of published type from ${manifest.sources.map((src) => src.name).join(' and ')}), templates/${manifest.version}.`,
+        status: 'published',
+        isActive: takeOver,
+        publishedAt: new Date(),
+        publishedBy: null,
+      },
       { transaction },
     )
     await LibraryVersionStandard.bulkCreate(rows.map((s) => ({ versionId: version.id, standardId: s.id })), { transaction })
@@ -71,6 +96,9 @@ function classCodeOrThrow(text: string): number {
 }
 
 const SUMMARY_ATTRIBUTES = { exclude: ['rectified'] }
+
+/** Resolution of the sharpest shipped standards (MILES, 2.5 Å FWHM): spectra are never measured sharper. */
+const SHARPEST_SHIPPED_FWHM = 2.5
 
 /** Every version and every standard (without arrays), and which version is active. */
 export async function listLibrary(): Promise<StandardsLibrary> {
@@ -106,6 +134,9 @@ function toStandardSummary(s: Standard, versionIds: number[]): StandardSummary {
     id: s.id,
     source: s.source,
     modelId: s.modelId,
+    templateId: s.templateId ?? null,
+    star: s.star ?? null,
+    origin: s.origin ?? null,
     spectrumId: s.spectrumId,
     spectralType: s.spectralType,
     typeCode: s.typeCode,
@@ -113,6 +144,8 @@ function toStandardSummary(s: Standard, versionIds: number[]): StandardSummary {
     classCode: s.classCode,
     teff: s.teff,
     logg: s.logg,
+    feh: s.feh ?? null,
+    resolutionFwhm: s.resolutionFwhm ?? null,
     note: s.note,
     addedBy: s.addedBy,
     retiredAt: s.retiredAt?.toISOString() ?? null,
@@ -213,11 +246,15 @@ export async function publishVersion(sequelize: Sequelize, user: User, input: { 
 }
 
 /** A standard's rectified flux as float32 columns [wavelength, rectified] over its covered pixels. */
-export async function standardSeries(id: number, modelDir = DEFAULT_MODEL_DIR): Promise<{ layout: { points: number; columns: string[]; standardId: number; spectralType: string; source: string }; body: Buffer }> {
+export async function standardSeries(id: number, modelDir = DEFAULT_MODEL_DIR, observedDir = DEFAULT_OBSERVED_DIR): Promise<{ layout: { points: number; columns: string[]; standardId: number; spectralType: string; source: string }; body: Buffer }> {
   const s = await Standard.findByPk(id)
   if (!s) throw notFound('The standard')
   let values: ArrayLike<number>
-  if (s.source === 'observed') {
+  if (s.templateId) {
+    const row = observedLibraryAt(observedDir).inputs.find((i) => i.templateId === s.templateId)
+    if (!row) throw notFound('The data of this standard')
+    values = row.rectified
+  } else if (s.source === 'observed') {
     if (!s.rectified) throw notFound('The data of this standard')
     values = bufferToFloat32(s.rectified)
   } else {
@@ -246,8 +283,8 @@ export async function activeVersionId(): Promise<number | null> {
   return (await LibraryVersion.findOne({ where: { isActive: true }, attributes: ['id'] }))?.id ?? null
 }
 
-/** What a worker needs to build a version's prepared library (model ids; observed arrays). */
-export async function librarySpecFor(versionId: number, modelDir = DEFAULT_MODEL_DIR): Promise<LibrarySpec> {
+/** What a worker needs to build a version's prepared library (model and template ids; uploaded standards' arrays). */
+export async function librarySpecFor(versionId: number, modelDir = DEFAULT_MODEL_DIR, observedDir = DEFAULT_OBSERVED_DIR): Promise<LibrarySpec> {
   const version = await LibraryVersion.findByPk(versionId)
   if (!version) throw notFound('The library version')
   const ids = (await LibraryVersionStandard.findAll({ where: { versionId } })).map((l) => l.standardId)
@@ -262,17 +299,23 @@ export async function librarySpecFor(versionId: number, modelDir = DEFAULT_MODEL
     name: version.name,
     modelDir,
     models: standards.filter((s) => s.source === 'model' && s.modelId).map((s) => ({ standardId: s.id, modelId: s.modelId! })),
+    observedDir,
+    templates: standards.filter((s) => s.templateId).map((s) => ({ standardId: s.id, templateId: s.templateId! })),
     observed: standards
-      .filter((s) => s.source === 'observed' && s.rectified)
+      .filter((s) => s.source === 'observed' && !s.templateId && s.rectified)
       .map((s) => ({
         standardId: s.id,
         spectralType: s.spectralType,
         typeCode: s.typeCode,
         luminosityClass: s.luminosityClass,
         classCode: s.classCode,
+        teff: s.teff,
+        logg: s.logg,
+        feh: s.feh ?? null,
+        origin: s.spectrumId !== null ? `uploaded spectrum ${s.spectrumId}` : 'uploaded spectrum',
         rectified: Float32Array.from(bufferToFloat32(s.rectified!)),
-        // Measurements of spectra sharper than the library's sharpest level were smoothed to it (pipeline.ts).
-        resolutionFwhm: Math.max(1.5, (s.spectrumId !== null ? resolution.get(s.spectrumId) : undefined) ?? 1.5),
+        // Measurements are made at the library level at or above the spectrum's resolution, never sharper than the sharpest shipped standards (pipeline.ts).
+        resolutionFwhm: s.resolutionFwhm ?? Math.max(SHARPEST_SHIPPED_FWHM, (s.spectrumId !== null ? resolution.get(s.spectrumId) : undefined) ?? SHARPEST_SHIPPED_FWHM),
       })),
   }
 }

@@ -5,13 +5,19 @@ import { Campaign, ProcessingJob, ReviewCall, Spectrum, Suggestion, type User } 
 import { isBlindFor } from './review.service'
 import type { MatchResult } from '../spectra/match'
 import { activeVersionId } from './standards.service'
-import type { SpectrumSuggestions, SuggestionSummary } from '../../shared/api/suggestions'
+import type { SpectrumSuggestions, SuggestionDetails, SuggestionSummary } from '../../shared/api/suggestions'
+import type { PipelineResolution } from '../spectra/pipeline'
 
 export type { SuggestionSummary }
 
+/** What a suggestion keeps beyond type and class: the matcher's result and how the pipeline reached it. */
+export function suggestionDetails(r: MatchResult, resolution: PipelineResolution, notes: readonly string[]): SuggestionDetails {
+  return { parameters: r.parameters, classShares: r.classShares, classNote: r.classNote, resolution, residual: r.residual, notes: [...notes] }
+}
+
 /** Stores a matcher result as the spectrum's current suggestion; earlier ones stay with is_current = false. */
 export async function storeSuggestion(
-  input: { spectrumId: number; measurementId: number; libraryVersionId: number; pipelineVersion: string; result: MatchResult },
+  input: { spectrumId: number; measurementId: number; libraryVersionId: number; pipelineVersion: string; result: MatchResult; details: SuggestionDetails },
   transaction: Transaction,
 ): Promise<Suggestion> {
   const r = input.result
@@ -36,6 +42,7 @@ export async function storeSuggestion(
       votes: JSON.stringify(r.votes),
       flags: JSON.stringify(r.flags),
       probabilities: JSON.stringify(r.probabilities),
+      details: JSON.stringify(input.details),
     },
     { transaction },
   )
@@ -61,6 +68,7 @@ export function toSuggestionSummary(s: Suggestion): SuggestionSummary {
     votes: JSON.parse(s.votes) as unknown[],
     flags: JSON.parse(s.flags) as string[],
     probabilities: JSON.parse(s.probabilities) as unknown[],
+    details: s.details ? (JSON.parse(s.details) as SuggestionDetails) : null,
     createdAt: s.createdAt.toISOString(),
   }
 }

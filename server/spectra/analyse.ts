@@ -7,7 +7,7 @@ import { countMaskedPixels, maskSpectrumBadPixels } from './prepare/mask'
 import { rebinNoiseCorrelation, rebinSpectrumToLogGrid } from './prepare/rebin'
 import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
 import { smoothSpectrumToFwhm } from './prepare/smooth'
-import { estimateSpectrumSnr, estimateSpectrumSnrByWindow } from './prepare/snr'
+import { estimateSpectrumSnr, estimateSpectrumSnrByWindow, spectrumSnrFromErrors } from './prepare/snr'
 import { measureLineRatios, measureSpectrumLines } from './measure/lines'
 import type { LineMeasurement, LineRatio } from './measure/types'
 
@@ -54,9 +54,17 @@ export interface PreparedSpectrum {
   rectifiedError?: Float64Array
 }
 
+/** Largest S/N reported: beyond it the noise says nothing more (noiseless or synthetic data). */
+export const SNR_CAP = 1000
+
 export interface AnalysisResult {
-  /** DER_SNR per input pixel over `snrRegion` (whole spectrum if that has too few pixels). */
+  /**
+   * S/N per input pixel over `snrRegion` (the whole spectrum if that has too few pixels): from the
+   * file's errors when it has them, else DER_SNR; at most SNR_CAP.
+   */
   snr: number | null
+  /** How the S/N was measured; 'capped' when it reached SNR_CAP. */
+  snrMethod: 'errors' | 'der-snr' | 'capped' | null
   /** Radial velocity removed before measuring, km/s; null when no reference was given or none was found. */
   rv: { v: number; error: number } | null
   prepared: PreparedSpectrum
@@ -99,7 +107,10 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
   const maskedCount = countMaskedPixels(masked)
   if (maskedCount > 0) warnings.push(`${maskedCount} of ${spectrum.wavelength.length} pixels are masked`)
 
-  const snr = estimateSpectrumSnr(masked, { region: snrRegion }) ?? estimateSpectrumSnr(masked)
+  const fromErrors = spectrumSnrFromErrors(masked, { region: snrRegion }) ?? spectrumSnrFromErrors(masked)
+  const measured = fromErrors ?? estimateSpectrumSnr(masked, { region: snrRegion }) ?? estimateSpectrumSnr(masked)
+  const snr = measured === null ? null : Math.min(SNR_CAP, measured)
+  const snrMethod: AnalysisResult['snrMethod'] = measured === null ? null : measured >= SNR_CAP ? 'capped' : fromErrors !== null ? 'errors' : 'der-snr'
   if (snr === null) warnings.push('S/N could not be estimated (too few usable pixels)')
   else if (snr < snrFloor) warnings.push(`S/N ${snr.toFixed(1)} is below the floor of ${snrFloor}`)
 
@@ -153,6 +164,7 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
   const ratios = measureLineRatios(lines)
   return {
     snr,
+    snrMethod,
     rv,
     prepared: {
       grid,

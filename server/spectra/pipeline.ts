@@ -1,18 +1,32 @@
 import { DEFAULT_CLASSIFICATION_REGION, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../shared/grid'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
-import { matchSpectrum, standardOnGrid, type MatchResult, type PreparedMatchLibrary } from './match'
+import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type MatchResult, type PreparedMatchLibrary } from './match'
+import { fitSpectrumAtLevel } from './match/classify'
 import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
 
 /** Version of the numeric pipeline; stored with every measurement and suggestion it makes. */
-export const PIPELINE_VERSION = '1.2.2'
+export const PIPELINE_VERSION = '2.0.0'
 
 export interface PipelineInput {
   spectrum: Spectrum1D
-  /** Instrumental resolution, FWHM Å, when the observer or the header gave it. */
+  /** Instrumental resolution, FWHM Å, when the observer or the header gave it; estimated from the data otherwise. */
   inputFwhm?: number
   /** Classification region, Å (the campaign's); the default region when absent. */
   region?: readonly [number, number]
+  /** Ids of standards left out (every spectrum of the star itself, when measuring accuracy on the library's own stars). */
+  exclude?: ReadonlySet<number>
+}
+
+/** The resolution the spectrum was classified at, and where it came from. */
+export interface PipelineResolution {
+  /** The spectrum's own resolution, FWHM Å: as given, or estimated (null without a library to estimate against). */
+  fwhm: number | null
+  source: 'given' | 'estimated' | 'unknown'
+  /** For an estimate: 'sharpest' means at least as sharp as the sharpest standards, 'coarsest' at least as broad as the coarsest level. */
+  bound: 'within' | 'sharpest' | 'coarsest' | null
+  /** Library level the spectrum was brought to and matched at, FWHM Å. */
+  level: number | null
 }
 
 export interface PipelineOutput {
@@ -20,8 +34,11 @@ export interface PipelineOutput {
   analysis: AnalysisResult
   /** The classification against the library, or null when no library was given. */
   suggestion: MatchResult | null
+  resolution: PipelineResolution
+  /** Notes on how the suggestion was reached (another level used, not a star). */
+  notes: string[]
   seconds: number
-  /** Seconds per step: first analysis, coarse match, analysis at rest against the best standard, final match. */
+  /** Seconds per step: first analysis (with the resolution estimate), the search for the velocity reference, analysis at rest, final match. */
   steps: { analyse: number; match: number; analyseRest: number; matchRest: number }
 }
 
@@ -32,47 +49,190 @@ export function resolutionFwhm(fwhm: number | null | undefined, resolvingPower: 
   return undefined
 }
 
+/** Where emission is looked for, Å. */
+const EMISSION_RANGE = [3900, 5500] as const
+
+/**
+ * The values minus their running median over ±`halfWidth` Å (plus 1), sampled every tenth pixel
+ * and interpolated: removes what is left of a continuum mismatch on scales wider than the lines.
+ */
+function subtractRunningMedian(values: Float64Array, wavelength: Float64Array, halfWidth: number): Float64Array {
+  const n = values.length
+  const stride = 10
+  const anchors: { i: number; m: number }[] = []
+  for (let i = 0; i < n; i += stride) {
+    if (!Number.isFinite(values[i]!)) continue
+    const window: number[] = []
+    for (let j = i; j >= 0 && wavelength[i]! - wavelength[j]! <= halfWidth; j -= 3) if (Number.isFinite(values[j]!)) window.push(values[j]!)
+    for (let j = i + 3; j < n && wavelength[j]! - wavelength[i]! <= halfWidth; j += 3) if (Number.isFinite(values[j]!)) window.push(values[j]!)
+    window.sort((x, y) => x - y)
+    anchors.push({ i, m: window[window.length >> 1]! })
+  }
+  const out = new Float64Array(n).fill(Number.NaN)
+  let k = 0
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(values[i]!) || anchors.length === 0) continue
+    while (k < anchors.length - 2 && anchors[k + 1]!.i <= i) k++
+    const a = anchors[k]!
+    const b = anchors[Math.min(anchors.length - 1, k + 1)]!
+    const m = b.i === a.i ? a.m : a.m + ((b.m - a.m) * (i - a.i)) / (b.i - a.i)
+    out[i] = 1 + values[i]! - m
+  }
+  return out
+}
+
 /**
  * Runs every step of the numeric core on one spectrum; pure, so the CLI, the workers and the
- * benchmark share it. With a library: prepare the spectrum (without line measurements, which the
- * coarse match does not need), match coarsely, measure the radial velocity against the best
- * standard, analyse the spectrum shifted to rest, and match that. The result is that of
- * analyseSpectrum with the best standard as `rvReference`, without preparing the observed-frame
- * spectrum twice. Spectra sharper than the library's sharpest level are smoothed to it first,
- * so lines are measured as the standards were.
+ * benchmarks share it. With a library:
+ * 1. Resolution: the observer's, or estimated against the library (estimateResolution); the
+ *    spectrum is then brought to the library level at or just above it (levelFor) — the sharper
+ *    of spectrum and standards is always brought to the coarser.
+ * 2. Prepare at that level (no line measurements), find the best standard, measure the radial
+ *    velocity against it and analyse the spectrum shifted to rest, with every line.
+ * 3. Match (matchSpectrum). When the type sits at an end of the level's types and a coarser level
+ *    has standards beyond it (O stars are only in the 15 Å library), the spectrum is matched there
+ *    too and the coarser result kept if it lies beyond.
+ * 4. Not a star: emission away from stellar lines or broad emission (notStarEvidence), as the
+ *    spectra of galaxies and quasars show: flag 'not-star' and widen the uncertainty.
  */
 export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary): PipelineOutput {
   const started = performance.now()
-  const options: AnalyseOptions = {}
-  if (input.inputFwhm !== undefined) options.inputFwhm = input.inputFwhm
-  const sharpest = library?.levels[0]?.fwhm
-  if (sharpest !== undefined && input.inputFwhm !== undefined && input.inputFwhm < sharpest) options.targetFwhm = sharpest
-  if (input.region) options.snrRegion = input.region
+  const base: AnalyseOptions = input.region ? { snrRegion: input.region } : {}
   const steps = { analyse: 0, match: 0, analyseRest: 0, matchRest: 0 }
+  const notes: string[] = []
   let t = performance.now()
   if (!library) {
-    const analysis = analyseSpectrum(input.spectrum, options)
+    const analysis = analyseSpectrum(input.spectrum, { ...base, ...(input.inputFwhm !== undefined ? { inputFwhm: input.inputFwhm } : {}) })
     steps.analyse = (performance.now() - t) / 1000
-    return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion: null, seconds: (performance.now() - started) / 1000, steps }
+    const resolution: PipelineResolution = { fwhm: input.inputFwhm ?? null, source: input.inputFwhm !== undefined ? 'given' : 'unknown', bound: null, level: null }
+    return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion: null, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
   }
-  // An infinite S/N floor skips the line measurements: only the prepared arrays are used here.
-  const first = analyseSpectrum(input.spectrum, { ...options, snrFloor: Infinity })
+  const region = input.region ?? DEFAULT_CLASSIFICATION_REGION
+  const exclude = input.exclude ? { exclude: input.exclude } : {}
+  const matchOptions = { region, ...exclude }
+  // An infinite S/N floor skips the line measurements: only the prepared arrays are used before the rest frame.
+  const quick = { ...base, snrFloor: Infinity }
+  let fwhm = input.inputFwhm
+  let resolution: PipelineResolution
+  let first: AnalysisResult
+  if (fwhm !== undefined && fwhm > 0) {
+    const level = levelFor(library, fwhm)
+    resolution = { fwhm, source: 'given', bound: null, level }
+    first = analyseSpectrum(input.spectrum, atLevel(quick, fwhm, level))
+  } else {
+    const unsmoothed = analyseSpectrum(input.spectrum, quick)
+    const estimate = estimateResolution(library, matchInput(unsmoothed, undefined), { region, ...exclude })
+    fwhm = estimate.fwhm
+    const level = levelFor(library, fwhm)
+    resolution = { fwhm, source: 'estimated', bound: estimate.bound, level }
+    first = level > fwhm * 1.02 ? analyseSpectrum(input.spectrum, atLevel(quick, fwhm, level)) : unsmoothed
+  }
   steps.analyse = (performance.now() - t) / 1000
-  const fwhm = input.inputFwhm !== undefined ? Math.max(input.inputFwhm, sharpest ?? 0) : undefined
-  const matchOptions = input.region ? { region: input.region } : {}
+  const options = atLevel(base, fwhm, resolution.level!)
+
   t = performance.now()
-  // Only the best standard and the level are used from it, so the class step can be the cheapest.
-  const coarse = matchSpectrum(library, matchInput(first, fwhm), { ...matchOptions, classFit: 'points' })
+  const located = fitSpectrumAtLevel(library, matchInput(first, resolution.level!), resolution.level!, { region, ...exclude })
+  let bestRow = 0
+  for (let r = 1; r < located.fit.chi2.length; r++) if (located.fit.chi2[r]! < located.fit.chi2[bestRow]!) bestRow = r
   steps.match = (performance.now() - t) / 1000
-  const row = library.standards.findIndex((s) => s.id === coarse.bestStandardId)
-  const level = library.levels.find((l) => l.fwhm === coarse.levelFwhm) ?? library.levels[0]!
+
   t = performance.now()
-  const analysis = analyseAtRest(input, options, first, standardOnGrid(library, level, row))
+  const rest = analyseAtRest(input, options, first, standardOnGrid(library, located.level, bestRow))
+  let analysis = rest.analysis
   steps.analyseRest = (performance.now() - t) / 1000
+
   t = performance.now()
-  const suggestion = matchSpectrum(library, matchInput(analysis, coarse.levelFwhm), matchOptions)
+  let suggestion = matchSpectrum(library, matchInput(analysis, resolution.level!), matchOptions)
+  if (suggestion.flags.includes('outside-grid')) {
+    const beyond = coarserLevelBeyond(library, resolution.level!, suggestion.typeCode)
+    if (beyond !== null) {
+      const wide = analyseSpectrum(rest.spectrum, { ...atLevel(base, fwhm, beyond), ...(input.region ? { rvRegion: input.region } : {}) })
+      const other = matchSpectrum(library, matchInput(wide, beyond), matchOptions)
+      const edge = library.level(resolution.level!).typeCodes
+      if (other.typeCode < edge[0]! || other.typeCode > edge[edge.length - 1]!) {
+        notes.push(`The standards at ${resolution.level} Å end at ${suggestion.spectralType.split(' ')[0]}; matched at ${beyond} Å, where the library reaches further.`)
+        suggestion = other
+        analysis = { ...wide, rv: analysis.rv }
+        resolution = { ...resolution, level: beyond }
+      }
+    }
+  }
+  const notStar = notStarReason(library, analysis, resolution.level!, suggestion)
+  if (notStar) {
+    notes.push(`Not a star: ${notStar}.`)
+    suggestion = { ...suggestion, flags: [...suggestion.flags, 'not-star'], uncertainty: { subtypes: Math.max(suggestion.uncertainty.subtypes, 10), classes: Math.max(suggestion.uncertainty.classes, 2) } }
+  }
+  if (suggestion.flags.includes('not-mk')) suggestion = { ...suggestion, uncertainty: { subtypes: Math.max(suggestion.uncertainty.subtypes, 10), classes: Math.max(suggestion.uncertainty.classes, 2) } }
   steps.matchRest = (performance.now() - t) / 1000
-  return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion, seconds: (performance.now() - started) / 1000, steps }
+  return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
+}
+
+/** Options that bring a spectrum of resolution `fwhm` to `level` (smoothing only when the level is coarser). */
+function atLevel(options: AnalyseOptions, fwhm: number, level: number): AnalyseOptions {
+  return level > fwhm * 1.001 ? { ...options, targetFwhm: level, inputFwhm: fwhm } : { ...options, inputFwhm: fwhm }
+}
+
+/** The sharpest level coarser than `level` whose standards reach beyond `typeCode`'s end of `level`'s types. */
+function coarserLevelBeyond(library: PreparedMatchLibrary, level: number, typeCode: number): number | null {
+  const types = library.level(level).typeCodes
+  const early = typeCode <= types[0]! + 0.5
+  for (const l of library.resolutions) {
+    if (l <= level) continue
+    const other = library.level(l).typeCodes
+    if (early ? other[0]! < types[0]! : other[other.length - 1]! > types[types.length - 1]!) return l
+  }
+  return null
+}
+
+/**
+ * Why the spectrum is not of a star, or null. Emission is looked for in the residual from the best
+ * standard (1 + spectrum − fit) rather than in the rectified spectrum, because the fitted continuum
+ * of a cool star runs below the true one among its crowded lines and the gaps between lines would
+ * pass for emission.
+ */
+function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, level: number, suggestion: MatchResult): string | null {
+  const p = analysis.prepared
+  const levelData = library.level(level)
+  const row = levelData.rows.indexOf(library.standards.findIndex((s) => s.id === suggestion.bestStandardId))
+  if (row < 0) return null
+  const sigma = analysis.snr !== null && analysis.snr > 0 ? 1 / analysis.snr : 0.02
+  const { offset, pixels } = library
+  const template = levelData.flux.subarray(row * pixels, (row + 1) * pixels)
+  let m = 0, sx = 0, sy = 0, sxx = 0, sxy = 0
+  for (let i = 0; i < pixels; i++) {
+    const x = template[i]!
+    const y = p.rectified[i + offset]!
+    if (p.mask[i + offset] !== 0 || !Number.isFinite(x) || !Number.isFinite(y)) continue
+    m++
+    sx += x
+    sy += y
+    sxx += x * x
+    sxy += x * y
+  }
+  if (m > 10) {
+    const b = (m * sxy - sx * sy) / (m * sxx - sx * sx)
+    const a = (sy - b * sx) / m
+    const residual = new Float64Array(pixels)
+    const own = new Float64Array(pixels)
+    for (let i = 0; i < pixels; i++) {
+      const x = template[i]!
+      const y = p.rectified[i + offset]!
+      const lambda = library.wavelength[i]!
+      // Outside 3900–5500 Å the continuum fits of spectrum and standard part ways (few points, steep blue ends).
+      const used = p.mask[i + offset] === 0 && Number.isFinite(x) && Number.isFinite(y) && lambda >= EMISSION_RANGE[0] && lambda <= EMISSION_RANGE[1]
+      residual[i] = used ? y - (a + b * x) : Number.NaN
+      own[i] = used ? y - 1 : Number.NaN
+    }
+    const emission = notStarEvidence(library.wavelength, Float64Array.from(own, (v) => 1 + v), subtractRunningMedian(residual, library.wavelength, 150), sigma, level, suggestion.typeCode)
+    if (emission) return emission.reason
+  }
+  // Beyond the standards' span only the rectified spectrum speaks: strong emission there (Hβ and
+  // [O III] of a galaxy at z ≈ 0.1–0.3) away from Hα and He I.
+  const wavelength = gridWavelengths(p.grid)
+  const red = Float64Array.from(p.rectified, (v, i) => (p.mask[i] !== 0 || wavelength[i]! < library.wavelength[library.pixels - 1]! ? Number.NaN : v))
+  const far = notStarEvidence(wavelength, red, red, Math.max(sigma, 0.05), level, suggestion.typeCode)
+  if (far) return far.reason
+  return null
 }
 
 /**
@@ -81,7 +241,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
  * shifted to rest is analysed once. The S/N region is shifted with it so the same observed
  * pixels give the headline S/N.
  */
-function analyseAtRest(input: PipelineInput, options: AnalyseOptions, first: AnalysisResult, reference: Spectrum1D): AnalysisResult {
+function analyseAtRest(input: PipelineInput, options: AnalyseOptions, first: AnalysisResult, reference: Spectrum1D): { analysis: AnalysisResult; spectrum: Spectrum1D } {
   const rvRegion = input.region ?? DEFAULT_CLASSIFICATION_REGION
   const p = first.prepared
   const result = measureSpectrumRadialVelocity({ wavelength: gridWavelengths(p.grid), flux: p.rectified, mask: p.mask }, reference, { grid: p.grid, region: rvRegion })
@@ -91,13 +251,13 @@ function analyseAtRest(input: PipelineInput, options: AnalyseOptions, first: Ana
     // Where analyseSpectrum puts it: before the pseudo-continuum note.
     const at = analysis.warnings.findIndex((w) => w.startsWith('molecular bands dominate'))
     analysis.warnings.splice(at < 0 ? analysis.warnings.length : at, 0, `radial velocity not measured: ${result.reason}`)
-    return analysis
+    return { analysis, spectrum: input.spectrum }
   }
   const factor = 1 / (1 + result.velocity / SPEED_OF_LIGHT_KMS)
   const snrRegion = options.snrRegion ?? DEFAULT_CLASSIFICATION_REGION
   const rest = shiftSpectrumToRest(input.spectrum, { velocity: result.velocity })
   const analysis = analyseSpectrum(rest, { ...restOptions, snrRegion: [snrRegion[0] * factor, snrRegion[1] * factor] })
-  return { ...analysis, rv: { v: result.velocity, error: result.error } }
+  return { analysis: { ...analysis, rv: { v: result.velocity, error: result.error } }, spectrum: rest }
 }
 
 function matchInput(analysis: AnalysisResult, fwhm: number | undefined) {

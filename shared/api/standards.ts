@@ -4,6 +4,11 @@ export interface StandardSummary {
   id: number
   source: StandardSource
   modelId: string | null
+  /** Id in the shipped observed library, e.g. "miles-0892". */
+  templateId: string | null
+  /** Star name and the library it comes from (shipped observed standards). */
+  star: string | null
+  origin: string | null
   /** The uploaded spectrum behind an observed standard. */
   spectrumId: number | null
   /** MK notation with the class, e.g. "B5 IV". */
@@ -13,6 +18,9 @@ export interface StandardSummary {
   classCode: number
   teff: number | null
   logg: number | null
+  feh: number | null
+  /** Resolution of the standard's spectrum, FWHM Å, when known. */
+  resolutionFwhm: number | null
   note: string
   addedBy: number | null
   retiredAt: string | null

@@ -1,3 +1,25 @@
+/** An estimate with its 1σ spread. */
+export interface EstimateSummary {
+  value: number
+  error: number
+}
+
+/** What the matcher says beyond type and class (pipeline 2 and later). */
+export interface SuggestionDetails {
+  /** Teff (K), log g (cgs) and [Fe/H] (dex) read off the voting standards' published values: a spectroscopic estimate. */
+  parameters: { teff: EstimateSummary | null; logg: EstimateSummary | null; feh: EstimateSummary | null; standards: number }
+  /** Share of the vote of each luminosity class, most likely first. */
+  classShares: { luminosityClass: string; classCode: number; p: number }[]
+  /** Why the class differs from the nearest standard's, when it does. */
+  classNote: string | null
+  /** The spectrum's resolution (as given or estimated) and the library level it was matched at, FWHM Å. */
+  resolution: { fwhm: number | null; source: 'given' | 'estimated' | 'unknown'; bound: 'within' | 'sharpest' | 'coarsest' | null; level: number | null }
+  /** Rms residual of the best fit and the largest that normal stars of the type show, continuum units. */
+  residual: { rms: number; typical: number | null }
+  /** How the suggestion was reached, in words (another level used, not a star). */
+  notes: string[]
+}
+
 /** A stored suggestion, as the API returns it; candidates, votes and probabilities are stored JSON. */
 export interface SuggestionSummary {
   id: number
@@ -19,6 +41,8 @@ export interface SuggestionSummary {
   votes: unknown[]
   flags: string[]
   probabilities: unknown[]
+  /** Null for suggestions made before pipeline 2. */
+  details: SuggestionDetails | null
   createdAt: string
 }
 

@@ -1,12 +1,13 @@
 import { DEFAULT_CLASSIFICATION_REGION } from '../../../shared/grid'
 import { formatMK, formatTypeCode, parseMK, typeFromCode } from '../../../shared/mk'
 import type { LineMeasurement } from '../measure/types'
-import { depthScaledChiSquareRows, depthScaledChiSquareSelected, depthScaledPairChiSquare, parabolaVertex, smoothPairChiSquare } from './chi2'
+import { depthScaledChiSquareSelected } from './chi2'
 import { CRITERIA, criterionNoise, criterionValue, lowerBound } from './criteria'
-import { nearestLevel, type LibraryLevel, type PreparedMatchLibrary } from './library'
+import { balmerHalfDepthWidth, compositeEvidence, hasBalmerEmission, isBeyondDwarfs, typicalResidual } from './flags'
+import { levelFor, type LibraryLevel, type PreparedMatchLibrary } from './library'
 
 /** Quality flags a suggestion can carry. */
-export type SuggestionFlag = 'low-snr' | 'emission' | 'poor-fit' | 'outside-grid' | 'possible-composite' | 'not-mk'
+export type SuggestionFlag = 'low-snr' | 'emission' | 'poor-fit' | 'outside-grid' | 'possible-composite' | 'not-mk' | 'not-star'
 
 /** What the matcher needs of a prepared spectrum (see analyseSpectrum's `prepared`). */
 export interface MatchInput {
@@ -18,7 +19,7 @@ export interface MatchInput {
   mask?: ArrayLike<number>
   /** S/N per pixel, used for the weights when no errors are given. */
   snr: number | null
-  /** Resolution of the spectrum, FWHM Å; when unknown every level is tried and the best kept. */
+  /** Resolution the spectrum has been brought to, FWHM Å: it is matched at the library level for it. */
   fwhm?: number
   /** Line measurements (for the emission flag). */
   lines?: readonly LineMeasurement[]
@@ -28,67 +29,52 @@ export interface MatchOptions {
   /** Classification region, Å. @default DEFAULT_CLASSIFICATION_REGION (3850–5000) */
   region?: readonly [number, number]
   /**
-   * Fractional model error added in quadrature to each pixel's noise, so that at high S/N the
-   * fit is not ruled by the standards' own imperfections. @default 0.01
+   * Fractional error added in quadrature to each pixel's noise, so that at high S/N the fit is not
+   * ruled by the standards' own imperfections. @default 0.01
    */
   modelError?: number
+  /** Standards that vote on type and class: the best this many by χ². @default 16 */
+  neighbours?: number
   /**
-   * Weight factor for pixels in the inner Balmer wings (see `balmerHalfWidth`): the model
-   * standards' Balmer lines are too strong (templates/README.md), so letting them rule the
-   * fit would push A stars away from their type. @default 0.35
+   * Width of the vote weights, w = exp(−(χ²/χ²_min − 1)/temperature): standards whose χ² is
+   * within a factor (1 + temperature) of the best still carry weight e⁻¹. A temperature tied to
+   * the best fit rather than to the photon noise, because among real stars the published types
+   * scatter by about a subtype around what their spectra show (see bench/accuracy.ts).
+   * @default 1.5
    */
-  balmerWeight?: number
-  /** Half width of the down-weighted zone around each Balmer line, Å. @default 25 */
-  balmerHalfWidth?: number
+  temperature?: number
   /**
-   * Weight of the line criteria's log-likelihood in the class posterior; 1 is the plain product
-   * of likelihoods, each criterion a Gaussian of width √(noise² + scatter²) (criteria.ts).
-   * Off by default: on the tuning set of bench/tune.ts the product lowered the exact-class rate
-   * (S/N ≥ 50: 94.8 % at 0, 91.7 % at 0.5, 90.8 % at 1), as the criteria's lines are already
-   * in the smooth-mix χ² and their tails are wider than Gaussian. Their votes are still
-   * measured and reported. @default 0
+   * Power of the correction for how many standards each class has at the level: each vote is
+   * divided by (standards of its class)^classBalance, so that a library rich in dwarfs does not
+   * pull rare giants and supergiants toward class V. @default 0.5
    */
-  criteriaWeight?: number
-  /**
-   * Factor on the temperature of the χ² class probability: χ² differences between classes
-   * carry model mismatch (between-type interpolation, continuum placement) beyond the photon
-   * noise, so they are widened by this factor before the product with the criteria.
-   * Calibrated on the tuning set of bench/tune.ts. @default 1
-   */
-  classTemperature?: number
+  classBalance?: number
   /** S/N below which 'low-snr' is set. @default 20 */
   lowSnr?: number
-  /** Reduced χ² (noise plus model error) above which 'poor-fit' is set. @default 4 */
-  poorFit?: number
-  /**
-   * Full χ² for every standard instead of the two-stage search (coarse screening on every
-   * `coarseStep`-th pixel, then the full χ² for the plausible standards). @default false
-   */
+  /** Full χ² for every standard instead of screening on every `coarseStep`-th pixel first. @default false */
   exhaustive?: boolean
-  /** Standards always refined with the full χ² in the two-stage search. @default 32 */
+  /** Standards refined with the full χ² after screening (at least twice `neighbours`). @default 48 */
   refineCount?: number
-  /** Screened log-probability margin within which standards are refined. @default 30 */
-  refineMargin?: number
-  /**
-   * How the χ² class probability is formed. 'smooth-mix': for each class the least χ² over
-   * mixes of the standard at the class's best point with each neighbour along type, with a level
-   * and depth scale that vary smoothly across the region (see smoothPairChiSquare), so a star
-   * between grid types is compared with its class's sequence rather than with whichever grid
-   * point lies nearest, and a continuum fitted to the spectrum is not mistaken for a change of
-   * line strengths; 'mix': the same with a constant level and depth scale
-   * (depthScaledPairChiSquare); 'points': the sum of the grid-point probabilities of the class.
-   * @default 'smooth-mix'
-   */
-  classFit?: 'mix' | 'smooth-mix' | 'points'
+  /** Ids of standards left out, e.g. every spectrum of the star being classified when measuring accuracy. @default none */
+  exclude?: ReadonlySet<number>
 }
 
+/** One of the standards nearest the spectrum. */
 export interface Candidate {
   standardId: number
   spectralType: string
+  typeCode: number
+  luminosityClass: string
   source: 'model' | 'observed'
+  /** Star name of an observed standard. */
+  star: string | null
+  /** Library the spectrum comes from. */
+  origin: string | null
   chi2: number
   reducedChi2: number
+  /** Line-depth scale of the best fit. */
   scale: number
+  /** Share of the type and class vote. */
   probability: number
 }
 
@@ -104,6 +90,21 @@ export interface Vote {
   note?: string
 }
 
+/** An estimate with its 1σ spread. */
+export interface Estimate {
+  value: number
+  error: number
+}
+
+/** Atmospheric parameters read off the voting standards' published values. */
+export interface ParameterEstimate {
+  teff: Estimate | null
+  logg: Estimate | null
+  feh: Estimate | null
+  /** Voting standards that had the parameter. */
+  standards: number
+}
+
 export interface MatchResult {
   spectralType: string
   letter: string
@@ -116,55 +117,43 @@ export interface MatchResult {
   candidates: Candidate[]
   votes: Vote[]
   flags: SuggestionFlag[]
-  /** Probability of each (type, class) point of the grid, summing to 1 (points with p < 1e-4 left out). */
+  /** Share of the vote of each (type, class) point (points below 1e-4 left out), summing to about 1. */
   probabilities: { typeCode: number; classCode: number; luminosityClass: string; p: number }[]
+  /** Class shares of the vote, most likely first. */
+  classShares: { luminosityClass: string; classCode: number; p: number }[]
+  /** Why the class differs from the best candidate's, when it does. */
+  classNote: string | null
+  /** Teff, log g, [Fe/H] from the voting standards' published parameters (a spectroscopic estimate). */
+  parameters: ParameterEstimate
   libraryVersion: { id: number; name: string }
   /** Resolution level used, FWHM Å. */
   levelFwhm: number
   reducedChi2: number
+  /** Rms residual of the best fit in the region (continuum units), and what is usual for a normal star of this type. */
+  residual: { rms: number; typical: number | null }
 }
 
-const BALMER = [4861.33, 4340.47, 4101.74, 3970.07, 3889.05, 3835.38]
-const CLASS_TEXT: Record<number, string> = { 1: 'Ia', 1.5: 'Iab', 2: 'Ib', 3: 'II', 4: 'III', 5: 'IV', 6: 'V' }
-const classText = (code: number) => CLASS_TEXT[code] ?? String(code)
+/** Class codes and their text; half steps are the intermediate classes. */
+const CLASS_TEXT: Record<string, string> = { '1': 'Ia', '1.5': 'Iab', '2': 'Ib', '2.5': 'Ib-II', '3': 'II', '3.5': 'II-III', '4': 'III', '4.5': 'III-IV', '5': 'IV', '5.5': 'IV-V', '6': 'V' }
+export const classText = (code: number): string => CLASS_TEXT[String(code)] ?? String(code)
 
-/** Scratch arrays reused across calls of the same library (one spectrum at a time per thread). */
+/** Scratch arrays reused across calls of the same library and level (one spectrum at a time per thread). */
 interface Scratch {
   flux: Float64Array
   weights: Float64Array
-  chi2: Float64Array
-  scale: Float64Array
-  used: Float64Array
-  /** Decimated flux and weights for the coarse pass. */
   coarseFlux: Float64Array
   coarseWeights: Float64Array
-  /** Standards to refine, and which have an exact χ². */
-  list: Int32Array
-  exact: Uint8Array
-  sorted: Float64Array
-  /** Balmer weight factor per span pixel, for the settings in `balmerKey`. */
-  balmer: Float64Array
-  balmerKey: string
 }
 const scratchByLibrary = new WeakMap<PreparedMatchLibrary, Scratch>()
 
 function scratchFor(library: PreparedMatchLibrary): Scratch {
   let s = scratchByLibrary.get(library)
   if (!s) {
-    const n = library.standards.length
     s = {
       flux: new Float64Array(library.pixels),
       weights: new Float64Array(library.pixels),
-      chi2: new Float64Array(n),
-      scale: new Float64Array(n),
-      used: new Float64Array(n),
       coarseFlux: new Float64Array(library.coarsePixels),
       coarseWeights: new Float64Array(library.coarsePixels),
-      list: new Int32Array(n),
-      exact: new Uint8Array(n),
-      sorted: new Float64Array(n),
-      balmer: new Float64Array(library.pixels),
-      balmerKey: '',
     }
     scratchByLibrary.set(library, s)
   }
@@ -172,25 +161,15 @@ function scratchFor(library: PreparedMatchLibrary): Scratch {
 }
 
 /**
- * Fills the scratch flux and weights over the library span: w = 1/(σ² + (modelError·f)²),
- * σ from the errors or 1/S/N, times `balmerWeight` near Balmer lines, 0 outside the region or
- * where masked. Returns the region's [from, to) column range.
+ * Fills the scratch flux and weights over the library span: w = 1/(σ² + (modelError·f)²), σ from
+ * the errors or 1/S/N, 0 outside the region or where masked. Returns the region's [from, to) range.
  */
-function fillWeights(library: PreparedMatchLibrary, input: MatchInput, options: Required<Pick<MatchOptions, 'modelError' | 'balmerWeight' | 'balmerHalfWidth'>> & { region: readonly [number, number] }, s: Scratch): [number, number] {
+export function fillWeights(library: PreparedMatchLibrary, input: MatchInput, region: readonly [number, number], modelError: number, s: { flux: Float64Array; weights: Float64Array }): [number, number] {
   const { wavelength, offset, pixels } = library
-  const from = lowerBound(wavelength, options.region[0])
-  const to = lowerBound(wavelength, options.region[1])
-  const key = `${options.balmerWeight}|${options.balmerHalfWidth}`
-  if (s.balmerKey !== key) {
-    // Depends only on the settings, so it is filled once per library and settings.
-    for (let i = 0; i < pixels; i++) {
-      const lambda = wavelength[i]!
-      s.balmer[i] = BALMER.some((c) => Math.abs(lambda - c) < options.balmerHalfWidth) ? options.balmerWeight : 1
-    }
-    s.balmerKey = key
-  }
+  const from = lowerBound(wavelength, region[0])
+  const to = lowerBound(wavelength, region[1])
   const snrSigma = input.snr !== null && input.snr > 0 ? 1 / input.snr : 0.02
-  const m2 = options.modelError * options.modelError
+  const m2 = modelError * modelError
   for (let i = 0; i < pixels; i++) {
     const g = i + offset
     const f = input.rectified[g]!
@@ -203,537 +182,414 @@ function fillWeights(library: PreparedMatchLibrary, input: MatchInput, options: 
     const e = input.rectifiedError?.[g]
     const sigma = e !== undefined && Number.isFinite(e) && e > 0 ? e : snrSigma
     const f2 = f * f
-    s.weights[i] = s.balmer[i]! / (sigma * sigma + m2 * (f2 > 0.01 ? f2 : 0.01))
+    s.weights[i] = 1 / (sigma * sigma + m2 * (f2 > 0.01 ? f2 : 0.01))
   }
   return [from, to]
 }
 
-interface LevelFit {
-  level: LibraryLevel
+/** χ², depth scale and pixel count of every row of a level; rows not refined keep their screened χ² (scaled to the full pixel count). */
+export interface LevelFit {
   chi2: Float64Array
   scale: Float64Array
   used: Float64Array
-  best: number
-}
-
-/** Search settings of {@link fitLevel}. */
-interface SearchSettings {
-  exhaustive: boolean
-  refineCount: number
-  refineMargin: number
+  /** 1 where the χ² is the full one. */
+  exact: Uint8Array
 }
 
 /**
- * χ² of every standard at one level. Exhaustive: the full χ² of each. Otherwise in two stages:
- * the χ² on every `coarseStep`-th pixel (scaled to the full pixel count) screens all standards,
- * then the full χ² is computed for the best `refineCount`, for every standard whose screened
- * log-probability lies within `refineMargin` of the best (so every standard with a
- * non-negligible probability, p > e^−margin, is exact), and for the best point of each class
- * with its neighbours along type (which the subtype parabola reads). Standards left out keep
- * their screened χ²: their probabilities are below e^−margin either way.
+ * χ² of every standard of a level (see depthScaledChiSquareSelected). Unless `exhaustive`, all rows
+ * are first screened on every `coarseStep`-th pixel and the best `refineCount` get the full χ².
  */
-function fitLevel(library: PreparedMatchLibrary, level: LibraryLevel, s: Scratch, from: number, to: number, good: number, pixelsPerElement: number, search: SearchSettings): LevelFit {
-  const n = library.standards.length
-  const { list, exact, chi2 } = s
-  if (search.exhaustive || n <= 2 * search.refineCount) {
-    depthScaledChiSquareRows(s.flux, s.weights, level.flux, library.pixels, from, to, s.chi2, s.scale, s.used)
-  } else {
-    const step = library.coarseStep
-    const cp = library.coarsePixels
-    for (let j = 0; j < cp; j++) {
-      s.coarseFlux[j] = s.flux[j * step]!
-      s.coarseWeights[j] = s.weights[j * step]!
-    }
-    depthScaledChiSquareRows(s.coarseFlux, s.coarseWeights, level.coarse, cp, Math.ceil(from / step), Math.ceil(to / step), chi2, s.scale, s.used)
-    for (let k = 0; k < n; k++) {
-      const u = s.used[k]!
-      chi2[k] = u > 0 ? (chi2[k]! * good) / u : Infinity
-      s.used[k] = good
-      s.sorted[k] = chi2[k]!
-      exact[k] = 0
-    }
-    s.sorted.sort()
-    const least = s.sorted[0]!
-    const temperature = Math.max(1, least / pixelsPerElement / Math.max(1, good / pixelsPerElement - 1))
-    const threshold = Math.max(s.sorted[search.refineCount - 1]!, least + 2 * search.refineMargin * pixelsPerElement * temperature)
-    let count = 0
-    for (let k = 0; k < n; k++) {
-      if (chi2[k]! <= threshold) {
-        list[count++] = k
-        exact[k] = 1
-      }
-    }
-    count = addClassMinima(library, chi2, exact, list, count)
-    depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, from, to, list, count, chi2, s.scale, s.used)
-    // The exact values can move a class minimum to a point whose neighbours are still screened.
-    for (let round = 0; round < 3; round++) {
-      const more = addClassMinima(library, chi2, exact, list, 0)
-      if (more === 0) break
-      depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, from, to, list, more, chi2, s.scale, s.used)
-    }
+export function fitLevel(library: PreparedMatchLibrary, level: LibraryLevel, s: Scratch, from: number, to: number, exhaustive: boolean, refineCount: number, exclude?: ReadonlySet<number>): LevelFit {
+  const n = level.rows.length
+  const chi2 = new Float64Array(n)
+  const scale = new Float64Array(n)
+  const used = new Float64Array(n)
+  const exact = new Uint8Array(n)
+  let good = 0
+  for (let i = from; i < to; i++) if (s.weights[i]! > 0) good++
+  if (exhaustive || n <= refineCount) {
+    const all = Int32Array.from({ length: n }, (_, k) => k)
+    depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, from, to, all, n, chi2, scale, used)
+    exact.fill(1)
+    leaveOut(level, library, chi2, exclude)
+    return { chi2, scale, used, exact }
   }
-  let best = 0
-  for (let k = 1; k < n; k++) if (chi2[k]! < chi2[best]!) best = k
-  return { level, chi2: chi2.slice(), scale: s.scale.slice(), used: s.used.slice(), best }
+  const step = library.coarseStep
+  const cp = library.coarsePixels
+  for (let j = 0; j < cp; j++) {
+    s.coarseFlux[j] = s.flux[j * step]!
+    s.coarseWeights[j] = s.weights[j * step]!
+  }
+  const all = Int32Array.from({ length: n }, (_, k) => k)
+  depthScaledChiSquareSelected(s.coarseFlux, s.coarseWeights, level.coarse, cp, Math.ceil(from / step), Math.ceil(to / step), all, n, chi2, scale, used)
+  for (let k = 0; k < n; k++) {
+    const u = used[k]!
+    chi2[k] = u > 0 ? (chi2[k]! * good) / u : Infinity
+    used[k] = good
+  }
+  leaveOut(level, library, chi2, exclude)
+  const order = Array.from({ length: n }, (_, k) => k).sort((a, b) => chi2[a]! - chi2[b]!)
+  const list = Int32Array.from(order.slice(0, refineCount).filter((k) => Number.isFinite(chi2[k]!)))
+  depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, from, to, list, list.length, chi2, scale, used)
+  for (const k of list) exact[k] = 1
+  return { chi2, scale, used, exact }
+}
+
+/** Sets χ² to Infinity for the rows of excluded standards. */
+function leaveOut(level: LibraryLevel, library: PreparedMatchLibrary, chi2: Float64Array, exclude: ReadonlySet<number> | undefined): void {
+  if (!exclude || exclude.size === 0) return
+  level.rows.forEach((k, r) => {
+    if (exclude.has(library.standards[k]!.id)) chi2[r] = Infinity
+  })
 }
 
 /**
- * Appends to `list` (from `count`) every standard not yet exact at the best point of each class
- * and at that point's neighbours along type; marks them exact. Returns the new count.
+ * Prepares the weights for a spectrum and fits one level: what both the classification and the
+ * resolution estimate start from.
+ * @throws when the spectrum has fewer than 10 usable pixels in the region
  */
-function addClassMinima(library: PreparedMatchLibrary, chi2: Float64Array, exact: Uint8Array, list: Int32Array, count: number): number {
-  const { points } = library
-  const np = points.typeCode.length
-  const add = (p: number) => {
-    if (p < 0) return
-    for (let q = points.start[p]!; q < points.start[p + 1]!; q++) {
-      const k = points.members[q]!
-      if (exact[k] === 0) {
-        exact[k] = 1
-        list[count++] = k
-      }
+export function fitSpectrumAtLevel(library: PreparedMatchLibrary, input: MatchInput, fwhm: number, options: { region?: readonly [number, number]; modelError?: number; exhaustive?: boolean; refineCount?: number; exclude?: ReadonlySet<number> } = {}): { level: LibraryLevel; fit: LevelFit; from: number; to: number; scratch: Scratch } {
+  const region = options.region ?? DEFAULT_CLASSIFICATION_REGION
+  if (input.rectified.length !== library.grid.length) throw new Error(`spectrum has ${input.rectified.length} pixels, the library grid ${library.grid.length}`)
+  const s = scratchFor(library)
+  const [from, to] = fillWeights(library, input, region, options.modelError ?? 0.01, s)
+  let good = 0
+  for (let i = from; i < to; i++) if (s.weights[i]! > 0) good++
+  if (good < 10) throw new Error(`only ${good} usable pixels in the classification region ${region[0]}–${region[1]} Å`)
+  const level = library.level(fwhm)
+  return { level, fit: fitLevel(library, level, s, from, to, options.exhaustive ?? false, options.refineCount ?? 48, options.exclude), from, to, scratch: s }
+}
+
+/**
+ * Among `values` with `weights`, the point t (on a grid of `step` from `lo` to `hi`) that gathers the
+ * most weight within ±`half` of it; ties go to the point nearest the weighted mean. This is the
+ * estimate that is most often within ±`half` of the truth when the votes are draws from the
+ * distribution of the truth.
+ */
+export function windowMode(values: ArrayLike<number>, weights: ArrayLike<number>, half: number, step: number, lo: number, hi: number): number {
+  let sw = 0
+  let swx = 0
+  for (let q = 0; q < values.length; q++) {
+    sw += weights[q]!
+    swx += weights[q]! * values[q]!
+  }
+  const mean = sw > 0 ? swx / sw : (lo + hi) / 2
+  let best = -1
+  let bestT = mean
+  for (let t = lo; t <= hi + 1e-9; t += step) {
+    let s = 0
+    for (let q = 0; q < values.length; q++) if (Math.abs(values[q]! - t) <= half + 1e-9) s += weights[q]!
+    if (s > best + 1e-12 || (Math.abs(s - best) <= 1e-12 && Math.abs(t - mean) < Math.abs(bestT - mean))) {
+      best = s
+      bestT = t
     }
   }
-  let p = 0
-  while (p < np) {
-    // Points of one class are contiguous.
-    const cc = points.classCode[p]!
-    let bestPoint = p
-    let bestValue = Infinity
-    for (; p < np && points.classCode[p] === cc; p++) {
-      for (let q = points.start[p]!; q < points.start[p + 1]!; q++) {
-        const v = chi2[points.members[q]!]!
-        if (v < bestValue) {
-          bestValue = v
-          bestPoint = p
-        }
-      }
-    }
-    add(bestPoint)
-    add(points.earlier[bestPoint]!)
-    add(points.later[bestPoint]!)
-  }
-  return count
+  return Math.round(bestT / step) * step
 }
 
 /**
  * Classifies a prepared spectrum against a prepared library version.
  *
- * 1. χ² with a free line-depth scale and level (see depthScaledChiSquareRows) against every standard over the classification region, at the library
- *    level nearest the spectrum's resolution (every level when the resolution is unknown; the
- *    lowest χ² wins). Weights from the errors or the S/N with a model-error floor. Unless
- *    `exhaustive`, the standards are first screened on every 4th pixel and the full χ² is
- *    computed for the plausible ones (see fitLevel): the result is the same to rounding.
- * 2. Probabilities over the (type, class) grid, P ∝ exp(−Δχ²/(2T)), where χ² is divided by the
- *    pixels per resolution element (neighbouring pixels are not independent) and the temperature
- *    T = max(1, χ²_min/dof) widens the distribution when even the best standard fits badly
- *    (the usual rescaling of errors by √χ²_ν, e.g. Press et al., *Numerical Recipes*, §15.1).
- * 3. Luminosity class: per class, the least χ² of mixes of its best standard with each
- *    neighbour along type (`classFit`, default a smooth level and depth scale, see
- *    smoothPairChiSquare), as P ∝ exp(−Δχ²/(2T·classTemperature)); times the Gaussian
- *    likelihoods of the line criteria of criteria.ts read off the standards at the suggested
- *    type, to the power `criteriaWeight` (0 by default: see that option). Each criterion's vote
- *    is recorded.
- * 4. Fractional subtype: vertex of the parabola through the χ² minimum along type within the
- *    chosen class and its two neighbours; reported to 0.5 subtype where the grid steps by ≤ 1
- *    subtype, else to whole subtypes.
- * 5. Uncertainties: the standard deviations of type code and class code under the distribution
+ * 1. χ² with a free level and line-depth scale (depthScaledChiSquareSelected) against every
+ *    standard of the library level for the spectrum's resolution (levelFor), over the
+ *    classification region; weights from the errors or the S/N with a model-error floor.
+ * 2. The best `neighbours` standards vote, each with w = exp(−(χ²/χ²_min − 1)/temperature),
+ *    divided by (standards of its class at the level)^classBalance.
+ * 3. Spectral type: the type, in half subtypes, that gathers the most vote within ±1 subtype
+ *    (windowMode); luminosity class: the class, in half classes, that gathers the most vote within
+ *    ±½ class, so that an even split between neighbours gives the intermediate class (IV-V).
+ * 4. Uncertainties: the vote-weighted spread of the voters' types and classes about the estimate
  *    (at least 0.5 subtype and 0.25 class).
- * Flags: 'low-snr' (S/N < lowSnr), 'emission' (a Balmer line measured with a significant negative
- * equivalent width and no absorption core; "e" is appended to the type), 'poor-fit' (χ²_ν > poorFit), 'outside-grid' (the
- * minimum lies at the hot or cool end of the grid), 'possible-composite' (a second, separate
- * minimum along type nearly as good), 'not-mk' (Balmer wings broader than any dwarf standard's,
- * as in white dwarfs).
+ * 5. Teff, log g and [Fe/H]: the vote-weighted mean and spread of the voters' published values.
+ * Flags: 'low-snr', 'emission', 'poor-fit' (best-fit residual beyond what normal stars of the type
+ * show against their nearest standard), 'outside-grid' (the type sits at an end of the level's
+ * types), 'possible-composite' (flags.ts), 'not-mk' (Balmer wings broader than any dwarf's).
  * @throws when the spectrum has no usable pixel in the region
  */
 export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, options: MatchOptions = {}): MatchResult {
-  const {
-    region = DEFAULT_CLASSIFICATION_REGION,
-    modelError = 0.01,
-    balmerWeight = 0.35,
-    balmerHalfWidth = 25,
-    criteriaWeight = 0,
-    classTemperature = 1,
-    lowSnr = 20,
-    poorFit = 4,
-    exhaustive = false,
-    refineCount = 32,
-    refineMargin = 30,
-    classFit = 'smooth-mix',
-  } = options
-  if (input.rectified.length !== library.grid.length) throw new Error(`spectrum has ${input.rectified.length} pixels, the library grid ${library.grid.length}`)
-  const s = scratchFor(library)
-  const [from, to] = fillWeights(library, input, { region, modelError, balmerWeight, balmerHalfWidth }, s)
-  let good = 0
-  for (let i = from; i < to; i++) if (s.weights[i]! > 0) good++
-  if (good < 10) throw new Error(`only ${good} usable pixels in the classification region ${region[0]}–${region[1]} Å`)
+  const { region = DEFAULT_CLASSIFICATION_REGION, modelError = 0.01, neighbours = 16, temperature = 1.5, classBalance = 0.5, lowSnr = 20, exhaustive = false, exclude } = options
+  const refineCount = Math.max(options.refineCount ?? 48, 2 * neighbours)
+  const levelFwhm = levelFor(library, input.fwhm)
+  const { level, fit, from, to, scratch: s } = fitSpectrumAtLevel(library, input, levelFwhm, { region, modelError, exhaustive, refineCount, ...(exclude ? { exclude } : {}) })
+  const { chi2, scale, used } = fit
+  const n = level.rows.length
+  const std = (r: number) => library.standards[level.rows[r]!]!
 
-  // Noise in neighbouring pixels is correlated over about one resolution element.
-  const centre = (region[0] + region[1]) / 2
-  const elementPixels = (l: LibraryLevel) => Math.max(1, l.fwhm / (centre * library.grid.step))
-  const search: SearchSettings = { exhaustive, refineCount: Math.max(1, refineCount), refineMargin }
-  let fit: LevelFit
-  if (input.fwhm !== undefined && input.fwhm > 0) {
-    const l = nearestLevel(library, input.fwhm)
-    fit = fitLevel(library, l, s, from, to, good, elementPixels(l), search)
-  } else {
-    fit = fitLevel(library, library.levels[0]!, s, from, to, good, elementPixels(library.levels[0]!), search)
-    for (const level of library.levels.slice(1)) {
-      const f = fitLevel(library, level, s, from, to, good, elementPixels(level), search)
-      if (f.chi2[f.best]! < fit.chi2[fit.best]!) fit = f
-    }
+  const order = Array.from({ length: n }, (_, r) => r).filter((r) => Number.isFinite(chi2[r]!)).sort((a, b) => chi2[a]! - chi2[b]!)
+  if (order.length === 0) throw new Error('no standard overlaps the spectrum in the classification region')
+  const best = order[0]!
+  const voters = order.slice(0, Math.min(neighbours, order.length))
+  const least = Math.max(chi2[best]!, 1e-12 * used[best]!)
+  const classCount = classCounts(library, level)
+  const raw = voters.map((r) => Math.exp(-(chi2[r]! / least - 1) / temperature))
+  const balanced = voters.map((r, q) => raw[q]! / (classCount.get(std(r).classCode) ?? 1) ** classBalance)
+  const norm = (w: number[]) => {
+    const t = w.reduce((a, b) => a + b, 0)
+    return w.map((x) => x / t)
   }
-  const { level, chi2, scale, used, best } = fit
-  const n = library.standards.length
-  const pixelsPerElement = elementPixels(level)
-  const dof = Math.max(1, used[best]! / pixelsPerElement - 1)
-  const chi2Min = chi2[best]! / pixelsPerElement
-  const reducedChi2 = chi2Min / dof
-  const temperature = Math.max(1, reducedChi2)
+  const typeWeights = norm(raw)
+  const classWeights = norm(balanced)
+  const types = voters.map((r) => std(r).typeCode)
+  const classes = voters.map((r) => std(r).classCode)
 
-  // Probability per standard, then the best standard per (type, class) point.
-  const logP = new Float64Array(n)
-  const byPoint = new Map<string, number>()
-  for (let k = 0; k < n; k++) {
-    logP[k] = Number.isFinite(chi2[k]!) ? -(chi2[k]! / pixelsPerElement - chi2Min) / (2 * temperature) : -Infinity
-    const st = library.standards[k]!
+  const typeCode = windowMode(types, typeWeights, 1, 0.5, Math.max(0, Math.floor(Math.min(...types)) - 1), Math.min(69.5, Math.ceil(Math.max(...types)) + 1))
+  const classCode = windowMode(classes, classWeights, 0.5, 0.5, 1, 6)
+  const spread = (values: number[], w: number[], centre: number) => Math.sqrt(values.reduce((a, v, q) => a + w[q]! * (v - centre) ** 2, 0))
+  const uncertainty = { subtypes: round(Math.max(0.5, spread(types, typeWeights, typeCode)), 2), classes: round(Math.max(0.25, spread(classes, classWeights, classCode)), 2) }
+
+  // Shares of the vote per class and per (type, class) point.
+  const shareByClass = new Map<number, number>()
+  const shareByPoint = new Map<string, { typeCode: number; classCode: number; luminosityClass: string; p: number }>()
+  voters.forEach((r, q) => {
+    const st = std(r)
+    shareByClass.set(st.classCode, (shareByClass.get(st.classCode) ?? 0) + classWeights[q]!)
     const key = `${st.typeCode}|${st.classCode}`
-    const prev = byPoint.get(key)
-    if (prev === undefined || logP[k]! > logP[prev]!) byPoint.set(key, k)
-  }
-  const points = [...byPoint.values()]
-  let total = 0
-  for (const k of points) total += Math.exp(logP[k]!)
-  const prob = new Map<number, number>()
-  for (const k of points) prob.set(k, Math.exp(logP[k]!) / total)
+    const point = shareByPoint.get(key) ?? { typeCode: st.typeCode, classCode: st.classCode, luminosityClass: st.luminosityClass, p: 0 }
+    point.p += typeWeights[q]!
+    shareByPoint.set(key, point)
+  })
+  const classShares = [...shareByClass]
+    .map(([c, p]) => ({ luminosityClass: classText(c), classCode: c, p: round(p, 4) }))
+    .sort((a, b) => b.p - a.p)
+  const probabilities = [...shareByPoint.values()].filter((p) => p.p >= 1e-4).map((p) => ({ ...p, p: round(p.p, 5) })).sort((a, b) => b.p - a.p)
 
-  // Class probability from χ², and its logarithm (kept apart so that the product with the criteria does not underflow).
-  const classP = new Map<number, number>()
-  const classLog = new Map<number, number>()
-  if (classFit !== 'points') {
-    const mixes = classMixes(library, level, s, from, to, chi2, classFit === 'smooth-mix')
-    let least = Infinity
-    for (const m of mixes.values()) least = Math.min(least, m.chi2)
-    let sum = 0
-    for (const [c, m] of mixes) {
-      const l = Number.isFinite(m.chi2) ? -(m.chi2 - least) / pixelsPerElement / (2 * temperature * classTemperature) : -Infinity
-      classLog.set(c, l)
-      sum += Math.exp(l)
+  const centre = (region[0] + region[1]) / 2
+  const pixelsPerElement = Math.max(1, level.fwhm / (centre * library.grid.step))
+  const reduced = (r: number) => chi2[r]! / pixelsPerElement / Math.max(1, used[r]! / pixelsPerElement - 1)
+  const candidates: Candidate[] = order.slice(0, 5).map((r) => {
+    const st = std(r)
+    const q = voters.indexOf(r)
+    return {
+      standardId: st.id,
+      spectralType: st.spectralType,
+      typeCode: st.typeCode,
+      luminosityClass: st.luminosityClass,
+      source: st.source,
+      star: st.star,
+      origin: st.origin,
+      chi2: round(chi2[r]!, 2),
+      reducedChi2: round(reduced(r), 4),
+      scale: round(scale[r]!, 5),
+      probability: q >= 0 ? round(typeWeights[q]!, 5) : 0,
     }
-    for (const [c, l] of classLog) classP.set(c, Math.exp(l) / sum)
-  } else {
-    for (const [k, p] of prob) {
-      const c = library.standards[k]!.classCode
-      classP.set(c, (classP.get(c) ?? 0) + p)
-    }
-    for (const [c, p] of classP) classLog.set(c, Math.log(Math.max(1e-300, p)))
-  }
-
-  // Type from the overall best standard first, to read the criteria at.
-  const bestStd = library.standards[best]!
-  const provisionalType = typeAlong(library, chi2, bestStd.classCode, pixelsPerElement).typeCode
-  const sigmaPix = input.snr !== null && input.snr > 0 ? 1 / input.snr : 0.02
-  const pixelsPerAngstrom = 1 / (centre * library.grid.step)
-  const spectrumSpan = s.flux.slice()
-  for (let i = 0; i < library.pixels; i++) {
-    const g = i + library.offset
-    const f = input.rectified[g]!
-    spectrumSpan[i] = (input.mask !== undefined && input.mask[g] !== 0) || !Number.isFinite(f) ? Number.NaN : f
-  }
-  const votes: Vote[] = []
-  const criteriaLog = new Map<number, number>()
-  CRITERIA.forEach((c, ci) => {
-    const value = criterionValue(c, spectrumSpan, library.wavelength)
-    const vote: Vote = { criterion: c.id, name: c.name, value: Number.isFinite(value) ? value : null, vote: null }
-    votes.push(vote)
-    if (provisionalType < c.types[0] || provisionalType > c.types[1]) {
-      vote.note = `not used for this type (applies to ${formatTypeCode(c.types[0])}–${formatTypeCode(Math.min(69, c.types[1]))})`
-      return
-    }
-    if (!Number.isFinite(value)) {
-      vote.note = 'not measurable on this spectrum'
-      return
-    }
-    const standards: Record<string, number> = {}
-    const atClass = new Map<number, number>()
-    for (const cc of library.classCodes) {
-      const v = criterionAtType(library, level, ci, cc, provisionalType)
-      if (v !== null) {
-        atClass.set(cc, v)
-        standards[classText(cc)] = v
-      }
-    }
-    if (atClass.size < 2) {
-      vote.note = 'fewer than two classes of standards at this type'
-      return
-    }
-    const sigma = Math.hypot(criterionNoise(c, value, sigmaPix, pixelsPerAngstrom), c.scatter, 1e-3)
-    let bestClass = -1
-    let bestD = Infinity
-    for (const [cc, v] of atClass) {
-      const d = (value - v) / sigma
-      criteriaLog.set(cc, (criteriaLog.get(cc) ?? 0) - 0.5 * d * d)
-      if (Math.abs(d) < bestD) {
-        bestD = Math.abs(d)
-        bestClass = cc
-      }
-    }
-    vote.standards = standards
-    vote.vote = classText(bestClass)
   })
 
-  // χ² vote: the class marginal.
-  let chi2Class = bestStd.classCode
-  for (const [c, p] of classP) if (p > (classP.get(chi2Class) ?? 0)) chi2Class = c
-  votes.unshift({ criterion: 'chi2', name: 'χ² class probability', value: round(classP.get(chi2Class) ?? 0, 5), vote: classText(chi2Class) })
+  const luminosityClass = classText(classCode)
+  const bestStd = std(best)
+  const classNote = describeClassChoice(classCode, bestStd.classCode, bestStd.spectralType, classShares, voters.length)
 
-  // Combined class score.
-  const score = new Map<number, number>()
-  let maxScore = -Infinity
-  for (const c of library.classCodes) {
-    const v = (classLog.get(c) ?? -Infinity) + criteriaWeight * (criteriaLog.get(c) ?? (criteriaLog.size > 0 ? Math.min(...criteriaLog.values()) : 0))
-    score.set(c, v)
-    if (v > maxScore) maxScore = v
-  }
-  let combinedTotal = 0
-  for (const v of score.values()) combinedTotal += Math.exp(v - maxScore)
-  const classPost = new Map<number, number>()
-  for (const [c, v] of score) classPost.set(c, Math.exp(v - maxScore) / combinedTotal)
-  let classCode = chi2Class
-  for (const [c, p] of classPost) if (p > (classPost.get(classCode) ?? 0)) classCode = c
-
-  // Fractional type within the chosen class.
-  const along = typeAlong(library, chi2, classCode, pixelsPerElement)
-  const typeCode = along.typeCode
-
-  // Uncertainties from the distribution.
-  let varType = 0
-  for (const [k, p] of prob) varType += p * (library.standards[k]!.typeCode - typeCode) ** 2
-  let varClass = 0
-  for (const [c, p] of classPost) varClass += p * (c - classCode) ** 2
-  const uncertainty = { subtypes: round(Math.max(0.5, Math.sqrt(varType)), 2), classes: round(Math.max(0.25, Math.sqrt(varClass)), 2) }
-
-  // Intermediate class when the two neighbouring classes are nearly equally likely.
-  let luminosityClass = classText(classCode)
-  let reportedClassCode = classCode
-  const neighbours = library.classCodes.filter((c) => Math.abs(c - classCode) === 1)
-  for (const nb of neighbours) {
-    if ((classPost.get(nb) ?? 0) > 0.7 * (classPost.get(classCode) ?? 0)) {
-      const [a, b] = nb < classCode ? [nb, classCode] : [classCode, nb]
-      luminosityClass = `${classText(a)}-${classText(b)}`
-      reportedClassCode = (a + b) / 2
-    }
-  }
+  const parameters = parameterEstimate(voters.map(std), typeWeights)
 
   // Flags.
   const flags: SuggestionFlag[] = []
   if (input.snr === null || input.snr < lowSnr) flags.push('low-snr')
   const emission = hasBalmerEmission(input.lines, typeCode)
   if (emission) flags.push('emission')
-  if (reducedChi2 > poorFit) flags.push('poor-fit')
-  if (along.atEdge) flags.push('outside-grid')
-  if (isPossibleComposite(library, chi2, pixelsPerElement, temperature)) flags.push('possible-composite')
-  const wings = votes.find((v) => v.criterion === 'balmer-wings')?.value ?? null
-  if (wings !== null && isBeyondDwarfs(library, level, wings)) flags.push('not-mk')
+  const rms = bestResidual(s.flux, s.weights, level.flux, library.pixels, best, from, to)
+  const noise = input.snr !== null && input.snr > 0 ? 1 / input.snr : 0
+  const typical = typicalResidual(level, library.standards, typeCode)
+  if (typical !== null && Math.sqrt(Math.max(0, rms * rms - noise * noise)) > typical) flags.push('poor-fit')
+  const earliest = level.typeCodes[0]!
+  const latest = level.typeCodes[level.typeCodes.length - 1]!
+  if ((typeCode <= earliest + 0.5 && earliest > 0) || typeCode >= latest - 0.5) flags.push('outside-grid')
+  const step = library.coarseStep
+  for (let j = 0; j < library.coarsePixels; j++) {
+    s.coarseFlux[j] = s.flux[j * step]!
+    s.coarseWeights[j] = s.weights[j * step]!
+  }
+  if (compositeEvidence(library, level, s.coarseFlux, s.coarseWeights, fit, Math.ceil(from / step), Math.ceil(to / step), best) !== null) flags.push('possible-composite')
+
+  const spectrumSpan = new Float64Array(library.pixels)
+  for (let i = 0; i < library.pixels; i++) {
+    const g = i + library.offset
+    const f = input.rectified[g]!
+    spectrumSpan[i] = (input.mask !== undefined && input.mask[g] !== 0) || !Number.isFinite(f) ? Number.NaN : f
+  }
+  const votes = criteriaVotes(library, level, spectrumSpan, typeCode, input.snr, centre)
+  votes.unshift({ criterion: 'neighbours', name: `vote of the ${voters.length} nearest standards`, value: round(classShares[0]?.p ?? 0, 4), vote: classShares[0]?.luminosityClass ?? null })
+  const width = balmerHalfDepthWidth(spectrumSpan, library.wavelength)
+  if (typeCode < 35 && isBeyondDwarfs(level, library.standards, width)) flags.push('not-mk')
 
   const typeText = formatTypeCode(typeCode)
   const parsed = parseMK(`${typeText} ${luminosityClass}${emission ? ' e' : ''}`)
   const spectralType = parsed.ok ? formatMK(parsed.value) : `${typeText} ${luminosityClass}`
   const { letter, subtype } = typeFromCode(typeCode)
-
-  const order = Array.from({ length: n }, (_, k) => k).sort((a, b) => chi2[a]! - chi2[b]!)
-  const candidates: Candidate[] = order.slice(0, 3).map((k) => {
-    const st = library.standards[k]!
-    return {
-      standardId: st.id,
-      spectralType: st.spectralType,
-      source: st.source,
-      chi2: round(chi2[k]!, 2),
-      reducedChi2: round(chi2[k]! / pixelsPerElement / Math.max(1, used[k]! / pixelsPerElement - 1), 4),
-      scale: round(scale[k]!, 5),
-      probability: round(prob.get(k) ?? 0, 5),
-    }
-  })
-  const probabilities = [...prob]
-    .filter(([, p]) => p >= 1e-4)
-    .sort((a, b) => b[1] - a[1])
-    .map(([k, p]) => {
-      const st = library.standards[k]!
-      return { typeCode: st.typeCode, classCode: st.classCode, luminosityClass: st.luminosityClass, p: round(p, 5) }
-    })
-
   return {
     spectralType,
     letter,
     subtype,
     typeCode,
     luminosityClass,
-    classCode: reportedClassCode,
+    classCode,
     uncertainty,
     bestStandardId: bestStd.id,
     candidates,
     votes,
     flags,
     probabilities,
+    classShares,
+    classNote,
+    parameters,
     libraryVersion: { id: library.versionId, name: library.versionName },
     levelFwhm: level.fwhm,
-    reducedChi2: round(reducedChi2, 4),
+    reducedChi2: round(reduced(best), 4),
+    residual: { rms: round(rms, 5), typical: typical === null ? null : round(typical, 5) },
   }
 }
 
-/**
- * Least χ² per class over its standards and over mixes of the standard at the class's best
- * point with the best standard of each neighbouring point along type (depthScaledPairChiSquare),
- * with the type code of that fit (interpolated for a mix).
- */
-function classMixes(library: PreparedMatchLibrary, level: LibraryLevel, s: Scratch, from: number, to: number, chi2: Float64Array, smooth: boolean): Map<number, { chi2: number; typeCode: number }> {
-  const { points } = library
-  const np = points.typeCode.length
-  const out = new Map<number, { chi2: number; typeCode: number }>()
-  const bestMember = (p: number) => {
-    let k = -1
-    for (let q = points.start[p]!; q < points.start[p + 1]!; q++) {
-      const m = points.members[q]!
-      if (k < 0 || chi2[m]! < chi2[k]!) k = m
+const classCountCache = new WeakMap<LibraryLevel, Map<number, number>>()
+
+/** How many standards of each class code a level has (computed once per level). */
+function classCounts(library: PreparedMatchLibrary, level: LibraryLevel): Map<number, number> {
+  let counts = classCountCache.get(level)
+  if (!counts) {
+    counts = new Map()
+    for (const k of level.rows) {
+      const c = library.standards[k]!.classCode
+      counts.set(c, (counts.get(c) ?? 0) + 1)
     }
-    return k
+    classCountCache.set(level, counts)
   }
-  let p = 0
-  while (p < np) {
-    const cc = points.classCode[p]!
-    let bestPoint = p
-    for (; p < np && points.classCode[p] === cc; p++) if (chi2[bestMember(p)]! < chi2[bestMember(bestPoint)]!) bestPoint = p
-    const k = bestMember(bestPoint)
-    let result = { chi2: smooth ? Infinity : chi2[k]!, typeCode: points.typeCode[bestPoint]! }
-    for (const nb of [points.earlier[bestPoint]!, points.later[bestPoint]!]) {
-      if (nb < 0) continue
-      const mix = smooth
-        ? smoothPairChiSquare(s.flux, s.weights, level.flux, library.pixels, k, bestMember(nb), from, to)
-        : depthScaledPairChiSquare(s.flux, s.weights, level.flux, library.pixels, k, bestMember(nb), from, to)
-      if (mix.chi2 < result.chi2) {
-        const t0 = points.typeCode[bestPoint]!
-        result = { chi2: mix.chi2, typeCode: t0 + mix.fraction * (points.typeCode[nb]! - t0) }
+  return counts
+}
+
+/** Says why the suggested class is not the best standard's, or null when it contains it. */
+function describeClassChoice(classCode: number, bestClass: number, bestType: string, shares: { luminosityClass: string; p: number }[], voters: number): string | null {
+  if (Math.abs(bestClass - classCode) <= 0.5) return null
+  const listed = shares
+    .filter((s) => s.p >= 0.05)
+    .map((s) => `${s.luminosityClass} ${Math.round(100 * s.p)} %`)
+    .join(', ')
+  return `The class comes from the vote of the ${voters} nearest standards (${listed}), each weighted by its fit and by how many standards its class has; the single nearest standard, ${bestType}, is outvoted.`
+}
+
+/** Vote-weighted mean and spread of the voters' published parameters (Teff averaged in log). */
+function parameterEstimate(voters: readonly { teff: number | null; logg: number | null; feh: number | null }[], w: readonly number[]): ParameterEstimate {
+  const one = (get: (v: (typeof voters)[number]) => number | null, log: boolean): { e: Estimate; n: number } | null => {
+    let sw = 0
+    let sx = 0
+    let n = 0
+    voters.forEach((v, q) => {
+      const x = get(v)
+      if (x === null || !Number.isFinite(x) || (log && x <= 0)) return
+      sw += w[q]!
+      sx += w[q]! * (log ? Math.log10(x) : x)
+      n++
+    })
+    if (n === 0 || sw <= 0) return null
+    const mean = sx / sw
+    let sv = 0
+    voters.forEach((v, q) => {
+      const x = get(v)
+      if (x === null || !Number.isFinite(x) || (log && x <= 0)) return
+      sv += w[q]! * ((log ? Math.log10(x) : x) - mean) ** 2
+    })
+    const sd = Math.sqrt(sv / sw)
+    if (log) return { e: { value: Math.round(10 ** mean), error: Math.round(10 ** mean * Math.LN10 * Math.max(sd, 0.005)) }, n }
+    return { e: { value: round(mean, 2), error: round(Math.max(sd, 0.05), 2) }, n }
+  }
+  const teff = one((v) => v.teff, true)
+  const logg = one((v) => v.logg, false)
+  const feh = one((v) => v.feh, false)
+  return { teff: teff?.e ?? null, logg: logg?.e ?? null, feh: feh?.e ?? null, standards: Math.max(teff?.n ?? 0, logg?.n ?? 0, feh?.n ?? 0) }
+}
+
+/** Unweighted rms residual, in continuum units, of the best level-and-depth fit of row `row` over the region. */
+function bestResidual(flux: Float64Array, weights: Float64Array, rows: Float32Array, pixels: number, row: number, from: number, to: number): number {
+  let m = 0, sx = 0, sy = 0, sxx = 0, sxy = 0, syy = 0
+  const base = row * pixels
+  for (let i = from; i < to; i++) {
+    if (!(weights[i]! > 0)) continue
+    const x = rows[base + i]!
+    if (x !== x) continue
+    const y = flux[i]!
+    m++
+    sx += x
+    sy += y
+    sxx += x * x
+    sxy += x * y
+    syy += y * y
+  }
+  if (m < 3) return Number.NaN
+  const vx = sxx - (sx * sx) / m
+  const cxy = sxy - (sx * sy) / m
+  return Math.sqrt(Math.max(0, (syy - (sy * sy) / m - (vx > 0 ? (cxy * cxy) / vx : 0)) / m))
+}
+
+/** The luminosity criteria of criteria.ts measured on the spectrum and read off each class's standards at the type, as evidence shown beside the vote. */
+function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel, spectrumSpan: Float64Array, typeCode: number, snr: number | null, centre: number): Vote[] {
+  const sigmaPix = snr !== null && snr > 0 ? 1 / snr : 0.02
+  const pixelsPerAngstrom = 1 / (centre * library.grid.step)
+  const classCodes = [...classCounts(library, level).keys()].filter((c) => Number.isInteger(c) || c === 1.5).sort((a, b) => a - b)
+  return CRITERIA.map((c, ci) => {
+    const value = criterionValue(c, spectrumSpan, library.wavelength)
+    const vote: Vote = { criterion: c.id, name: c.name, value: Number.isFinite(value) ? round(value, 4) : null, vote: null }
+    if (typeCode < c.types[0] || typeCode > c.types[1]) {
+      vote.note = `not used for this type (applies to ${formatTypeCode(c.types[0])}–${formatTypeCode(Math.min(69, c.types[1]))})`
+      return vote
+    }
+    if (!Number.isFinite(value)) {
+      vote.note = 'not measurable on this spectrum'
+      return vote
+    }
+    const standards: Record<string, number> = {}
+    let bestClass = -1
+    let bestD = Infinity
+    const sigma = Math.hypot(criterionNoise(c, value, sigmaPix, pixelsPerAngstrom), c.scatter, 1e-3)
+    for (const cc of classCodes) {
+      const v = criterionAtType(library, level, ci, cc, typeCode)
+      if (v === null) continue
+      standards[classText(cc)] = round(v, 4)
+      const d = Math.abs(value - v) / sigma
+      if (d < bestD) {
+        bestD = d
+        bestClass = cc
       }
     }
-    out.set(cc, result)
-  }
-  return out
+    if (Object.keys(standards).length < 2) {
+      vote.note = 'fewer than two classes of standards at this type'
+      return vote
+    }
+    vote.standards = standards
+    vote.vote = classText(bestClass)
+    return vote
+  })
 }
 
 const round = (x: number, digits: number) => (Number.isFinite(x) ? Math.round(x * 10 ** digits) / 10 ** digits : x)
 
 /**
- * Best χ² per type code within one class, sorted by type, with the parabola vertex through the
- * minimum and its neighbours. `atEdge` when the minimum is the first or last type of the grid.
+ * A criterion's typical value for one class at a type code: the median over that class's
+ * standards within ±2 subtypes (±4 where there are fewer than two); null when none.
  */
-function typeAlong(library: PreparedMatchLibrary, chi2: Float64Array, classCode: number, pixelsPerElement: number): { typeCode: number; atEdge: boolean } {
-  const perType = new Map<number, number>()
-  library.standards.forEach((st, k) => {
-    if (st.classCode !== classCode) return
-    const prev = perType.get(st.typeCode)
-    if (prev === undefined || chi2[k]! < prev) perType.set(st.typeCode, chi2[k]!)
-  })
-  const types = [...perType.keys()].sort((a, b) => a - b)
-  let j = 0
-  for (let i = 1; i < types.length; i++) if (perType.get(types[i]!)! < perType.get(types[j]!)!) j = i
-  const x1 = types[j]!
-  const gridMin = library.typeCodes[0]!
-  const gridMax = library.typeCodes[library.typeCodes.length - 1]!
-  const atEdge = (x1 === gridMin && gridMin > 0) || x1 === gridMax
-  if (j === 0 || j === types.length - 1) return { typeCode: snapType(x1, types, j), atEdge }
-  const x0 = types[j - 1]!
-  const x2 = types[j + 1]!
-  const v = parabolaVertex(x0, perType.get(x0)! / pixelsPerElement, x1, perType.get(x1)! / pixelsPerElement, x2, perType.get(x2)! / pixelsPerElement)
-  // Stay within half a grid step of the minimum: beyond that the neighbour itself would have won.
-  const lo = x1 - (x1 - x0) / 2
-  const hi = x1 + (x2 - x1) / 2
-  return { typeCode: snapType(Math.min(hi, Math.max(lo, v)), types, j), atEdge }
-}
-
-/** Rounds to 0.5 subtype where the grid steps by ≤ 1 subtype around index j, else to whole subtypes. */
-function snapType(x: number, types: number[], j: number): number {
-  const left = j > 0 ? types[j]! - types[j - 1]! : Infinity
-  const right = j < types.length - 1 ? types[j + 1]! - types[j]! : Infinity
-  const step = Math.min(left, right) <= 1 ? 0.5 : 1
-  return Math.min(69.5, Math.max(0, Math.round(x / step) * step))
-}
-
-/** A criterion's value for one class at a type code, interpolated linearly between that class's standards; null outside their types. */
 export function criterionAtType(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number): number | null {
-  const n = library.standards.length
-  let below: { t: number; v: number } | null = null
-  let above: { t: number; v: number } | null = null
-  library.standards.forEach((st, k) => {
-    if (st.classCode !== classCode) return
-    const v = level.criteria[ci * n + k]!
-    if (!Number.isFinite(v)) return
-    if (st.typeCode <= typeCode && (below === null || st.typeCode > below.t)) below = { t: st.typeCode, v }
-    if (st.typeCode >= typeCode && (above === null || st.typeCode < above.t)) above = { t: st.typeCode, v }
-  })
-  const b = below as { t: number; v: number } | null
-  const a = above as { t: number; v: number } | null
-  if (b === null || a === null) return null
-  if (a.t === b.t) return b.v
-  return b.v + ((a.v - b.v) * (typeCode - b.t)) / (a.t - b.t)
+  let memo = criterionMemo.get(level)
+  if (!memo) criterionMemo.set(level, (memo = new Map()))
+  const key = `${ci}|${classCode}|${typeCode}`
+  if (memo.has(key)) return memo.get(key)!
+  const value = criterionAtTypeUncached(library, level, ci, classCode, typeCode)
+  memo.set(key, value)
+  return value
 }
 
-/** True when Hα, Hβ or Hγ is measured with a negative equivalent width beyond 3σ and 1 Å and its deepest point above the continuum (depth < −0.05). */
-/**
- * Whether the Balmer lines show emission: a line of the table measured with a significantly
- * negative equivalent width and its extreme point above the continuum. Hβ and Hγ count only for
- * types earlier than G0 (type code 40); Hα counts for every type.
- */
-export function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined, typeCode: number): boolean {
-  if (!lines) return false
-  // From G on, the side bands of Hβ and Hγ sit in metal lines and the G band, so their
-  // side-band equivalent widths go negative without any emission (the Lick HγA index of a K giant
-  // is about −6 Å, common practice); there only Hα speaks for emission.
-  const ids = typeCode < 40 ? ['h-alpha', 'h-beta', 'h-gamma'] : ['h-alpha']
-  return lines.some(
-    (l) =>
-      l.measured &&
-      ids.includes(l.id) &&
-      l.equivalentWidth < -1 &&
-      l.depth < -0.05 &&
-      (l.equivalentWidthError === null || -l.equivalentWidth > 3 * l.equivalentWidthError),
-  )
-}
+const criterionMemo = new WeakMap<LibraryLevel, Map<string, number | null>>()
 
-/**
- * True when the profile of χ² along type (best class at each type) has a second local minimum
- * at least 8 subtypes from the global one with Δχ²/T below 2 × the number of types between.
- */
-function isPossibleComposite(library: PreparedMatchLibrary, chi2: Float64Array, pixelsPerElement: number, temperature: number): boolean {
-  const perType = new Map<number, number>()
-  library.standards.forEach((st, k) => {
-    const prev = perType.get(st.typeCode)
-    if (prev === undefined || chi2[k]! < prev) perType.set(st.typeCode, chi2[k]!)
-  })
-  const types = [...perType.keys()].sort((a, b) => a - b)
-  const y = types.map((t) => perType.get(t)! / pixelsPerElement / temperature)
-  let g = 0
-  for (let i = 1; i < y.length; i++) if (y[i]! < y[g]!) g = i
-  for (let i = 1; i < y.length - 1; i++) {
-    if (i === g || Math.abs(types[i]! - types[g]!) < 8) continue
-    if (y[i]! < y[i - 1]! && y[i]! < y[i + 1]!) {
-      // A real second minimum: the χ² between the two minima rises clearly above both.
-      const [a, b] = i < g ? [i, g] : [g, i]
-      let barrier = -Infinity
-      for (let k = a; k <= b; k++) barrier = Math.max(barrier, y[k]!)
-      if (y[i]! - y[g]! < 10 && barrier - y[i]! > 10) return true
+function criterionAtTypeUncached(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number): number | null {
+  const n = level.rows.length
+  for (const width of [2, 4]) {
+    const values: number[] = []
+    level.rows.forEach((k, r) => {
+      const st = library.standards[k]!
+      if (st.classCode !== classCode || Math.abs(st.typeCode - typeCode) > width) return
+      const v = level.criteria[ci * n + r]!
+      if (Number.isFinite(v)) values.push(v)
+    })
+    if (values.length >= 2 || (width === 4 && values.length > 0)) {
+      values.sort((a, b) => a - b)
+      const m = values.length >> 1
+      return values.length % 2 ? values[m]! : (values[m - 1]! + values[m]!) / 2
     }
   }
-  return false
-}
-
-/** True when the Balmer wing depth exceeds every standard's at this level (dwarfs have the widest) by 30 % and 0.05. */
-function isBeyondDwarfs(library: PreparedMatchLibrary, level: LibraryLevel, wings: number): boolean {
-  const ci = CRITERIA.findIndex((c) => c.id === 'balmer-wings')
-  const n = library.standards.length
-  let max = -Infinity
-  library.standards.forEach((st, k) => {
-    const v = level.criteria[ci * n + k]!
-    if (Number.isFinite(v) && v > max) max = v
-  })
-  return Number.isFinite(max) && wings > 1.3 * max && wings > max + 0.05
+  return null
 }

@@ -3,15 +3,19 @@ export { CRITERIA, criterionValue, criterionNoise, type Criterion } from './crit
 export {
   prepareMatchLibrary,
   replaceModelsByObserved,
-  nearestLevel,
-  type GridPoints,
+  resolutionLadder,
+  levelFor,
   type LibraryLevel,
   type MatchLibraryOptions,
   type MatchStandardInfo,
   type MatchStandardInput,
   modelMatchInputs,
   type ModelLibraryLike,
+  observedMatchInputs,
+  type ObservedLibraryLike,
   type PreparedMatchLibrary,
 } from './library'
-export { hasBalmerEmission, matchSpectrum, type Candidate, type MatchInput, type MatchOptions, type MatchResult, type SuggestionFlag, type Vote } from './classify'
+export { classText, matchSpectrum, windowMode, type Candidate, type Estimate, type MatchInput, type MatchOptions, type MatchResult, type ParameterEstimate, type SuggestionFlag, type Vote } from './classify'
+export { hasBalmerEmission, notStarEvidence, type NotStarEvidence } from './flags'
+export { estimateResolution, type ResolutionEstimate } from './resolution'
 export { standardOnGrid } from './reference'

@@ -1,20 +1,32 @@
 import { gridIndex, gridWavelengths, type LogGrid } from '../../../shared/grid'
+import { fitSpectrumContinuum } from '../prepare/continuum'
 import { smoothSpectrumToFwhm } from '../prepare/smooth'
 import { CRITERIA, criterionValue } from './criteria'
+import { balmerHalfDepthWidth } from './flags'
 
-/** One standard as the matcher needs it: its classification and its rectified flux on the library grid. */
+/** One standard as the matcher needs it: its classification, provenance and rectified flux on the library grid. */
 export interface MatchStandardInput {
-  /** Row id of the standard (database id, or the row number when there is no database). */
+  /** Row id of the standard (database id, or the row number + 1 when there is no database). */
   id: number
-  /** Model id from the manifest, or null for an observed standard. */
+  /** Model id from a model library manifest, or null. */
   modelId: string | null
+  /** Id in a shipped observed library (templates/observed-v1), or null. */
+  templateId: string | null
   source: 'model' | 'observed'
+  /** Star name, for observed standards. */
+  star: string | null
+  /** Where the spectrum comes from ("MILES stellar library v9.1", "uploaded spectrum 12"). */
+  origin: string | null
   spectralType: string
   /** O0 = 0 … M0 = 60 (shared/calibration.ts). */
   typeCode: number
   luminosityClass: string
-  /** Ia = 1, Ib = 2, II = 3, III = 4, IV = 5, V = 6 (shared/mk.ts). */
+  /** Ia = 1, Iab = 1.5, Ib = 2, II = 3, III = 4, IV = 5, V = 6 (shared/mk.ts); intermediate classes take the mean. */
   classCode: number
+  /** Published atmospheric parameters, where known: K, log10 cgs, dex. */
+  teff: number | null
+  logg: number | null
+  feh: number | null
   /** Continuum-normalised flux on the library grid; NaN where undefined. */
   rectified: ArrayLike<number>
   /** Resolution of `rectified`, FWHM Å. */
@@ -24,42 +36,49 @@ export interface MatchStandardInput {
 export interface MatchLibraryOptions {
   /** Library version id (recorded in every suggestion). */
   versionId: number
-  /** Library version name, e.g. "model-v1". */
+  /** Library version name, e.g. "observed-v1". */
   versionName: string
   grid: LogGrid
   /**
-   * Resolutions the standards are smoothed to, FWHM Å; a spectrum is matched at the nearest one.
-   * @default [1.5, 2, 3, 4, 5, 6, 8]
+   * Resolutions the standards are brought to, FWHM Å. A standard takes part at every level at
+   * least as coarse as itself. @default a ladder in steps of 2^¼ from the sharpest standard to
+   * 20 Å, with each standard's own resolution as a level (see resolutionLadder)
    */
   resolutions?: readonly number[]
   /** Wavelength span kept, Å; every campaign region must lie inside it. @default [3750, 5600] */
   span?: readonly [number, number]
-  /**
-   * Decimation of the coarse blocks used to screen standards, pixels. 4 keeps about one pixel
-   * per resolution element at the sharpest level (1.5 Å ≈ 3.4 pixels at 4400 Å). @default 4
-   */
+  /** Decimation of the coarse blocks used to screen standards, pixels. @default 4 */
   coarseStep?: number
 }
 
-/** A standard's classification, without its arrays. */
-export type MatchStandardInfo = Omit<MatchStandardInput, 'rectified' | 'resolutionFwhm'>
+/** A standard's classification and provenance, without its arrays. */
+export type MatchStandardInfo = Omit<MatchStandardInput, 'rectified'>
 
-/** One resolution level of a prepared library: all standards' flux over the span, standards × pixels. */
+/** One resolution level of a prepared library: the standards usable at it, brought to its resolution. */
 export interface LibraryLevel {
   /** FWHM Å. */
   fwhm: number
-  /** Row-major, standards × `pixels`, float32; NaN where a standard has no data. */
+  /** Standards (indices into `library.standards`) usable at this level, in order. */
+  rows: Int32Array
+  /** Row-major, rows × `pixels`, float32; NaN where a standard has no data. */
   flux: Float32Array
-  /** Criterion values per standard: criteria × standards (NaN when not measurable). */
+  /** Criterion values: criteria × rows (NaN when not measurable). */
   criteria: Float64Array
-  /**
-   * Every `coarseStep`-th pixel of `flux` (span pixels 0, step, 2·step, …), standards ×
-   * `coarsePixels`, for the cheap first pass of the search (see matchSpectrum).
-   */
+  /** Every `coarseStep`-th pixel of `flux`, rows × `coarsePixels`, for the cheap first pass of the search. */
   coarse: Float32Array
+  /**
+   * Per row: the rms residual (rectified units) of the best level-and-depth fit of this standard by
+   * its nearest other standard at this level, over 3900–5500 Å on the coarse pixels. The spread of
+   * these residuals among standards of one type says how well a normal star can be fitted.
+   */
+  neighbourResidual: Float64Array
+  /** Per row: the mean width of Hδ, Hγ, Hβ at half depth, Å (flags.ts balmerHalfDepthWidth). */
+  balmerWidth: Float64Array
+  /** Sorted distinct type codes at this level. */
+  typeCodes: number[]
 }
 
-/** Everything matching needs for one library version, computed once and shared by every spectrum. */
+/** Everything matching needs for one library version; levels are prepared on first use and kept. */
 export interface PreparedMatchLibrary {
   versionId: number
   versionName: string
@@ -71,33 +90,14 @@ export interface PreparedMatchLibrary {
   /** Wavelengths of the span, Å. */
   wavelength: Float64Array
   standards: MatchStandardInfo[]
-  levels: LibraryLevel[]
-  /** Sorted distinct class codes and type codes present. */
-  classCodes: number[]
-  typeCodes: number[]
-  /** Decimation of the coarse blocks, pixels. @default 4 */
+  /** Level resolutions, FWHM Å, ascending. */
+  resolutions: number[]
+  /** The level of resolution `fwhm` (one of `resolutions`), prepared on first use. */
+  level(fwhm: number): LibraryLevel
+  /** Decimation of the coarse blocks, pixels. */
   coarseStep: number
   /** Pixels per standard in a coarse block: ⌈pixels / coarseStep⌉. */
   coarsePixels: number
-  /** The (type, class) points of the grid and which standards sit at each (see {@link GridPoints}). */
-  points: GridPoints
-}
-
-/**
- * The (type, class) points of a library, computed once so that matching needs no maps or
- * string keys per spectrum. Points are numbered in order of class code, then type code.
- */
-export interface GridPoints {
-  typeCode: Float64Array
-  classCode: Float64Array
-  /** Point of each standard. */
-  ofStandard: Int32Array
-  /** Standards of point p: members[start[p] … start[p + 1]). */
-  start: Int32Array
-  members: Int32Array
-  /** Point at the next lower (earlier) / higher (later) type code within the same class; −1 at the ends. */
-  earlier: Int32Array
-  later: Int32Array
 }
 
 /**
@@ -110,49 +110,84 @@ export function replaceModelsByObserved<T extends Pick<MatchStandardInput, 'sour
 }
 
 /**
+ * Resolution levels for a set of standards, FWHM Å: a ladder in steps of 2^¼ (19 %) from the
+ * sharpest standard's resolution to `max`, with each standard's own resolution added as a level
+ * and ladder steps within 8 % of such a level dropped. A spectrum is matched at the level at or
+ * just above its own resolution, so the two are never more than one step apart.
+ */
+export function resolutionLadder(own: readonly number[], max = 20): number[] {
+  const sharpest = Math.min(...own)
+  const levels = [...new Set(own.map((r) => Math.round(r * 100) / 100))]
+  for (let r = sharpest; r <= max * 1.001; r *= 2 ** 0.25) {
+    const x = Math.round(r * 100) / 100
+    if (levels.every((l) => Math.abs(Math.log(l / x)) > Math.log(1.08))) levels.push(x)
+  }
+  return levels.sort((a, b) => a - b)
+}
+
+/**
  * Prepares a library version for matching: applies {@link replaceModelsByObserved}, cuts every
- * standard to the span, and smooths it with a Gaussian to each resolution level
- * (√(target² − own²) Å, see smoothSpectrumToFwhm; a standard already broader than a level is kept
- * as it is). Also measures each line criterion (see criteria.ts) on every standard and level,
- * so that a spectrum's criteria compare with standards seen at its own resolution.
- * Cost: about 1–3 s for 211 standards and seven levels; done once per version and cached.
+ * standard to the span and, level by level on first use, smooths each standard sharper than the
+ * level with a Gaussian of √(level² − own²) Å (smoothSpectrumToFwhm), measures the line criteria
+ * (criteria.ts) and each standard's residual against its nearest neighbour.
+ * Cost per level: about 0.5–1 s for 350 standards; done once per version and thread.
  * @throws when no standard is given, or a standard's array does not match the grid
  */
 export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], options: MatchLibraryOptions): PreparedMatchLibrary {
-  const { grid, resolutions = [1.5, 2, 3, 4, 5, 6, 8], span = [3750, 5600], coarseStep = 4 } = options
+  const { grid, span = [3750, 5600], coarseStep = 4 } = options
   const kept = replaceModelsByObserved(inputs)
   if (kept.length === 0) throw new Error('a library needs at least one standard')
+  for (const s of kept) if (s.rectified.length !== grid.length) throw new Error(`standard ${s.spectralType} has ${s.rectified.length} pixels, the grid ${grid.length}`)
+  const resolutions = [...(options.resolutions ?? resolutionLadder(kept.map((s) => s.resolutionFwhm)))].sort((a, b) => a - b)
   const offset = Math.max(0, Math.ceil(gridIndex(grid, span[0])))
   const end = Math.min(grid.length, Math.floor(gridIndex(grid, span[1])) + 1)
   const pixels = end - offset
   const all = gridWavelengths(grid)
   const wavelength = all.slice(offset, end)
   const coarsePixels = Math.ceil(pixels / coarseStep)
-  const levels: LibraryLevel[] = [...resolutions].sort((a, b) => a - b).map((fwhm) => ({
-    fwhm,
-    flux: new Float32Array(kept.length * pixels),
-    criteria: new Float64Array(CRITERIA.length * kept.length),
-    coarse: new Float32Array(kept.length * coarsePixels),
-  }))
-  kept.forEach((s, row) => {
-    if (s.rectified.length !== grid.length) throw new Error(`standard ${s.spectralType} has ${s.rectified.length} pixels, the grid ${grid.length}`)
-    const flux = Float64Array.from(s.rectified)
-    const mask = new Uint8Array(flux.length)
-    for (let i = 0; i < flux.length; i++) if (!Number.isFinite(flux[i]!)) mask[i] = 1
-    for (const level of levels) {
-      const smoothed =
-        level.fwhm > s.resolutionFwhm
-          ? smoothSpectrumToFwhm({ wavelength: all, flux, mask }, { grid, targetFwhm: level.fwhm, inputFwhm: s.resolutionFwhm }).flux
-          : flux
-      const slice = smoothed.subarray(offset, end)
-      level.flux.set(slice, row * pixels)
-      for (let j = 0; j < coarsePixels; j++) level.coarse[row * coarsePixels + j] = slice[j * coarseStep]!
-      CRITERIA.forEach((c, k) => {
-        level.criteria[k * kept.length + row] = criterionValue(c, slice, wavelength)
-      })
+  const sources = kept.map((s) => Float64Array.from(s.rectified))
+  const standards = kept.map(({ rectified: _r, ...info }) => info)
+  const levels = new Map<number, LibraryLevel>()
+
+  const prepareLevel = (fwhm: number): LibraryLevel => {
+    const rowList: number[] = []
+    standards.forEach((s, k) => {
+      // 5 % slack: a standard a hair coarser than the level still serves it.
+      if (s.resolutionFwhm <= fwhm * 1.05) rowList.push(k)
+    })
+    const rows = Int32Array.from(rowList)
+    const n = rows.length
+    const level: LibraryLevel = {
+      fwhm,
+      rows,
+      flux: new Float32Array(n * pixels),
+      criteria: new Float64Array(CRITERIA.length * n),
+      coarse: new Float32Array(n * coarsePixels),
+      neighbourResidual: new Float64Array(n),
+      balmerWidth: new Float64Array(n),
+      typeCodes: [...new Set(rowList.map((k) => standards[k]!.typeCode))].sort((a, b) => a - b),
     }
-  })
-  const standards = kept.map(({ rectified: _r, resolutionFwhm: _f, ...info }) => info)
+    rows.forEach((k, r) => {
+      const flux = sources[k]!
+      const own = standards[k]!.resolutionFwhm
+      let smoothed: Float64Array = flux
+      if (fwhm > own * 1.001) {
+        const mask = new Uint8Array(flux.length)
+        for (let i = 0; i < flux.length; i++) if (!Number.isFinite(flux[i]!)) mask[i] = 1
+        smoothed = smoothSpectrumToFwhm({ wavelength: all, flux, mask }, { grid, targetFwhm: fwhm, inputFwhm: own }).flux
+      }
+      const slice = smoothed.subarray(offset, end)
+      level.flux.set(slice, r * pixels)
+      for (let j = 0; j < coarsePixels; j++) level.coarse[r * coarsePixels + j] = slice[j * coarseStep]!
+      CRITERIA.forEach((c, ci) => {
+        level.criteria[ci * n + r] = criterionValue(c, slice, wavelength)
+      })
+      level.balmerWidth[r] = balmerHalfDepthWidth(slice, wavelength)
+    })
+    fillNeighbourResiduals(level, standards, wavelength, coarseStep, coarsePixels)
+    return level
+  }
+
   return {
     versionId: options.versionId,
     versionName: options.versionName,
@@ -161,63 +196,67 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
     pixels,
     wavelength,
     standards,
-    levels,
-    classCodes: [...new Set(standards.map((s) => s.classCode))].sort((a, b) => a - b),
-    typeCodes: [...new Set(standards.map((s) => s.typeCode))].sort((a, b) => a - b),
+    resolutions,
+    level(fwhm: number): LibraryLevel {
+      let level = levels.get(fwhm)
+      if (!level) {
+        if (!resolutions.includes(fwhm)) throw new Error(`${fwhm} Å is not a level of this library (${resolutions.join(', ')})`)
+        level = prepareLevel(fwhm)
+        levels.set(fwhm, level)
+      }
+      return level
+    },
     coarseStep,
     coarsePixels,
-    points: gridPoints(standards),
   }
 }
 
-function gridPoints(standards: readonly MatchStandardInfo[]): GridPoints {
-  const keys = [...new Map(standards.map((s) => [`${s.classCode}|${s.typeCode}`, s])).values()]
-    .map((s) => ({ typeCode: s.typeCode, classCode: s.classCode }))
-    .sort((a, b) => a.classCode - b.classCode || a.typeCode - b.typeCode)
-  const index = new Map(keys.map((k, p) => [`${k.classCode}|${k.typeCode}`, p]))
-  const np = keys.length
-  const ofStandard = Int32Array.from(standards, (s) => index.get(`${s.classCode}|${s.typeCode}`)!)
-  const start = new Int32Array(np + 1)
-  for (const p of ofStandard) start[p + 1] = start[p + 1]! + 1
-  for (let p = 0; p < np; p++) start[p + 1] = start[p + 1]! + start[p]!
-  const fill = start.slice(0, np)
-  const members = new Int32Array(standards.length)
-  ofStandard.forEach((p, k) => {
-    members[fill[p]!] = k
-    fill[p] = fill[p]! + 1
-  })
-  const earlier = new Int32Array(np).fill(-1)
-  const later = new Int32Array(np).fill(-1)
-  for (let p = 1; p < np; p++) {
-    if (keys[p]!.classCode === keys[p - 1]!.classCode) {
-      earlier[p] = p - 1
-      later[p - 1] = p
+/** Residual of each row against its nearest other row (another star), on the coarse pixels of 3900–5500 Å. */
+function fillNeighbourResiduals(level: LibraryLevel, standards: readonly MatchStandardInfo[], wavelength: Float64Array, step: number, cp: number): void {
+  const n = level.rows.length
+  let from = 0
+  while (from < cp && wavelength[from * step]! < 3900) from++
+  let to = from
+  while (to < cp && wavelength[to * step]! < 5500) to++
+  const c = level.coarse
+  for (let a = 0; a < n; a++) {
+    let best = Infinity
+    const starA = standards[level.rows[a]!]!.star
+    for (let b = 0; b < n; b++) {
+      if (b === a || (starA !== null && standards[level.rows[b]!]!.star === starA)) continue
+      let m = 0, sx = 0, sy = 0, sxx = 0, sxy = 0, syy = 0
+      for (let j = from; j < to; j++) {
+        const y = c[a * cp + j]!
+        const x = c[b * cp + j]!
+        if (x !== x || y !== y) continue
+        m++
+        sx += x
+        sy += y
+        sxx += x * x
+        sxy += x * y
+        syy += y * y
+      }
+      if (m < 10) continue
+      const vx = sxx - (sx * sx) / m
+      const cxy = sxy - (sx * sy) / m
+      const r = (syy - (sy * sy) / m - (vx > 0 ? (cxy * cxy) / vx : 0)) / m
+      if (r < best) best = r
     }
-  }
-  return {
-    typeCode: Float64Array.from(keys, (k) => k.typeCode),
-    classCode: Float64Array.from(keys, (k) => k.classCode),
-    ofStandard,
-    start,
-    members,
-    earlier,
-    later,
+    level.neighbourResidual[a] = Number.isFinite(best) ? Math.sqrt(Math.max(0, best)) : Number.NaN
   }
 }
 
-/** The level whose resolution is nearest `fwhm` (in ln FWHM), or the sharpest when `fwhm` is unknown. */
-export function nearestLevel(library: PreparedMatchLibrary, fwhm: number | undefined): LibraryLevel {
-  const levels = library.levels
-  if (fwhm === undefined || !(fwhm > 0)) return levels[0]!
-  let best = levels[0]!
-  for (const l of levels) if (Math.abs(Math.log(l.fwhm / fwhm)) < Math.abs(Math.log(best.fwhm / fwhm))) best = l
-  return best
+/** The level for a spectrum of resolution `fwhm`: the sharpest level at least as coarse (within 8 %), else the coarsest. */
+export function levelFor(library: PreparedMatchLibrary, fwhm: number | undefined): number {
+  const r = library.resolutions
+  if (fwhm === undefined || !(fwhm > 0)) return r[0]!
+  return r.find((l) => l >= fwhm / 1.08) ?? r[r.length - 1]!
 }
 
 /** What {@link modelMatchInputs} needs of a loaded model library (templates/generator/library.ts). */
 export interface ModelLibraryLike {
   manifest: { resolutionFwhm: number }
-  standards: ReadonlyArray<{ entry: { id: string; spectralType: string; typeCode: number; luminosityClass: string }; rectified: Float32Array }>
+  standards: ReadonlyArray<{ entry: { id: string; spectralType: string; typeCode: number; luminosityClass: string; Teff: number; logg: number }; rectified: Float32Array }>
 }
 
 /**
@@ -232,11 +271,17 @@ export function modelMatchInputs(library: ModelLibraryLike, idOf: (modelId: stri
     out.push({
       id,
       modelId: s.entry.id,
+      templateId: null,
       source: 'model',
+      star: null,
+      origin: 'model standard',
       spectralType: s.entry.spectralType,
       typeCode: s.entry.typeCode,
       luminosityClass: s.entry.luminosityClass,
       classCode: CLASS_CODES[s.entry.luminosityClass] ?? Number.NaN,
+      teff: s.entry.Teff,
+      logg: s.entry.logg,
+      feh: 0,
       rectified: s.rectified,
       resolutionFwhm: library.manifest.resolutionFwhm,
     })
@@ -244,5 +289,50 @@ export function modelMatchInputs(library: ModelLibraryLike, idOf: (modelId: stri
   return out
 }
 
-/** Class codes of the library's classes (shared/mk.ts classCodeOf). */
+/** Class codes of the model library's classes (shared/mk.ts classCodeOf). */
 const CLASS_CODES: Record<string, number> = { Ia: 1, Iab: 1.5, Ib: 2, II: 3, III: 4, IV: 5, V: 6 }
+
+/** What {@link observedMatchInputs} needs of a loaded observed library (templates/observed/library.ts). */
+export interface ObservedLibraryLike {
+  grid: LogGrid
+  standards: ReadonlyArray<{
+    entry: { id: string; star: string; spectralType: string; typeCode: number; luminosityClass: string; classCode: number; teff: number | null; logg: number | null; feh: number | null }
+    source: { name: string; resolutionFwhm: number }
+    flux: Float32Array
+  }>
+}
+
+/**
+ * The standards of an observed library as matcher inputs, each rectified with the same continuum
+ * fit the spectra get (fitSpectrumContinuum, about 2 ms a standard); `idOf` gives each template
+ * id its database id (default: the row number + 1), and templates it returns undefined for are left out.
+ */
+export function observedMatchInputs(library: ObservedLibraryLike, idOf: (templateId: string, row: number) => number | undefined = (_t, row) => row + 1): MatchStandardInput[] {
+  const wavelength = gridWavelengths(library.grid)
+  const out: MatchStandardInput[] = []
+  library.standards.forEach((s, row) => {
+    const id = idOf(s.entry.id, row)
+    if (id === undefined) return
+    const flux = Float64Array.from(s.flux, (v) => (Number.isFinite(v) ? v : 0))
+    const mask = Uint8Array.from(s.flux, (v) => (Number.isFinite(v) ? 0 : 1))
+    const { rectified } = fitSpectrumContinuum({ wavelength, flux, mask })
+    out.push({
+      id,
+      modelId: null,
+      templateId: s.entry.id,
+      source: 'observed',
+      star: s.entry.star,
+      origin: s.source.name,
+      spectralType: s.entry.spectralType,
+      typeCode: s.entry.typeCode,
+      luminosityClass: s.entry.luminosityClass,
+      classCode: s.entry.classCode,
+      teff: s.entry.teff,
+      logg: s.entry.logg,
+      feh: s.entry.feh,
+      rectified: Float64Array.from(rectified, (v, i) => (mask[i] ? Number.NaN : v)),
+      resolutionFwhm: s.source.resolutionFwhm,
+    })
+  })
+  return out
+}

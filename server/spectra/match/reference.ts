@@ -5,7 +5,7 @@ import type { LibraryLevel, PreparedMatchLibrary } from './library'
 /**
  * A standard of a prepared library as a full-grid spectrum (continuum 1 outside the stored span),
  * for use as the radial-velocity reference of analyseSpectrum.
- * @param row index of the standard in `library.standards`
+ * @param row row of the standard in `level.rows`
  */
 export function standardOnGrid(library: PreparedMatchLibrary, level: LibraryLevel, row: number): Spectrum1D {
   const flux = new Float64Array(library.grid.length).fill(1)

@@ -28,6 +28,31 @@ export function estimateSpectrumSnr(spectrum: Spectrum1D, options: SnrOptions = 
   return derSnr(spectrum, options.region, scratch, new Float64Array(spectrum.wavelength.length))
 }
 
+/**
+ * S/N per pixel from the file's own errors: the median of flux/σ over the usable pixels of `region`
+ * (pixels with a non-positive or non-finite σ left out). This is what the errors say, where
+ * DER_SNR, which takes the noise from second differences, reads unresolved lines as noise and so
+ * underestimates the S/N of spectra sampled at about two pixels per resolution element.
+ * @returns null when the spectrum has no errors or fewer than 5 usable pixels
+ */
+export function spectrumSnrFromErrors(spectrum: Spectrum1D, options: SnrOptions = {}): number | null {
+  assertSpectrum(spectrum)
+  const { wavelength, flux, error } = spectrum
+  if (!error) return null
+  const lo = options.region ? options.region[0] : -Infinity
+  const hi = options.region ? options.region[1] : Infinity
+  const ratios = new Float64Array(wavelength.length)
+  let m = 0
+  for (let i = 0; i < wavelength.length; i++) {
+    const w = wavelength[i]!
+    const e = error[i]!
+    if (w < lo || w > hi || !isGoodPixel(spectrum, i) || !(e > 0) || !Number.isFinite(e)) continue
+    ratios[m++] = flux[i]! / e
+  }
+  if (m < 5) return null
+  return medianInPlace(ratios, m)
+}
+
 export interface SnrByWindowOptions {
   /** Wavelength ranges, Å; one S/N per range. */
   windows: readonly WavelengthRange[]

@@ -1,0 +1,224 @@
+/**
+ * The quality flags of a suggestion that need more than one number: emission, a fit worse than
+ * normal stars get, two stars in one spectrum, Balmer wings no normal star has, and spectra that
+ * are not of a star at all.
+ */
+import type { LineMeasurement } from '../measure/types'
+import { smoothPairChiSquare } from './chi2'
+import { lowerBound } from './criteria'
+import type { LevelFit } from './classify'
+import type { LibraryLevel, MatchStandardInfo, PreparedMatchLibrary } from './library'
+
+/**
+ * Whether the Balmer lines show emission: a line of the table measured with a significantly
+ * negative equivalent width and its extreme point above the continuum. Hβ and Hγ count only for
+ * types earlier than G0 (type code 40); Hα counts for every type.
+ */
+export function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined, typeCode: number): boolean {
+  if (!lines) return false
+  // From G on, the side bands of Hβ and Hγ sit in metal lines and the G band, so their
+  // side-band equivalent widths go negative without any emission (the Lick HγA index of a K giant
+  // is about −6 Å, common practice); there only Hα speaks for emission.
+  const ids = typeCode < 40 ? ['h-alpha', 'h-beta', 'h-gamma'] : ['h-alpha']
+  return lines.some(
+    (l) =>
+      l.measured &&
+      ids.includes(l.id) &&
+      l.equivalentWidth < -1 &&
+      l.depth < -0.05 &&
+      (l.equivalentWidthError === null || -l.equivalentWidth > 3 * l.equivalentWidthError),
+  )
+}
+
+/**
+ * The residual beyond which a fit counts as poor for a star of `typeCode`: 1.15 × the 95th
+ * percentile of the standards' residuals against their nearest neighbour (LibraryLevel
+ * neighbourResidual) within ±4 subtypes (±8 where fewer than five standards are that close).
+ * Null when the level has too few standards near the type to say.
+ */
+export function typicalResidual(level: LibraryLevel, standards: readonly MatchStandardInfo[], typeCode: number): number | null {
+  for (const width of [4, 8]) {
+    const values: number[] = []
+    level.rows.forEach((k, r) => {
+      const v = level.neighbourResidual[r]!
+      if (Math.abs(standards[k]!.typeCode - typeCode) <= width && Number.isFinite(v)) values.push(v)
+    })
+    if (values.length >= 5) {
+      values.sort((a, b) => a - b)
+      return 1.15 * values[Math.min(values.length - 1, Math.floor(0.95 * values.length))]!
+    }
+  }
+  return null
+}
+
+/** Hδ, Hγ, Hβ (air, Å; NIST ASD, shared/lines.ts). */
+const BALMER_CENTRES = [4101.74, 4340.47, 4861.33]
+
+/**
+ * Mean full width at half depth of Hδ, Hγ and Hβ in a rectified spectrum, Å: from the deepest point
+ * within ±4 Å of each centre, outward on both sides to where the flux climbs back above half the
+ * depth (at most 200 Å each way). Lines shallower than 0.1 are left out; NaN when none is deep enough.
+ * Pressure broadening makes these lines widest in A-type dwarfs, and far wider still in white dwarfs.
+ */
+export function balmerHalfDepthWidth(flux: ArrayLike<number>, wavelength: ArrayLike<number>): number {
+  const widths: number[] = []
+  for (const c of BALMER_CENTRES) {
+    const i0 = lowerBound(wavelength, c - 4)
+    const i1 = lowerBound(wavelength, c + 4)
+    if (i0 <= 0 || i1 >= wavelength.length) continue
+    let core = -1
+    for (let i = i0; i < i1; i++) if (Number.isFinite(flux[i]!) && (core < 0 || flux[i]! < flux[core]!)) core = i
+    if (core < 0) continue
+    const depth = 1 - flux[core]!
+    if (!(depth > 0.1)) continue
+    const half = 1 - depth / 2
+    const edge = (dir: 1 | -1): number | null => {
+      for (let i = core; i >= 0 && i < wavelength.length && Math.abs(wavelength[i]! - c) <= 200; i += dir) {
+        const f = flux[i]!
+        if (!Number.isFinite(f)) return null
+        if (f >= half) return wavelength[i]!
+      }
+      return null
+    }
+    const lo = edge(-1)
+    const hi = edge(1)
+    if (lo !== null && hi !== null) widths.push(hi - lo)
+  }
+  return widths.length > 0 ? widths.reduce((a, b) => a + b, 0) / widths.length : Number.NaN
+}
+
+/**
+ * True when the Balmer lines are wider at half depth than those of every O–A dwarf or subgiant standard at this level
+ * (A dwarfs have the widest) by more than a third. Cooler standards are left out: among their
+ * crowded metal lines the flux never climbs back to half the Balmer depth.
+ */
+export function isBeyondDwarfs(level: LibraryLevel, standards: readonly MatchStandardInfo[], width: number): boolean {
+  let max = -Infinity
+  level.rows.forEach((k, r) => {
+    const v = level.balmerWidth[r]!
+    if (standards[k]!.typeCode < 30 && standards[k]!.classCode >= 5 && Number.isFinite(v) && v > max) max = v
+  })
+  return Number.isFinite(max) && width > 1.35 * max
+}
+
+/** Type bins from which one standard each enters the two-star fits. */
+const COMPOSITE_BINS: readonly [number, number][] = [[0, 15], [15, 25], [25, 35], [35, 45], [45, 55], [55, 70]]
+
+export interface CompositeEvidence {
+  /** Rows (level indices) of the two standards. */
+  rows: [number, number]
+  /** Fraction of the second in the mix. */
+  fraction: number
+  /** χ² of the best mix of two clearly different types over χ² of the best mix of the best standard with a neighbour in type. */
+  ratio: number
+}
+
+/**
+ * Evidence that the spectrum is the sum of two stars of clearly different type. The best standard
+ * of each type bin is mixed with the best of every bin at least 12 subtypes away
+ * (smoothPairChiSquare: a mix whose fraction and depth vary smoothly across the region, as the
+ * flux ratio of two stars does). Any star is fitted a little better by a mix than by one standard
+ * (the mix has more freedom), so the test compares like with like: the best such mix against the
+ * best mix of the nearest standard with one of its neighbours within 6 subtypes. Returned when the
+ * distant mix lowers that χ² by more than 30 % with each star giving at least 7 % of the light;
+ * null otherwise. The mixes are fitted on the coarse pixels (every `coarseStep`-th): a two-star
+ * sum changes whole bands and line groups, not single pixels.
+ * @param flux, weights the spectrum and its weights on the coarse pixels; from, to their range
+ */
+export function compositeEvidence(library: PreparedMatchLibrary, level: LibraryLevel, flux: Float64Array, weights: Float64Array, fit: LevelFit, from: number, to: number, best: number): CompositeEvidence | null {
+  const rows = level.coarse
+  const pixels = library.coarsePixels
+  const typeOf = (r: number) => library.standards[level.rows[r]!]!.typeCode
+  const finite = Array.from(fit.chi2.keys()).filter((r) => Number.isFinite(fit.chi2[r]!))
+  const bestOf = COMPOSITE_BINS.map(([lo, hi]) => {
+    let k = -1
+    for (const r of finite) if (typeOf(r) >= lo && typeOf(r) < hi && (k < 0 || fit.chi2[r]! < fit.chi2[k]!)) k = r
+    return k
+  }).filter((k) => k >= 0)
+  const nearby = finite
+    .filter((r) => r !== best && Math.abs(typeOf(r) - typeOf(best)) <= 6)
+    .sort((a, b) => fit.chi2[a]! - fit.chi2[b]!)
+    .slice(0, 6)
+  let near = smoothPairChiSquare(flux, weights, rows, pixels, best, best, from, to, 1).chi2
+  for (const r of nearby) near = Math.min(near, smoothPairChiSquare(flux, weights, rows, pixels, best, r, from, to).chi2)
+  if (!(near > 0) || !Number.isFinite(near)) return null
+  let found: CompositeEvidence | null = null
+  for (let a = 0; a < bestOf.length; a++) {
+    for (let b = a + 1; b < bestOf.length; b++) {
+      const r1 = bestOf[a]!
+      const r2 = bestOf[b]!
+      if (Math.abs(typeOf(r1) - typeOf(r2)) < 12) continue
+      const mix = smoothPairChiSquare(flux, weights, rows, pixels, r1, r2, from, to)
+      const ratio = mix.chi2 / near
+      if (mix.fraction >= 0.07 && mix.fraction <= 0.93 && ratio < 0.7 && (found === null || ratio < found.ratio)) {
+        found = { rows: [r1, r2], fraction: mix.fraction, ratio }
+      }
+    }
+  }
+  return found
+}
+
+/** Rest wavelengths (air, Å) where stars show emission of their own: Balmer lines, Ca II H and K, He I (NIST ASD values, shared/lines.ts). */
+const STELLAR_EMISSION = [6562.8, 4861.33, 4340.47, 4101.74, 3970.07, 3889.05, 3933.66, 3968.47, 5875.6, 6678.2, 4471.48]
+
+export interface NotStarEvidence {
+  /** Emission features away from the stellar lines, Å (observed wavelength), with their width (FWHM, Å) and height. */
+  emission: { wavelength: number; fwhm: number; height: number }[]
+  /** Why the spectrum does not look like a star. */
+  reason: string
+}
+
+/**
+ * Evidence that a spectrum is not of a star (a galaxy or a quasar): emission features that are
+ * broad (FWHM > 40 Å, as the lines of quasars) or that sit away from every line where stars show
+ * emission. A feature is a run of pixels, at least as wide as 0.8 × the resolution, where both the
+ * rectified spectrum stands above the continuum and the spectrum stands above the best standard's
+ * fit by more than max(0.15, 6σ): above the continuum alone would take the gaps between the
+ * crowded lines of cool stars for emission, above the fit alone a line weaker than the standard's.
+ * Null when there is none.
+ * @param wavelength wavelengths, Å; @param rectified flux / continuum, high-passed (NaN where not used)
+ * @param residual 1 + spectrum − best fit, high-passed, on the same pixels
+ * @param sigma noise per pixel in continuum units
+ * @param resolution FWHM Å (features narrower are noise)
+ * @param typeCode the type the spectrum matched
+ */
+export function notStarEvidence(wavelength: Float64Array, rectified: ArrayLike<number>, residual: ArrayLike<number>, sigma: number, resolution: number, typeCode: number): NotStarEvidence | null {
+  // The heads of the TiO bands of M stars rise steeply out of the band before them: only strong features count there.
+  const threshold = Math.max(typeCode >= 58 ? 0.5 : 0.15, 6 * sigma)
+  const above = (i: number) => rectified[i]! - 1 > threshold && residual[i]! - 1 > threshold
+  const features: NotStarEvidence['emission'] = []
+  let i = 0
+  const n = wavelength.length
+  while (i < n) {
+    if (!above(i)) {
+      i++
+      continue
+    }
+    let j = i
+    let peak = i
+    while (j < n && above(j)) {
+      if (rectified[j]! > rectified[peak]!) peak = j
+      j++
+    }
+    // Width at half the peak height above the continuum.
+    const half = 1 + (rectified[peak]! - 1) / 2
+    let lo = peak
+    while (lo > 0 && rectified[lo - 1]! > half) lo--
+    let hi = peak
+    while (hi < n - 1 && rectified[hi + 1]! > half) hi++
+    const fwhm = wavelength[hi]! - wavelength[lo]!
+    // A run cut by the end of the searched range (NaN beyond) is the edge of a fit, not a line.
+    const cut = !Number.isFinite(residual[i - 1] ?? Number.NaN) || !Number.isFinite(residual[j] ?? Number.NaN)
+    if (!cut && fwhm >= Math.max(1, 0.8 * resolution)) features.push({ wavelength: round1(wavelength[peak]!), fwhm: round1(fwhm), height: Math.round((rectified[peak]! - 1) * 1000) / 1000 })
+    i = j
+  }
+  const broad = features.filter((f) => f.fwhm > 40)
+  if (broad.length > 0) return { emission: features, reason: `broad emission (${broad.map((f) => `${f.wavelength} Å, ${f.fwhm} Å wide`).join('; ')}), as quasars show` }
+  const foreign = features.filter((f) => STELLAR_EMISSION.every((c) => Math.abs(f.wavelength - c) > Math.max(8, 2 * resolution)))
+  if (foreign.length >= 3 || foreign.some((f) => f.height > 0.3)) {
+    return { emission: features, reason: `emission away from every stellar line (${foreign.map((f) => `${f.wavelength} Å`).join(', ')}), as galaxies and quasars show at their redshift` }
+  }
+  return null
+}
+
+const round1 = (x: number) => Math.round(x * 10) / 10

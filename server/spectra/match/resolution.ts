@@ -1,0 +1,51 @@
+import { DEFAULT_CLASSIFICATION_REGION } from '../../../shared/grid'
+import { depthScaledChiSquareSelected, parabolaVertex } from './chi2'
+import { fitSpectrumAtLevel, type MatchInput } from './classify'
+import type { PreparedMatchLibrary } from './library'
+
+export interface ResolutionEstimate {
+  /** Estimated resolution, FWHM Å. */
+  fwhm: number
+  /** 'within' when the best level lies inside the library's range; otherwise the spectrum is at least as sharp as the sharpest level, or at least as broad as the coarsest. */
+  bound: 'within' | 'sharpest' | 'coarsest'
+  /** Least χ² of the spectrum against the chosen standards at each level. */
+  curve: { fwhm: number; chi2: number }[]
+}
+
+/**
+ * Estimates the instrumental resolution of a spectrum from the data: the standards that fit it
+ * best at the sharpest level are compared with it at every level of the library, and the
+ * resolution is where χ² is least — a spectrum fits standards of its own resolution best, sharper
+ * ones leave residuals at every line and broader ones fill them in. The minimum is placed by a
+ * parabola in ln FWHM through the least χ² and its two neighbours. Rotation broadens lines like
+ * the instrument does, so for a fast rotator this is the effective resolution.
+ * @param input the spectrum, prepared without smoothing
+ * @param options.standards how many of the best standards are followed across levels @default 6
+ */
+export function estimateResolution(library: PreparedMatchLibrary, input: MatchInput, options: { region?: readonly [number, number]; standards?: number; exclude?: ReadonlySet<number> } = {}): ResolutionEstimate {
+  const region = options.region ?? DEFAULT_CLASSIFICATION_REGION
+  const count = options.standards ?? 6
+  const levels = library.resolutions
+  const first = fitSpectrumAtLevel(library, input, levels[0]!, { region, ...(options.exclude ? { exclude: options.exclude } : {}) })
+  const order = Array.from(first.fit.chi2.keys()).filter((r) => Number.isFinite(first.fit.chi2[r]!)).sort((a, b) => first.fit.chi2[a]! - first.fit.chi2[b]!)
+  const followed = order.slice(0, count).map((r) => first.level.rows[r]!)
+  const s = first.scratch
+  const curve = levels.map((fwhm) => {
+    const level = library.level(fwhm)
+    const list = Int32Array.from(followed.map((k) => level.rows.indexOf(k)).filter((r) => r >= 0))
+    const n = level.rows.length
+    const chi2 = new Float64Array(n).fill(Infinity)
+    depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, first.from, first.to, list, list.length, chi2, new Float64Array(n), new Float64Array(n))
+    let least = Infinity
+    for (const r of list) least = Math.min(least, chi2[r]!)
+    return { fwhm, chi2: least }
+  })
+  let j = 0
+  for (let i = 1; i < curve.length; i++) if (curve[i]!.chi2 < curve[j]!.chi2) j = i
+  if (j === 0) return { fwhm: levels[0]!, bound: 'sharpest', curve }
+  if (j === curve.length - 1) return { fwhm: levels[j]!, bound: 'coarsest', curve }
+  const x = (i: number) => Math.log(curve[i]!.fwhm)
+  const v = parabolaVertex(x(j - 1), curve[j - 1]!.chi2, x(j), curve[j]!.chi2, x(j + 1), curve[j + 1]!.chi2)
+  const clamped = Math.min(x(j + 1), Math.max(x(j - 1), Number.isFinite(v) ? v : x(j)))
+  return { fwhm: Math.round(Math.exp(clamped) * 100) / 100, bound: 'within', curve }
+}
