@@ -23,6 +23,10 @@ const schema = z.object({
   LOGIN_MAX_ATTEMPTS: int(10, 1),
   LOGIN_WINDOW_MINUTES: int(15, 1),
   API_RATE_PER_MINUTE: int(600, 1),
+  RESET_MAX_REQUESTS: int(5, 1),
+  /** Express "trust proxy": unset trusts no proxy; e.g. `loopback`, `1`, `10.0.0.0/8`. */
+  TRUST_PROXY: z.string().trim().optional(),
+  CLAIMS_MAX_OPEN: int(3, 1),
   INVITE_HOURS: int(72, 1),
   RESET_MINUTES: int(60, 1),
   MAIL_MODE: z.enum(['fake', 'smtp']).default('fake'),
