@@ -1,3 +1,4 @@
+import { resolve } from 'node:path'
 import { z } from 'zod'
 
 const bool = z.enum(['0', '1', 'true', 'false']).transform((v) => v === '1' || v === 'true')
@@ -41,7 +42,14 @@ const schema = z.object({
   UPLOAD_MAX_FILES: int(500, 1),
   UPLOAD_MAX_PIXELS: int(2_000_000, 100),
   UPLOAD_MIN_PIXELS: int(100, 2),
+  UPLOADS_PER_USER: int(2, 1),
+  UPLOADS_TOTAL: int(8, 1),
+  STORAGE_DRIVER: z.enum(['local']).default('local'),
+  STORAGE_DIR: z.string().default(resolve('.data', 'files')),
   WORKERS: int(0, 0),
+  JOB_POLL_SECONDS: z.coerce.number().positive().default(5),
+  JOB_LEASE_SECONDS: z.coerce.number().positive().default(120),
+  DB_RETRY_AFTER_SECONDS: int(5, 1),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 })
 

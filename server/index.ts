@@ -7,13 +7,18 @@ import { createLogger } from './lib/logger'
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp'
 import { createMailer } from './mail/mailer'
 import { JobRunner } from './jobs/runner'
+import { moveRawFilesToStore } from './services/spectra.service'
 import { ensureDefaultLibrary } from './services/standards.service'
+import { createFileStore } from './storage'
 
 const config = loadConfig()
 const logger = createLogger(config.LOG_LEVEL)
 const sequelize = createSequelize(config)
 await sequelize.authenticate()
 await ensureDefaultLibrary(sequelize)
+const files = await createFileStore(config)
+logger.info(`uploaded files are kept on ${files.description}`)
+await moveRawFilesToStore({ files, logger })
 
 let fakeSmtp: FakeSmtp | null = null
 if (config.MAIL_MODE === 'fake') {
@@ -23,7 +28,7 @@ if (config.MAIL_MODE === 'fake') {
 const mailer = createMailer(config)
 const jobs = new JobRunner({ sequelize, logger, threads: config.WORKERS })
 await jobs.start()
-const app = createApp({ config, sequelize, mailer, logger, jobs }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
+const app = createApp({ config, sequelize, mailer, logger, jobs, files }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
 const server = createServer(app)
 server.listen(config.PORT, config.HOST, () => {
   logger.info(`Lineweight is serving on ${config.publicUrl}`)

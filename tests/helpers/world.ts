@@ -50,7 +50,7 @@ export async function frozenRelease(campaign: Campaign, lead: Person, rows: Arra
       releaseId: release.id,
       position: i + 1,
       spectrumId: r.SpId,
-      cells: JSON.stringify({ ...Object.fromEntries(CATALOGUE_COLUMNS.map((c) => [c.label, null])), Ncalls: 1, ...r }),
+      cells: JSON.stringify({ ...Object.fromEntries(CATALOGUE_COLUMNS.map((c) => [c.name, null])), Ncalls: 1, ...r }),
     })),
   )
   return release
