@@ -128,6 +128,6 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
     app.use(express.static(clientDir, { index: false, maxAge: '1h' }))
     app.get(/^(?!\/api\/).*/, (_req, res) => res.sendFile(join(clientDir, 'index.html')))
   }
-  app.use(errorHandler(logger, config.NODE_ENV === 'production'))
+  app.use(errorHandler(logger, config.NODE_ENV === 'production', config.DB_RETRY_AFTER_SECONDS))
   return app
 }

@@ -26,7 +26,7 @@ if (config.MAIL_MODE === 'fake') {
   config.SMTP_PORT = fakeSmtp.port
 }
 const mailer = createMailer(config)
-const jobs = new JobRunner({ sequelize, logger, threads: config.WORKERS })
+const jobs = new JobRunner({ sequelize, logger, threads: config.WORKERS, pollSeconds: config.JOB_POLL_SECONDS, leaseSeconds: config.JOB_LEASE_SECONDS })
 await jobs.start()
 const app = createApp({ config, sequelize, mailer, logger, jobs, files }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
 const server = createServer(app)

@@ -85,12 +85,12 @@ export async function startServer(env: NodeJS.ProcessEnv = {}): Promise<RunningS
 export async function httpClient(url: string, email?: string, password?: string) {
   let cookie = ''
   let csrf = ''
-  const call = async (method: string, path: string, body?: BodyInit | object, headers: Record<string, string> = {}) => {
+  const call = async (method: string, path: string, body?: FormData | Uint8Array | string | object, headers: Record<string, string> = {}) => {
     const isJson = body !== undefined && !(body instanceof FormData) && !(body instanceof Uint8Array) && typeof body === 'object'
     const res = await fetch(`${url}${path}`, {
       method,
       headers: { ...(cookie ? { cookie } : {}), ...(method !== 'GET' ? { 'x-csrf-token': csrf } : {}), ...(isJson ? { 'content-type': 'application/json' } : {}), ...headers },
-      body: isJson ? JSON.stringify(body) : (body as BodyInit | undefined),
+      body: isJson ? JSON.stringify(body) : (body as FormData | string | undefined),
     })
     const set = res.headers.getSetCookie().find((c) => c.startsWith('lw.sid='))
     if (set) cookie = set.split(';')[0]!
