@@ -33,7 +33,8 @@ const schema = z.object({
   MAIL_MODE: z.enum(['fake', 'smtp']).default('fake'),
   MAIL_FROM: z.string().default('Lineweight <no-reply@lineweight.example>'),
   SMTP_HOST: z.string().default('127.0.0.1'),
-  SMTP_PORT: int(2525, 0),
+  /** Unset: a relay's 2525, or any free port for the in-process mail catcher. */
+  SMTP_PORT: z.coerce.number().int().min(0).max(65535).optional(),
   SMTP_USER: z.string().optional(),
   SMTP_PASSWORD: z.string().optional(),
   SMTP_SECURE: bool.default(false),

@@ -12,3 +12,21 @@ export function startMariaDB(options: { dir: string; port: number }): Promise<Ma
 export function ensureDatabase(options: { socket: string; name: string; user: string; password: string; grantAll?: boolean }): void
 export function persistentSecret(file: string): string
 export function bin(name: string): string
+export function appEnv(base?: NodeJS.ProcessEnv): { env: NodeJS.ProcessEnv; dataDir: string; manageDb: boolean }
+export function portInUse(port: number | string, host?: string): Promise<boolean>
+export function ensurePortsFree(ports: Array<{ name: string; port: number | string; host?: string }>): Promise<void>
+export interface Supervisor {
+  readonly child: import('node:child_process').ChildProcess | null
+  stop(): Promise<void>
+}
+export function supervise(options: {
+  start: () => import('node:child_process').ChildProcess
+  name?: string
+  minDelayMs?: number
+  maxDelayMs?: number
+  healthyMs?: number
+  fatalCodes?: number[]
+  onRestart?: (info: { code: number | null; signal: string | null; delay: number }) => void
+  onFatal?: (code: number | null) => void
+}): Supervisor
+export function mariadbRunning(dir: string): boolean
