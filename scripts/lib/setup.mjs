@@ -172,7 +172,7 @@ export async function ensurePortsFree(ports) {
   for (const p of ports) if (await portInUse(p.port, p.host)) busy.push(p)
   if (busy.length === 0) return
   const list = busy.map((p) => `${p.name}=${p.port}`).join(', ')
-  throw new Error(`Port${busy.length > 1 ? 's' : ''} already in use: ${list}. Is Lineweight already running? Stop it, or choose free ports, e.g. ${busy.map((p) => `${p.name}=${Number(p.port) + 1}`).join(' ')} npm start`)
+  throw new Error(`Port${busy.length > 1 ? 's' : ''} already in use: ${list}. Is Lineweight already running? Stop it, or choose free port${busy.length > 1 ? 's' : ''}: ${busy.map((p) => `${p.name}=…`).join(' ')} npm start`)
 }
 
 /**

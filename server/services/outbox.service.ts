@@ -21,7 +21,7 @@ export async function listMail(page: number, pageSize: number): Promise<MailPage
  * Outbox must not be able to take over the account. The stored mail keeps the whole link.
  */
 export function maskLinks(text: string): string {
-  return text.replace(/(set-password\?token=)[^\s]+/g, '$1(link hidden: only the recipient can use it)')
+  return text.replace(/\S*set-password\?token=\S+/g, '[single-use link hidden: only the recipient can use it]')
 }
 
 export async function getMail(id: number): Promise<MailDetail> {
