@@ -1,30 +1,29 @@
-// `npm start`: everything a fresh machine needs, then the app on http://127.0.0.1:8080.
+// `npm start`: everything a fresh machine needs, then the app on http://127.0.0.1:8080, kept running.
 import { spawn, spawnSync } from 'node:child_process'
-import { existsSync, mkdirSync, readdirSync, statSync } from 'node:fs'
+import { existsSync, readdirSync, statSync } from 'node:fs'
 import { join } from 'node:path'
-import { bin, ensureDatabase, ensureDebianPackages, ensureNodeModules, log, persistentSecret, root, run, startMariaDB } from './lib/setup.mjs'
+import { appEnv, bin, ensureDatabase, ensureDebianPackages, ensureNodeModules, ensurePortsFree, log, mariadbRunning, root, run, startMariaDB, supervise } from './lib/setup.mjs'
 
-const env = { ...process.env }
-env.NODE_ENV ??= 'production'
-env.PORT ??= '8080'
-env.HOST ??= '127.0.0.1'
-env.DB_HOST ??= '127.0.0.1'
-env.DB_PORT ??= '3407'
-env.DB_NAME ??= 'lineweight'
-env.DB_USER ??= 'lineweight'
-env.DB_PASSWORD ??= 'lineweight-local'
-env.MAIL_MODE ??= 'fake'
-env.PUBLIC_URL ??= `http://${env.HOST}:${env.PORT}`
-const dataDir = join(root, '.data')
-mkdirSync(dataDir, { recursive: true })
-env.SESSION_SECRET ??= persistentSecret(join(dataDir, 'session-secret'))
-env.STORAGE_DIR ??= join(dataDir, 'files')
+const { env, dataDir, manageDb } = appEnv()
+/** The server's exit code for a setting it cannot work with (sysexits EX_CONFIG). */
+const CONFIG_ERROR = 78
 
 ensureNodeModules()
-const manageDb = (env.MANAGE_DB ?? '1') !== '0'
+if (manageDb) ensureDebianPackages({ mariadbd: 'mariadb-server', mariadb: 'mariadb-client' })
+
+// Refuse before starting anything when another program (often an earlier `npm start`) holds a port.
+const ports = [{ name: 'PORT', port: env.PORT, host: env.HOST }]
+if (manageDb && !mariadbRunning(join(dataDir, 'mariadb'))) ports.push({ name: 'DB_PORT', port: env.DB_PORT, host: '127.0.0.1' })
+if (env.MAIL_MODE === 'fake' && env.SMTP_PORT && env.SMTP_PORT !== '0') ports.push({ name: 'SMTP_PORT', port: env.SMTP_PORT, host: '127.0.0.1' })
+try {
+  await ensurePortsFree(ports)
+} catch (error) {
+  console.error(`[lineweight] ${error.message}`)
+  process.exit(1)
+}
+
 let db = { stop: async () => {} }
 if (manageDb) {
-  ensureDebianPackages({ mariadbd: 'mariadb-server', mariadb: 'mariadb-client' })
   db = await startMariaDB({ dir: join(dataDir, 'mariadb'), port: Number(env.DB_PORT) })
   ensureDatabase({ socket: db.socket, name: env.DB_NAME, user: env.DB_USER, password: env.DB_PASSWORD })
 }
@@ -34,10 +33,7 @@ let stopping = false
 async function stop(code) {
   if (stopping) return
   stopping = true
-  if (server && server.exitCode === null) {
-    server.kill('SIGTERM')
-    await new Promise((r) => server.once('exit', r))
-  }
+  await server?.stop()
   if (manageDb) {
     log('stopping MariaDB')
     await db.stop()
@@ -63,8 +59,13 @@ try {
   await stop(1)
 }
 
-server = spawn(bin('tsx'), ['server/index.ts'], { cwd: root, env, stdio: 'inherit' })
-server.on('exit', (code) => { if (!stopping) void stop(code ?? 1) })
+// A server that dies is started again (with a growing pause), and MariaDB keeps running meanwhile.
+server = supervise({
+  name: 'the server',
+  fatalCodes: [CONFIG_ERROR],
+  onFatal: (code) => void stop(code),
+  start: () => spawn(bin('tsx'), ['server/index.ts'], { cwd: root, env, stdio: 'inherit' }),
+})
 await announce()
 
 async function announce() {

@@ -20,6 +20,13 @@ import { verifyCredentials } from './services/users.service'
 
 const SequelizeStore = connectSessionSequelize(session.Store)
 
+/** Express's "trust proxy" from TRUST_PROXY: a hop count, true/false, or addresses and names such as `loopback`. */
+export function trustProxy(value: string | undefined): boolean | number | string {
+  if (value === undefined || value === '' || value === '0' || value === 'false') return false
+  if (value === 'true') return true
+  return /^\d+$/.test(value) ? Number(value) : value
+}
+
 export interface AppOptions {
   /** Serve the built client from this folder (index.html fallback for client routes). */
   clientDir?: string
@@ -30,7 +37,7 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
   const { config, logger } = ctx
   const app = express()
   app.disable('x-powered-by')
-  app.set('trust proxy', 'loopback')
+  app.set('trust proxy', trustProxy(config.TRUST_PROXY))
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -121,6 +128,6 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
     app.use(express.static(clientDir, { index: false, maxAge: '1h' }))
     app.get(/^(?!\/api\/).*/, (_req, res) => res.sendFile(join(clientDir, 'index.html')))
   }
-  app.use(errorHandler(logger, config.NODE_ENV === 'production'))
+  app.use(errorHandler(logger, config.NODE_ENV === 'production', config.DB_RETRY_AFTER_SECONDS))
   return app
 }

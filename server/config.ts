@@ -1,3 +1,4 @@
+import { resolve } from 'node:path'
 import { z } from 'zod'
 
 const bool = z.enum(['0', '1', 'true', 'false']).transform((v) => v === '1' || v === 'true')
@@ -23,12 +24,17 @@ const schema = z.object({
   LOGIN_MAX_ATTEMPTS: int(10, 1),
   LOGIN_WINDOW_MINUTES: int(15, 1),
   API_RATE_PER_MINUTE: int(600, 1),
+  RESET_MAX_REQUESTS: int(5, 1),
+  /** Express "trust proxy": unset trusts no proxy; e.g. `loopback`, `1`, `10.0.0.0/8`. */
+  TRUST_PROXY: z.string().trim().optional(),
+  CLAIMS_MAX_OPEN: int(3, 1),
   INVITE_HOURS: int(72, 1),
   RESET_MINUTES: int(60, 1),
   MAIL_MODE: z.enum(['fake', 'smtp']).default('fake'),
   MAIL_FROM: z.string().default('Lineweight <no-reply@lineweight.example>'),
   SMTP_HOST: z.string().default('127.0.0.1'),
-  SMTP_PORT: int(2525, 0),
+  /** Unset: a relay's 2525, or any free port for the in-process mail catcher. */
+  SMTP_PORT: z.coerce.number().int().min(0).max(65535).optional(),
   SMTP_USER: z.string().optional(),
   SMTP_PASSWORD: z.string().optional(),
   SMTP_SECURE: bool.default(false),
@@ -37,7 +43,14 @@ const schema = z.object({
   UPLOAD_MAX_FILES: int(500, 1),
   UPLOAD_MAX_PIXELS: int(2_000_000, 100),
   UPLOAD_MIN_PIXELS: int(100, 2),
+  UPLOADS_PER_USER: int(2, 1),
+  UPLOADS_TOTAL: int(8, 1),
+  STORAGE_DRIVER: z.enum(['local']).default('local'),
+  STORAGE_DIR: z.string().default(resolve('.data', 'files')),
   WORKERS: int(0, 0),
+  JOB_POLL_SECONDS: z.coerce.number().positive().default(5),
+  JOB_LEASE_SECONDS: z.coerce.number().positive().default(120),
+  DB_RETRY_AFTER_SECONDS: int(5, 1),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 })
 

@@ -4,27 +4,64 @@ import { createApp } from './app'
 import { loadConfig } from './config'
 import { createSequelize } from './db'
 import { createLogger } from './lib/logger'
+import { settleBackground } from './lib/background'
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp'
 import { createMailer } from './mail/mailer'
 import { JobRunner } from './jobs/runner'
+import { moveRawFilesToStore } from './services/spectra.service'
 import { ensureDefaultLibrary } from './services/standards.service'
+import { createFileStore } from './storage'
 
-const config = loadConfig()
+/** Exit code for a setting the server cannot work with (sysexits EX_CONFIG): `npm start` does not retry it. */
+const CONFIG_ERROR = 78
+
+/** A start-up problem the person starting the server can fix: said in one line, no stack trace. */
+class StartupError extends Error {}
+
+function fail(error: unknown): never {
+  const message = error instanceof Error ? error.message : String(error)
+  console.error(`[lineweight] cannot start: ${message}`)
+  process.exit(error instanceof StartupError ? CONFIG_ERROR : 1)
+}
+
+let config
+try {
+  config = loadConfig()
+} catch (error) {
+  fail(new StartupError((error as Error).message))
+}
 const logger = createLogger(config.LOG_LEVEL)
 const sequelize = createSequelize(config)
-await sequelize.authenticate()
+try {
+  await sequelize.authenticate()
+} catch (error) {
+  fail(new Error(`MariaDB at ${config.DB_HOST}:${config.DB_PORT} cannot be reached (${(error as Error).message}).`))
+}
 await ensureDefaultLibrary(sequelize)
+const files = await createFileStore(config)
+logger.info(`uploaded files are kept on ${files.description}`)
+await moveRawFilesToStore({ files, logger })
 
 let fakeSmtp: FakeSmtp | null = null
 if (config.MAIL_MODE === 'fake') {
-  fakeSmtp = await startFakeSmtp(config.SMTP_PORT)
-  config.SMTP_PORT = fakeSmtp.port
+  // Unless SMTP_PORT names one, the mail catcher takes any free port: nothing outside the server talks to it.
+  const wanted = config.SMTP_PORT ?? 0
+  try {
+    fakeSmtp = await startFakeSmtp(wanted)
+  } catch (error) {
+    fail(new StartupError((error as Error).message))
+  }
+  logger.info(`mail catcher listening on 127.0.0.1:${fakeSmtp.port}${wanted === 0 ? ' (a free port; set SMTP_PORT to choose one)' : ''}`)
 }
-const mailer = createMailer(config)
-const jobs = new JobRunner({ sequelize, logger, threads: config.WORKERS })
+const mailer = createMailer({ ...config, SMTP_PORT: fakeSmtp?.port ?? config.SMTP_PORT ?? 2525 })
+const jobs = new JobRunner({ sequelize, logger, threads: config.WORKERS, pollSeconds: config.JOB_POLL_SECONDS, leaseSeconds: config.JOB_LEASE_SECONDS })
 await jobs.start()
-const app = createApp({ config, sequelize, mailer, logger, jobs }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
+const app = createApp({ config, sequelize, mailer, logger, jobs, files }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
 const server = createServer(app)
+server.once('error', (error: NodeJS.ErrnoException) => {
+  if (error.code === 'EADDRINUSE') fail(new StartupError(`PORT ${config.PORT} on ${config.HOST} is already in use; stop whatever holds it, or set PORT to a free port.`))
+  fail(error)
+})
 server.listen(config.PORT, config.HOST, () => {
   logger.info(`Lineweight is serving on ${config.publicUrl}`)
 })
@@ -33,6 +70,7 @@ async function shutdown() {
   server.close()
   server.closeAllConnections()
   await jobs.stop()
+  await settleBackground()
   await fakeSmtp?.close()
   mailer.close()
   await sequelize.close()

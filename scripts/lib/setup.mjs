@@ -2,6 +2,7 @@
 import { spawn, spawnSync } from 'node:child_process'
 import { createHash, randomBytes } from 'node:crypto'
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { createServer } from 'node:net'
 import { join, resolve } from 'node:path'
 
 export const root = resolve(new URL('../..', import.meta.url).pathname)
@@ -67,7 +68,7 @@ export async function startMariaDB({ dir, port }) {
     if (init.status !== 0) throw new Error(`mariadb-install-db failed:\n${init.stdout}\n${init.stderr}`)
   }
   const admin = (...args) => spawnSync('mariadb-admin', ['--no-defaults', '--protocol=socket', `--socket=${socket}`, '-uroot', ...args], { encoding: 'utf8' })
-  if (admin('ping').status === 0) {
+  if (mariadbRunning(dir)) {
     log(`MariaDB already running on ${socket}`)
     return { socket, stop: async () => {} }
   }
@@ -101,6 +102,13 @@ export async function startMariaDB({ dir, port }) {
   }
 }
 
+/** Whether the private MariaDB whose files are under `dir` answers on its socket. */
+export function mariadbRunning(dir) {
+  const socket = join(dir, 'mysqld.sock')
+  if (!existsSync(socket)) return false
+  return spawnSync('mariadb-admin', ['--no-defaults', '--protocol=socket', `--socket=${socket}`, '-uroot', 'ping'], { stdio: 'ignore' }).status === 0
+}
+
 /** Creates the database and its user (idempotent), through the root socket. */
 export function ensureDatabase({ socket, name, user, password, grantAll = false }) {
   const q = (s) => s.replace(/\\/g, '\\\\').replace(/'/g, "\\'")
@@ -126,4 +134,87 @@ export function persistentSecret(file) {
 
 export function bin(name) {
   return join(root, 'node_modules', '.bin', name)
+}
+
+/** The settings `npm start`, `npm run backup` and `npm run restore` share (environment wins). */
+export function appEnv(base = process.env) {
+  const env = { ...base }
+  env.NODE_ENV ??= 'production'
+  env.PORT ??= '8080'
+  env.HOST ??= '127.0.0.1'
+  env.DB_HOST ??= '127.0.0.1'
+  env.DB_PORT ??= '3407'
+  env.DB_NAME ??= 'lineweight'
+  env.DB_USER ??= 'lineweight'
+  env.DB_PASSWORD ??= 'lineweight-local'
+  env.MAIL_MODE ??= 'fake'
+  env.PUBLIC_URL ??= `http://${env.HOST}:${env.PORT}`
+  const dataDir = join(root, '.data')
+  mkdirSync(dataDir, { recursive: true })
+  env.SESSION_SECRET ??= persistentSecret(join(dataDir, 'session-secret'))
+  env.STORAGE_DIR ??= join(dataDir, 'files')
+  return { env, dataDir, manageDb: (env.MANAGE_DB ?? '1') !== '0' }
+}
+
+/** Whether something already listens on host:port. */
+export function portInUse(port, host = '127.0.0.1') {
+  return new Promise((resolve) => {
+    const server = createServer()
+    server.once('error', (error) => resolve(error.code === 'EADDRINUSE' || error.code === 'EACCES'))
+    server.once('listening', () => server.close(() => resolve(false)))
+    server.listen(Number(port), host)
+  })
+}
+
+/** Throws, naming each one, when any of the ports is taken: [{ name, port, host }]. */
+export async function ensurePortsFree(ports) {
+  const busy = []
+  for (const p of ports) if (await portInUse(p.port, p.host)) busy.push(p)
+  if (busy.length === 0) return
+  const list = busy.map((p) => `${p.name}=${p.port}`).join(', ')
+  throw new Error(`Port${busy.length > 1 ? 's' : ''} already in use: ${list}. Is Lineweight already running? Stop it, or choose free port${busy.length > 1 ? 's' : ''}: ${busy.map((p) => `${p.name}=…`).join(' ')} npm start`)
+}
+
+/**
+ * Keeps a process running: when it exits on its own it is started again after a back-off that
+ * doubles from `minDelayMs` to `maxDelayMs`, and starts over once a run lasted `healthyMs`.
+ * An exit code in `fatalCodes` (a configuration mistake) is not retried: `onFatal(code)` is called.
+ * Returns { stop() } which ends the process and stops restarting.
+ */
+export function supervise({ start, name = 'server', minDelayMs = 1000, maxDelayMs = 30_000, healthyMs = 60_000, fatalCodes = [], onRestart = () => {}, onFatal = () => {} }) {
+  let child = null
+  let stopping = false
+  let delay = minDelayMs
+  let timer = null
+  const launch = () => {
+    const started = Date.now()
+    child = start()
+    child.once('exit', (code, signal) => {
+      if (stopping) return
+      if (fatalCodes.includes(code)) {
+        // A mistake in the settings: starting again would fail the same way.
+        onFatal(code)
+        return
+      }
+      if (Date.now() - started >= healthyMs) delay = minDelayMs
+      log(`${name} stopped (${signal ?? `exit code ${code}`}); starting it again in ${(delay / 1000).toFixed(1)} s`)
+      onRestart({ code, signal, delay })
+      timer = setTimeout(launch, delay)
+      delay = Math.min(maxDelayMs, delay * 2)
+    })
+  }
+  launch()
+  return {
+    get child() {
+      return child
+    },
+    async stop() {
+      stopping = true
+      if (timer) clearTimeout(timer)
+      if (child && child.exitCode === null && child.signalCode === null) {
+        child.kill('SIGTERM')
+        await new Promise((r) => child.once('exit', r))
+      }
+    },
+  }
 }

@@ -1,3 +1,4 @@
+import { createFileStore } from '../storage'
 import type { Sequelize } from 'sequelize'
 import type { Config } from '../config'
 import type { AppContext } from '../context'
@@ -83,7 +84,7 @@ async function seedDemoSpectra(sequelize: Sequelize, config: Config, people: See
   const smtp = config.MAIL_MODE === 'fake' ? await startFakeSmtp(0) : null
   const mailer = createMailer(smtp ? { ...config, SMTP_PORT: smtp.port } : config)
   const runner = new JobRunner({ sequelize, logger, threads: 1, inline: true })
-  const ctx: AppContext = { config, sequelize, mailer, logger, jobs: runner }
+  const ctx: AppContext = { config, sequelize, mailer, logger, jobs: runner, files: await createFileStore(config) }
   try {
     await ensureDefaultLibrary(sequelize)
     await runner.start()

@@ -7,6 +7,7 @@
  * words (UCD1+ controlled vocabulary 1.4), checked by tests/reference/check_exports.py.
  */
 
+import { transliterate } from './text'
 import type { CellValue, ColumnType, ExportColumn, ExportRow, NumberFormat, TableParam } from '../../shared/api/releases'
 
 export type { CellValue, ColumnType, ExportColumn, ExportRow, NumberFormat, TableParam }
@@ -66,15 +67,9 @@ export function isoTimestamp(date: Date): string {
   return date.toISOString().replace(/Z$/, '')
 }
 
-/**
- * Text a 7-bit ASCII format can carry (FITS headers and character columns, the CDS table):
- * accents are dropped (NFKD), other non-ASCII characters and control characters become '?'.
- */
+/** Text a 7-bit ASCII format can carry (FITS headers and character columns, the CDS table): see {@link transliterate}. */
 export function toAscii(text: string): string {
-  return text
-    .normalize('NFKD')
-    .replace(/[\u0300-\u036f]/g, '')
-    .replace(/[^\x20-\x7e]/g, '?')
+  return transliterate(text)
 }
 
 /** Fixed-width text of a double in its column format (Fortran Fw.d / Ew.d, as CDS and FITS TDISP read them). */

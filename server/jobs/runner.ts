@@ -1,6 +1,7 @@
 import { availableParallelism } from 'node:os'
 import { Piscina } from 'piscina'
 import { Op } from 'sequelize'
+import { isDatabaseUnavailable } from '../lib/db-errors'
 import type { Logger } from 'pino'
 import type { Sequelize } from 'sequelize'
 import { bufferToFloat32, bufferToFloat64, float32ToBuffer } from '../lib/binary'
@@ -18,6 +19,10 @@ export interface RunnerOptions {
   threads: number
   /** Run the pipeline on the calling thread (tests, the CLI). */
   inline?: boolean
+  /** How often the queue is looked at without being woken, seconds. @default 5 */
+  pollSeconds?: number
+  /** How long a running job is held without a renewal before it goes back to the queue, seconds. @default 120 */
+  leaseSeconds?: number
 }
 
 /** Statuses a fresh measurement may move a spectrum on from; review states are never touched. */
@@ -28,6 +33,10 @@ const PRE_REVIEW_SUGGESTED = new Set([...PRE_REVIEW, 'suggested'])
 /**
  * The processing queue: uploads add a job row in their own transaction; this runner takes queued
  * rows one per free worker, runs the pipeline off the request path and stores what it returns.
+ * Besides being woken by uploads it looks at the queue on a timer, so work resumes by itself after
+ * a database outage. A running job holds a lease that the runner renews on each tick; a job whose
+ * lease lapses (its runner died, or lost the database mid-job) goes back to the queue. The lease
+ * lives on the job row, so a queue service or several runner machines can take the same rules.
  */
 export class JobRunner implements ProcessingQueue {
   private pool: Piscina | null = null
@@ -38,9 +47,17 @@ export class JobRunner implements ProcessingQueue {
   private idleWaiters: (() => void)[] = []
   /** Library specs by version id: versions are immutable once published. */
   private specs = new Map<number, Promise<LibrarySpec>>()
+  private running = new Set<number>()
+  /** Jobs this runner gave up on when the database went away; they go back to the queue when it returns. */
+  private abandoned = new Set<number>()
+  private timer: NodeJS.Timeout | null = null
+  private readonly pollMs: number
+  private readonly leaseMs: number
 
   constructor(private readonly options: RunnerOptions) {
     this.capacity = options.inline ? 1 : options.threads > 0 ? options.threads : Math.max(1, availableParallelism() - 1)
+    this.pollMs = (options.pollSeconds ?? 5) * 1000
+    this.leaseMs = (options.leaseSeconds ?? 120) * 1000
   }
 
   /** Resumes work left unfinished by a stop or a crash, then starts taking jobs. */
@@ -48,7 +65,35 @@ export class JobRunner implements ProcessingQueue {
     if (!this.options.inline) {
       this.pool = new Piscina({ filename: new URL('./worker.ts', import.meta.url).href, maxThreads: this.capacity, minThreads: 1, idleTimeout: 60_000 })
     }
-    await ProcessingJob.update({ status: 'queued', startedAt: null }, { where: { status: 'running' } })
+    // One runner per database today: whatever is left running was this server's before a stop or crash.
+    await ProcessingJob.update({ status: 'queued', startedAt: null, leaseExpiresAt: null }, { where: { status: 'running' } })
+    this.timer = setInterval(() => void this.tick(), this.pollMs)
+    this.timer.unref()
+    this.poke()
+  }
+
+  /** Renews the leases of the jobs this runner holds, returns lapsed ones to the queue, and takes work. */
+  async tick(): Promise<void> {
+    if (this.stopped) return
+    try {
+      const now = new Date()
+      if (this.running.size > 0) {
+        await ProcessingJob.update({ leaseExpiresAt: new Date(now.getTime() + this.leaseMs) }, { where: { id: { [Op.in]: [...this.running] }, status: 'running' } })
+      }
+      if (this.abandoned.size > 0) {
+        const ids = [...this.abandoned]
+        await ProcessingJob.update({ status: 'queued', startedAt: null, leaseExpiresAt: null }, { where: { id: { [Op.in]: ids }, status: 'running' } })
+        for (const id of ids) this.abandoned.delete(id)
+      }
+      const [lapsed] = await ProcessingJob.update(
+        { status: 'queued', startedAt: null, leaseExpiresAt: null },
+        { where: { status: 'running', id: { [Op.notIn]: [0, ...this.running] }, [Op.or]: [{ leaseExpiresAt: null }, { leaseExpiresAt: { [Op.lt]: now } }] } },
+      )
+      if (lapsed > 0) this.options.logger.warn({ jobs: lapsed }, 'jobs whose lease lapsed went back to the queue')
+    } catch (error) {
+      this.options.logger.warn({ err: (error as Error).message }, 'job queue tick failed; trying again on the next one')
+      return
+    }
     this.poke()
   }
 
@@ -86,8 +131,9 @@ export class JobRunner implements ProcessingQueue {
     for (;;) {
       const next = await ProcessingJob.findOne({ where: { status: 'queued' }, order: [['id', 'ASC']] })
       if (!next) return null
+      const now = new Date()
       const [taken] = await ProcessingJob.update(
-        { status: 'running', startedAt: new Date(), attempts: next.attempts + 1 },
+        { status: 'running', startedAt: now, attempts: next.attempts + 1, leaseExpiresAt: new Date(now.getTime() + this.leaseMs) },
         { where: { id: next.id, status: 'queued' } },
       )
       if (taken === 1) return next.reload()
@@ -96,6 +142,7 @@ export class JobRunner implements ProcessingQueue {
 
   private async run(job: ProcessingJob): Promise<void> {
     const { logger } = this.options
+    this.running.add(job.id)
     try {
       const input = await loadInput(job.spectrumId)
       const versionId = (await LibraryVersion.findOne({ where: { isActive: true }, attributes: ['id'] }))?.id
@@ -105,12 +152,22 @@ export class JobRunner implements ProcessingQueue {
       logger.info({ spectrumId: job.spectrumId, seconds: output.seconds }, 'spectrum measured')
     } catch (error) {
       const message = error instanceof Error ? error.message : String(error)
+      if (isDatabaseUnavailable(error)) {
+        // Not the spectrum's fault: the job keeps its row and goes back to the queue when its lease lapses.
+        logger.warn({ spectrumId: job.spectrumId, err: message }, 'spectrum processing stopped: database unavailable')
+        this.abandoned.add(job.id)
+        return
+      }
       logger.warn({ spectrumId: job.spectrumId, err: message }, 'spectrum processing failed')
-      await ProcessingJob.update({ status: 'failed', error: message, finishedAt: new Date() }, { where: { id: job.id } })
-      await Spectrum.update(
-        { status: 'failed', statusReason: `Processing failed: ${message}` },
-        { where: { id: job.spectrumId, status: { [Op.in]: [...PRE_REVIEW] } } },
-      )
+      try {
+        await ProcessingJob.update({ status: 'failed', error: message, finishedAt: new Date(), leaseExpiresAt: null }, { where: { id: job.id } })
+        await Spectrum.update({ status: 'failed', statusReason: `Processing failed: ${message}` }, { where: { id: job.spectrumId, status: { [Op.in]: [...PRE_REVIEW] } } })
+      } catch (e) {
+        // The lease returns the job to the queue if this could not be written.
+        logger.warn({ spectrumId: job.spectrumId, err: (e as Error).message }, 'could not record the failure')
+      }
+    } finally {
+      this.running.delete(job.id)
     }
   }
 
@@ -143,6 +200,7 @@ export class JobRunner implements ProcessingQueue {
 
   async stop(): Promise<void> {
     this.stopped = true
+    if (this.timer) clearInterval(this.timer)
     // Jobs still running go back to the queue on the next start.
     await this.pool?.destroy()
     this.pool = null
@@ -221,7 +279,7 @@ async function storeOutput(sequelize: Sequelize, job: ProcessingJob, output: Pip
       ),
       { transaction },
     )
-    await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date() }, { where: { id: job.id }, transaction })
+    await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date(), leaseExpiresAt: null }, { where: { id: job.id }, transaction })
     if (output.suggestion && libraryVersionId !== undefined) {
       await storeSuggestion(
         {

@@ -43,7 +43,9 @@ export async function startFakeSmtp(port: number, host = '127.0.0.1'): Promise<F
     },
   })
   await new Promise<void>((resolve, reject) => {
-    server.once('error', reject)
+    server.once('error', (error: NodeJS.ErrnoException) =>
+      reject(error.code === 'EADDRINUSE' ? new Error(`the mail catcher cannot listen on SMTP_PORT ${port}: the port is already in use. Leave SMTP_PORT unset to take any free port, or choose another.`) : error),
+    )
     server.listen(port, host, () => resolve())
   })
   return {

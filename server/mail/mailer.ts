@@ -16,7 +16,7 @@ export interface Mailer {
 export function createMailer(config: Pick<Config, 'SMTP_HOST' | 'SMTP_PORT' | 'SMTP_SECURE' | 'SMTP_USER' | 'SMTP_PASSWORD' | 'MAIL_FROM' | 'MAIL_MODE'>): Mailer {
   const transport: Transporter = nodemailer.createTransport({
     host: config.SMTP_HOST,
-    port: config.SMTP_PORT,
+    port: config.SMTP_PORT ?? 2525,
     secure: config.SMTP_SECURE,
     // The loopback fake speaks plain SMTP; a relay is expected to offer STARTTLS.
     ignoreTLS: config.MAIL_MODE === 'fake',

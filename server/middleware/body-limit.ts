@@ -3,7 +3,7 @@ import { HttpError } from '../lib/http-error'
 
 /**
  * Refuses an upload whose declared size is over the limit before any of it is read: the upload
- * parser keeps files in memory, and its own limits are per file, not per request.
+ * parser's own limits are per file, not per request.
  */
 export function boundedUpload(maxBytes: number): RequestHandler {
   return (req, _res, next) => {

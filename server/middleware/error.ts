@@ -2,6 +2,7 @@ import type { ErrorRequestHandler, RequestHandler } from 'express'
 import { MulterError } from 'multer'
 import { UniqueConstraintError, ValidationError } from 'sequelize'
 import type { Logger } from 'pino'
+import { isDatabaseUnavailable } from '../lib/db-errors'
 import { HttpError } from '../lib/http-error'
 
 export const apiNotFound: RequestHandler = (req) => {
@@ -29,9 +30,18 @@ function toHttpError(err: unknown): HttpError | null {
   return null
 }
 
-/** The one error handler: `{ error: { code, message, details } }`, hiding unexpected 5xx messages in production. */
-export function errorHandler(logger: Logger, production: boolean): ErrorRequestHandler {
+/**
+ * The one error handler: `{ error: { code, message, details } }`, hiding unexpected 5xx messages in
+ * production. A database that cannot be reached is 503 with Retry-After, so clients wait and retry.
+ */
+export function errorHandler(logger: Logger, production: boolean, retryAfterSeconds = 5): ErrorRequestHandler {
   return (err, req, res, _next) => {
+    if (isDatabaseUnavailable(err)) {
+      logger.warn({ method: req.method, url: req.originalUrl, err: (err as Error)?.message }, 'database unavailable')
+      res.set('retry-after', String(retryAfterSeconds))
+      res.status(503).json({ error: { code: 'database_unavailable', message: `The database is unavailable at the moment; try again in ${retryAfterSeconds} seconds.`, details: null } })
+      return
+    }
     const known = toHttpError(err)
     if (known) {
       res.status(known.status).json({ error: { code: known.code, message: known.message, details: known.details ?? null } })

@@ -13,6 +13,8 @@ export class ProcessingJob extends Model<InferAttributes<ProcessingJob>, InferCr
   declare createdAt: CreationOptional<Date>
   declare startedAt: Date | null
   declare finishedAt: Date | null
+  /** While running: when the runner's hold lapses unless renewed; an expired job goes back to the queue. */
+  declare leaseExpiresAt: CreationOptional<Date | null>
 
   static initModel(sequelize: Sequelize): void {
     ProcessingJob.init(
@@ -26,6 +28,7 @@ export class ProcessingJob extends Model<InferAttributes<ProcessingJob>, InferCr
         createdAt: DataTypes.DATE(3),
         startedAt: { type: DataTypes.DATE(3), allowNull: true },
         finishedAt: { type: DataTypes.DATE(3), allowNull: true },
+        leaseExpiresAt: { type: DataTypes.DATE(3), allowNull: true, defaultValue: null },
       },
       { sequelize, tableName: 'processing_jobs', updatedAt: false },
     )

@@ -62,7 +62,7 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
         ebv: num(),
         notes: { type: DataTypes.TEXT, allowNull: false },
         fileName: { type: DataTypes.STRING(255), allowNull: false },
-        fileSha256: { type: DataTypes.CHAR(64), allowNull: false, unique: true },
+        fileSha256: { type: DataTypes.CHAR(64), allowNull: false },
         fileSize: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
         format: { type: DataTypes.STRING(16), allowNull: false },
         hdu: { type: DataTypes.INTEGER, allowNull: true },
@@ -76,7 +76,7 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
         createdAt: DataTypes.DATE(3),
         updatedAt: DataTypes.DATE(3),
       },
-      { sequelize, tableName: 'spectra' },
+      { sequelize, tableName: 'spectra', indexes: [{ unique: true, fields: ['campaign_id', 'file_sha256'], name: 'spectra_campaign_file' }] },
     )
   }
 }
@@ -84,7 +84,10 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
 /** The uploaded bytes and the parsed arrays, kept apart from the row so listings stay light. */
 export class SpectrumBlob extends Model<InferAttributes<SpectrumBlob>, InferCreationAttributes<SpectrumBlob>> {
   declare spectrumId: number
-  declare raw: Buffer
+  /** The uploaded file, for rows written before files moved to the file store. */
+  declare raw: Buffer | null
+  /** The uploaded file's key in the file store. */
+  declare rawKey: string | null
   /** float64 little-endian, Å air. */
   declare wavelength: Buffer
   /** float32 little-endian. */
@@ -97,7 +100,8 @@ export class SpectrumBlob extends Model<InferAttributes<SpectrumBlob>, InferCrea
     SpectrumBlob.init(
       {
         spectrumId: { type: DataTypes.INTEGER.UNSIGNED, primaryKey: true },
-        raw: { type: DataTypes.BLOB('long'), allowNull: false },
+        raw: { type: DataTypes.BLOB('long'), allowNull: true },
+        rawKey: { type: DataTypes.STRING(200), allowNull: true },
         wavelength: { type: DataTypes.BLOB('long'), allowNull: false },
         flux: { type: DataTypes.BLOB('long'), allowNull: false },
         error: { type: DataTypes.BLOB('long'), allowNull: true },

@@ -5,6 +5,7 @@ import type { Config } from '../config'
 import type { AppContext } from '../context'
 import { currentUser } from '../middleware/auth'
 import { ensureCsrfToken } from '../middleware/csrf'
+import { inBackground } from '../lib/background'
 import { HttpError } from '../lib/http-error'
 import type { User } from '../models'
 import { changePasswordBody, forgotBody, loginBody, setPasswordBody, tokenQuery } from '../schemas/auth.schemas'
@@ -31,8 +32,33 @@ function loginLimiter(config: Config) {
   const address = (req: Request) => ipKeyGenerator(req.ip ?? '')
   return [
     limiter(config.LOGIN_MAX_ATTEMPTS * 10, address),
-    limiter(config.LOGIN_MAX_ATTEMPTS, (req) => `${address(req)}|${String(req.body?.email ?? '').trim().toLowerCase()}`),
+    limiter(config.LOGIN_MAX_ATTEMPTS, (req) => `${address(req)}|${emailKey(req)}`),
   ]
+}
+
+/**
+ * Every reset request counts, answered or not, per address and per target account, so neither one
+ * address nor many can fill an inbox.
+ */
+function resetLimiter(config: Config) {
+  const limiter = (key: (req: Request) => string) =>
+    rateLimit({
+      windowMs: config.LOGIN_WINDOW_MINUTES * 60_000,
+      limit: config.RESET_MAX_REQUESTS,
+      standardHeaders: 'draft-7',
+      legacyHeaders: false,
+      keyGenerator: key,
+      handler: () => {
+        throw new HttpError(429, 'too_many_requests', `Too many reset requests; try again in ${config.LOGIN_WINDOW_MINUTES} minutes.`)
+      },
+    })
+  return [limiter((req) => ipKeyGenerator(req.ip ?? '')), limiter((req) => `reset|${emailKey(req)}`)]
+}
+
+/** The e-mail field as a short key; anything that is not a string counts as one shared key. */
+const emailKey = (req: Request) => {
+  const email: unknown = req.body?.email
+  return typeof email === 'string' ? email.trim().toLowerCase().slice(0, 254) : '?'
 }
 
 export function authRoutes(ctx: AppContext) {
@@ -87,10 +113,12 @@ export function authRoutes(ctx: AppContext) {
       method: 'post',
       path: '/auth/forgot',
       access: 'public',
-      before: loginLimiter(ctx.config),
+      before: resetLimiter(ctx.config),
       schema: { body: forgotBody },
-      handler: async (_req, res) => {
-        await requestPasswordReset(ctx, res.locals.body.email)
+      handler: (_req, res) => {
+        // The look-up and the mail happen after the answer, so its timing says nothing about the address.
+        const email = res.locals.body.email as string
+        inBackground(ctx.logger, 'password reset', () => requestPasswordReset(ctx, email))
         res.status(202).json({ message: 'If that address belongs to an account, a reset link is on its way.' })
       },
     },
@@ -127,7 +155,7 @@ export function authRoutes(ctx: AppContext) {
       access: 'signed-in',
       schema: { body: changePasswordBody },
       handler: async (req, res) => {
-        await changePassword(ctx, currentUser(req), res.locals.body.currentPassword, res.locals.body.newPassword)
+        await changePassword(ctx, currentUser(req), res.locals.body.currentPassword, res.locals.body.newPassword, req.sessionID)
         res.json({ message: 'Your password has been changed.' })
       },
     },

@@ -12,6 +12,7 @@ export function healthRoutes(ctx: AppContext) {
           await ctx.sequelize.query('SELECT 1')
           res.json({ status: 'ok', database: 'ok' })
         } catch {
+          res.set('retry-after', String(ctx.config.DB_RETRY_AFTER_SECONDS))
           res.status(503).json({ status: 'degraded', database: 'unreachable' })
         }
       },

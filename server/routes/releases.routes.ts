@@ -14,8 +14,8 @@ export function releaseRoutes() {
       path: '/releases',
       access: 'signed-in',
       schema: { query: listReleasesQuery },
-      handler: async (_req, res) => {
-        res.json({ releases: await listReleases({ campaignId: res.locals.query.campaign }) })
+      handler: async (req, res) => {
+        res.json({ releases: await listReleases(currentUser(req), { campaignId: res.locals.query.campaign }) })
       },
     },
     {
@@ -32,8 +32,8 @@ export function releaseRoutes() {
       path: '/releases/:id',
       access: 'signed-in',
       schema: { params: idParams, query: releaseRowsQuery },
-      handler: async (_req, res) => {
-        res.json(await getRelease(res.locals.params.id, res.locals.query))
+      handler: async (req, res) => {
+        res.json(await getRelease(currentUser(req), res.locals.params.id, res.locals.query))
       },
     },
     {
@@ -50,8 +50,8 @@ export function releaseRoutes() {
       path: '/releases/:id/download',
       access: 'signed-in',
       schema: { params: idParams, query: downloadQuery },
-      handler: async (_req, res) => {
-        const file = await downloadRelease(res.locals.params.id, res.locals.query.format)
+      handler: async (req, res) => {
+        const file = await downloadRelease(currentUser(req), res.locals.params.id, res.locals.query.format)
         res.attachment(file.fileName)
         res.set('content-type', file.contentType)
         res.send(file.body)

@@ -38,7 +38,7 @@ export function reviewRoutes(ctx: AppContext) {
       access: STAFF,
       schema: { params: spectrumIdParams },
       handler: async (req, res) => {
-        res.json({ claim: await claimSpectrum(currentUser(req), res.locals.params.spectrumId) })
+        res.json({ claim: await claimSpectrum(currentUser(req), res.locals.params.spectrumId, ctx.config.CLAIMS_MAX_OPEN) })
       },
     },
     {

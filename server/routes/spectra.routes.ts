@@ -1,9 +1,10 @@
-import multer from 'multer'
+import { pipeline } from 'node:stream/promises'
 import type { SpectrumPage } from '../../shared/api/spectra'
 import type { AppContext } from '../context'
 import { sendSeries } from '../lib/series'
 import { currentUser } from '../middleware/auth'
 import { boundedUpload } from '../middleware/body-limit'
+import { multipartToDisk, uploadSlots } from '../middleware/upload'
 import { idParams } from '../schemas/common'
 import { dataQuery, listQuery, spectrumMetadata, submitBody } from '../schemas/spectra.schemas'
 import { getPreparedSeries, measurementsOf, requeueSpectrum } from '../services/measurements.service'
@@ -12,19 +13,19 @@ import { getRawFile, getSpectrumDetail, getSpectrumSeries, listSpectra, submitFi
 import { SUBMITTERS, defineRoutes } from './route'
 
 export function spectraRoutes(ctx: AppContext) {
-  const upload = multer({
-    storage: multer.memoryStorage(),
-    limits: { fileSize: ctx.config.UPLOAD_MAX_BYTES, files: ctx.config.UPLOAD_MAX_FILES, fields: 40, fieldSize: 64 * 1024, parts: ctx.config.UPLOAD_MAX_FILES + 40 },
-  })
   return defineRoutes([
     {
       method: 'post',
       path: '/spectra',
       access: SUBMITTERS,
-      before: [boundedUpload(ctx.config.UPLOAD_MAX_REQUEST_BYTES), upload.array('files')],
+      before: [
+        boundedUpload(ctx.config.UPLOAD_MAX_REQUEST_BYTES),
+        uploadSlots(ctx.config.UPLOADS_PER_USER, ctx.config.UPLOADS_TOTAL),
+        multipartToDisk(ctx.files.incomingDir, ctx.config),
+      ],
       schema: { body: submitBody },
       handler: async (req, res) => {
-        const files = ((req.files as Express.Multer.File[] | undefined) ?? []).map((f) => ({ name: Buffer.from(f.originalname, 'latin1').toString('utf8'), bytes: f.buffer }))
+        const files = ((req.files as Express.Multer.File[] | undefined) ?? []).map((f) => ({ name: Buffer.from(f.originalname, 'latin1').toString('utf8'), path: f.path }))
         const results = await submitFiles(ctx, currentUser(req), files, res.locals.body)
         const accepted = results.filter((r) => r.outcome === 'accepted').length
         res.status(files.length === 0 ? 422 : 200).json({
@@ -99,10 +100,11 @@ export function spectraRoutes(ctx: AppContext) {
       access: 'signed-in',
       schema: { params: idParams },
       handler: async (req, res) => {
-        const file = await getRawFile(currentUser(req), res.locals.params.id)
+        const file = await getRawFile(ctx, currentUser(req), res.locals.params.id)
         res.attachment(file.name)
         res.set('content-type', 'application/octet-stream')
-        res.send(file.bytes)
+        res.set('content-length', String(file.size))
+        await pipeline(file.body, res)
       },
     },
   ])

@@ -30,7 +30,7 @@ export function userRoutes(ctx: AppContext) {
       access: LEAD,
       schema: { params: idParams, body: updateUserBody },
       handler: async (req, res) => {
-        res.json({ user: await updateUser(res.locals.params.id, res.locals.body, currentUser(req)) })
+        res.json({ user: await updateUser(ctx, res.locals.params.id, res.locals.body, currentUser(req)) })
       },
     },
     {

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { multiLine, singleLine } from './common'
 
 /** The classification region a campaign may choose, Å. */
 export const REGION_LIMITS = [3700, 7000] as const
@@ -6,9 +7,9 @@ export const REGION_LIMITS = [3700, 7000] as const
 const regionEdge = z.number().min(REGION_LIMITS[0], `must be at least ${REGION_LIMITS[0]} Å`).max(REGION_LIMITS[1], `must be at most ${REGION_LIMITS[1]} Å`)
 
 const rules = {
-  name: z.string().trim().min(1, 'is required').max(160),
-  description: z.string().trim().max(4000),
-  observatory: z.string().trim().max(160),
+  name: singleLine(160).pipe(z.string().min(1, 'is required')),
+  description: multiLine(4000),
+  observatory: singleLine(160),
   regionMin: regionEdge,
   regionMax: regionEdge,
   callsRequired: z.number().int('must be a whole number').min(1, 'must be 1, 2 or 3').max(3, 'must be 1, 2 or 3'),

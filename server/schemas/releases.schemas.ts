@@ -1,12 +1,13 @@
 import { z } from 'zod'
 import { EXPORT_FORMATS } from '../exports'
+import { multiLine, numeric, singleLine } from './common'
 import { paging } from './paging'
 
-const title = z.string().trim().min(1, 'is required').max(200, 'must be at most 200 characters')
-const description = z.string().trim().max(5000, 'must be at most 5000 characters').default('')
+const title = singleLine(200).pipe(z.string().min(1, 'is required'))
+const description = multiLine(5000).default('')
 
 export const createReleaseBody = z.object({
-  campaignId: z.coerce.number({ message: 'choose a campaign' }).int().positive({ message: 'choose a campaign' }),
+  campaignId: numeric(z.number({ message: 'choose a campaign' }).int().positive({ message: 'choose a campaign' })),
   title,
   description,
 })

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { parseMK } from '../../shared/mk'
+import { multiLine } from './common'
 
 const emptyToUndefined = (v: unknown) => (v === '' || v === null ? undefined : v)
 
@@ -49,7 +50,7 @@ export const callBody = z
     spectralType: mkText(40).optional(),
     luminosityClass: mkText(12).optional(),
     peculiarities: z.string().trim().max(60).optional(),
-    notes: z.string().trim().max(4000).default(''),
+    notes: multiLine(4000).default(''),
     confidence: z.number().int('must be 1, 2 or 3').min(1, 'must be 1, 2 or 3').max(3, 'must be 1, 2 or 3'),
     uncertain: z.boolean().default(false),
     acceptedSuggestion: z.boolean().default(false),
@@ -66,7 +67,7 @@ export const settleBody = z.object({
   spectralType: mkText(40),
   luminosityClass: mkText(12),
   peculiarities: z.string().trim().max(60).optional(),
-  note: z.string().trim().min(1, 'say why you settled it this way').max(4000),
+  note: multiLine(4000).pipe(z.string().min(1, 'say why you settled it this way')),
 })
 
 export const disputesQuery = z.object({

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { parseDeclination, parseRightAscension } from '../../shared/coords'
 import { SPECTRUM_STATUSES } from '../../shared/status'
+import { multiLine, numeric, singleLine } from './common'
 import { paging } from './paging'
 
 /**
@@ -10,9 +11,9 @@ import { paging } from './paging'
 const optionalNumber = (min: number, max: number, what: string) =>
   z.preprocess(
     (v) => (v === '' || v === undefined ? undefined : v),
-    z.coerce.number({ message: `must be a number` }).min(min, `${what} must be at least ${min}`).max(max, `${what} must be at most ${max}`).nullable().optional(),
+    numeric(z.number({ message: `must be a number` }).min(min, `${what} must be at least ${min}`).max(max, `${what} must be at most ${max}`)).nullable().optional(),
   )
-const optionalText = (max: number) => z.preprocess((v) => (v === null ? undefined : v), z.string().trim().max(max).optional())
+const optionalText = (max: number, text = singleLine) => z.preprocess((v) => (v === null ? undefined : v), text(max).optional())
 const ra = z.string().trim().max(40).refine((v) => v === '' || parseRightAscension(v).ok, { message: 'must be hh:mm:ss or degrees (0–360)' })
 const dec = z.string().trim().max(40).refine((v) => v === '' || parseDeclination(v).ok, { message: 'must be ±dd:mm:ss or degrees (−90…+90)' })
 const date = z.string().trim().max(40).refine((v) => v === '' || !Number.isNaN(Date.parse(v)), { message: 'must be a date, e.g. 2026-03-14T02:10:00' })
@@ -30,15 +31,15 @@ export const spectrumMetadata = z.object({
   parallaxMas: optionalNumber(-100, 1000, 'parallax (mas)'),
   parallaxErrorMas: optionalNumber(0, 1000, 'parallax error (mas)'),
   ebv: optionalNumber(0, 5, 'E(B−V)'),
-  notes: optionalText(2000),
+  notes: optionalText(2000, multiLine),
 })
 export type SpectrumMetadataInput = z.infer<typeof spectrumMetadata>
 
 export const submitBody = spectrumMetadata.extend({
-  campaignId: z.coerce.number().int().positive({ message: 'choose a campaign' }),
+  campaignId: numeric(z.number({ message: 'choose a campaign' }).int().positive({ message: 'choose a campaign' })),
   batchId: z.string().uuid().optional(),
   wavelengthMedium: z.enum(['file', 'air', 'vacuum']).default('file'),
-  hdu: z.preprocess((v) => (v === '' ? undefined : v), z.coerce.number().int().min(0).max(999).optional()),
+  hdu: z.preprocess((v) => (v === '' ? undefined : v), numeric(z.number({ message: 'must be a number' }).int().min(0).max(999)).optional()),
 })
 
 const sortable = ['createdAt', 'objectName', 'snr', 'status', 'obsDate', 'id'] as const

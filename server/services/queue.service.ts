@@ -160,9 +160,14 @@ async function assertCallable(user: User, spectrum: Spectrum): Promise<void> {
  * Claims the item for CLAIM_MINUTES so no one else works it meanwhile. Claiming one's own claim again
  * extends it; a lapsed claim of anyone can be taken over.
  */
-export async function claimSpectrum(user: User, spectrumId: number, now = new Date()): Promise<ClaimView> {
+export async function claimSpectrum(user: User, spectrumId: number, maxOpen: number, now = new Date()): Promise<ClaimView> {
   const spectrum = await findVisibleSpectrum(user, spectrumId)
   await assertCallable(user, spectrum)
+  // A few open claims each, so no one can empty a colleague's queue.
+  const open = await ReviewClaim.count({ where: { userId: user.id, spectrumId: { [Op.ne]: spectrumId }, expiresAt: { [Op.gt]: now } } })
+  if (open >= maxOpen) {
+    throw new HttpError(409, 'too_many_claims', `You already hold ${open} claims (at most ${maxOpen}); record a call or give one back first.`, { open, max: maxOpen })
+  }
   const expiresAt = new Date(now.getTime() + CLAIM_MINUTES * 60_000)
   // Each step is one conditional statement, so two people claiming at once cannot both win.
   const [extended] = await ReviewClaim.update({ expiresAt }, { where: { spectrumId, userId: user.id, expiresAt: { [Op.gt]: now } } })

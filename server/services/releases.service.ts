@@ -1,8 +1,9 @@
-import { Op, type Transaction } from 'sequelize'
+import { Op, type Transaction, type WhereOptions } from 'sequelize'
 import type { DerivedParameters } from '../../shared/derived'
 import { CATALOGUE_COLUMNS, CATALOGUE_NOTES, isoTimestamp, writeTable, type ExportColumn, type ExportFormat, type ExportRow, type ExportTable, type TableParam } from '../exports'
 import { HttpError, notFound } from '../lib/http-error'
 import { Campaign, Classification, LibraryVersion, Measurement, Release, ReleaseRow, ReviewCall, Spectrum, Suggestion, User } from '../models'
+import { campaignIdsOf } from './campaigns.service'
 import { decisionUncertainty, estimatesFor, observerInputs } from './derived.service'
 import type { ReleaseDetail, ReleaseSummary } from '../../shared/api/releases'
 
@@ -251,14 +252,27 @@ export async function supersedeRelease(user: User, releaseId: number, input: Omi
   return createRelease(user, { campaignId: release.campaignId, ...input })
 }
 
-export async function listReleases(query: { campaignId?: number }): Promise<ReleaseSummary[]> {
-  const rows = await Release.findAll({ where: query.campaignId ? { campaignId: query.campaignId } : {}, order: [['campaignId', 'ASC'], ['version', 'DESC']] })
+/** Releases of the campaigns the user belongs to (leads: all); others are not there for them. */
+async function visibleCampaigns(user: User): Promise<WhereOptions<Release>> {
+  const ids = await campaignIdsOf(user)
+  return ids === 'all' ? {} : { campaignId: { [Op.in]: ids } }
+}
+
+async function findVisibleRelease(user: User, id: number): Promise<Release> {
+  const release = await Release.findOne({ where: { [Op.and]: [{ id }, await visibleCampaigns(user)] } })
+  if (!release) throw notFound('The release')
+  return release
+}
+
+export async function listReleases(user: User, query: { campaignId?: number }): Promise<ReleaseSummary[]> {
+  const where: WhereOptions<Release>[] = [await visibleCampaigns(user)]
+  if (query.campaignId) where.push({ campaignId: query.campaignId })
+  const rows = await Release.findAll({ where: { [Op.and]: where }, order: [['campaignId', 'ASC'], ['version', 'DESC']] })
   return summaries(rows)
 }
 
-export async function getRelease(id: number, paging: { page: number; pageSize: number }): Promise<ReleaseDetail> {
-  const release = await Release.findByPk(id)
-  if (!release) throw notFound('The release')
+export async function getRelease(user: User, id: number, paging: { page: number; pageSize: number }): Promise<ReleaseDetail> {
+  const release = await findVisibleRelease(user, id)
   const rows = await ReleaseRow.findAll({ where: { releaseId: id }, order: [['position', 'ASC']], offset: (paging.page - 1) * paging.pageSize, limit: paging.pageSize })
   return {
     release: (await summaries([release]))[0]!,
@@ -298,7 +312,8 @@ export async function releaseTable(id: number): Promise<{ table: ExportTable; ca
 const safeName = (s: string) => s.replace(/[^A-Za-z0-9._-]+/g, '_').replace(/^_+|_+$/g, '') || 'catalogue'
 
 /** The bytes of a release in one format, with its media type and a file name such as "TF-1_release-2.vot". */
-export async function downloadRelease(id: number, format: ExportFormat): Promise<{ body: Buffer; contentType: string; fileName: string }> {
+export async function downloadRelease(user: User, id: number, format: ExportFormat): Promise<{ body: Buffer; contentType: string; fileName: string }> {
+  await findVisibleRelease(user, id)
   const { table, campaignCode, version } = await releaseTable(id)
   const file = writeTable(table, format)
   const suffix = format === 'mrt' ? '_mrt' : ''

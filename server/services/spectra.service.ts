@@ -1,4 +1,6 @@
-import { Op, UniqueConstraintError, type Order, type WhereOptions } from 'sequelize'
+import { open, readFile } from 'node:fs/promises'
+import type { Readable } from 'node:stream'
+import { ConnectionError, Op, UniqueConstraintError, type Order, type WhereOptions } from 'sequelize'
 import { DEFAULT_CLASSIFICATION_REGION } from '../../shared/grid'
 import { parseDeclination, parseRightAscension } from '../../shared/coords'
 import type { SpectrumStatus } from '../../shared/status'
@@ -7,6 +9,7 @@ import { bufferToFloat32, bufferToFloat64, float32ToBuffer, float64ToBuffer } fr
 import { decimateMinMax, lowerBound } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { sha256Hex } from '../lib/tokens'
+import { rawFileKey } from '../storage'
 import { Campaign, ProcessingJob, Spectrum, SpectrumBlob, User } from '../models'
 import type { SpectrumMetadataInput } from '../schemas/spectra.schemas'
 import { readSpectrum, unpackZip, type ReadMeta, type ReadSuccess } from '../spectra/io'
@@ -17,9 +20,17 @@ import type { FileResult, SpectrumDetail, SpectrumList, SpectrumListItem } from 
 
 export type { FileResult, SpectrumDetail, SpectrumListItem }
 
-export interface UploadedFile {
-  name: string
-  bytes: Buffer
+/** One uploaded file: in memory (zip entries, the demo) or where the upload parser wrote it. */
+export type UploadedFile = { name: string; bytes: Buffer } | { name: string; path: string }
+
+const bytesOf = (file: UploadedFile): Promise<Buffer> => ('bytes' in file ? Promise.resolve(file.bytes) : readFile(file.path))
+
+/** Characters a stored name never holds: control characters (they break exports, logs and screens). */
+const CONTROL = /[\u0000-\u001f\u007f]+/g
+/** Text from a file name or header, cleaned and cut to what the column holds (an ellipsis marks a cut). */
+export function fitText(text: string, max: number): string {
+  const clean = text.replace(CONTROL, ' ').replace(/\s+/g, ' ').trim()
+  return clean.length <= max ? clean : `${clean.slice(0, max - 1).trimEnd()}…`
 }
 
 export interface SubmitOptions extends SpectrumMetadataInput {
@@ -61,13 +72,14 @@ function resolveMetadata(input: SpectrumMetadataInput, meta: ReadMeta, fileName:
   const dec = decText ? parseDeclination(decText) : null
   const dateText = input.obsDate || headerString(h, 'DATE-OBS', 'DATE_OBS', 'DATE')
   const obsDate = dateText && !Number.isNaN(Date.parse(dateText)) ? new Date(dateText.endsWith('Z') || /[+-]\d\d:?\d\d$/.test(dateText) ? dateText : `${dateText}Z`) : null
+  const baseName = fileName.split('/').pop() ?? fileName
   return {
-    objectName: input.objectName || headerString(h, 'OBJECT', 'OBJNAME') || fileName.replace(/\.[^.]+$/, ''),
+    objectName: fitText(input.objectName || headerString(h, 'OBJECT', 'OBJNAME') || baseName.replace(/\.[^.]+$/, ''), 120) || 'unnamed',
     raDeg: ra && ra.ok ? ra.degrees : null,
     decDeg: dec && dec.ok ? dec.degrees : null,
     obsDate: obsDate && !Number.isNaN(obsDate.getTime()) ? obsDate : null,
     exposureS: headerNumber(h, 'EXPTIME', 'EXPOSURE') ?? null,
-    instrument: input.instrument || headerString(h, 'INSTRUME', 'INSTRUMENT') || '',
+    instrument: fitText(input.instrument || headerString(h, 'INSTRUME', 'INSTRUMENT') || '', 160),
     resolutionFwhm: input.resolutionFwhm ?? headerNumber(h, 'SPEC_RES', 'RESOLUTN', 'FWHM') ?? null,
     resolvingPower: input.resolvingPower ?? headerNumber(h, 'SPECRP', 'RESPOWER', 'R') ?? null,
     vMag: input.vMag ?? null,
@@ -78,19 +90,28 @@ function resolveMetadata(input: SpectrumMetadataInput, meta: ReadMeta, fileName:
   }
 }
 
+/** The same file again in the same campaign; its id is told only to someone who may see that spectrum. */
+async function findDuplicate(user: User, campaignId: number, sha: string): Promise<{ id: number | null } | null> {
+  const existing = await Spectrum.findOne({ where: { campaignId, fileSha256: sha }, attributes: ['id'] })
+  if (!existing) return null
+  const visible = await Spectrum.count({ where: { [Op.and]: [{ id: existing.id }, await visibilityWhere(user)] } })
+  return { id: visible ? existing.id : null }
+}
+
 async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: UploadedFile, opts: SubmitOptions): Promise<FileResult> {
-  const sha = sha256Hex(file.bytes)
-  const existing = await Spectrum.findOne({ where: { fileSha256: sha }, attributes: ['id', 'submittedBy'] })
+  const bytes = await bytesOf(file)
+  const sha = sha256Hex(bytes)
   const duplicate = (id: number | null): FileResult => ({
     file: file.name,
     outcome: 'duplicate',
     spectrumId: id,
-    message: `${file.name} was submitted before${id ? ` (spectrum #${id})` : ''}; it is not stored twice.`,
+    message: `${file.name} was submitted to this campaign before${id ? ` (spectrum #${id})` : ''}; it is not stored twice.`,
   })
-  if (existing) return duplicate(existing.submittedBy === user.id || user.role !== 'observer' ? existing.id : null)
+  const existing = await findDuplicate(user, campaign.id, sha)
+  if (existing) return duplicate(existing.id)
 
   const { config } = ctx
-  const read = readSpectrum(new Uint8Array(file.bytes.buffer, file.bytes.byteOffset, file.bytes.length), file.name, {
+  const read = readSpectrum(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length), file.name, {
     maxBytes: config.UPLOAD_MAX_BYTES,
     maxPixels: config.UPLOAD_MAX_PIXELS,
     minPixels: config.UPLOAD_MIN_PIXELS,
@@ -98,13 +119,25 @@ async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: U
     assumeVacuum: opts.wavelengthMedium === 'file' ? undefined : opts.wavelengthMedium === 'vacuum',
   })
   if (!read.ok) return { file: file.name, outcome: 'refused', code: read.code, message: read.message }
-  return insertSpectrum(ctx, user, campaign, file, sha, read, opts).catch((error: unknown) => {
-    if (error instanceof UniqueConstraintError) return duplicate(null)
+  // The file is stored before its row: a crash in between leaves an unreferenced file, never a row without its file.
+  const key = rawFileKey(sha)
+  if (!(await ctx.files.exists(key))) {
+    if ('path' in file) await ctx.files.putFile(key, file.path)
+    else await ctx.files.put(key, bytes)
+  }
+  return insertSpectrum(ctx, user, campaign, { name: file.name, size: bytes.length, key }, sha, read, opts).catch(async (error: unknown) => {
+    if (error instanceof UniqueConstraintError) return duplicate((await findDuplicate(user, campaign.id, sha))?.id ?? null)
     throw error
   })
 }
 
-async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, file: UploadedFile, sha: string, read: ReadSuccess, opts: SubmitOptions): Promise<FileResult> {
+interface StoredFile {
+  name: string
+  size: number
+  key: string
+}
+
+async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, file: StoredFile, sha: string, read: ReadSuccess, opts: SubmitOptions): Promise<FileResult> {
   const { spectrum: s, meta } = read
   const wl = s.wavelengthAir
   const snr = estimateSpectrumSnr({ wavelength: wl, flux: s.flux, ...(s.mask ? { mask: s.mask } : {}) }, { region: DEFAULT_CLASSIFICATION_REGION })
@@ -118,9 +151,9 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
         batchId: opts.batchId ?? null,
         statusReason: null,
         ...metadata,
-        fileName: file.name.slice(0, 255),
+        fileName: fitText(file.name, 255),
         fileSha256: sha,
-        fileSize: file.bytes.length,
+        fileSize: file.size,
         format: meta.format,
         hdu: meta.hdu ?? null,
         pixels: wl.length,
@@ -136,7 +169,8 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
     await SpectrumBlob.create(
       {
         spectrumId: spectrum.id,
-        raw: file.bytes,
+        raw: null,
+        rawKey: file.key,
         wavelength: float64ToBuffer(wl),
         flux: float32ToBuffer(s.flux),
         error: s.error ? float32ToBuffer(s.error) : null,
@@ -161,21 +195,50 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
   }
 }
 
+/** Errors that are about the server, not the file: the whole request fails with them (e.g. 503). */
+const isServerTrouble = (error: unknown) => error instanceof ConnectionError || error instanceof HttpError
+
+/** One file's own result, whatever goes wrong with it. */
+async function storeSafely(ctx: AppContext, user: User, campaign: Campaign, file: UploadedFile, opts: SubmitOptions): Promise<FileResult> {
+  try {
+    return await storeOne(ctx, user, campaign, file, opts)
+  } catch (error) {
+    if (isServerTrouble(error)) throw error
+    ctx.logger.error({ err: error, file: file.name }, 'storing an uploaded file failed')
+    return { file: file.name, outcome: 'refused', code: 'NOT_STORED', message: `${file.name} could not be stored; nothing of it was kept. Try it again, or tell a lead if it keeps failing.` }
+  }
+}
+
+/** Why a zip entry was left out, as a result line of its own (directories are not files and say nothing). */
+function skippedEntry(archive: string, name: string): FileResult | null {
+  if (name.endsWith('/') || name.endsWith('\\')) return null
+  const file = `${archive}/${name}`
+  if (name.split(/[/\\]/).includes('..') || /^([/\\]|[A-Za-z]:)/.test(name)) {
+    return { file, outcome: 'refused', code: 'ZIP_UNSAFE_PATH', message: `${file}: the name points outside the archive (..), so the entry was skipped.` }
+  }
+  return { file, outcome: 'refused', code: 'ZIP_ENTRY_SKIPPED', message: `${file}: hidden files and system folders (names starting with a dot, __MACOSX) are skipped.` }
+}
+
 /** Reads and stores each uploaded file (zip archives file by file); one bad file never stops the others. */
 export async function submitFiles(ctx: AppContext, user: User, files: UploadedFile[], opts: SubmitOptions): Promise<FileResult[]> {
   const campaign = await campaignForSubmission(user, opts.campaignId)
   const results: FileResult[] = []
   let budget = ctx.config.UPLOAD_MAX_FILES
   for (const file of files) {
-    if (isZip(file.bytes)) {
-      const unzipped = unpackZip(new Uint8Array(file.bytes), { maxEntries: budget, maxTotalBytes: ctx.config.UPLOAD_MAX_BYTES * 4, maxEntryBytes: ctx.config.UPLOAD_MAX_BYTES })
+    const head = 'bytes' in file ? file.bytes.subarray(0, 4) : await readHead(file.path)
+    if (isZip(head)) {
+      const unzipped = unpackZip(new Uint8Array(await bytesOf(file)), { maxEntries: budget, maxTotalBytes: ctx.config.UPLOAD_MAX_BYTES * 4, maxEntryBytes: ctx.config.UPLOAD_MAX_BYTES })
       if (!unzipped.ok) {
         results.push({ file: file.name, outcome: 'refused', code: unzipped.code, message: unzipped.message })
         continue
       }
       for (const entry of unzipped.entries) {
         budget--
-        results.push(await storeOne(ctx, user, campaign, { name: `${file.name}/${entry.name}`, bytes: Buffer.from(entry.bytes) }, opts))
+        results.push(await storeSafely(ctx, user, campaign, { name: `${file.name}/${entry.name}`, bytes: Buffer.from(entry.bytes) }, opts))
+      }
+      for (const name of unzipped.skipped) {
+        const line = skippedEntry(file.name, name)
+        if (line) results.push(line)
       }
       continue
     }
@@ -184,9 +247,19 @@ export async function submitFiles(ctx: AppContext, user: User, files: UploadedFi
       results.push({ file: file.name, outcome: 'refused', code: 'TOO_MANY_FILES', message: `${file.name}: a batch holds at most ${ctx.config.UPLOAD_MAX_FILES} files` })
       continue
     }
-    results.push(await storeOne(ctx, user, campaign, file, opts))
+    results.push(await storeSafely(ctx, user, campaign, file, opts))
   }
   return results
+}
+
+async function readHead(path: string): Promise<Buffer> {
+  const handle = await open(path, 'r')
+  try {
+    const { buffer, bytesRead } = await handle.read(Buffer.alloc(4), 0, 4, 0)
+    return buffer.subarray(0, bytesRead)
+  } finally {
+    await handle.close()
+  }
 }
 
 /** Which spectra a user may see: observers their own, classifiers their campaigns', leads all. */
@@ -350,10 +423,32 @@ export async function getSpectrumSeries(user: User, id: number, q: { from?: numb
   }
 }
 
-/** The file exactly as it was uploaded. */
-export async function getRawFile(user: User, id: number): Promise<{ name: string; bytes: Buffer }> {
+/** The file exactly as it was uploaded, as a stream from the file store. */
+export async function getRawFile(ctx: Pick<AppContext, 'files'>, user: User, id: number): Promise<{ name: string; size: number; body: Readable }> {
   const s = await findVisibleSpectrum(user, id)
-  const blob = await SpectrumBlob.findByPk(id, { attributes: ['raw'] })
-  if (!blob) throw notFound('The uploaded file')
-  return { name: s.fileName.split('/').pop() ?? s.fileName, bytes: blob.raw }
+  const blob = await SpectrumBlob.findByPk(id, { attributes: ['spectrumId', 'rawKey'] })
+  if (!blob?.rawKey || !(await ctx.files.exists(blob.rawKey))) throw notFound('The uploaded file')
+  return { name: s.fileName.split('/').pop() ?? s.fileName, size: s.fileSize, body: await ctx.files.stream(blob.rawKey) }
+}
+
+/**
+ * Moves files that older versions kept in the database into the file store, a few at a time
+ * (idempotent: a file already in the store is not written again).
+ */
+export async function moveRawFilesToStore(ctx: Pick<AppContext, 'files' | 'logger'>): Promise<number> {
+  let moved = 0
+  for (;;) {
+    const ids = await SpectrumBlob.findAll({ where: { raw: { [Op.ne]: null } }, attributes: ['spectrumId'], limit: 20 })
+    if (ids.length === 0) break
+    for (const { spectrumId } of ids) {
+      const blob = await SpectrumBlob.findByPk(spectrumId, { attributes: ['spectrumId', 'raw'] })
+      if (!blob?.raw) continue
+      const key = rawFileKey(sha256Hex(blob.raw))
+      if (!(await ctx.files.exists(key))) await ctx.files.put(key, blob.raw)
+      await SpectrumBlob.update({ raw: null, rawKey: key }, { where: { spectrumId } })
+      moved++
+    }
+  }
+  if (moved > 0) ctx.logger.info({ moved }, 'uploaded files moved from the database to the file store')
+  return moved
 }

@@ -93,27 +93,44 @@ export async function resendInvitation(ctx: AppContext, userId: number, invitedB
   })
 }
 
-/** Changes role, name or active state; deactivating ends the person's sessions at once. */
-export async function updateUser(userId: number, changes: UserChanges, actor: User): Promise<PublicUser> {
-  const user = await User.findByPk(userId)
-  if (!user) throw notFound('The user')
-  if (user.id === actor.id && ((changes.role && changes.role !== actor.role) || changes.active === false)) {
-    throw new HttpError(409, 'self_change', 'You cannot change your own role or deactivate yourself; ask another lead.')
-  }
-  if (changes.role !== undefined) user.role = changes.role
-  if (changes.name !== undefined) user.name = changes.name.trim()
-  if (changes.active !== undefined) user.active = changes.active
-  await user.save()
-  if (changes.active === false) await Session.destroy({ where: { userId: user.id } })
+/**
+ * Changes role, name or active state; deactivating ends the person's sessions at once. A change that
+ * would leave no active lead is refused; the active leads are locked while it is decided, so two
+ * leads demoting each other at once cannot both succeed.
+ */
+export async function updateUser(ctx: Pick<AppContext, 'sequelize'>, userId: number, changes: UserChanges, actor: User): Promise<PublicUser> {
+  const user = await ctx.sequelize.transaction(async (transaction) => {
+    const leads = await User.findAll({ where: { role: 'lead', active: true }, attributes: ['id'], lock: transaction.LOCK.UPDATE, transaction })
+    const user = await User.findByPk(userId, { transaction, lock: transaction.LOCK.UPDATE })
+    if (!user) throw notFound('The user')
+    if (user.id === actor.id && ((changes.role && changes.role !== actor.role) || changes.active === false)) {
+      throw new HttpError(409, 'self_change', 'You cannot change your own role or deactivate yourself; ask another lead.')
+    }
+    const stopsLeading = user.role === 'lead' && user.active && ((changes.role !== undefined && changes.role !== 'lead') || changes.active === false)
+    if (stopsLeading && leads.filter((l) => l.id !== user.id).length === 0) {
+      throw new HttpError(409, 'last_lead', 'This is the last active lead; make someone else a lead first.')
+    }
+    if (changes.role !== undefined) user.role = changes.role
+    if (changes.name !== undefined) user.name = changes.name.trim()
+    if (changes.active !== undefined) user.active = changes.active
+    await user.save({ transaction })
+    if (changes.active === false) await Session.destroy({ where: { userId: user.id }, transaction })
+    return user
+  })
   return toPublicUser(user)
 }
 
-export async function changePassword(ctx: AppContext, user: User, current: string, next: string): Promise<void> {
+/** Changes the password and ends every other session of the account (a stolen session ends with it). */
+export async function changePassword(ctx: AppContext, user: User, current: string, next: string, keepSessionId: string): Promise<void> {
   if (!user.passwordHash || !(await bcrypt.compare(current, user.passwordHash))) {
     throw new HttpError(422, 'invalid_input', 'The current password is not right.', { fields: { currentPassword: 'is not right' } })
   }
-  user.passwordHash = await hashPassword(next, ctx.config.BCRYPT_ROUNDS)
-  await user.save()
+  const hash = await hashPassword(next, ctx.config.BCRYPT_ROUNDS)
+  await ctx.sequelize.transaction(async (transaction) => {
+    user.passwordHash = hash
+    await user.save({ transaction })
+    await Session.destroy({ where: { userId: user.id, sid: { [Op.ne]: keepSessionId } }, transaction })
+  })
 }
 
 /** Mails a reset link when the address belongs to an active account; says nothing either way. */

@@ -1,6 +1,6 @@
 import { ref, watch, type Ref } from 'vue'
 import { ApiError } from '@/api/http'
-import { claimQueueItem, listQueue, nextQueueItem, type QueueFilters } from '@/api/queue'
+import { claimQueueItem, listQueue, nextQueueItem, releaseQueueItem, type QueueFilters } from '@/api/queue'
 import { useAsync } from './useAsync'
 
 const STORAGE_KEY = 'lineweight.queueFilters'
@@ -41,10 +41,12 @@ export function useQueue(initial: QueueFilters = savedQueueFilters()) {
 
 /**
  * Claims the item after `currentId` in the saved queue order and returns its id; null when nothing
- * is left. An item another classifier claims first is skipped.
+ * is left. The item being left is given back first, so a classifier holds only what they have open.
+ * An item another classifier claims first is skipped.
  */
 export async function claimNext(currentId: number | null): Promise<number | null> {
   const filters = savedQueueFilters()
+  if (currentId !== null) await releaseQueueItem(currentId)
   let after = currentId ?? undefined
   for (let tries = 0; tries < 20; tries++) {
     const item = await nextQueueItem(filters, after)
@@ -54,7 +56,7 @@ export async function claimNext(currentId: number | null): Promise<number | null
       return item.spectrumId
     } catch (e) {
       // Claimed by someone else in the meantime, or no longer waiting: try the one after it.
-      if (e instanceof ApiError && (e.status === 409 || e.status === 404)) {
+      if (e instanceof ApiError && (e.status === 404 || (e.status === 409 && e.code !== 'too_many_claims'))) {
         after = item.spectrumId
         continue
       }

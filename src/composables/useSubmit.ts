@@ -150,8 +150,10 @@ let keySeq = 0
  * One bad file never stops the others; an error about the form itself (a 422 with field messages,
  * a campaign one may not submit to) stops the batch and is shown on the form.
  */
-export function useSubmit(options: { parallel?: number } = {}) {
-  const parallel = options.parallel ?? 3
+export function useSubmit(options: { parallel?: number; busyRetryMs?: number } = {}) {
+  // The server takes two uploads of one person at a time (UPLOADS_PER_USER); more wait their turn.
+  const parallel = options.parallel ?? 2
+  const busyRetryMs = options.busyRetryMs ?? 2000
   const items = ref<UploadItem[]>([])
   const running = ref(false)
   const batchId = ref<string | null>(null)
@@ -212,7 +214,13 @@ export function useSubmit(options: { parallel?: number } = {}) {
           item.status = 'done'
         } catch (e) {
           const err = e instanceof ApiError ? e : new ApiError(0, 'client_error', messageOf(e))
-          if (isBatchError(err)) {
+          if (err.status === 429 && err.code === 'too_many_uploads') {
+            // The server is busy with this person's other uploads: the file goes back in line.
+            item.status = 'waiting'
+            item.progress = 0
+            queue.unshift(item)
+            await new Promise((r) => setTimeout(r, busyRetryMs))
+          } else if (isBatchError(err)) {
             stop = true
             item.status = 'waiting'
             item.progress = 0

@@ -1,3 +1,4 @@
+import { settleBackground } from '../../server/lib/background'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Op } from 'sequelize'
 import { MailMessage, Session, User, UserToken } from '../../server/models'
@@ -66,6 +67,7 @@ describe('password reset', () => {
     const { user } = await makeUser('observer')
     const anon = await agentFor(t.app)
     const res = await anon.agent.post('/api/auth/forgot').set('x-csrf-token', anon.csrf).send({ email: user.email }).expect(202)
+    await settleBackground()
     const token = tokenFrom((await lastMailTo(user.email))!.text)!
     await anon.agent.post('/api/auth/set-password').set('x-csrf-token', anon.csrf).send({ token, password: 'reset and ready' }).expect(200)
     await anon.agent.post('/api/auth/set-password').set('x-csrf-token', anon.csrf).send({ token, password: 'reset and again' }).expect(410)

@@ -4,7 +4,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { Campaign, Classification, LibraryVersion, Measurement, Release, ReleaseRow, ReviewCall, Spectrum, Suggestion, type User } from '../../server/models'
+import { Campaign, CampaignMember, Classification, LibraryVersion, Measurement, Release, ReleaseRow, ReviewCall, Spectrum, Suggestion, type User } from '../../server/models'
 import { DERIVED_CAUTION } from '../../server/services/derived.service'
 import { deriveParameters } from '../../shared/derived'
 import { parseMK } from '../../shared/mk'
@@ -68,6 +68,7 @@ beforeAll(async () => {
   const o = await makeUser('observer')
   observerUser = o.user
   observer = await signedInAgent(t.app, o.user.email, o.password)
+  await CampaignMember.create({ campaignId: campaign.id, userId: o.user.id })
   const o2 = await makeUser('observer')
   otherObserver = await signedInAgent(t.app, o2.user.email, o2.password)
   callers = [(await makeUser('classifier', { name: 'Caller One' })).user, (await makeUser('classifier', { name: 'Caller Two' })).user]
@@ -155,7 +156,7 @@ describe('POST /api/releases', () => {
 })
 
 describe('GET /api/releases/:id/download', () => {
-  it('sends the four formats with file names, to any signed-in user', async () => {
+  it('sends the four formats with file names, to members of the campaign', async () => {
     const expected = {
       csv: ['text/csv', `${campaign.code}_release-1.csv`],
       votable: ['application/x-votable+xml', `${campaign.code}_release-1.vot`],

@@ -11,8 +11,9 @@ const recordCall = vi.fn()
 const getReview = vi.fn()
 const nextQueueItem = vi.fn()
 const claimQueueItem = vi.fn(async (_id: number) => ({}))
+const releaseQueueItem = vi.fn(async (_id: number) => undefined)
 vi.mock('@/api/calls', () => ({ getReview: (id: number) => getReview(id), recordCall: (id: number, body: unknown) => recordCall(id, body), getHistory: async () => [] }))
-vi.mock('@/api/queue', () => ({ nextQueueItem: (f: unknown, after: number) => nextQueueItem(f, after), claimQueueItem: (id: number) => claimQueueItem(id), listQueue: async () => ({ items: [], claimMinutes: 10 }) }))
+vi.mock('@/api/queue', () => ({ nextQueueItem: (f: unknown, after: number) => nextQueueItem(f, after), claimQueueItem: (id: number) => claimQueueItem(id), releaseQueueItem: (id: number) => releaseQueueItem(id), listQueue: async () => ({ items: [], claimMinutes: 10 }) }))
 const standards = [
   { id: 40, spectralType: 'B8 III', typeCode: 18, luminosityClass: 'III', classCode: 4, source: 'model', retiredAt: null },
   { id: 41, spectralType: 'B9 III', typeCode: 19, luminosityClass: 'III', classCode: 4, source: 'model', retiredAt: null },
@@ -85,7 +86,10 @@ describe('Spectrum review keys', () => {
     await flushPromises()
     expect(recordCall).toHaveBeenCalledWith(11, expect.objectContaining({ acceptedSuggestion: true, confidence: 2 }))
     expect(nextQueueItem).toHaveBeenCalledWith(expect.anything(), 11)
+    // The item left behind is given back; only the one being opened is claimed.
+    expect(releaseQueueItem).toHaveBeenCalledWith(11)
     expect(claimQueueItem).toHaveBeenCalledWith(12)
+    expect(claimQueueItem).not.toHaveBeenCalledWith(11)
     expect(router.currentRoute.value.params.id).toBe('12')
     wrapper.unmount()
   })

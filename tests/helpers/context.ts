@@ -9,6 +9,7 @@ import { createSequelize } from '../../server/db'
 import { createLogger } from '../../server/lib/logger'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { createMailer } from '../../server/mail/mailer'
+import { createFileStore } from '../../server/storage'
 import { User } from '../../server/models'
 import { hashPassword } from '../../server/services/users.service'
 import type { Role } from '../../shared/roles'
@@ -36,7 +37,7 @@ export async function createTestContext(overrides: Partial<Config> = {}): Promis
   const sequelize = database(config)
   const smtp = await startFakeSmtp(0)
   const mailer = createMailer({ ...config, SMTP_PORT: smtp.port, MAIL_MODE: 'fake' })
-  const ctx: AppContext = { config, sequelize, mailer, logger: createLogger('silent') }
+  const ctx: AppContext = { config, sequelize, mailer, logger: createLogger('silent'), files: await createFileStore(config) }
   const app = createApp(ctx)
   return {
     ctx,

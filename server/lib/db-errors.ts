@@ -1,0 +1,20 @@
+import { ConnectionError } from 'sequelize'
+
+/** Driver error codes that mean "no usable connection", not "this query is wrong". */
+const CONNECTION_CODES = new Set([
+  'ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', 'EHOSTUNREACH', 'ENOTFOUND', 'PROTOCOL_CONNECTION_LOST',
+  'ER_GET_CONNECTION_TIMEOUT', 'ER_CONNECTION_TIMEOUT', 'ER_SOCKET_UNEXPECTED_CLOSE', 'ER_CONNECTION_ALREADY_CLOSED',
+  'ER_CMD_CONNECTION_CLOSED', 'ER_SERVER_SHUTDOWN', 'ER_CONNECTION_KILLED', 'ER_POOL_ALREADY_CLOSED', 'ER_SOCKET_TIMEOUT',
+])
+
+/** True when the error says the database cannot be reached (down, restarting, connection lost). */
+export function isDatabaseUnavailable(error: unknown): boolean {
+  for (let e = error as { code?: string; errno?: number; fatal?: boolean; parent?: unknown; original?: unknown } | undefined, depth = 0; e && depth < 4; depth++) {
+    if (e instanceof ConnectionError) return true
+    if (typeof e.code === 'string' && CONNECTION_CODES.has(e.code)) return true
+    // 1053 server shutdown in progress, 2006/2013 server gone away / lost during query.
+    if (e.errno === 1053 || e.errno === 2006 || e.errno === 2013) return true
+    e = (e.parent ?? e.original) as typeof e
+  }
+  return false
+}
