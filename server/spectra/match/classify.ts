@@ -1,7 +1,7 @@
 import { DEFAULT_CLASSIFICATION_REGION } from '../../../shared/grid'
 import { formatMK, formatTypeCode, parseMK, typeFromCode } from '../../../shared/mk'
 import type { LineMeasurement } from '../measure/types'
-import { depthScaledChiSquareSelected } from './chi2'
+import { depthScaledChiSquareSelected, depthScaledPairChiSquare } from './chi2'
 import { CRITERIA, criterionNoise, criterionValue, lowerBound } from './criteria'
 import { balmerHalfDepthWidth, compositeEvidence, hasBalmerEmission, isBeyondDwarfs, typicalResidual } from './flags'
 import { levelFor, type LibraryLevel, type PreparedMatchLibrary } from './library'
@@ -333,7 +333,8 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   const types = voters.map((r) => std(r).typeCode)
   const classes = voters.map((r) => std(r).classCode)
 
-  const typeCode = windowMode(types, typeWeights, 1, 0.5, Math.max(0, Math.floor(Math.min(...types)) - 1), Math.min(69.5, Math.ceil(Math.max(...types)) + 1))
+  const voted = windowMode(types, typeWeights, 1, 0.5, Math.max(0, Math.floor(Math.min(...types)) - 1), Math.min(69.5, Math.ceil(Math.max(...types)) + 1))
+  const typeCode = interpolateSparseType(library, level, s, from, to, voters, chi2, voted)
   const classCode = windowMode(classes, classWeights, 0.5, 0.5, 1, 6)
   const spread = (values: number[], w: number[], centre: number) => Math.sqrt(values.reduce((a, v, q) => a + w[q]! * (v - centre) ** 2, 0))
   const uncertainty = { subtypes: round(Math.max(0.5, spread(types, typeWeights, typeCode)), 2), classes: round(Math.max(0.25, spread(classes, classWeights, classCode)), 2) }
@@ -454,6 +455,31 @@ function classCounts(library: PreparedMatchLibrary, level: LibraryLevel): Map<nu
   return counts
 }
 
+/** Every class code of a level. */
+function levelClassCodes(library: PreparedMatchLibrary, level: LibraryLevel): number[] {
+  return [...new Set(Array.from(level.rows, (k) => library.standards[k]!.classCode))]
+}
+
+/**
+ * Where the library is sparse in type (the best standard's nearest voting neighbour in type is 2 or
+ * more subtypes away, as among the O stars), the vote can only land on one of them; the spectrum is
+ * then fitted as a mix of the two (depthScaledPairChiSquare) and the type interpolated by the mixing
+ * fraction, to half a subtype. Kept to the voted type when the mix does not fit clearly better.
+ */
+function interpolateSparseType(library: PreparedMatchLibrary, level: LibraryLevel, s: Scratch, from: number, to: number, voters: readonly number[], chi2: Float64Array, voted: number): number {
+  const typeOf = (r: number) => library.standards[level.rows[r]!]!.typeCode
+  const best = voters.find((r) => Math.abs(typeOf(r) - voted) <= 1)
+  if (best === undefined) return voted
+  const partner = voters.find((r) => Math.abs(typeOf(r) - typeOf(best)) >= 1)
+  if (partner === undefined) return voted
+  const t1 = typeOf(best)
+  const t2 = typeOf(partner)
+  if (Math.abs(t2 - t1) < 2 || voters.some((r) => Math.abs(typeOf(r) - t1) >= 0.5 && Math.abs(typeOf(r) - t1) < 2)) return voted
+  const mix = depthScaledPairChiSquare(s.flux, s.weights, level.flux, library.pixels, best, partner, from, to)
+  if (!(mix.chi2 < 0.9 * chi2[best]!) || mix.fraction <= 0.15 || mix.fraction >= 0.85) return voted
+  return Math.round((t1 + mix.fraction * (t2 - t1)) * 2) / 2
+}
+
 /** Says why the suggested class is not the best standard's, or null when it contains it. */
 function describeClassChoice(classCode: number, bestClass: number, bestType: string, shares: { luminosityClass: string; p: number }[], voters: number): string | null {
   if (Math.abs(bestClass - classCode) <= 0.5) return null
@@ -521,7 +547,7 @@ function bestResidual(flux: Float64Array, weights: Float64Array, rows: Float32Ar
 function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel, spectrumSpan: Float64Array, typeCode: number, snr: number | null, centre: number): Vote[] {
   const sigmaPix = snr !== null && snr > 0 ? 1 / snr : 0.02
   const pixelsPerAngstrom = 1 / (centre * library.grid.step)
-  const classCodes = [...classCounts(library, level).keys()].filter((c) => Number.isInteger(c) || c === 1.5).sort((a, b) => a - b)
+  const classCodes = levelClassCodes(library, level).filter((c) => Number.isInteger(c) || c === 1.5).sort((a, b) => a - b)
   return CRITERIA.map((c, ci) => {
     const value = criterionValue(c, spectrumSpan, library.wavelength)
     const vote: Vote = { criterion: c.id, name: c.name, value: Number.isFinite(value) ? round(value, 4) : null, vote: null }

@@ -41,7 +41,8 @@ function toyLibrary(): MatchStandardInput[] {
     for (const [cls, classCode, width] of [['III', 4, 2], ['V', 6, 4]] as const) {
       const t = (typeCode - 10) / 20
       out.push({
-        id: id++, modelId: `T${typeCode}-${cls}`, source: 'model', spectralType: `x${typeCode} ${cls}`, typeCode, luminosityClass: cls, classCode,
+        id: id++, modelId: `T${typeCode}-${cls}`, templateId: null, source: 'model', star: null, origin: 'toy', spectralType: `x${typeCode} ${cls}`, typeCode, luminosityClass: cls, classCode,
+        teff: 20000 - 300 * typeCode, logg: classCode === 6 ? 4.2 : 3.0, feh: 0,
         rectified: lines(DEFAULT_GRID, [0.1 + 0.5 * t, 0.5 - 0.2 * Math.abs(t - 0.5), 0.5 - 0.2 * Math.abs(t - 0.5), 0.05 + 0.3 * t, 0.3 - 0.2 * t, 0.5 - 0.2 * Math.abs(t - 0.5)], width),
         resolutionFwhm: 1.5,
       })
@@ -150,21 +151,31 @@ describe('hasBalmerEmission', () => {
 describe('matchSpectrum', () => {
   const standard = (id: number) => Float64Array.from(toyLibrary().find((s) => s.id === id)!.rectified)
 
-  it('finds a standard of the library itself, with probabilities that sum to one', () => {
+  it('finds a standard of the library itself, with vote shares that sum to one and its parameters', () => {
     const r = matchSpectrum(toy, { rectified: standard(6), snr: 100, fwhm: 1.5 })
     expect(r.bestStandardId).toBe(6)
     expect(r.typeCode).toBe(20)
     expect(r.luminosityClass).toBe('V')
-    expect(r.candidates).toHaveLength(3)
+    expect(r.candidates).toHaveLength(5)
     expect(r.candidates[0]!.chi2).toBeCloseTo(0, 6)
     const total = r.probabilities.reduce((s, p) => s + p.p, 0)
     expect(total).toBeGreaterThan(0.999)
     expect(total).toBeLessThan(1.001)
     expect(r.libraryVersion).toEqual({ id: 7, name: 'toy' })
-    expect(r.votes[0]!.criterion).toBe('chi2')
+    expect(r.votes[0]!.criterion).toBe('neighbours')
+    // An exact copy takes the whole vote, so the parameters are its own (toy values above).
+    expect(r.parameters.teff!.value).toBe(20000 - 300 * 20)
+    expect(r.parameters.logg!.value).toBeCloseTo(4.2, 6)
+    expect(r.classNote).toBeNull()
   })
 
-  it('puts a spectrum halfway between two types between them', () => {
+  it('leaves out the standards it is told to (leave one out)', () => {
+    const r = matchSpectrum(toy, { rectified: standard(6), snr: 100, fwhm: 1.5 }, { exclude: new Set([6]) })
+    expect(r.bestStandardId).not.toBe(6)
+    expect(r.candidates.map((c) => c.standardId)).not.toContain(6)
+  })
+
+  it('puts a spectrum halfway between two types five subtypes apart between them (the grid is sparse there)', () => {
     const a = standard(6) // type 20, V
     const b = standard(8) // type 25, V
     const mid = a.map((v, i) => (v + b[i]!) / 2)
@@ -250,14 +261,14 @@ describe('depthScaledChiSquareSelected', () => {
 })
 
 describe('matchSpectrum two-stage search', () => {
-  it('gives the same result as the exhaustive search when only some standards are refined (ten standards, three always refined)', () => {
+  it('gives the same result as the exhaustive search when only some standards are refined (ten standards, four refined)', () => {
     const inputs = toyLibrary()
     for (const id of [1, 4, 6, 9]) {
       const s = Float64Array.from(inputs.find((x) => x.id === id)!.rectified)
       const next = Float64Array.from(inputs.find((x) => x.id === Math.min(10, id + 2))!.rectified)
       const mixed = s.map((v, i) => 0.7 * v + 0.3 * next[i]!)
-      const two = matchSpectrum(toy, { rectified: mixed, snr: 80, fwhm: 1.5 }, { refineCount: 3 })
-      const all = matchSpectrum(toy, { rectified: mixed, snr: 80, fwhm: 1.5 }, { exhaustive: true })
+      const two = matchSpectrum(toy, { rectified: mixed, snr: 80, fwhm: 1.5 }, { neighbours: 2, refineCount: 4 })
+      const all = matchSpectrum(toy, { rectified: mixed, snr: 80, fwhm: 1.5 }, { neighbours: 2, exhaustive: true })
       expect(two).toEqual(all)
     }
   })
