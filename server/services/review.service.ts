@@ -172,6 +172,7 @@ export function toSuggestionView(s: Suggestion): SuggestionView {
     candidates: parseJson<unknown[]>(s.candidates, []),
     votes: parseJson<unknown>(s.votes, []),
     flags: suggestionFlags(s),
+    probabilities: parseJson<unknown[]>(s.probabilities, []),
     createdAt: s.createdAt.toISOString(),
   }
 }
@@ -324,7 +325,10 @@ export async function getReviewView(user: User, spectrumId: number, now = new Da
   const visibleRows = blind ? mine : rows
   const names = await namesOf([spectrum.submittedBy, ...visibleRows.map((r) => r.userId), claim?.userId ?? null])
   const standing = standingCalls(rows)
-  const refusal = callRefusal(user, spectrum, hasCalled)
+  const othersClaim = claim && claim.userId !== user.id && claim.expiresAt > now ? claim : null
+  const refusal =
+    callRefusal(user, spectrum, hasCalled) ??
+    (othersClaim ? { code: 'claimed', reason: `${names.get(othersClaim.userId) ?? 'Someone'} is working on this spectrum until ${othersClaim.expiresAt.toISOString()}; it is read-only for you until then.` } : null)
   const settled = dispute ? (await Classification.count({ where: { disputeId: dispute.id } })) > 0 : false
   const showClaim = claim && (claim.userId === user.id || claim.expiresAt > now)
   return {
@@ -409,7 +413,11 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
       parsed = parseCallType(input.spectralType, input.luminosityClass, input.peculiarities ?? '')
     }
 
-    const claim = await ReviewClaim.findOne({ where: { spectrumId, userId: user.id }, transaction })
+    const held = await ReviewClaim.findByPk(spectrumId, { transaction })
+    if (!correcting && held && held.userId !== user.id && held.expiresAt > now) {
+      throw new HttpError(409, 'claimed', `Someone else is working on this spectrum until ${held.expiresAt.toISOString()}; try again after that.`, { expiresAt: held.expiresAt.toISOString() })
+    }
+    const claim = held && held.userId === user.id ? held : null
     const seconds = input.secondsSpent ?? (claim ? Math.max(0, Math.round((now.getTime() - claim.claimedAt.getTime()) / 1000)) : null)
     let call: ReviewCall
     try {

@@ -40,3 +40,8 @@ export const nextQueueItem = async (filters: QueueFilters, after?: number): Prom
 
 export const claimQueueItem = async (spectrumId: number): Promise<ClaimView> =>
   (await http.post<{ claim: ClaimView }>(`/queue/${spectrumId}/claim`)).claim
+
+/** Gives the item back to the queue (releasing a claim one does not hold changes nothing). */
+export const releaseQueueItem = async (spectrumId: number): Promise<void> => {
+  await http.delete(`/queue/${spectrumId}/claim`)
+}

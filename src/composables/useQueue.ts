@@ -40,11 +40,13 @@ export function useQueue(initial: QueueFilters = savedQueueFilters()) {
 }
 
 /**
- * Claims the item after `currentId` in the saved queue order and returns its id; null when nothing
- * is left. An item another classifier claims first is skipped.
+ * Claims the item after `currentId` in the saved queue order and filters, within `campaignId` when
+ * given (the campaign being worked), and returns its id; null when nothing is left. An item another
+ * classifier claims first is skipped.
  */
-export async function claimNext(currentId: number | null): Promise<number | null> {
-  const filters = savedQueueFilters()
+export async function claimNext(currentId: number | null, campaignId?: number): Promise<number | null> {
+  const saved = savedQueueFilters()
+  const filters = campaignId === undefined || saved.campaign !== undefined ? saved : { ...saved, campaign: campaignId }
   let after = currentId ?? undefined
   for (let tries = 0; tries < 20; tries++) {
     const item = await nextQueueItem(filters, after)

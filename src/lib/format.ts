@@ -20,3 +20,13 @@ export function formatRelative(iso: string | null | undefined, now: Date = new D
   if (abs < 7 * 86400) return rtf.format(Math.round(seconds / 86400), 'day')
   return formatDateTime(iso)
 }
+
+const clock = new Intl.DateTimeFormat('en-GB', { timeStyle: 'short' })
+
+/** "21:40" for a time today in the viewer's zone, else the full date and time. */
+export function formatClock(iso: string | null | undefined, now: Date = new Date()): string {
+  if (!iso) return '—'
+  const d = new Date(iso)
+  if (Number.isNaN(d.getTime())) return '—'
+  return d.toDateString() === now.toDateString() ? clock.format(d) : formatDateTime(iso)
+}

@@ -1,7 +1,6 @@
 import { mount } from '@vue/test-utils'
 import { describe, expect, it } from 'vitest'
 import type { SuggestionView } from '@/api/calls'
-import ReviewKeyLegend from '@/components/ReviewKeyLegend.vue'
 import ReviewSuggestionCard from '@/components/ReviewSuggestionCard.vue'
 import SuggestionVotesTable from '@/components/SuggestionVotesTable.vue'
 
@@ -56,10 +55,5 @@ describe('blind review', () => {
     expect(row.text()).toContain('Hγ and Hδ wing depth')
     expect(row.text()).toContain('III')
     expect(row.text()).toContain('standards: III 0.110 · V 0.200')
-  })
-
-  it('draws the key legend from the key table', () => {
-    const text = mount(ReviewKeyLegend).get('[data-testid="key-legend"]').text()
-    for (const words of ['accept the suggestion', 'next spectrum in the queue', 'previous / next overlay', 'leave the field', 'zoom to a classic region']) expect(text).toContain(words)
   })
 })
