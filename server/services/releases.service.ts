@@ -1,4 +1,5 @@
 import { Op, type Transaction } from 'sequelize'
+import { agreementLabel, decisionLabel } from '../../shared/decision'
 import type { DerivedParameters } from '../../shared/derived'
 import { CATALOGUE_COLUMNS, CATALOGUE_NOTES, isoTimestamp, writeTable, type ExportColumn, type ExportFormat, type ExportRow, type ExportTable, type TableParam } from '../exports'
 import { HttpError, notFound } from '../lib/http-error'
@@ -27,9 +28,7 @@ export interface CatalogueSources {
 
 /** How a decision came about, in the words of the catalogue. */
 export function decisionText(c: Pick<Classification, 'source' | 'nCalls'>): string {
-  if (c.source === 'settled') return 'settled by lead'
-  if (c.source === 'accepted-suggestion') return 'accepted suggestion'
-  return `consensus of ${c.nCalls}`
+  return decisionLabel(c)
 }
 
 const num = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? null : v)
@@ -76,7 +75,7 @@ export function catalogueRow(src: CatalogueSources): ExportRow {
     Decision: decisionText(c),
     DecidedBy: src.decidedBy.length ? src.decidedBy.join('; ') : null,
     Ncalls: c.nCalls,
-    Agreement: c.agreement,
+    Agreement: agreementLabel(c),
     LibVer: src.libraryVersion,
     PipeVer: src.suggestion?.pipelineVersion ?? m?.pipelineVersion ?? null,
     SNR: num(m?.snr ?? s.snr),
