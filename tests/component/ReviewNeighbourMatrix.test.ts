@@ -1,7 +1,7 @@
 import { mount } from '@vue/test-utils'
 import { describe, expect, it } from 'vitest'
 import ReviewNeighbourMatrix, { type NeighbourTile } from '@/components/ReviewNeighbourMatrix.vue'
-import { compareInRegion, moveCursor, neighbourCells, niceCeil, rectifiedSigma, sharedScale } from '@/lib/neighbourMatrix'
+import { compareInRegion, moveCursor, neighbourCells, niceCeil, rectifiedSigma, sharedScale, type MatrixPosition } from '@/lib/neighbourMatrix'
 import type { OverlayStandard } from '@/lib/reviewOverlay'
 
 // A 3 × 3 patch of a grid (B7–B9 × III–V) with one corner missing (no B9 V), and a lone A0 V.
@@ -111,7 +111,7 @@ describe('scales', () => {
 describe('ReviewNeighbourMatrix', () => {
   const comparison = (chi2: number) => ({ wavelength: [4000, 4050, 4100], values: [0, 0.02, -0.01], reducedChi2: chi2, pixels: 3 })
   const tiles: NeighbourTile[] = neighbourCells(grid, byId(5)).map((c, i) => ({ ...c, comparison: c.standard ? comparison(1 + i) : null }))
-  const mountMatrix = (cursor = { row: 0, col: 0 } as const) =>
+  const mountMatrix = (cursor: MatrixPosition = { row: 0, col: 0 }) =>
     mount(ReviewNeighbourMatrix, { props: { tiles, cursor, pickedId: 5, scale: 0.05, mode: 'difference', region: [4000, 4100] } })
 
   it('draws nine tiles, each standard with its χ², its axis and a curve', () => {
