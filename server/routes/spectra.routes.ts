@@ -7,6 +7,7 @@ import { boundedUpload } from '../middleware/body-limit'
 import { idParams } from '../schemas/common'
 import { dataQuery, listQuery, spectrumMetadata, submitBody } from '../schemas/spectra.schemas'
 import { getPreparedSeries, measurementsOf, requeueSpectrum } from '../services/measurements.service'
+import { liveStatus } from '../services/status.service'
 import { visibleSuggestionsOf } from '../services/suggestions.service'
 import { getRawFile, getSpectrumDetail, getSpectrumSeries, listSpectra, submitFiles, updateSpectrumMetadata } from '../services/spectra.service'
 import { SUBMITTERS, defineRoutes } from './route'
@@ -17,6 +18,15 @@ export function spectraRoutes(ctx: AppContext) {
     limits: { fileSize: ctx.config.UPLOAD_MAX_BYTES, files: ctx.config.UPLOAD_MAX_FILES, fields: 40, fieldSize: 64 * 1024, parts: ctx.config.UPLOAD_MAX_FILES + 40 },
   })
   return defineRoutes([
+    {
+      method: 'get',
+      path: '/spectra/:id/status',
+      access: 'signed-in',
+      schema: { params: idParams },
+      handler: async (req, res) => {
+        res.json(await liveStatus(currentUser(req), res.locals.params.id))
+      },
+    },
     {
       method: 'post',
       path: '/spectra',
