@@ -67,7 +67,7 @@ export function familiesForType(typeCode: number | null | undefined): LineFamily
   if (typeCode == null || !Number.isFinite(typeCode)) return ['balmer', 'helium', 'metal', 'band']
   const out: LineFamily[] = []
   if (typeCode < 50) out.push('balmer')
-  if (typeCode < 22) out.push('helium')
+  if (typeCode < 20) out.push('helium')
   if (typeCode >= 15) out.push('metal')
   if (typeCode >= 35) out.push('band')
   return out
