@@ -1,6 +1,7 @@
 import { computed, reactive, ref, shallowRef } from 'vue'
 import { ApiError, messageOf } from '@/api/http'
 import { uploadSpectrumFile, type FileResult, type SubmitFields, type UploadHandle } from '@/api/spectra'
+import type { RefusedEntry } from '@/lib/refusedLog'
 import { coordinateError, type MetadataDraft } from '@/lib/spectrumMetadata'
 
 /** The batch form as the person fills it in; empty means "take it from the file". */
@@ -150,7 +151,7 @@ let keySeq = 0
  * One bad file never stops the others; an error about the form itself (a 422 with field messages,
  * a campaign one may not submit to) stops the batch and is shown on the form.
  */
-export function useSubmit(options: { parallel?: number } = {}) {
+export function useSubmit(options: { parallel?: number; onRefused?: (entries: RefusedEntry[]) => void } = {}) {
   const parallel = options.parallel ?? 3
   const items = ref<UploadItem[]>([])
   const running = ref(false)
@@ -210,6 +211,8 @@ export function useSubmit(options: { parallel?: number } = {}) {
           item.results = reply.results
           item.progress = 1
           item.status = 'done'
+          const refused = reply.results.flatMap((r) => (r.outcome === 'refused' ? [{ at: new Date().toISOString(), file: r.file, kind: 'refused' as const, code: r.code, message: r.message, campaignId: fields.campaignId ?? null }] : []))
+          if (refused.length > 0) options.onRefused?.(refused)
         } catch (e) {
           const err = e instanceof ApiError ? e : new ApiError(0, 'client_error', messageOf(e))
           if (isBatchError(err)) {
@@ -221,6 +224,7 @@ export function useSubmit(options: { parallel?: number } = {}) {
           } else {
             item.status = 'failed'
             item.error = { status: err.status, code: err.status === 0 ? 'network' : err.status === 413 ? 'too_large' : err.code, message: err.message }
+            options.onRefused?.([{ at: new Date().toISOString(), file: item.file.name, kind: 'not sent', code: item.error.code, message: err.message, campaignId: fields.campaignId ?? null }])
           }
         } finally {
           handles.value.delete(item.key)
