@@ -1,4 +1,4 @@
-import { Op, type WhereOptions } from 'sequelize'
+import { Op, QueryTypes, type WhereOptions } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError, forbidden, notFound } from '../lib/http-error'
 import { Campaign, CampaignMember, Spectrum, User } from '../models'
@@ -27,8 +27,16 @@ export async function progressOf(campaignIds: number[]): Promise<Map<number, Cam
   const out = new Map<number, CampaignProgress>()
   if (campaignIds.length === 0) return out
   const rows = (await Spectrum.count({ where: { campaignId: { [Op.in]: campaignIds } }, group: ['campaignId', 'status'] })) as unknown as { campaignId: number; status: string; count: number }[]
-  for (const id of campaignIds) out.set(id, { total: 0, processing: 0, waiting: 0, underReview: 0, agreed: 0, disputed: 0, settled: 0, failed: 0 })
-  const KEY: Record<string, keyof CampaignProgress> = { received: 'processing', measured: 'processing', suggested: 'waiting', under_review: 'underReview', agreed: 'agreed', disputed: 'disputed', settled: 'settled', failed: 'failed' }
+  for (const id of campaignIds) out.set(id, { total: 0, processing: 0, waiting: 0, underReview: 0, agreed: 0, disputed: 0, settled: 0, failed: 0, calls: 0 })
+  const calls = await Campaign.sequelize!.query<{ campaignId: number; n: number }>(
+    'SELECT sp.campaign_id AS campaignId, COUNT(*) AS n FROM review_calls rc JOIN spectra sp ON sp.id = rc.spectrum_id WHERE sp.campaign_id IN (:ids) GROUP BY sp.campaign_id',
+    { replacements: { ids: campaignIds }, type: QueryTypes.SELECT },
+  )
+  for (const c of calls) {
+    const p = out.get(Number(c.campaignId))
+    if (p) p.calls = Number(c.n)
+  }
+  const KEY: Record<string, keyof Omit<CampaignProgress, 'calls' | 'total'>> = { received: 'processing', measured: 'processing', suggested: 'waiting', under_review: 'underReview', agreed: 'agreed', disputed: 'disputed', settled: 'settled', failed: 'failed' }
   for (const r of rows) {
     const p = out.get(Number(r.campaignId))
     const k = KEY[r.status]

@@ -31,6 +31,8 @@ export interface CampaignProgress {
   disputed: number
   settled: number
   failed: number
+  /** Calls recorded on the campaign's spectra, corrections included. */
+  calls: number
 }
 
 /** One spectrum of a campaign on the HR diagram: derived log L against log Teff. */
