@@ -44,9 +44,9 @@ export interface NamedRegion {
 export const NAMED_REGIONS: readonly NamedRegion[] = [
   { id: 'violet', name: 'Violet end', lines: 'H8 · Ca II K and H · Hε', region: [3860, 4000] },
   { id: 'delta', name: 'Around Hδ', lines: 'He I 4026 · Sr II 4077 · Si IV · Hδ · He I 4144', region: [4000, 4180] },
-  { id: 'gamma', name: 'Hγ and the G band', lines: 'Ca I 4226 · G band · Hγ · He I 4388', region: [4200, 4400] },
-  { id: 'helium', name: 'Helium and magnesium', lines: 'He I 4471 · Mg II 4481 · He II 4542 · Si III 4553', region: [4420, 4580] },
-  { id: 'beta', name: 'He II 4686 to Hβ', lines: 'He II 4686 · TiO 4762 · MgH · Hβ', region: [4660, 4940] },
+  { id: 'gamma', name: 'Hγ, G band', lines: 'Ca I 4226 · G band · Hγ · He I 4388', region: [4200, 4400] },
+  { id: 'helium', name: 'He I, Mg II', lines: 'He I 4471 · Mg II 4481 · He II 4542 · Si III 4553', region: [4420, 4580] },
+  { id: 'beta', name: 'He II 4686, Hβ', lines: 'He II 4686 · TiO 4762 · MgH · Hβ', region: [4660, 4940] },
   { id: 'green', name: 'Green bands', lines: 'TiO 4954 · Mg b · TiO 5167', region: [4940, 5220] },
 ]
 
