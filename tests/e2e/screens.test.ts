@@ -22,7 +22,7 @@ afterAll(async () => {
 
 /** The screens each role opens from the navigation, plus one of each detail screen. */
 async function screensOf(page: Page, who: Who): Promise<string[]> {
-  const nav = await page.locator('[data-testid^="nav-"]').evaluateAll((els) => els.map((e) => (e as HTMLAnchorElement).getAttribute('href')).filter((h): h is string => !!h))
+  const nav = await page.locator('[data-testid^="nav-"]').evaluateAll((els) => els.map((e) => e.getAttribute('href')).filter((h): h is string => !!h))
   const extra: string[] = []
   const spectra = (await (await page.request.get(`${baseUrl}/api/spectra?pageSize=5`)).json()) as { items: { id: number }[] }
   if (spectra.items[0]) extra.push(`/spectra/${spectra.items[0].id}`)
@@ -50,7 +50,7 @@ describe('every screen, light and dark', () => {
       const paths = await screensOf(page, who)
       expect(paths.length).toBeGreaterThan(2)
       for (const theme of ['light', 'dark'] as const) {
-        await page.evaluate((t) => localStorage.setItem('lineweight.theme', t), theme)
+        await page.evaluate(`localStorage.setItem('lineweight.theme', '${theme}')`)
         for (const path of paths) {
           await page.goto(`${baseUrl}${path}`)
           await page.waitForLoadState('networkidle')
@@ -60,7 +60,7 @@ describe('every screen, light and dark', () => {
           await screenshot(page, `screens-${who}-${path.replace(/^\//, '').replace(/[^a-z0-9]+/gi, '-') || 'home'}-${theme}`)
         }
       }
-      await page.evaluate(() => localStorage.removeItem('lineweight.theme'))
+      await page.evaluate("localStorage.removeItem('lineweight.theme')")
     })
   }
 
