@@ -56,4 +56,12 @@ describe('blind review', () => {
     expect(row.text()).toContain('III')
     expect(row.text()).toContain('standards: III 0.110 · V 0.200')
   })
+
+  it('says why when the suggestion is not the nearest single standard', () => {
+    const between = { ...suggestion, spectralType: 'B8.5 III', candidates: [{ standardId: 41, spectralType: 'B9 III', reducedChi2: 1.1, probability: 0.6 }] }
+    const wrapper = mount(ReviewSuggestionCard, { props: { suggestion: between, hidden: false, overlayId: null } })
+    expect(wrapper.get('[data-testid="suggestion-why"]').text()).toContain('The nearest single standard is B9 III')
+    const same = mount(ReviewSuggestionCard, { props: { suggestion, hidden: false, overlayId: null } })
+    expect(same.find('[data-testid="suggestion-why"]').exists()).toBe(false)
+  })
 })

@@ -74,3 +74,11 @@ describe('plot defaults', () => {
     expect(regionsWithin(4300, 4600).map((r) => r.id)).toEqual(['helium'])
   })
 })
+
+describe('review series', () => {
+  it('asks for every pixel of the library grid, so zoomed plots never show decimation steps', async () => {
+    const { LIBRARY_GRID_POINTS } = await import('@/api/reviewSeries')
+    const { DEFAULT_GRID } = await import('@shared/grid')
+    expect(LIBRARY_GRID_POINTS).toBeGreaterThanOrEqual(DEFAULT_GRID.length)
+  })
+})
