@@ -2,7 +2,7 @@
 import { mkdtempSync, rmSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
-import { bin, ensureDatabase, ensureDebianPackages, ensureNodeModules, log, run, startMariaDB } from './lib/setup.mjs'
+import { bin, ensureDatabase, ensureDebianPackages, ensureNodeModules, ensurePythonModules, log, run, startMariaDB } from './lib/setup.mjs'
 
 const env = { ...process.env }
 env.NODE_ENV = 'test'
@@ -18,6 +18,8 @@ env.BCRYPT_ROUNDS = '4'
 
 ensureNodeModules()
 ensureDebianPackages({ mariadbd: 'mariadb-server', mariadb: 'mariadb-client', chromium: 'chromium' })
+// The release read-backs run astropy through Debian's python3 (tests/reference/check_exports.py).
+ensurePythonModules({ astropy: 'python3-astropy' })
 
 const dir = mkdtempSync(join(tmpdir(), 'lineweight-test-'))
 env.STORAGE_DIR = join(dir, 'files')

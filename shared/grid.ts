@@ -50,3 +50,9 @@ export function gridIndex(grid: LogGrid, wavelength: number): number {
 
 /** Classification region used by default when a campaign sets none, Å (air). */
 export const DEFAULT_CLASSIFICATION_REGION: readonly [number, number] = [3850, 5000]
+
+/**
+ * Bounds of a campaign's classification region, Å: the optical range the file readers accept
+ * (OPTICAL_LIMITS of server/spectra/io/finalize.ts; a test keeps the two equal).
+ */
+export const CAMPAIGN_REGION_LIMITS: readonly [number, number] = [3000, 11000]

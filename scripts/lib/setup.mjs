@@ -50,6 +50,20 @@ export function ensureDebianPackages(wanted) {
   run(sudo[0] ?? 'apt-get', [...(sudo.length ? ['apt-get'] : []), 'install', '-y', '-q', '--no-install-recommends', ...missing], { env })
 }
 
+/**
+ * Installs the Debian packages of Python modules that Debian's /usr/bin/python3 cannot import:
+ * { module: package }, e.g. { astropy: 'python3-astropy' } for the reference read-backs.
+ */
+export function ensurePythonModules(wanted) {
+  const python = '/usr/bin/python3'
+  const missing = Object.entries(wanted)
+    .filter(([module]) => !existsSync(python) || spawnSync(python, ['-c', `import ${module}`], { stdio: 'ignore' }).status !== 0)
+    .map(([, pkg]) => pkg)
+  if (missing.length === 0) return
+  const probe = Object.fromEntries(missing.map((pkg) => [`__lineweight_missing_${pkg.replace(/[^a-z0-9]/g, '_')}`, pkg]))
+  ensureDebianPackages(probe)
+}
+
 const sleep = (ms) => new Promise((r) => setTimeout(r, ms))
 
 /**

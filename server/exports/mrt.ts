@@ -132,6 +132,7 @@ export function writeFixedWidth(table: ExportTable, dataName = `${table.name}.da
     `${table.name.padEnd(20)} ${toAscii(table.title)}`.slice(0, 80).trimEnd(),
     DOUBLE_RULE,
     ...wrap(table.title, ''),
+    ...(table.authors ? wrap(table.authors, '    ') : []),
     `    Lineweight catalogue release, frozen ${table.date} UTC`,
     DOUBLE_RULE,
     'Description:',
@@ -157,7 +158,7 @@ export function writeFixedWidth(table: ExportTable, dataName = `${table.name}.da
 
   const combined = [
     `Title: ${toAscii(table.title)}`,
-    `Authors: Lineweight catalogue release`,
+    `Authors: ${toAscii(table.authors || 'Lineweight catalogue release')}`,
     `Table: ${toAscii(table.description || table.title)}`.slice(0, 400),
     ...keywords.map((k) => k.replace(/^ {4}/, 'Keyword: ')),
     DOUBLE_RULE,

@@ -17,6 +17,8 @@ export interface ExportTable {
   name: string
   title: string
   description: string
+  /** Who to cite for the release, as the lead gave it ('' when not given). */
+  authors?: string
   /** ISO 8601 UTC time the table was frozen; writers use it instead of the clock, so bytes repeat. */
   date: string
   params: TableParam[]

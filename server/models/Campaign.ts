@@ -13,6 +13,8 @@ export class Campaign extends Model<InferAttributes<Campaign>, InferCreationAttr
   declare blindReview: CreationOptional<boolean>
   declare typeTolerance: CreationOptional<number>
   declare classTolerance: CreationOptional<number>
+  /** Optional target date (YYYY-MM-DD) for the campaign's review. */
+  declare deadline: CreationOptional<string | null>
   declare createdAt: CreationOptional<Date>
   declare updatedAt: CreationOptional<Date>
 
@@ -30,6 +32,7 @@ export class Campaign extends Model<InferAttributes<Campaign>, InferCreationAttr
         blindReview: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
         typeTolerance: { type: DataTypes.DOUBLE, allowNull: false, defaultValue: 1 },
         classTolerance: { type: DataTypes.DOUBLE, allowNull: false, defaultValue: 1 },
+        deadline: { type: DataTypes.DATEONLY, allowNull: true, defaultValue: null },
         createdAt: DataTypes.DATE(3),
         updatedAt: DataTypes.DATE(3),
       },

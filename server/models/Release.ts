@@ -11,6 +11,7 @@ export class Release extends Model<InferAttributes<Release>, InferCreationAttrib
   declare version: number
   declare title: string
   declare description: string
+  declare authors: CreationOptional<string>
   declare rowCount: number
   /** JSON ExportColumn[] */
   declare columns: string
@@ -30,6 +31,7 @@ export class Release extends Model<InferAttributes<Release>, InferCreationAttrib
         version: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
         title: { type: DataTypes.STRING(200), allowNull: false },
         description: { type: DataTypes.TEXT, allowNull: false },
+        authors: { type: DataTypes.STRING(500), allowNull: false, defaultValue: '' },
         rowCount: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
         columns: { type: DataTypes.TEXT('medium'), allowNull: false },
         params: { type: DataTypes.TEXT, allowNull: false },

@@ -119,6 +119,30 @@ export class Dispute extends Model<InferAttributes<Dispute>, InferCreationAttrib
   }
 }
 
+/** A lead's answer to a dispute other than settling it: another classifier's call, or the calls reopened. */
+export class DisputeAction extends Model<InferAttributes<DisputeAction>, InferCreationAttributes<DisputeAction>> {
+  declare id: CreationOptional<number>
+  declare disputeId: number
+  declare action: 'another-call' | 'reopened'
+  declare note: string
+  declare decidedBy: number
+  declare createdAt: CreationOptional<Date>
+
+  static initModel(sequelize: Sequelize): void {
+    DisputeAction.init(
+      {
+        id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+        disputeId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, unique: true },
+        action: { type: DataTypes.STRING(20), allowNull: false },
+        note: { type: DataTypes.TEXT, allowNull: false },
+        decidedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+        createdAt: DataTypes.DATE(3),
+      },
+      { sequelize, tableName: 'dispute_actions', updatedAt: false, hooks: writeOnce('Dispute actions') },
+    )
+  }
+}
+
 /** The decided classification of a spectrum; the latest row per spectrum wins. */
 export class Classification extends Model<InferAttributes<Classification>, InferCreationAttributes<Classification>> {
   declare id: CreationOptional<number>

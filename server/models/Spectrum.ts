@@ -8,6 +8,8 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
   declare batchId: string | null
   declare status: CreationOptional<SpectrumStatus>
   declare statusReason: string | null
+  /** Calls asked for beyond the campaign's number, when a lead sends a dispute to another classifier. */
+  declare extraCalls: CreationOptional<number>
   declare objectName: string
   declare raDeg: number | null
   declare decDeg: number | null
@@ -47,6 +49,7 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
         submittedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
         batchId: { type: DataTypes.CHAR(36), allowNull: true },
         status: { type: DataTypes.STRING(20), allowNull: false, defaultValue: 'received' },
+        extraCalls: { type: DataTypes.TINYINT.UNSIGNED, allowNull: false, defaultValue: 0 },
         statusReason: { type: DataTypes.TEXT, allowNull: true },
         objectName: { type: DataTypes.STRING(120), allowNull: false },
         raDeg: num(),

@@ -3,7 +3,7 @@ import { Campaign, CampaignMember } from './Campaign'
 import { MailMessage } from './MailMessage'
 import { LineMeasurementRow, Measurement, ProcessingJob } from './Measurement'
 import { Release, ReleaseRow } from './Release'
-import { Classification, Dispute, ReviewCall, ReviewClaim } from './Review'
+import { Classification, Dispute, DisputeAction, ReviewCall, ReviewClaim } from './Review'
 import { Session } from './Session'
 import { Spectrum, SpectrumBlob } from './Spectrum'
 import { LibraryVersion, LibraryVersionStandard, Standard, Suggestion } from './Standard'
@@ -13,14 +13,14 @@ import { UserToken } from './UserToken'
 export { LibraryVersion, LibraryVersionStandard, Standard, Suggestion }
 export { Campaign, CampaignMember, LineMeasurementRow, MailMessage, Measurement, ProcessingJob, Session, Spectrum, SpectrumBlob, User, UserToken }
 export type { JobStatus } from './Measurement'
-export { Classification, Dispute, ReviewCall, ReviewClaim }
+export { Classification, Dispute, DisputeAction, ReviewCall, ReviewClaim }
 export { Release, ReleaseRow }
 export type { Agreement, CallKind, ClassificationSource } from './Review'
 export type { TokenPurpose } from './UserToken'
 
 /** Registers every model and association on one connection. */
 export function initModels(sequelize: Sequelize): void {
-  for (const model of [User, UserToken, Session, MailMessage, Campaign, CampaignMember, Spectrum, SpectrumBlob, ProcessingJob, Measurement, LineMeasurementRow, LibraryVersion, Standard, LibraryVersionStandard, Suggestion, ReviewClaim, ReviewCall, Dispute, Classification, Release, ReleaseRow]) model.initModel(sequelize)
+  for (const model of [User, UserToken, Session, MailMessage, Campaign, CampaignMember, Spectrum, SpectrumBlob, ProcessingJob, Measurement, LineMeasurementRow, LibraryVersion, Standard, LibraryVersionStandard, Suggestion, ReviewClaim, ReviewCall, Dispute, DisputeAction, Classification, Release, ReleaseRow]) model.initModel(sequelize)
   UserToken.belongsTo(User, { foreignKey: 'userId', as: 'user' })
   Campaign.belongsToMany(User, { through: CampaignMember, foreignKey: 'campaignId', otherKey: 'userId', as: 'members' })
   Spectrum.belongsTo(Campaign, { foreignKey: 'campaignId', as: 'campaign' })

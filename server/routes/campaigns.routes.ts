@@ -3,6 +3,7 @@ import { currentUser } from '../middleware/auth'
 import { createCampaignBody, memberBody, memberParams, membersBody, updateCampaignBody } from '../schemas/campaigns.schemas'
 import { idParams } from '../schemas/common'
 import { addCampaignMember, createCampaign, getCampaign, listCampaignsFor, removeCampaignMember, setCampaignMembers, updateCampaign } from '../services/campaigns.service'
+import { hrDiagram } from '../services/hr.service'
 import { LEAD, defineRoutes } from './route'
 
 export function campaignRoutes(ctx: AppContext) {
@@ -31,6 +32,15 @@ export function campaignRoutes(ctx: AppContext) {
       schema: { params: idParams },
       handler: async (req, res) => {
         res.json({ campaign: await getCampaign(currentUser(req), res.locals.params.id) })
+      },
+    },
+    {
+      method: 'get',
+      path: '/campaigns/:id/hr',
+      access: LEAD,
+      schema: { params: idParams },
+      handler: async (_req, res) => {
+        res.json({ hr: await hrDiagram(res.locals.params.id) })
       },
     },
     {

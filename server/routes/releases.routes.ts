@@ -1,9 +1,9 @@
 import { currentUser } from '../middleware/auth'
 import { idParams } from '../schemas/common'
-import { createReleaseBody, downloadQuery, listReleasesQuery, releaseRowsQuery, supersedeReleaseBody } from '../schemas/releases.schemas'
+import { createReleaseBody, downloadQuery, listReleasesQuery, previewReleaseQuery, releaseRowsQuery, supersedeReleaseBody } from '../schemas/releases.schemas'
 import { derivedFor } from '../services/derived.service'
 import { suggestionHiddenFrom } from '../services/suggestions.service'
-import { createRelease, downloadRelease, getRelease, listReleases, supersedeRelease } from '../services/releases.service'
+import { createRelease, downloadRelease, getRelease, listReleases, previewRelease, supersedeRelease } from '../services/releases.service'
 import { findVisibleSpectrum } from '../services/spectra.service'
 import { LEAD, defineRoutes } from './route'
 
@@ -25,6 +25,15 @@ export function releaseRoutes() {
       schema: { body: createReleaseBody },
       handler: async (req, res) => {
         res.status(201).json({ release: await createRelease(currentUser(req), res.locals.body) })
+      },
+    },
+    {
+      method: 'get',
+      path: '/releases/preview',
+      access: LEAD,
+      schema: { query: previewReleaseQuery },
+      handler: async (_req, res) => {
+        res.json({ preview: await previewRelease(res.locals.query.campaign, res.locals.query.includeDecider) })
       },
     },
     {

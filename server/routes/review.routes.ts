@@ -1,8 +1,8 @@
 import type { AppContext } from '../context'
 import { currentUser } from '../middleware/auth'
 import { idParams } from '../schemas/common'
-import { callBody, disputesQuery, nextQuery, queueQuery, settleBody, spectrumIdParams } from '../schemas/review.schemas'
-import { getDispute, listDisputes, settleDispute } from '../services/disputes.service'
+import { callBody, disputeActionBody, disputesQuery, nextQuery, queueQuery, settleBody, spectrumIdParams } from '../schemas/review.schemas'
+import { answerDispute, getDispute, listDisputes, settleDispute } from '../services/disputes.service'
 import { historyOf } from '../services/history.service'
 import { claimSpectrum, listQueue, nextInQueue, releaseClaim } from '../services/queue.service'
 import { getReviewView, recordCall } from '../services/review.service'
@@ -103,6 +103,15 @@ export function reviewRoutes(ctx: AppContext) {
       schema: { params: idParams, body: settleBody },
       handler: async (req, res) => {
         res.json({ dispute: await settleDispute(ctx, currentUser(req), res.locals.params.id, res.locals.body) })
+      },
+    },
+    {
+      method: 'post',
+      path: '/disputes/:id/answer',
+      access: LEAD,
+      schema: { params: idParams, body: disputeActionBody },
+      handler: async (req, res) => {
+        res.json({ dispute: await answerDispute(currentUser(req), res.locals.params.id, res.locals.body) })
       },
     },
   ])

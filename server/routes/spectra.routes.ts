@@ -8,12 +8,22 @@ import { multipartToDisk, uploadSlots } from '../middleware/upload'
 import { idParams } from '../schemas/common'
 import { dataQuery, listQuery, spectrumMetadata, submitBody } from '../schemas/spectra.schemas'
 import { getPreparedSeries, measurementsOf, requeueSpectrum } from '../services/measurements.service'
+import { liveStatus } from '../services/status.service'
 import { visibleSuggestionsOf } from '../services/suggestions.service'
 import { getRawFile, getSpectrumDetail, getSpectrumSeries, listSpectra, submitFiles, updateSpectrumMetadata } from '../services/spectra.service'
 import { SUBMITTERS, defineRoutes } from './route'
 
 export function spectraRoutes(ctx: AppContext) {
   return defineRoutes([
+    {
+      method: 'get',
+      path: '/spectra/:id/status',
+      access: 'signed-in',
+      schema: { params: idParams },
+      handler: async (req, res) => {
+        res.json(await liveStatus(currentUser(req), res.locals.params.id))
+      },
+    },
     {
       method: 'post',
       path: '/spectra',

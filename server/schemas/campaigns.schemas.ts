@@ -1,8 +1,9 @@
 import { z } from 'zod'
+import { OPTICAL_LIMITS } from '../spectra/io/finalize'
 import { multiLine, singleLine } from './common'
 
-/** The classification region a campaign may choose, Å. */
-export const REGION_LIMITS = [3700, 7000] as const
+/** The classification region a campaign may choose, Å: the optical range the readers accept. */
+export const REGION_LIMITS = OPTICAL_LIMITS
 
 const regionEdge = z.number().min(REGION_LIMITS[0], `must be at least ${REGION_LIMITS[0]} Å`).max(REGION_LIMITS[1], `must be at most ${REGION_LIMITS[1]} Å`)
 
@@ -16,6 +17,11 @@ const rules = {
   blindReview: z.boolean(),
   typeTolerance: z.number().min(0, 'must be 0 or more subtypes').max(10, 'must be at most 10 subtypes'),
   classTolerance: z.number().min(0, 'must be 0 or more classes').max(3, 'must be at most 3 classes'),
+  deadline: z
+    .string()
+    .regex(/^\d{4}-\d{2}-\d{2}$/, 'must be a date, YYYY-MM-DD')
+    .refine((d) => !Number.isNaN(Date.parse(`${d}T00:00:00Z`)) && new Date(`${d}T00:00:00Z`).toISOString().startsWith(d), 'is not a calendar date')
+    .nullable(),
 }
 
 const regionOrdered = (v: { regionMin?: number; regionMax?: number }) => v.regionMin === undefined || v.regionMax === undefined || v.regionMin < v.regionMax
@@ -33,6 +39,7 @@ export const createCampaignBody = z
     blindReview: rules.blindReview.default(false),
     typeTolerance: rules.typeTolerance.default(1),
     classTolerance: rules.classTolerance.default(1),
+    deadline: rules.deadline.default(null),
   })
   .refine(regionOrdered, regionMessage)
 export type CreateCampaignInput = z.infer<typeof createCampaignBody>
@@ -48,6 +55,7 @@ export const updateCampaignBody = z
     blindReview: rules.blindReview.optional(),
     typeTolerance: rules.typeTolerance.optional(),
     classTolerance: rules.classTolerance.optional(),
+    deadline: rules.deadline.optional(),
   })
   .strict()
   .refine((v) => Object.keys(v).length > 0, 'nothing to change')

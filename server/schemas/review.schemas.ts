@@ -71,6 +71,11 @@ export const settleBody = z.object({
 })
 
 export const disputesQuery = z.object({
-  state: z.enum(['open', 'settled', 'all']).default('all'),
+  state: z.enum(['open', 'settled', 'another-call', 'reopened', 'all']).default('all'),
   campaign: z.preprocess(emptyToUndefined, z.coerce.number().int().positive().optional()),
+})
+
+export const disputeActionBody = z.object({
+  action: z.enum(['another-call', 'reopened']),
+  note: z.string().trim().min(1, 'say why').max(4000),
 })

@@ -1,11 +1,11 @@
-import { Op, type WhereOptions } from 'sequelize'
+import { Op, QueryTypes, type WhereOptions } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError, forbidden, notFound } from '../lib/http-error'
-import { Campaign, CampaignMember, User } from '../models'
+import { Campaign, CampaignMember, Spectrum, User } from '../models'
 import type { CreateCampaignInput, UpdateCampaignInput } from '../schemas/campaigns.schemas'
-import type { CampaignDetail, CampaignMemberSummary, CampaignSummary } from '../../shared/api/campaigns'
+import type { CampaignDetail, CampaignMemberSummary, CampaignProgress, CampaignSummary } from '../../shared/api/campaigns'
 
-export type { CampaignDetail, CampaignMemberSummary, CampaignSummary }
+export type { CampaignDetail, CampaignMemberSummary, CampaignProgress, CampaignSummary }
 
 export const toCampaignSummary = (c: Campaign): CampaignSummary => ({
   id: c.id,
@@ -19,7 +19,33 @@ export const toCampaignSummary = (c: Campaign): CampaignSummary => ({
   blindReview: c.blindReview,
   typeTolerance: c.typeTolerance,
   classTolerance: c.classTolerance,
+  deadline: c.deadline ?? null,
 })
+
+/** Spectra of each campaign counted by status. */
+export async function progressOf(campaignIds: number[]): Promise<Map<number, CampaignProgress>> {
+  const out = new Map<number, CampaignProgress>()
+  if (campaignIds.length === 0) return out
+  const rows = (await Spectrum.count({ where: { campaignId: { [Op.in]: campaignIds } }, group: ['campaignId', 'status'] })) as unknown as { campaignId: number; status: string; count: number }[]
+  for (const id of campaignIds) out.set(id, { total: 0, processing: 0, waiting: 0, underReview: 0, agreed: 0, disputed: 0, settled: 0, failed: 0, calls: 0 })
+  const calls = await Campaign.sequelize!.query<{ campaignId: number; n: number }>(
+    'SELECT sp.campaign_id AS campaignId, COUNT(*) AS n FROM review_calls rc JOIN spectra sp ON sp.id = rc.spectrum_id WHERE sp.campaign_id IN (:ids) GROUP BY sp.campaign_id',
+    { replacements: { ids: campaignIds }, type: QueryTypes.SELECT },
+  )
+  for (const c of calls) {
+    const p = out.get(Number(c.campaignId))
+    if (p) p.calls = Number(c.n)
+  }
+  const KEY: Record<string, keyof Omit<CampaignProgress, 'calls' | 'total'>> = { received: 'processing', measured: 'processing', suggested: 'waiting', under_review: 'underReview', agreed: 'agreed', disputed: 'disputed', settled: 'settled', failed: 'failed' }
+  for (const r of rows) {
+    const p = out.get(Number(r.campaignId))
+    const k = KEY[r.status]
+    if (!p || !k) continue
+    p[k] += Number(r.count)
+    p.total += Number(r.count)
+  }
+  return out
+}
 
 /** Campaign ids the user belongs to; leads belong to every campaign. */
 export async function campaignIdsOf(user: User): Promise<number[] | 'all'> {
@@ -31,7 +57,9 @@ export async function campaignIdsOf(user: User): Promise<number[] | 'all'> {
 export async function listCampaignsFor(user: User): Promise<CampaignSummary[]> {
   const ids = await campaignIdsOf(user)
   const where: WhereOptions<Campaign> = ids === 'all' ? {} : { id: { [Op.in]: ids } }
-  return (await Campaign.findAll({ where, order: [['name', 'ASC']] })).map(toCampaignSummary)
+  const campaigns = await Campaign.findAll({ where, order: [['name', 'ASC']] })
+  const progress = await progressOf(campaigns.map((c) => c.id))
+  return campaigns.map((c) => ({ ...toCampaignSummary(c), progress: progress.get(c.id)! }))
 }
 
 /** The campaign, if the user may submit into it. */
@@ -55,7 +83,8 @@ export async function getCampaign(user: User, id: number): Promise<CampaignDetai
   const campaign = await Campaign.findByPk(id)
   const ids = await campaignIdsOf(user)
   if (!campaign || (ids !== 'all' && !ids.includes(id))) throw notFound('The campaign')
-  return { ...toCampaignSummary(campaign), members: await membersOf(id, user), createdAt: campaign.createdAt.toISOString(), updatedAt: campaign.updatedAt.toISOString() }
+  const progress = (await progressOf([id])).get(id)!
+  return { ...toCampaignSummary(campaign), progress, members: await membersOf(id, user), createdAt: campaign.createdAt.toISOString(), updatedAt: campaign.updatedAt.toISOString() }
 }
 
 export async function createCampaign(lead: User, input: CreateCampaignInput): Promise<CampaignDetail> {
@@ -73,6 +102,7 @@ export async function createCampaign(lead: User, input: CreateCampaignInput): Pr
     blindReview: input.blindReview,
     typeTolerance: input.typeTolerance,
     classTolerance: input.classTolerance,
+    deadline: input.deadline ?? null,
   })
   if (campaign.regionMin >= campaign.regionMax) {
     await campaign.destroy()

@@ -1,23 +1,25 @@
 import { Op, UniqueConstraintError, type WhereOptions } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError, notFound } from '../lib/http-error'
-import { Campaign, Classification, Dispute, ReviewCall, Spectrum, Suggestion, type User } from '../models'
+import { Campaign, Classification, Dispute, DisputeAction, ReviewCall, Spectrum, Suggestion, type User } from '../models'
 import { namesOf, notifySubmitter, parseCallType, standingCalls, toCallView, toFinalClassification, toSuggestionView } from './review.service'
-import type { DisputeState, DisputeView, SettleInput } from '../../shared/api/disputes'
+import type { DisputeActionInput, DisputeState, DisputeView, SettleInput } from '../../shared/api/disputes'
 
-export type { DisputeState, DisputeView, SettleInput }
+export type { DisputeActionInput, DisputeState, DisputeView, SettleInput }
 
 async function disputeViews(disputes: Dispute[]): Promise<DisputeView[]> {
   if (disputes.length === 0) return []
   const spectrumIds = [...new Set(disputes.map((d) => d.spectrumId))]
-  const [spectra, campaigns, calls, settlements, suggestions] = await Promise.all([
+  const [spectra, campaigns, calls, settlements, suggestions, actions] = await Promise.all([
     Spectrum.findAll({ where: { id: { [Op.in]: spectrumIds } }, attributes: ['id', 'objectName', 'status', 'snr', 'createdAt'] }),
     Campaign.findAll({ where: { id: { [Op.in]: [...new Set(disputes.map((d) => d.campaignId))] } }, attributes: ['id', 'code', 'name'] }),
     ReviewCall.findAll({ where: { spectrumId: { [Op.in]: spectrumIds } }, order: [['id', 'ASC']] }),
     Classification.findAll({ where: { disputeId: { [Op.in]: disputes.map((d) => d.id) } } }),
     Suggestion.findAll({ where: { spectrumId: { [Op.in]: spectrumIds }, isCurrent: true }, order: [['id', 'ASC']] }),
+    DisputeAction.findAll({ where: { disputeId: { [Op.in]: disputes.map((d) => d.id) } } }),
   ])
-  const names = await namesOf([...calls.map((c) => c.userId), ...settlements.map((s) => s.decidedBy)])
+  const names = await namesOf([...calls.map((c) => c.userId), ...settlements.map((s) => s.decidedBy), ...actions.map((a) => a.decidedBy)])
+  const actionOf = new Map(actions.map((a) => [a.disputeId, a]))
   const spectrumOf = new Map(spectra.map((s) => [s.id, s]))
   const campaignOf = new Map(campaigns.map((c) => [c.id, c]))
   const settlementOf = new Map(settlements.map((s) => [s.disputeId!, s]))
@@ -29,9 +31,10 @@ async function disputeViews(disputes: Dispute[]): Promise<DisputeView[]> {
     const onSpectrum = calls.filter((k) => k.spectrumId === d.spectrumId)
     const settlement = settlementOf.get(d.id)
     const suggestion = suggestionOf.get(d.spectrumId)
+    const action = actionOf.get(d.id)
     return {
       id: d.id,
-      state: settlement ? 'settled' : 'open',
+      state: settlement ? 'settled' : action ? action.action : 'open',
       openedAt: d.createdAt.toISOString(),
       spectrum: { id: s.id, objectName: s.objectName, status: s.status, snr: s.snr, createdAt: s.createdAt.toISOString() },
       campaign: { id: d.campaignId, code: c?.code ?? '', name: c?.name ?? '' },
@@ -43,6 +46,7 @@ async function disputeViews(disputes: Dispute[]): Promise<DisputeView[]> {
       allCalls: onSpectrum.map((k) => toCallView(k, names)),
       suggestion: suggestion ? toSuggestionView(suggestion) : null,
       settlement: settlement ? toFinalClassification(settlement, names) : null,
+      action: action ? { kind: action.action, note: action.note, by: { id: action.decidedBy, name: names.get(action.decidedBy) ?? '' }, at: action.createdAt.toISOString() } : null,
     }
   })
 }
@@ -57,7 +61,7 @@ export async function listDisputes(q: DisputeQuery): Promise<{ disputes: Dispute
   const where: WhereOptions<Dispute> = q.campaign !== undefined ? { campaignId: q.campaign } : {}
   const views = await disputeViews(await Dispute.findAll({ where, order: [['id', 'ASC']] }))
   const filtered = q.state === 'all' ? views : views.filter((v) => v.state === q.state)
-  return { disputes: [...filtered.filter((v) => v.state === 'open'), ...filtered.filter((v) => v.state === 'settled').reverse()] }
+  return { disputes: [...filtered.filter((v) => v.state === 'open'), ...filtered.filter((v) => v.state !== 'open').reverse()] }
 }
 
 export async function getDispute(id: number): Promise<DisputeView> {
@@ -74,6 +78,7 @@ export async function settleDispute(ctx: Pick<AppContext, 'sequelize' | 'mailer'
   const spectrum = await ctx.sequelize.transaction(async (transaction) => {
     const s = await Spectrum.findByPk(dispute.spectrumId, { transaction, lock: transaction.LOCK.UPDATE, rejectOnEmpty: true })
     if (await Classification.count({ where: { disputeId }, transaction })) throw new HttpError(409, 'already_settled', 'This dispute is settled already.')
+    if (await DisputeAction.count({ where: { disputeId }, transaction })) throw new HttpError(409, 'already_answered', 'This dispute went back to the classifiers; it is not open any more.')
     if (s.status !== 'disputed') throw new HttpError(409, 'not_disputed', `The spectrum is ${s.status.replace('_', ' ')}, not disputed.`)
     const calls = standingCalls(await ReviewCall.findAll({ where: { spectrumId: s.id }, transaction }))
     const suggestion = await Suggestion.findOne({ where: { spectrumId: s.id, isCurrent: true }, order: [['id', 'DESC']], transaction })
@@ -112,4 +117,32 @@ export async function settleDispute(ctx: Pick<AppContext, 'sequelize' | 'mailer'
   const view = await getDispute(disputeId)
   await notifySubmitter(ctx, spectrum, view.settlement!)
   return view
+}
+
+/**
+ * A lead's other answers to a dispute. 'another-call' asks one more classifier (someone who has not
+ * called) for a call: the spectrum goes back to the queue needing one call more, and the calls are
+ * then judged by majority. 'reopened' gives the spectrum back to the classifiers who called, so they
+ * can correct their calls; a correction judges the calls again.
+ */
+export async function answerDispute(lead: User, disputeId: number, input: DisputeActionInput, now = new Date()): Promise<DisputeView> {
+  const dispute = await Dispute.findByPk(disputeId)
+  if (!dispute) throw notFound('The dispute')
+  await Dispute.sequelize!.transaction(async (transaction) => {
+    const s = await Spectrum.findByPk(dispute.spectrumId, { transaction, lock: transaction.LOCK.UPDATE, rejectOnEmpty: true })
+    if (await Classification.count({ where: { disputeId }, transaction })) throw new HttpError(409, 'already_settled', 'This dispute is settled already.')
+    if (s.status !== 'disputed') throw new HttpError(409, 'not_disputed', `The spectrum is ${s.status.replace('_', ' ')}, not disputed.`)
+    try {
+      await DisputeAction.create({ disputeId, action: input.action, note: input.note, decidedBy: lead.id, createdAt: now }, { transaction })
+    } catch (error) {
+      if (error instanceof UniqueConstraintError) throw new HttpError(409, 'already_answered', 'This dispute has been answered already.')
+      throw error
+    }
+    if (input.action === 'another-call') {
+      await s.update({ status: 'under_review', statusReason: 'A lead asked another classifier for a call after the calls disagreed.', extraCalls: s.extraCalls + 1 }, { transaction })
+    } else {
+      await s.update({ status: 'under_review', statusReason: 'A lead reopened the calls: the classifiers who called can correct them.' }, { transaction })
+    }
+  })
+  return getDispute(disputeId)
 }

@@ -95,7 +95,7 @@ async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: Queue
 async function queueItems(user: User, ids: number[], now: Date): Promise<QueueItem[]> {
   if (ids.length === 0) return []
   const [spectra, suggestions, calls, claims] = await Promise.all([
-    Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status'] }),
+    Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status', 'extraCalls'] }),
     Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, order: [['id', 'ASC']] }),
     ReviewCall.findAll({ where: { spectrumId: { [Op.in]: ids } }, attributes: ['spectrumId', 'userId'] }),
     ReviewClaim.findAll({ where: { spectrumId: { [Op.in]: ids }, userId: user.id, expiresAt: { [Op.gt]: now } } }),
@@ -126,7 +126,7 @@ async function queueItems(user: User, ids: number[], now: Date): Promise<QueueIt
         createdAt: s.createdAt.toISOString(),
         status: s.status as QueueItem['status'],
         claim: claim ? { state: 'mine' as const, claimedAt: claim.claimedAt.toISOString(), expiresAt: claim.expiresAt.toISOString() } : { state: 'free' as const },
-        calls: { count: callers.get(id)?.size ?? 0, needed: campaign.callsRequired },
+        calls: { count: callers.get(id)?.size ?? 0, needed: campaign.callsRequired + s.extraCalls },
         suggestion: suggestion && !hidden ? toSuggestionView(suggestion) : null,
         hidden: hidden && suggestion !== null,
       },

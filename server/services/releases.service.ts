@@ -1,13 +1,15 @@
 import { Op, type Transaction, type WhereOptions } from 'sequelize'
+import { agreementLabel, decisionLabel } from '../../shared/decision'
+import { decimalsForUncertainty, roundToUncertainty } from '../../shared/rounding'
 import type { DerivedParameters } from '../../shared/derived'
 import { CATALOGUE_COLUMNS, CATALOGUE_NOTES, isoTimestamp, writeTable, type ExportColumn, type ExportFormat, type ExportRow, type ExportTable, type TableParam } from '../exports'
 import { HttpError, notFound } from '../lib/http-error'
 import { Campaign, Classification, LibraryVersion, Measurement, Release, ReleaseRow, ReviewCall, Spectrum, Suggestion, User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
 import { decisionUncertainty, estimatesFor, observerInputs } from './derived.service'
-import type { ReleaseDetail, ReleaseSummary } from '../../shared/api/releases'
+import type { ReleaseDetail, ReleasePreview, ReleaseSummary } from '../../shared/api/releases'
 
-export type { ReleaseDetail, ReleaseSummary }
+export type { ReleaseDetail, ReleasePreview, ReleaseSummary }
 
 /** Spectra in these states have a decided classification and go into a release. */
 export const RELEASED_STATUSES = ['agreed', 'settled'] as const
@@ -17,9 +19,10 @@ export const RELEASED_STATUSES = ['agreed', 'settled'] as const
 // ---------------------------------------------------------------------------------------------
 
 export interface CatalogueSources {
-  spectrum: Pick<Spectrum, 'id' | 'objectName' | 'raDeg' | 'decDeg' | 'obsDate' | 'snr' | 'vMag' | 'ebv' | 'parallaxMas' | 'parallaxErrorMas'>
+  spectrum: Pick<Spectrum, 'id' | 'objectName' | 'raDeg' | 'decDeg' | 'obsDate' | 'snr' | 'vMag' | 'ebv' | 'parallaxMas' | 'parallaxErrorMas'> &
+    Partial<Pick<Spectrum, 'instrument' | 'resolvingPower' | 'wlMin' | 'wlMax' | 'fileName'>>
   classification: Pick<Classification, 'source' | 'spectralType' | 'typeCode' | 'luminosityClass' | 'classCode' | 'peculiarities' | 'nCalls' | 'agreement' | 'typeSpread' | 'classSpread'>
-  suggestion: Pick<Suggestion, 'pipelineVersion' | 'uncertaintySubtypes' | 'uncertaintyClasses'> | null
+  suggestion: (Pick<Suggestion, 'pipelineVersion' | 'uncertaintySubtypes' | 'uncertaintyClasses'> & Partial<Pick<Suggestion, 'spectralType'>>) | null
   libraryVersion: string | null
   measurement: Pick<Measurement, 'snr' | 'rv' | 'rvError' | 'pipelineVersion'> | null
   /** The settling lead, or the classifiers whose calls the decision rests on. */
@@ -28,12 +31,46 @@ export interface CatalogueSources {
 
 /** How a decision came about, in the words of the catalogue. */
 export function decisionText(c: Pick<Classification, 'source' | 'nCalls'>): string {
-  if (c.source === 'settled') return 'settled by lead'
-  if (c.source === 'accepted-suggestion') return 'accepted suggestion'
-  return `consensus of ${c.nCalls}`
+  return decisionLabel(c)
 }
 
 const num = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? null : v)
+
+/** Modified Julian Date of a moment: days since 1858-11-17T00:00 UTC (MJD 40587 is 1970-01-01). */
+export function modifiedJulianDate(d: Date): number {
+  return d.getTime() / 86_400_000 + 40_587
+}
+
+/** Pairs of a value column and its uncertainty, rounded together as tables are written. */
+const UNCERTAIN_PAIRS: readonly [string, string][] = [
+  ['TypeCode', 'e_TypeCode'],
+  ['ClassCode', 'e_ClassCode'],
+  ['RV', 'e_RV'],
+  ['Plx', 'e_Plx'],
+  ['Teff', 'e_Teff'],
+  ['MV', 'e_MV'],
+  ['Dist', 'e_Dist'],
+  ['DistPlx', 'e_DistPlx'],
+  ['Lum', 'e_Lum'],
+  ['Rad', 'e_Rad'],
+]
+
+/**
+ * Each value rounded to the decimal place of its uncertainty, and the uncertainty to two significant
+ * figures (common practice), so no file claims digits the measurement does not have.
+ */
+export function roundRowToUncertainty(row: ExportRow): ExportRow {
+  const out = { ...row }
+  for (const [value, error] of UNCERTAIN_PAIRS) {
+    const e = out[error]
+    if (typeof e !== 'number' || !(e > 0)) continue
+    const d = decimalsForUncertainty(e)!
+    out[error] = Number(e.toFixed(d))
+    const v = out[value]
+    if (typeof v === 'number') out[value] = roundToUncertainty(v, e)
+  }
+  return out
+}
 
 function derivedCells(d: DerivedParameters): ExportRow {
   if (!d.ok) return { DFlag: d.flag }
@@ -67,6 +104,7 @@ export function catalogueRow(src: CatalogueSources): ExportRow {
     RAdeg: num(s.raDeg),
     DEdeg: num(s.decDeg),
     ObsDate: s.obsDate ? isoTimestamp(s.obsDate) : null,
+    MJD: s.obsDate ? Number(modifiedJulianDate(s.obsDate).toFixed(6)) : null,
     SpType: c.spectralType,
     TypeCode: num(c.typeCode),
     LumClass: c.luminosityClass || null,
@@ -74,12 +112,18 @@ export function catalogueRow(src: CatalogueSources): ExportRow {
     e_TypeCode: u.type,
     e_ClassCode: u.class,
     Pec: peculiarities || null,
+    SugType: src.suggestion?.spectralType || null,
     Decision: decisionText(c),
     DecidedBy: src.decidedBy.length ? src.decidedBy.join('; ') : null,
     Ncalls: c.nCalls,
-    Agreement: c.agreement,
+    Agreement: agreementLabel(c),
     LibVer: src.libraryVersion,
     PipeVer: src.suggestion?.pipelineVersion ?? m?.pipelineVersion ?? null,
+    Instrument: s.instrument || null,
+    ResPower: num(s.resolvingPower),
+    WlMin: s.wlMin == null ? null : Number((s.wlMin / 10).toFixed(3)),
+    WlMax: s.wlMax == null ? null : Number((s.wlMax / 10).toFixed(3)),
+    FileName: s.fileName || null,
     SNR: num(m?.snr ?? s.snr),
     RV: num(m?.rv),
     e_RV: num(m?.rvError),
@@ -103,14 +147,14 @@ export function catalogueRow(src: CatalogueSources): ExportRow {
     DFlag: null,
     ...derivedCells(derived),
   }
-  return row
+  return roundRowToUncertainty(row)
 }
 
 /** Latest decided classification of each released spectrum of a campaign, with what its row needs. */
 async function gatherRows(campaignId: number, transaction: Transaction): Promise<Array<{ spectrumId: number; cells: ExportRow }>> {
   const spectra = await Spectrum.findAll({
     where: { campaignId, status: { [Op.in]: [...RELEASED_STATUSES] } },
-    attributes: ['id', 'objectName', 'raDeg', 'decDeg', 'obsDate', 'snr', 'vMag', 'ebv', 'parallaxMas', 'parallaxErrorMas'],
+    attributes: ['id', 'objectName', 'raDeg', 'decDeg', 'obsDate', 'snr', 'vMag', 'ebv', 'parallaxMas', 'parallaxErrorMas', 'instrument', 'resolvingPower', 'wlMin', 'wlMax', 'fileName'],
     order: [['id', 'ASC']],
     transaction,
   })
@@ -123,7 +167,7 @@ async function gatherRows(campaignId: number, transaction: Transaction): Promise
 
   const suggestions = await Suggestion.findAll({
     where: { [Op.or]: [{ id: { [Op.in]: [0, ...classifications.map((c) => c.suggestionId ?? 0)] } }, { spectrumId: { [Op.in]: ids }, isCurrent: true }] },
-    attributes: ['id', 'spectrumId', 'isCurrent', 'libraryVersionId', 'pipelineVersion', 'uncertaintySubtypes', 'uncertaintyClasses'],
+    attributes: ['id', 'spectrumId', 'isCurrent', 'libraryVersionId', 'pipelineVersion', 'uncertaintySubtypes', 'uncertaintyClasses', 'spectralType'],
     transaction,
   })
   const versions = new Map((await LibraryVersion.findAll({ attributes: ['id', 'name'], transaction })).map((v) => [v.id, v.name]))
@@ -176,12 +220,14 @@ async function summaries(releases: Release[]): Promise<ReleaseSummary[]> {
       version: r.version,
       title: r.title,
       description: r.description,
+      authors: r.authors,
       rows: r.rowCount,
       createdBy: { id: r.createdBy, name: users.get(r.createdBy) ?? '' },
       createdAt: r.createdAt.toISOString(),
       supersededBy: r.supersededBy ?? null,
       downloads: {
         csv: `/api/releases/${r.id}/download?format=csv`,
+        ecsv: `/api/releases/${r.id}/download?format=ecsv`,
         votable: `/api/releases/${r.id}/download?format=votable`,
         fits: `/api/releases/${r.id}/download?format=fits`,
         mrt: `/api/releases/${r.id}/download?format=mrt`,
@@ -194,6 +240,35 @@ export interface ReleaseInput {
   campaignId: number
   title: string
   description: string
+  /** Who to cite, as it goes into the ReadMe and the file headers. */
+  authors?: string
+  /** Whether the release names who decided each row (off for privacy). @default true */
+  includeDecider?: boolean
+}
+
+/** The catalogue's columns for a release: all of them, or all but the decider's name. */
+export function releaseColumns(includeDecider = true): ExportColumn[] {
+  return CATALOGUE_COLUMNS.filter((c) => includeDecider || c.name !== 'DecidedBy')
+}
+
+/** What freezing a campaign now would give: the row count, what is still open, and the columns. */
+export async function previewRelease(campaignId: number, includeDecider = true): Promise<ReleasePreview> {
+  const campaign = await Campaign.findByPk(campaignId)
+  if (!campaign) throw notFound('The campaign')
+  const rows = await Release.sequelize!.transaction((transaction) => gatherRows(campaign.id, transaction))
+  const counts = await Spectrum.count({ where: { campaignId }, group: ['status'] })
+  const byStatus = new Map(counts.map((c) => [String((c as unknown as { status: string }).status), Number(c.count)]))
+  const waiting = ['received', 'measured', 'suggested', 'under_review'].reduce((n, k) => n + (byStatus.get(k) ?? 0), 0)
+  const previous = await Release.findOne({ where: { campaignId }, order: [['version', 'DESC']] })
+  return {
+    campaign: { id: campaign.id, code: campaign.code, name: campaign.name },
+    version: (previous?.version ?? 0) + 1,
+    rows: rows.length,
+    waiting,
+    disputed: byStatus.get('disputed') ?? 0,
+    failed: byStatus.get('failed') ?? 0,
+    columns: releaseColumns(includeDecider).map((c) => ({ name: c.name, unit: c.unit, description: c.description })),
+  }
 }
 
 /**
@@ -211,7 +286,9 @@ export async function createRelease(user: User, input: ReleaseInput): Promise<Re
     if (rows.length === 0) throw new HttpError(409, 'nothing_to_release', 'No spectrum of this campaign is agreed or settled yet, so there is nothing to release.')
     const version = (previous?.version ?? 0) + 1
     const createdAt = new Date()
-    const cells = rows.map((r) => r.cells)
+    const columns = releaseColumns(input.includeDecider ?? true)
+    const keep = new Set(columns.map((c) => c.name))
+    const cells = rows.map((r) => Object.fromEntries(Object.entries(r.cells).filter(([k]) => keep.has(k))) as ExportRow)
     const params: TableParam[] = [
       { key: 'CAMPAIGN', name: 'campaign', value: campaign.code, description: 'campaign code', ucd: 'meta.id;meta.dataset' },
       { key: 'RELEASE', name: 'release', value: version, description: 'release version within the campaign', ucd: 'meta.version' },
@@ -225,8 +302,9 @@ export async function createRelease(user: User, input: ReleaseInput): Promise<Re
         version,
         title: input.title,
         description: input.description,
+        authors: input.authors ?? '',
         rowCount: rows.length,
-        columns: JSON.stringify(CATALOGUE_COLUMNS),
+        columns: JSON.stringify(columns),
         params: JSON.stringify(params),
         notes: JSON.stringify(CATALOGUE_NOTES),
         createdBy: user.id,
@@ -235,7 +313,7 @@ export async function createRelease(user: User, input: ReleaseInput): Promise<Re
       { transaction },
     )
     await ReleaseRow.bulkCreate(
-      rows.map((r, i) => ({ releaseId: created.id, position: i + 1, spectrumId: r.spectrumId, cells: JSON.stringify(r.cells) })),
+      rows.map((r, i) => ({ releaseId: created.id, position: i + 1, spectrumId: r.spectrumId, cells: JSON.stringify(cells[i]) })),
       { transaction },
     )
     if (previous && previous.supersededBy === null) await previous.update({ supersededBy: created.id }, { transaction })
@@ -299,6 +377,7 @@ export async function releaseTable(id: number): Promise<{ table: ExportTable; ca
       name: 'catalogue',
       title: release.title,
       description: release.description,
+      authors: release.authors,
       date: isoTimestamp(release.createdAt),
       params: JSON.parse(release.params) as TableParam[],
       columns: JSON.parse(release.columns) as ExportColumn[],
@@ -315,7 +394,8 @@ const safeName = (s: string) => s.replace(/[^A-Za-z0-9._-]+/g, '_').replace(/^_+
 export async function downloadRelease(user: User, id: number, format: ExportFormat): Promise<{ body: Buffer; contentType: string; fileName: string }> {
   await findVisibleRelease(user, id)
   const { table, campaignCode, version } = await releaseTable(id)
-  const file = writeTable(table, format)
-  const suffix = format === 'mrt' ? '_mrt' : ''
-  return { body: file.body, contentType: file.contentType, fileName: `${safeName(campaignCode)}_release-${version}${suffix}.${file.extension}` }
+  const stem = `${safeName(campaignCode)}_release-${version}`
+  const file = writeTable(table, format, stem)
+  const suffix = format === 'mrt' ? '_table' : ''
+  return { body: file.body, contentType: file.contentType, fileName: `${stem}${suffix}.${file.extension}` }
 }

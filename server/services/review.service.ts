@@ -149,6 +149,27 @@ export function judgeCalls(calls: JudgedCall[], rules: { typeTolerance: number; 
   }
 }
 
+/**
+ * Judges calls after a lead asked for more than the campaign's number: the largest group of calls
+ * that agree pairwise within the tolerance decides when it is a majority (more than half); the
+ * consensus is that group's, as {@link judgeCalls} forms it. Otherwise the calls are disputed again.
+ */
+export function judgeByMajority(calls: JudgedCall[], rules: { typeTolerance: number; classTolerance: number }, suggestion?: { typeCode: number; classCode: number } | null): Judgement {
+  const n = calls.length
+  if (n === 0) throw new RangeError('no calls to judge')
+  const fits = (a: JudgedCall, b: JudgedCall) => Math.abs(a.typeCode - b.typeCode) <= rules.typeTolerance + EPSILON && Math.abs(a.classCode - b.classCode) <= rules.classTolerance + EPSILON
+  let best: JudgedCall[] = []
+  // Few calls per spectrum (a handful at most): every subset is cheap to try.
+  for (let mask = 1; mask < 1 << Math.min(n, 12); mask++) {
+    const group = calls.filter((_, i) => (mask >> i) & 1)
+    if (group.length <= best.length) continue
+    if (group.every((a, i) => group.slice(i + 1).every((b) => fits(a, b)))) best = group
+  }
+  if (best.length * 2 > n) return judgeCalls(best, rules, suggestion)
+  const all = judgeCalls(calls, { typeTolerance: -1, classTolerance: -1 })
+  return { outcome: 'disputed', typeSpread: all.typeSpread, classSpread: all.classSpread }
+}
+
 // ---------------------------------------------------------------------------------------------
 // Views
 // ---------------------------------------------------------------------------------------------
@@ -172,6 +193,7 @@ export function toSuggestionView(s: Suggestion): SuggestionView {
     candidates: parseJson<unknown[]>(s.candidates, []),
     votes: parseJson<unknown>(s.votes, []),
     flags: suggestionFlags(s),
+    probabilities: parseJson<unknown[]>(s.probabilities, []),
     createdAt: s.createdAt.toISOString(),
   }
 }
@@ -324,7 +346,10 @@ export async function getReviewView(user: User, spectrumId: number, now = new Da
   const visibleRows = blind ? mine : rows
   const names = await namesOf([spectrum.submittedBy, ...visibleRows.map((r) => r.userId), claim?.userId ?? null])
   const standing = standingCalls(rows)
-  const refusal = callRefusal(user, spectrum, hasCalled)
+  const othersClaim = claim && claim.userId !== user.id && claim.expiresAt > now ? claim : null
+  const refusal =
+    callRefusal(user, spectrum, hasCalled) ??
+    (othersClaim ? { code: 'claimed', reason: `${names.get(othersClaim.userId) ?? 'Someone'} is working on this spectrum until ${othersClaim.expiresAt.toISOString()}; it is read-only for you until then.` } : null)
   const settled = dispute ? (await Classification.count({ where: { disputeId: dispute.id } })) > 0 : false
   const showClaim = claim && (claim.userId === user.id || claim.expiresAt > now)
   return {
@@ -352,7 +377,7 @@ export async function getReviewView(user: User, spectrumId: number, now = new Da
     calls: visibleRows.map((r) => toCallView(r, names)),
     othersHidden: blind,
     callsSoFar: standing.length,
-    callsRequired: campaign.callsRequired,
+    callsRequired: campaign.callsRequired + spectrum.extraCalls,
     myCall: hasCalled ? toCallView(mine[mine.length - 1]!, names) : null,
     canCall: { allowed: refusal === null, reason: refusal?.reason ?? null, code: refusal?.code ?? null },
     canCorrect: hasCalled && spectrum.status === 'under_review',
@@ -409,7 +434,11 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
       parsed = parseCallType(input.spectralType, input.luminosityClass, input.peculiarities ?? '')
     }
 
-    const claim = await ReviewClaim.findOne({ where: { spectrumId, userId: user.id }, transaction })
+    const held = await ReviewClaim.findByPk(spectrumId, { transaction })
+    if (!correcting && held && held.userId !== user.id && held.expiresAt > now) {
+      throw new HttpError(409, 'claimed', `Someone else is working on this spectrum until ${held.expiresAt.toISOString()}; try again after that.`, { expiresAt: held.expiresAt.toISOString() })
+    }
+    const claim = held && held.userId === user.id ? held : null
     const seconds = input.secondsSpent ?? (claim ? Math.max(0, Math.round((now.getTime() - claim.claimedAt.getTime()) / 1000)) : null)
     let call: ReviewCall
     try {
@@ -448,10 +477,11 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
     let outcome: RecordCallResult['outcome'] = 'waiting'
     let classification: Classification | null = null
     let dispute: Dispute | null = null
-    if (standing.length < campaign.callsRequired) {
+    const required = campaign.callsRequired + spectrum.extraCalls
+    if (standing.length < required) {
       if (spectrum.status !== 'under_review') await spectrum.update({ status: 'under_review', statusReason: null }, { transaction })
     } else {
-      const judged = judgeCalls(standing, campaign, suggestion)
+      const judged = spectrum.extraCalls > 0 ? judgeByMajority(standing, campaign, suggestion) : judgeCalls(standing, campaign, suggestion)
       if (judged.outcome === 'agreed') {
         outcome = 'agreed'
         const c = judged.consensus
@@ -501,7 +531,7 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
         )
       }
     }
-    return { spectrum, call, outcome, classification, dispute, callsSoFar: standing.length, callsRequired: campaign.callsRequired }
+    return { spectrum, call, outcome, classification, dispute, callsSoFar: standing.length, callsRequired: required }
   })
 
   const names = await namesOf([user.id])

@@ -1,7 +1,10 @@
 import type { SpectrumStatus } from '../status'
 import type { CallView, FinalClassification, SuggestionView } from './review'
 
-export type DisputeState = 'open' | 'settled'
+/** Open; settled by a lead; or answered by asking another classifier's call, or by reopening the calls. */
+export type DisputeState = 'open' | 'settled' | 'another-call' | 'reopened'
+
+export type DisputeActionKind = 'another-call' | 'reopened'
 
 /** A disputed spectrum with its calls side by side. */
 export interface DisputeView {
@@ -20,6 +23,14 @@ export interface DisputeView {
   allCalls: CallView[]
   suggestion: SuggestionView | null
   settlement: FinalClassification | null
+  /** The lead's answer when it was not a settlement. */
+  action: { kind: DisputeActionKind; note: string; by: { id: number; name: string }; at: string } | null
+}
+
+/** Asks one more classifier for a call, or reopens the calls so their authors can correct them. */
+export interface DisputeActionInput {
+  action: DisputeActionKind
+  note: string
 }
 
 /** A lead's settlement of a dispute. */

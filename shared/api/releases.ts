@@ -43,7 +43,8 @@ export interface TableParam {
   unit?: string
 }
 
-export type ExportFormat = 'csv' | 'votable' | 'fits' | 'mrt'
+/** csv: plain, one header line; ecsv: with units; mrt: the fixed-width table and its ReadMe in a zip. */
+export type ExportFormat = 'csv' | 'ecsv' | 'votable' | 'fits' | 'mrt'
 
 export interface ReleaseSummary {
   id: number
@@ -52,6 +53,7 @@ export interface ReleaseSummary {
   version: number
   title: string
   description: string
+  authors: string
   rows: number
   createdBy: { id: number; name: string }
   createdAt: string
@@ -71,4 +73,18 @@ export interface ReleaseDetail {
   total: number
   page: number
   pageSize: number
+}
+
+/** What freezing a campaign now would give, shown before a lead confirms. */
+export interface ReleasePreview {
+  campaign: { id: number; code: string; name: string }
+  /** The version number the release would get. */
+  version: number
+  /** Agreed or settled spectra: the rows. */
+  rows: number
+  /** Spectra of the campaign still being processed or waiting for calls. */
+  waiting: number
+  disputed: number
+  failed: number
+  columns: { name: string; unit: string; description: string }[]
 }

@@ -27,6 +27,8 @@ export interface SuggestionView {
   candidates: unknown[]
   votes: unknown
   flags: string[]
+  /** Probability of each (type, class) grid point, for the probability map (display only; stored JSON, read leniently). */
+  probabilities?: unknown[]
   createdAt: string
 }
 

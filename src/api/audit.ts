@@ -15,14 +15,16 @@ export interface CampaignChoice {
   id: number
   code: string
   name: string
+  /** Calls recorded in the campaign (the audit opens on the one with most). */
+  calls?: number
 }
 
 /** Below this many spectra the server marks a figure as a small sample. */
 export const SMALL_SAMPLE = 10
 
 export async function listCampaignChoices(): Promise<CampaignChoice[]> {
-  const body = await http.get<{ campaigns: CampaignChoice[] }>('/campaigns')
-  return body.campaigns.map((c) => ({ id: c.id, code: c.code, name: c.name }))
+  const body = await http.get<{ campaigns: (CampaignChoice & { progress?: { calls?: number } })[] }>('/campaigns')
+  return body.campaigns.map((c) => ({ id: c.id, code: c.code, name: c.name, calls: c.progress?.calls ?? 0 }))
 }
 
 export async function getAudit(query: AuditQuery): Promise<AuditReport> {

@@ -1,7 +1,7 @@
-import type { CampaignDetail, CampaignMemberSummary, CampaignSummary } from '@shared/api/campaigns'
+import type { CampaignDetail, CampaignMemberSummary, CampaignSummary, HrDiagram } from '@shared/api/campaigns'
 import { http } from './http'
 
-export type { CampaignDetail, CampaignSummary }
+export type { CampaignDetail, CampaignSummary, HrDiagram }
 export { listCampaigns } from './campaigns'
 export type CampaignMember = CampaignMemberSummary
 
@@ -21,3 +21,6 @@ export const updateCampaign = async (id: number, changes: Partial<CampaignRules>
 /** Replaces the campaign's people with exactly these users. */
 export const setCampaignMembers = async (id: number, userIds: number[]): Promise<CampaignDetail> =>
   (await http.put<{ campaign: CampaignDetail }>(`/campaigns/${id}/members`, { userIds })).campaign
+
+/** The campaign's HR diagram (leads). */
+export const getHrDiagram = async (id: number): Promise<HrDiagram> => (await http.get<{ hr: HrDiagram }>(`/campaigns/${id}/hr`)).hr

@@ -41,7 +41,7 @@ export const nextQueueItem = async (filters: QueueFilters, after?: number): Prom
 export const claimQueueItem = async (spectrumId: number): Promise<ClaimView> =>
   (await http.post<{ claim: ClaimView }>(`/queue/${spectrumId}/claim`)).claim
 
-/** Gives the item back to the queue (nothing happens when the caller holds no claim on it). */
+/** Gives the item back to the queue (releasing a claim one does not hold changes nothing). */
 export const releaseQueueItem = async (spectrumId: number): Promise<void> => {
   await http.delete<void>(`/queue/${spectrumId}/claim`)
 }

@@ -1,13 +1,14 @@
-import type { CellValue, ExportColumn, ExportFormat, ExportRow, ReleaseDetail as ReleasePage, ReleaseSummary, TableParam } from '@shared/api/releases'
+import type { CellValue, ExportColumn, ExportFormat, ExportRow, ReleaseDetail as ReleasePage, ReleasePreview, ReleaseSummary, TableParam } from '@shared/api/releases'
 import { http } from './http'
 
-export type { ReleaseSummary }
+export type { ReleasePreview, ReleaseSummary }
 
 export const DOWNLOAD_FORMATS = [
-  { format: 'csv', label: 'CSV', hint: 'Comma-separated, one header line' },
+  { format: 'csv', label: 'CSV', hint: 'Plain comma-separated values: one header line, numbers at their precision' },
+  { format: 'ecsv', label: 'ECSV', hint: 'CSV with a header of units, types and descriptions (astropy, TOPCAT)' },
   { format: 'votable', label: 'VOTable', hint: 'IVOA VOTable (XML)' },
   { format: 'fits', label: 'FITS', hint: 'FITS binary table' },
-  { format: 'mrt', label: 'Fixed-width + ReadMe', hint: 'Byte-by-byte description, as journals take it' },
+  { format: 'mrt', label: 'Fixed-width + ReadMe (zip)', hint: 'The data file and its byte-by-byte ReadMe, as journals and data centres take them' },
 ] as const satisfies readonly { format: ExportFormat; label: string; hint: string }[]
 
 export type DownloadFormat = ExportFormat
@@ -24,7 +25,14 @@ export interface FreezeInput {
   campaignId: number
   title: string
   description: string
+  authors?: string
+  /** Name who decided each row (off for privacy). */
+  includeDecider?: boolean
 }
+
+/** What freezing the campaign now would give. */
+export const previewRelease = async (campaignId: number, includeDecider: boolean): Promise<ReleasePreview> =>
+  (await http.get<{ preview: ReleasePreview }>('/releases/preview', { query: { campaign: campaignId, includeDecider: String(includeDecider) } })).preview
 
 /** The server pages rows at most this many at a time. */
 const PAGE = 200

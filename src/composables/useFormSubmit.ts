@@ -39,6 +39,11 @@ export function useFormSubmit() {
 /** "New password must be at least 10 characters." from the label and the server's field message. */
 export function fieldFeedback(label: string, message: string | undefined): string | undefined {
   if (!message) return undefined
+  // A message that is an instruction ("choose a campaign") is a sentence of its own.
+  if (!/^(is|are|must|has|have|was|were|does|do|can|cannot|should|needs?|may)\b/i.test(message)) {
+    const own = message.charAt(0).toUpperCase() + message.slice(1)
+    return /[.!?]$/.test(own) ? own : `${own}.`
+  }
   // "is not an e-mail address" under "E-mail address" reads better as "This is not an e-mail address."
   const subject = message.toLowerCase().includes(label.toLowerCase()) ? 'This' : label
   const sentence = `${subject} ${message}`

@@ -40,12 +40,14 @@ export function useQueue(initial: QueueFilters = savedQueueFilters()) {
 }
 
 /**
- * Claims the item after `currentId` in the saved queue order and returns its id; null when nothing
- * is left. The item being left is given back first, so a classifier holds only what they have open.
- * An item another classifier claims first is skipped.
+ * Claims the item after `currentId` in the saved queue order and filters, within `campaignId` when
+ * given (the campaign being worked), and returns its id; null when nothing is left. The item being
+ * left is given back first, so a classifier holds only what they have open. An item another
+ * classifier claims first is skipped.
  */
-export async function claimNext(currentId: number | null): Promise<number | null> {
-  const filters = savedQueueFilters()
+export async function claimNext(currentId: number | null, campaignId?: number): Promise<number | null> {
+  const saved = savedQueueFilters()
+  const filters = campaignId === undefined || saved.campaign !== undefined ? saved : { ...saved, campaign: campaignId }
   if (currentId !== null) await releaseQueueItem(currentId)
   let after = currentId ?? undefined
   for (let tries = 0; tries < 20; tries++) {

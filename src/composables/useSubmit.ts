@@ -1,6 +1,7 @@
 import { computed, reactive, ref, shallowRef } from 'vue'
 import { ApiError, messageOf } from '@/api/http'
 import { uploadSpectrumFile, type FileResult, type SubmitFields, type UploadHandle } from '@/api/spectra'
+import type { RefusedEntry } from '@/lib/refusedLog'
 import { coordinateError, type MetadataDraft } from '@/lib/spectrumMetadata'
 
 /** The batch form as the person fills it in; empty means "take it from the file". */
@@ -150,7 +151,7 @@ let keySeq = 0
  * One bad file never stops the others; an error about the form itself (a 422 with field messages,
  * a campaign one may not submit to) stops the batch and is shown on the form.
  */
-export function useSubmit(options: { parallel?: number; busyRetryMs?: number } = {}) {
+export function useSubmit(options: { parallel?: number; busyRetryMs?: number; onRefused?: (entries: RefusedEntry[]) => void } = {}) {
   // The server takes two uploads of one person at a time (UPLOADS_PER_USER); more wait their turn.
   const parallel = options.parallel ?? 2
   const busyRetryMs = options.busyRetryMs ?? 2000
@@ -212,6 +213,8 @@ export function useSubmit(options: { parallel?: number; busyRetryMs?: number } =
           item.results = reply.results
           item.progress = 1
           item.status = 'done'
+          const refused = reply.results.flatMap((r) => (r.outcome === 'refused' ? [{ at: new Date().toISOString(), file: r.file, kind: 'refused' as const, code: r.code, message: r.message, campaignId: fields.campaignId ?? null }] : []))
+          if (refused.length > 0) options.onRefused?.(refused)
         } catch (e) {
           const err = e instanceof ApiError ? e : new ApiError(0, 'client_error', messageOf(e))
           if (err.status === 429 && err.code === 'too_many_uploads') {
@@ -229,6 +232,7 @@ export function useSubmit(options: { parallel?: number; busyRetryMs?: number } =
           } else {
             item.status = 'failed'
             item.error = { status: err.status, code: err.status === 0 ? 'network' : err.status === 413 ? 'too_large' : err.code, message: err.message }
+            options.onRefused?.([{ at: new Date().toISOString(), file: item.file.name, kind: 'not sent', code: item.error.code, message: err.message, campaignId: fields.campaignId ?? null }])
           }
         } finally {
           handles.value.delete(item.key)

@@ -60,3 +60,20 @@ export const FLAG_LABELS: Record<string, string> = {
 }
 
 export const flagLabel = (flag: string): string => FLAG_LABELS[flag] ?? FLAG_LABELS[flag.replace(/_/g, '-')] ?? flag.replace(/[-_]/g, ' ')
+
+export interface GridProbability {
+  typeCode: number
+  classCode: number
+  p: number
+}
+
+/** The suggestion's (type, class) probabilities, for the probability map. */
+export function readProbabilities(raw: unknown): GridProbability[] {
+  if (!Array.isArray(raw)) return []
+  return raw.filter(isObject).flatMap((r) => {
+    const typeCode = num(r.typeCode)
+    const classCode = num(r.classCode)
+    const p = num(r.p) ?? num(r.probability)
+    return typeCode === null || classCode === null || p === null || p < 0 ? [] : [{ typeCode, classCode, p }]
+  })
+}

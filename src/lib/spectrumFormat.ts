@@ -16,7 +16,11 @@ export function fmtDispersion(v: number | null | undefined): string {
   return v < 0.1 ? v.toFixed(4) : v < 1 ? v.toFixed(3) : v.toFixed(2)
 }
 
-export const fmtSnr = (v: number | null | undefined): string => (v == null || !Number.isFinite(v) ? dash : v >= 100 ? Math.round(v).toString() : v.toFixed(1))
+/** S/N cap: above it the noise estimate is meaningless (noiseless or model data), so "> 1000" is shown. */
+export const SNR_CAP = 1000
+
+/** "42", "8.5", "> 1000": whole numbers from 20 up, one decimal below, a cap for noiseless data. */
+export const fmtSnr = (v: number | null | undefined): string => (v == null || !Number.isFinite(v) || v < 0 ? dash : v >= SNR_CAP ? `> ${SNR_CAP}` : v >= 20 ? Math.round(v).toString() : v.toFixed(1))
 
 /** "12.3 kB", "4.1 MB". */
 export function fmtBytes(n: number | null | undefined): string {

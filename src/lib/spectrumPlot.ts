@@ -31,14 +31,47 @@ export interface PlotMarker {
   color?: string
 }
 
-/** Classic classification regions for one-click zooms. */
-export const CLASSIC_REGIONS: readonly { id: string; label: string; region: WavelengthRegion }[] = [
-  { id: 'hk', label: 'Ca II H&K · Hε', region: [3900, 4000] },
-  { id: 'hdelta', label: 'Hδ · Sr II 4077', region: [4050, 4150] },
-  { id: 'gband', label: 'G band · Hγ', region: [4280, 4380] },
-  { id: 'he4471', label: 'He I 4471 · Mg II 4481', region: [4440, 4510] },
-  { id: 'hbeta', label: 'Hβ', region: [4820, 4900] },
+/**
+ * The region strip: named stretches of the classification region, each with the lines it is read
+ * for. Bounds are ours (round numbers that hold each group of lines with some continuum around it).
+ */
+export interface NamedRegion {
+  id: string
+  name: string
+  lines: string
+  region: WavelengthRegion
+}
+export const NAMED_REGIONS: readonly NamedRegion[] = [
+  { id: 'violet', name: 'Violet end', lines: 'H8 · Ca II K and H · Hε', region: [3860, 4000] },
+  { id: 'delta', name: 'Around Hδ', lines: 'He I 4026 · Sr II 4077 · Si IV · Hδ · He I 4144', region: [4000, 4180] },
+  { id: 'gamma', name: 'Hγ, G band', lines: 'Ca I 4226 · G band · Hγ · He I 4388', region: [4200, 4400] },
+  { id: 'helium', name: 'He I, Mg II', lines: 'He I 4471 · Mg II 4481 · He II 4542 · Si III 4553', region: [4420, 4580] },
+  { id: 'beta', name: 'He II 4686, Hβ', lines: 'He II 4686 · TiO 4762 · MgH · Hβ', region: [4660, 4940] },
+  { id: 'green', name: 'Green bands', lines: 'TiO 4954 · Mg b · TiO 5167', region: [4940, 5220] },
 ]
+
+/** The named regions that lie (at least three quarters) inside [lo, hi]. */
+export function regionsWithin(lo: number, hi: number): NamedRegion[] {
+  return NAMED_REGIONS.filter((r) => {
+    const overlap = Math.min(hi, r.region[1]) - Math.max(lo, r.region[0])
+    return overlap >= 0.75 * (r.region[1] - r.region[0])
+  })
+}
+
+/**
+ * The line families worth labelling for a suggested type (type code: O0 = 0, B0 = 10 … M0 = 60):
+ * helium in O and B stars, the metals from late B on, the molecular bands from late F on; Balmer
+ * lines until the K stars, where the metals and bands take over (common practice of MK work).
+ */
+export function familiesForType(typeCode: number | null | undefined): LineFamily[] {
+  if (typeCode == null || !Number.isFinite(typeCode)) return ['balmer', 'helium', 'metal', 'band']
+  const out: LineFamily[] = []
+  if (typeCode < 50) out.push('balmer')
+  if (typeCode < 20) out.push('helium')
+  if (typeCode >= 15) out.push('metal')
+  if (typeCode >= 35) out.push('band')
+  return out
+}
 
 export interface PlotPalette {
   axis: string
@@ -50,24 +83,28 @@ export interface PlotPalette {
   selection: string
 }
 
-/** Colours for light and dark, in step with the app's theme (theme/overrides.ts). */
+/**
+ * Colours for light and dark, in step with the app's theme (theme/overrides.ts). Curves and markers take
+ * the colour-blind-safe set of Okabe & Ito (2008, "Color Universal Design"), distinct under the
+ * common colour-vision deficiencies.
+ */
 export function plotPalette(dark: boolean): PlotPalette {
   return dark
     ? {
         axis: '#98a1ad',
         grid: '#2a3038',
-        series: ['#dfe4ea', '#f0a35e', '#5aaecb', '#9ccc8a'],
-        overlays: ['#e8798a', '#9ccc8a', '#c2a3ef', '#e9c46a'],
-        families: { balmer: '#5aaecb', helium: '#e9c46a', metal: '#c2a3ef', band: '#9ccc8a' },
+        series: ['#dfe4ea', '#e69f00', '#56b4e9', '#009e73'],
+        overlays: ['#e69f00', '#56b4e9', '#009e73', '#cc79a7'],
+        families: { balmer: '#56b4e9', helium: '#f0e442', metal: '#cc79a7', band: '#009e73' },
         markerText: '#c3cad3',
         selection: 'rgba(90, 174, 203, 0.18)',
       }
     : {
         axis: '#5d6775',
         grid: '#e8ebef',
-        series: ['#1c2330', '#c45a1c', '#1d6f8a', '#3a7d44'],
-        overlays: ['#b23a48', '#3a7d44', '#7a4fb0', '#9a6b00'],
-        families: { balmer: '#1d6f8a', helium: '#9a6b00', metal: '#7a4fb0', band: '#3a7d44' },
+        series: ['#1c2330', '#d55e00', '#0072b2', '#009e73'],
+        overlays: ['#d55e00', '#0072b2', '#009e73', '#cc79a7'],
+        families: { balmer: '#0072b2', helium: '#9a7d00', metal: '#cc79a7', band: '#009e73' },
         markerText: '#3b4452',
         selection: 'rgba(29, 111, 138, 0.14)',
       }

@@ -51,8 +51,8 @@ export function themeOverrides(mode: ThemeMode): GlobalThemeOverrides {
 }
 
 /** Colours the few hand-drawn pieces (logo, headings) use, so they match the naive-ui theme. */
-export function brandColors(mode: ThemeMode): { accent: string; ink: string; muted: string; border: string } {
+export function brandColors(mode: ThemeMode): { accent: string; ink: string; muted: string; border: string; surface: string; warn: string } {
   return mode === 'dark'
-    ? { accent: accent.dark.base, ink: '#e6e9ee', muted: '#98a1ad', border: surfaces.dark.border }
-    : { accent: accent.light.base, ink: '#1c2330', muted: '#5d6775', border: surfaces.light.border }
+    ? { accent: accent.dark.base, ink: '#e6e9ee', muted: '#98a1ad', border: surfaces.dark.border, surface: surfaces.dark.card, warn: '#e6a23c' }
+    : { accent: accent.light.base, ink: '#1c2330', muted: '#5d6775', border: surfaces.light.border, surface: surfaces.light.card, warn: '#a86200' }
 }

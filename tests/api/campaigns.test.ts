@@ -1,6 +1,8 @@
 import { randomBytes } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Campaign, CampaignMember, type User } from '../../server/models'
+import { OPTICAL_LIMITS } from '../../server/spectra/io/finalize'
+import { CAMPAIGN_REGION_LIMITS } from '../../shared/grid'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
 
 type Client = Awaited<ReturnType<typeof signedInAgent>>
@@ -41,10 +43,21 @@ describe('POST /api/campaigns', () => {
     expect(res.body.campaign).toMatchObject({ callsRequired: 1, blindReview: false, typeTolerance: 1, classTolerance: 1, regionMin: 3850, regionMax: 5000 })
   })
 
+  it('accepts the full range the readers accept, a deadline, and shows the progress', async () => {
+    expect(CAMPAIGN_REGION_LIMITS).toEqual(OPTICAL_LIMITS)
+    const res = await send(lead, 'post', '/api/campaigns', { code: code(), name: 'Wide', regionMin: 3000, regionMax: 11000, deadline: '2026-09-30' }).expect(201)
+    expect(res.body.campaign).toMatchObject({ regionMin: 3000, regionMax: 11000, deadline: '2026-09-30', progress: { total: 0, waiting: 0, agreed: 0 } })
+    const cleared = await send(lead, 'patch', `/api/campaigns/${res.body.campaign.id}`, { deadline: null }).expect(200)
+    expect(cleared.body.campaign.deadline).toBeNull()
+  })
+
   it('refuses rules outside their ranges and names the fields', async () => {
     const cases: Array<[object, string]> = [
-      [{ regionMin: 3500 }, 'regionMin'],
-      [{ regionMax: 7200 }, 'regionMax'],
+      // The readers accept 3000–11000 Å (OPTICAL_LIMITS); a region beyond it could never be covered.
+      [{ regionMin: 2900 }, 'regionMin'],
+      [{ regionMax: 11500 }, 'regionMax'],
+      [{ deadline: '2026-02-30' }, 'deadline'],
+      [{ deadline: 'soon' }, 'deadline'],
       [{ regionMin: 5000, regionMax: 4000 }, 'regionMax'],
       [{ callsRequired: 4 }, 'callsRequired'],
       [{ callsRequired: 0 }, 'callsRequired'],

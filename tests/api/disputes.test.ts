@@ -12,13 +12,14 @@ let observer: Person
 let alice: Person
 let bob: Person
 let lead: Person
+let carol: Person
 
 const person = (role: 'observer' | 'classifier' | 'lead', name: string) => signedInPerson(t.app, role, name)
 
 /** A suggested spectrum (B8 III) that Alice and Bob called three subtypes apart, so it is disputed. */
 async function disputedSpectrum(objectName: string) {
   const campaign = await Campaign.create({ code: `D-${randomBytes(4).toString('hex')}`, name: 'Disputed fields', description: '', callsRequired: 2, typeTolerance: 1, classTolerance: 1 })
-  for (const p of [observer, alice, bob]) await CampaignMember.create({ campaignId: campaign.id, userId: p.user.id })
+  for (const p of [observer, alice, bob, carol]) await CampaignMember.create({ campaignId: campaign.id, userId: p.user.id })
   const { spectrum } = await createSuggestedSpectrum({
     campaignId: campaign.id,
     submittedBy: observer.user.id,
@@ -44,6 +45,7 @@ beforeAll(async () => {
   alice = await person('classifier', 'Alice Classifier')
   bob = await person('classifier', 'Bob Classifier')
   lead = await person('lead', 'Lena Lead')
+  carol = await person('classifier', 'Carol Classifier')
 })
 afterAll(async () => {
   await t.close()
@@ -106,5 +108,48 @@ describe('POST /api/disputes/:id/settle', () => {
 
   it('answers 404 for a dispute that does not exist', async () => {
     await send(lead.client, 'post', '/api/disputes/999999999/settle', { spectralType: 'A0', luminosityClass: 'V', note: 'none' }).expect(404)
+  })
+})
+
+describe('POST /api/disputes/:id/answer', () => {
+  it('asks a third classifier for a call, and a majority of calls that agree decides', async () => {
+    const { spectrum, disputeId } = await disputedSpectrum('Moving group star 21')
+    const res = await send(lead.client, 'post', `/api/disputes/${disputeId}/answer`, { action: 'another-call', note: 'A third pair of eyes on the Ca II K line.' }).expect(200)
+    expect(res.body.dispute).toMatchObject({ state: 'another-call', action: { kind: 'another-call', by: { name: 'Lena Lead' } } })
+    expect((await Spectrum.findByPk(spectrum.id))!.toJSON()).toMatchObject({ status: 'under_review', extraCalls: 1 })
+
+    // Alice and Bob have called; Carol is the third classifier, and the spectrum is in her queue.
+    const queue = await carol.client.agent.get('/api/queue').expect(200)
+    const item = queue.body.items.find((i: { spectrumId: number }) => i.spectrumId === spectrum.id)
+    expect(item.calls).toEqual({ count: 2, needed: 3 })
+    const third = await send(carol.client, 'post', `/api/spectra/${spectrum.id}/calls`, { spectralType: 'B9', luminosityClass: 'III', confidence: 2 }).expect(201)
+    // B9 agrees with B8 (within one subtype), not with A1: two of three agree.
+    expect(third.body.outcome).toBe('agreed')
+    expect(third.body.classification).toMatchObject({ nCalls: 3 })
+    expect(['B8 III', 'B9 III']).toContain(third.body.classification.spectralType)
+    expect((await Spectrum.findByPk(spectrum.id))!.status).toBe('agreed')
+  })
+
+  it('reopens the calls so a classifier can correct theirs, which judges them again', async () => {
+    const { spectrum, disputeId } = await disputedSpectrum('Moving group star 22')
+    await send(lead.client, 'post', `/api/disputes/${disputeId}/answer`, { action: 'reopened', note: 'Bob, look at Hδ again.' }).expect(200)
+    expect((await Spectrum.findByPk(spectrum.id))!.status).toBe('under_review')
+    const view = await bob.client.agent.get(`/api/spectra/${spectrum.id}/review`).expect(200)
+    expect(view.body.canCorrect).toBe(true)
+    const fixed = await send(bob.client, 'post', `/api/spectra/${spectrum.id}/calls`, { spectralType: 'B9', luminosityClass: 'III', confidence: 2, correctsCallId: view.body.myCall.id }).expect(201)
+    expect(fixed.body.outcome).toBe('agreed')
+    const list = await lead.client.agent.get('/api/disputes?state=reopened').expect(200)
+    expect(list.body.disputes.map((d: { id: number }) => d.id)).toContain(disputeId)
+  })
+
+  it('refuses a second answer, a settlement after it, and answers from anyone but a lead', async () => {
+    const { disputeId } = await disputedSpectrum('Moving group star 23')
+    await send(alice.client, 'post', `/api/disputes/${disputeId}/answer`, { action: 'reopened', note: 'x' }).expect(403)
+    await send(lead.client, 'post', `/api/disputes/${disputeId}/answer`, { action: 'reopened', note: '' }).expect(422)
+    await send(lead.client, 'post', `/api/disputes/${disputeId}/answer`, { action: 'another-call', note: 'third call' }).expect(200)
+    const again = await send(lead.client, 'post', `/api/disputes/${disputeId}/answer`, { action: 'reopened', note: 'no' }).expect(409)
+    expect(['already_answered', 'not_disputed']).toContain(again.body.error.code)
+    const settle = await send(lead.client, 'post', `/api/disputes/${disputeId}/settle`, { spectralType: 'B8', luminosityClass: 'III', note: 'x' }).expect(409)
+    expect(['already_answered', 'not_disputed']).toContain(settle.body.error.code)
   })
 })

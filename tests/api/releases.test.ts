@@ -1,6 +1,7 @@
-import { execFileSync, spawnSync } from 'node:child_process'
+import { spawnSync } from 'node:child_process'
 import { randomBytes } from 'node:crypto'
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
+import { unzipSync } from 'fflate'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -135,14 +136,21 @@ describe('POST /api/releases', () => {
     // The same estimate shared/derived.ts gives for B8 III ± 0.5 with these inputs.
     const d = deriveParameters((parseMK('B8 III') as { ok: true; value: never }).value, { typeUncertainty: 0.5, classUncertainty: 0.5, apparentMagnitudeV: 8.5, ebv: 0.1, parallaxMas: 2.5, parallaxErrorMas: 0.1 })
     if (!d.ok) throw new Error('B8 III should be on the grid')
-    expect(consensus.Teff).toBeCloseTo(d.teff.value, 9)
-    expect(consensus.e_Teff).toBeCloseTo(d.teff.uncertainty, 9)
-    expect(consensus.Dist).toBeCloseTo(d.spectroscopicDistancePc!.value, 9)
+    // Each value is rounded to the decimal place of its uncertainty, given to two significant figures
+    // but never past the units (common practice).
+    const place = (err: number) => Math.max(0, 1 - Math.floor(Math.log10(err)))
+    const rounded = (v: number, err: number) => Number(v.toFixed(place(err)))
+    expect(consensus.e_Teff).toBe(rounded(d.teff.uncertainty, d.teff.uncertainty))
+    expect(consensus.Teff).toBe(rounded(d.teff.value, d.teff.uncertainty))
+    expect(consensus.Dist).toBe(rounded(d.spectroscopicDistancePc!.value, d.spectroscopicDistancePc!.uncertainty))
     expect(consensus.DistPlx).toBeCloseTo(400, 9)
-    expect(consensus.Rad).toBeCloseTo(d.radiusSolar.value, 9)
+    expect(consensus.Rad).toBe(rounded(d.radiusSolar.value, d.radiusSolar.uncertainty))
+    expect(consensus).toMatchObject({ FileName: 'x.txt', SugType: 'B8 III' })
+    // MJD 51544 is 2000-01-01 (common practice); 25 years with 7 leap days later, 2025-01-05 is 60680; 03:04:05.6 is 0.127843 d.
+    expect(consensus.MJD).toBeCloseTo(60680.127843, 6)
     expect(settled).toMatchObject({ Decision: 'settled by lead', DecidedBy: 'Release Lead', SpType: 'G5 IV', Pec: 'e', Agreement: 'settled', Vmag: null, Dist: null })
     expect(settled.Teff).toBeGreaterThan(4000)
-    expect(accepted).toMatchObject({ Decision: 'accepted suggestion', SpType: 'DA3', LumClass: null, Teff: null, Lum: null, DFlag: 'outside the MK grid', LibVer: null })
+    expect(accepted).toMatchObject({ Decision: 'single call (suggestion accepted)', Agreement: 'single', SpType: 'DA3', LumClass: null, Teff: null, Lum: null, DFlag: 'outside the MK grid', LibVer: null })
   })
 
   it('refuses a campaign with nothing decided, a missing title and non-leads', async () => {
@@ -156,12 +164,13 @@ describe('POST /api/releases', () => {
 })
 
 describe('GET /api/releases/:id/download', () => {
-  it('sends the four formats with file names, to members of the campaign', async () => {
+  it('sends every format with its file name, to members of the campaign', async () => {
     const expected = {
       csv: ['text/csv', `${campaign.code}_release-1.csv`],
+      ecsv: ['text/plain', `${campaign.code}_release-1.ecsv`],
       votable: ['application/x-votable+xml', `${campaign.code}_release-1.vot`],
       fits: ['application/fits', `${campaign.code}_release-1.fits`],
-      mrt: ['text/plain', `${campaign.code}_release-1_mrt.txt`],
+      mrt: ['application/zip', `${campaign.code}_release-1_table.zip`],
     }
     for (const [format, [type, name]] of Object.entries(expected)) {
       const res = await download(observer, first.id, format).expect(200)
@@ -176,44 +185,46 @@ describe('GET /api/releases/:id/download', () => {
       } else if (format === 'votable') {
         expect(body.toString('utf8')).toContain('<TABLE name="catalogue" nrows="3">')
       } else if (format === 'csv') {
-        const lines = body.toString('utf8').split('\r\n').filter((l) => l && !l.startsWith('#'))
+        // Plain CSV: exactly one header line, then the rows.
+        const lines = body.toString('utf8').split('\r\n').filter((l) => l)
         expect(lines).toHaveLength(4)
+        expect(lines[0]!.startsWith('SpId,Object,')).toBe(true)
         expect(lines[1]).toContain('"Field star, ""north"" 1"')
+      } else if (format === 'ecsv') {
+        expect(body.toString('utf8').startsWith('# %ECSV 1.0')).toBe(true)
       } else {
-        expect(body.toString('ascii')).toContain('Byte-by-byte Description of file: catalogue.dat')
+        const files = unzipSync(body)
+        expect(Object.keys(files).sort()).toEqual(['ReadMe', `${campaign.code}_release-1.dat`].sort())
+        expect(Buffer.from(files.ReadMe!).toString('ascii')).toContain(`Byte-by-byte Description of file: ${campaign.code}_release-1.dat`)
       }
     }
     const anonymous = await agentFor(t.app)
     await anonymous.agent.get(`/api/releases/${first.id}/download?format=csv`).expect(401)
     const bad = await lead.agent.get(`/api/releases/${first.id}/download?format=xls`).expect(422)
-    expect(bad.body.error.details.fields.format).toBe('must be one of csv, votable, fits, mrt')
+    expect(bad.body.error.details.fields.format).toBe('must be one of csv, ecsv, votable, fits, mrt')
     await lead.agent.get('/api/releases/999999999/download?format=csv').expect(404)
   })
 })
 
-// Debian's Python with astropy (tests/reference/check_exports.py); the check is skipped where it is missing.
-const hasAstropy = spawnSync('/usr/bin/python3', ['-c', 'import astropy'], { stdio: 'ignore' }).status === 0
-
+// Debian's Python with astropy (tests/reference/check_exports.py); npm test installs python3-astropy.
 describe('a downloaded release read back with astropy', () => {
-  it.skipIf(!hasAstropy)('has every column, unit, UCD and value of the release in all four formats', async () => {
+  it('has every column, unit, UCD and value of the release in every format', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'lw-release-'))
     try {
       const detail = (await lead.agent.get(`/api/releases/${first.id}`).expect(200)).body
       writeFileSync(join(dir, 'expected.json'), JSON.stringify({ columns: detail.columns, params: detail.params, rows: detail.rows }))
-      const names = { votable: 'catalogue.vot', fits: 'catalogue.fits', csv: 'catalogue.csv', mrt: 'catalogue.mrt.txt' }
+      const names = { votable: 'catalogue.vot', fits: 'catalogue.fits', csv: 'catalogue.csv', ecsv: 'catalogue.ecsv', mrt: 'catalogue.zip' }
       for (const [format, name] of Object.entries(names)) writeFileSync(join(dir, name), (await download(lead, first.id, format).expect(200)).body as Buffer)
       const report = join(dir, 'report.json')
-      try {
-        execFileSync('/usr/bin/python3', ['tests/reference/check_exports.py', '--downloads', dir, report], { stdio: 'pipe', timeout: 60_000 })
-      } catch {
-        // the report below says what failed
-      }
+      const run = spawnSync('/usr/bin/python3', ['tests/reference/check_exports.py', '--downloads', dir, report], { encoding: 'utf8', timeout: 60_000 })
+      expect(run.error, 'Debian’s python3 with python3-astropy must be installed (npm test installs it)').toBeUndefined()
+      expect(existsSync(report), run.stderr).toBe(true)
       const result = JSON.parse(readFileSync(report, 'utf8')) as { ok: boolean; checks: Array<{ file: string; ok: boolean; valuesCompared: number; problems: string[] }> }
       for (const c of result.checks) {
         expect(c.problems, c.file).toEqual([])
         expect(c.valuesCompared, c.file).toBe(detail.columns.length * 3)
       }
-      expect(result.checks.map((c) => c.file)).toEqual(['catalogue.vot', 'catalogue.fits', 'catalogue.csv', 'catalogue.mrt.txt'])
+      expect(result.checks.map((c) => c.file)).toEqual(['catalogue.vot', 'catalogue.fits', 'catalogue.csv', 'catalogue.ecsv', `${campaign.code}_release-1.dat + ReadMe`])
       expect(result.ok).toBe(true)
     } finally {
       rmSync(dir, { recursive: true, force: true })
@@ -224,7 +235,7 @@ describe('a downloaded release read back with astropy', () => {
 describe('a frozen release', () => {
   it('does not change when later calls, decisions and metadata change, and a newer release supersedes it', async () => {
     const before: Record<string, Buffer> = {}
-    for (const f of ['csv', 'votable', 'fits', 'mrt']) before[f] = (await download(lead, first.id, f).expect(200)).body as Buffer
+    for (const f of ['csv', 'ecsv', 'votable', 'fits', 'mrt']) before[f] = (await download(lead, first.id, f).expect(200)).body as Buffer
     const detailBefore = (await lead.agent.get(`/api/releases/${first.id}`).expect(200)).body
 
     // Later: a new decision on a released spectrum, new metadata, and one more spectrum agreed.
@@ -233,7 +244,7 @@ describe('a frozen release', () => {
     await decide(spectra.waiting!, { source: 'consensus', spectralType: 'K0 III', typeCode: 50, luminosityClass: 'III', classCode: 4, nCalls: 1 })
     await spectra.waiting!.update({ status: 'agreed' })
 
-    for (const f of ['csv', 'votable', 'fits', 'mrt']) expect(Buffer.compare((await download(lead, first.id, f).expect(200)).body as Buffer, before[f]!), f).toBe(0)
+    for (const f of ['csv', 'ecsv', 'votable', 'fits', 'mrt']) expect(Buffer.compare((await download(lead, first.id, f).expect(200)).body as Buffer, before[f]!), f).toBe(0)
     const detailAfter = (await lead.agent.get(`/api/releases/${first.id}`).expect(200)).body
     expect(detailAfter.rows).toEqual(detailBefore.rows)
 
@@ -243,7 +254,7 @@ describe('a frozen release', () => {
     expect(rows[0]).toMatchObject({ Object: 'Renamed star', SpType: 'B9 II', Decision: 'settled by lead', Vmag: 12 })
     expect((await Release.findByPk(first.id))!.supersededBy).toBe(second.body.release.id)
     // Superseding sets one field; the rows and files stay as they were.
-    for (const f of ['csv', 'votable', 'fits', 'mrt']) expect(Buffer.compare((await download(lead, first.id, f).expect(200)).body as Buffer, before[f]!), f).toBe(0)
+    for (const f of ['csv', 'ecsv', 'votable', 'fits', 'mrt']) expect(Buffer.compare((await download(lead, first.id, f).expect(200)).body as Buffer, before[f]!), f).toBe(0)
   })
 
   it('refuses edits and removal at the model level', async () => {

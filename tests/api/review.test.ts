@@ -123,6 +123,21 @@ describe('claims', () => {
     await send(bob.client, 'post', `/api/queue/${spectrum.id}/claim`).expect(200)
   })
 
+  it('shows another person’s live claim as read-only and refuses their call until it lapses', async () => {
+    const campaign = await makeCampaign({ callsRequired: 2 }, [observer, alice, bob])
+    const { spectrum } = await suggestedSpectrum(campaign, observer)
+    await send(alice.client, 'post', `/api/queue/${spectrum.id}/claim`).expect(200)
+    const view = await bob.client.agent.get(`/api/spectra/${spectrum.id}/review`).expect(200)
+    expect(view.body.claim).toMatchObject({ mine: false, live: true, by: { name: 'Alice Classifier' } })
+    expect(view.body.canCall).toMatchObject({ allowed: false, code: 'claimed' })
+    expect(view.body.canCall.reason).toContain('Alice Classifier is working on this spectrum until')
+    const refused = await call(bob.client, spectrum.id, { spectralType: 'B8', luminosityClass: 'III' }).expect(409)
+    expect(refused.body.error.code).toBe('claimed')
+    expect(await ReviewCall.count({ where: { spectrumId: spectrum.id } })).toBe(0)
+    await ReviewClaim.update({ expiresAt: new Date(Date.now() - 1000) }, { where: { spectrumId: spectrum.id } })
+    await call(bob.client, spectrum.id, { spectralType: 'B8', luminosityClass: 'III' }).expect(201)
+  })
+
   it('measures the seconds spent from the claim when the call does not say', async () => {
     const campaign = await makeCampaign({ callsRequired: 2 }, [observer, alice, bob])
     const { spectrum } = await suggestedSpectrum(campaign, observer)

@@ -54,5 +54,7 @@ describe('fieldFeedback', () => {
 
   it('says nothing when there is no message', () => {
     expect(fieldFeedback('Name', undefined)).toBeUndefined()
+    // An instruction is a sentence of its own, never "This choose a campaign."
+    expect(fieldFeedback('Campaign', 'choose a campaign')).toBe('Choose a campaign.')
   })
 })

@@ -19,6 +19,7 @@ const saved: CampaignDetail = {
   blindReview: true,
   typeTolerance: 1,
   classTolerance: 1,
+  deadline: null,
   members: [],
   createdAt: '2026-03-01T10:00:00.000Z',
   updatedAt: '2026-03-01T10:00:00.000Z',
@@ -59,7 +60,7 @@ describe('CampaignFormDialog', () => {
     await flush()
     expect(save).toHaveBeenCalledTimes(1)
     expect(save.mock.calls[0]).toEqual([
-      { name: 'Southern Arc Survey', code: 'SKY-27', description: '', observatory: '', regionMin: 3850, regionMax: 5000, callsRequired: 1, blindReview: false, typeTolerance: 1, classTolerance: 1 },
+      { name: 'Southern Arc Survey', code: 'SKY-27', description: '', observatory: '', regionMin: 3850, regionMax: 5000, callsRequired: 1, blindReview: false, typeTolerance: 1, classTolerance: 1, deadline: null },
       null,
     ])
     expect(wrapper.findComponent(CampaignFormDialog).emitted('saved')?.[0]).toEqual([saved, true])

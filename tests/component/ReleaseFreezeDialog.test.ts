@@ -17,7 +17,8 @@ const frozen: ReleaseSummary = {
   createdBy: { id: 1, name: 'Maren Olukoya' },
   rows: 31,
   supersededBy: null,
-  downloads: { csv: '/api/releases/9/download?format=csv', votable: '/api/releases/9/download?format=votable', fits: '/api/releases/9/download?format=fits', mrt: '/api/releases/9/download?format=mrt' },
+  authors: '',
+  downloads: { csv: '/api/releases/9/download?format=csv', ecsv: '/api/releases/9/download?format=ecsv', votable: '/api/releases/9/download?format=votable', fits: '/api/releases/9/download?format=fits', mrt: '/api/releases/9/download?format=mrt' },
 }
 
 function mountDialog(freeze: (input: FreezeInput) => Promise<ReleaseSummary>) {
@@ -66,7 +67,7 @@ describe('ReleaseFreezeDialog', () => {
     byTestid('freeze-confirm-button')!.click()
     await flushPromises()
 
-    expect(freeze).toHaveBeenCalledWith({ campaignId: 3, title: 'Northern fields, first release', description: 'Every agreed spectrum of the spring run.' })
+    expect(freeze).toHaveBeenCalledWith({ campaignId: 3, title: 'Northern fields, first release', description: 'Every agreed spectrum of the spring run.', authors: '', includeDecider: true })
     expect(onFrozen).toHaveBeenCalledWith(frozen)
     expect(show.value).toBe(false)
     wrapper.unmount()

@@ -1,7 +1,6 @@
 import { mount } from '@vue/test-utils'
 import { describe, expect, it } from 'vitest'
 import type { SuggestionView } from '@/api/calls'
-import ReviewKeyLegend from '@/components/ReviewKeyLegend.vue'
 import ReviewSuggestionCard from '@/components/ReviewSuggestionCard.vue'
 import SuggestionVotesTable from '@/components/SuggestionVotesTable.vue'
 
@@ -58,8 +57,11 @@ describe('blind review', () => {
     expect(row.text()).toContain('standards: III 0.110 · V 0.200')
   })
 
-  it('draws the key legend from the key table', () => {
-    const text = mount(ReviewKeyLegend).get('[data-testid="key-legend"]').text()
-    for (const words of ['accept the suggestion', 'next spectrum in the queue', 'previous / next overlay', 'leave the field', 'zoom to a classic region']) expect(text).toContain(words)
+  it('says why when the suggestion is not the nearest single standard', () => {
+    const between = { ...suggestion, spectralType: 'B8.5 III', candidates: [{ standardId: 41, spectralType: 'B9 III', reducedChi2: 1.1, probability: 0.6 }] }
+    const wrapper = mount(ReviewSuggestionCard, { props: { suggestion: between, hidden: false, overlayId: null } })
+    expect(wrapper.get('[data-testid="suggestion-why"]').text()).toContain('The nearest single standard is B9 III')
+    const same = mount(ReviewSuggestionCard, { props: { suggestion, hidden: false, overlayId: null } })
+    expect(same.find('[data-testid="suggestion-why"]').exists()).toBe(false)
   })
 })

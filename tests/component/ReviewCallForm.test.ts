@@ -77,7 +77,7 @@ describe('ReviewCallForm', () => {
     const wrapper = mount(ReviewCallForm, { props: { suggestion } })
     await fill(wrapper, { 'call-note': 'looks right' })
     await wrapper.get('[data-testid="call-confidence-3"] input').setValue(true)
-    expect(wrapper.get('[data-testid="call-accept"]').text()).toContain('Accept B8 III')
+    expect(wrapper.get('[data-testid="call-accept"]').text()).toContain('Take B8 III')
     await wrapper.get('[data-testid="call-accept"]').trigger('click')
     expect(wrapper.emitted('accept')?.[0]).toEqual([{ confidence: 3, note: 'looks right' }])
   })

@@ -84,3 +84,43 @@ describe('settling a dispute', () => {
     await screenshot(page, 'outbox-settled-mail')
   })
 })
+
+describe('sending a dispute to a third classifier', () => {
+  it('asks another call, and the lead’s own call makes a majority that decides it', async () => {
+    const { page } = browser
+    await signIn(page, LEAD)
+    await page.goto(`${baseUrl}/disputes`)
+    await page.getByTestId('dispute-row').first().waitFor()
+    const row = page.locator('[data-testid="dispute-row"][data-state="open"]').first()
+    const spectrumId = Number(await row.getAttribute('data-spectrum-id'))
+    await row.click()
+    await page.getByTestId('dispute-another-call').waitFor()
+    await page.getByTestId('dispute-answer-note').fill('Two calls four subtypes apart: a third look at He I 4471 and Mg II 4481, please.')
+    await screenshot(page, 'dispute-send-back')
+    await page.getByTestId('dispute-another-call').click()
+    await page.getByTestId('dispute-action').waitFor()
+    expect(await page.getByTestId('dispute-action').textContent()).toContain('Sent to a third classifier')
+    await screenshot(page, 'dispute-sent-to-third')
+
+    const list = (await (await page.request.get(`${baseUrl}/api/disputes?state=another-call`)).json()) as { disputes: { spectrum: { id: number }; calls: { letter: string; subtype: number; luminosityClass: string }[] }[] }
+    const sent = list.disputes.find((d) => d.spectrum.id === spectrumId)
+    expect(sent).toBeDefined()
+    const first = sent!.calls[0]!
+
+    // The lead is the third classifier here: the spectrum is back in their queue, needing one more call.
+    await page.goto(`${baseUrl}/review/${spectrumId}`)
+    await page.getByTestId('call-form').waitFor()
+    await page.locator('body').focus()
+    await page.keyboard.press('/')
+    await page.keyboard.type(`${first.letter}${first.subtype}`)
+    await page.keyboard.press('Tab')
+    await page.keyboard.type(first.luminosityClass)
+    await page.keyboard.press('Enter')
+    await page.getByTestId('blind-reveal').waitFor({ timeout: 15_000 })
+    expect(await page.getByTestId('blind-reveal').textContent()).toContain('is agreed')
+    await screenshot(page, 'dispute-third-call-agreed')
+    const spectrum = (await (await page.request.get(`${baseUrl}/api/spectra/${spectrumId}/review`)).json()) as { spectrum: { status: string }; classification: { nCalls: number } | null }
+    expect(spectrum.spectrum.status).toBe('agreed')
+    expect(spectrum.classification?.nCalls).toBe(3)
+  })
+})

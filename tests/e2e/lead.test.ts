@@ -1,3 +1,7 @@
+import { spawnSync } from 'node:child_process'
+import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import type { Page } from 'playwright-core'
 import { openBrowser, screenshot } from './browser'
@@ -8,10 +12,11 @@ const CAMPAIGN = 'KRO-NFS26'
 
 /** What each download must be served as (server/exports). */
 const FORMATS = [
-  { format: 'csv', type: 'text/csv' },
-  { format: 'votable', type: 'application/x-votable+xml' },
-  { format: 'fits', type: 'application/fits' },
-  { format: 'mrt', type: 'text/plain' },
+  { format: 'csv', type: 'text/csv', file: 'catalogue.csv' },
+  { format: 'ecsv', type: 'text/plain', file: 'catalogue.ecsv' },
+  { format: 'votable', type: 'application/x-votable+xml', file: 'catalogue.vot' },
+  { format: 'fits', type: 'application/fits', file: 'catalogue.fits' },
+  { format: 'mrt', type: 'application/zip', file: 'catalogue.zip' },
 ] as const
 
 describe('the lead audits the demo campaign and publishes a catalogue release', () => {
@@ -74,10 +79,20 @@ describe('the lead audits the demo campaign and publishes a catalogue release', 
     await page.getByTestId('freeze-campaign').click()
     await page.locator('.n-base-select-option', { hasText: CAMPAIGN }).first().click()
     await page.getByTestId('freeze-title').fill(title)
+    await page.getByTestId('freeze-authors').fill('Olukoya, M.; Varga, I.; Achterberg, T.')
     await page.getByTestId('freeze-description').fill('Every agreed or settled spectrum of the demo campaign, frozen by the browser journey.')
+    await screenshot(page, 'lead-freeze-details')
     await page.getByTestId('freeze-next').click()
     const confirm = page.getByTestId('freeze-confirm')
     await confirm.waitFor()
+    // The preview: how many rows, what is still open in the campaign, and the columns.
+    await page.getByTestId('freeze-preview-rows').waitFor()
+    const preview = (await (await page.request.get(`${baseUrl}/api/releases/preview?campaign=${campaignId || ''}`)).json().catch(() => null)) as { preview?: { rows: number } } | null
+    const rowsText = (await page.getByTestId('freeze-preview-rows').textContent()) ?? ''
+    expect(rowsText).toMatch(/^\d+ rows?$/)
+    if (preview?.preview) expect(rowsText).toBe(`${preview.preview.rows} ${preview.preview.rows === 1 ? 'row' : 'rows'}`)
+    expect(await page.getByTestId('freeze-preview-open').textContent()).toMatch(/still wait|disputed/)
+    expect(await page.getByTestId('freeze-preview-columns').textContent()).toMatch(/^\d+ columns$/)
     expect(await confirm.textContent()).toContain('immutable snapshot')
     expect(await page.getByTestId('freeze-confirm-button').isDisabled()).toBe(true)
     await screenshot(page, 'lead-freeze-confirm')
@@ -106,10 +121,11 @@ describe('the lead audits the demo campaign and publishes a catalogue release', 
     await screenshot(page, 'lead-releases')
   })
 
-  it('downloads the release in all four formats with the page’s session', async () => {
+  it('downloads the release in every format with the page’s session, and astropy reads each back', async () => {
     await page.goto(`${baseUrl}/releases/${releaseId}`)
     await page.getByTestId('release-downloads').waitFor()
-    for (const { format, type } of FORMATS) {
+    const dir = mkdtempSync(join(tmpdir(), 'lw-e2e-release-'))
+    for (const { format, type, file } of FORMATS) {
       const href = await page.getByTestId(`release-download-${format}`).getAttribute('href')
       expect(href).toBe(`/api/releases/${releaseId}/download?format=${format}`)
       // page.request carries the browser context's cookies, as following the link would.
@@ -120,7 +136,23 @@ describe('the lead audits the demo campaign and publishes a catalogue release', 
       const body = await res.body()
       expect(body.length, format).toBeGreaterThan(100)
       if (format === 'fits') expect(body.subarray(0, 30).toString('latin1')).toMatch(/^SIMPLE {2}=\s+T/)
+      writeFileSync(join(dir, file), body)
     }
+    // Every file, read back with astropy (Debian's python3-astropy, installed by npm test).
+    const detail = (await (await page.request.get(`${baseUrl}/api/releases/${releaseId}?pageSize=200`)).json()) as { columns: unknown[]; params: unknown[]; rows: unknown[]; total: number }
+    expect(detail.rows.length).toBe(detail.total)
+    writeFileSync(join(dir, 'expected.json'), JSON.stringify({ columns: detail.columns, params: detail.params, rows: detail.rows }))
+    const report = join(dir, 'report.json')
+    const run = spawnSync('/usr/bin/python3', ['tests/reference/check_exports.py', '--downloads', dir, report], { encoding: 'utf8', timeout: 120_000 })
+    expect(run.error).toBeUndefined()
+    expect(existsSync(report), run.stderr).toBe(true)
+    const result = JSON.parse(readFileSync(report, 'utf8')) as { ok: boolean; checks: { file: string; problems: string[]; valuesCompared: number }[] }
+    for (const c of result.checks) {
+      expect(c.problems, c.file).toEqual([])
+      expect(c.valuesCompared, c.file).toBeGreaterThan(0)
+    }
+    expect(result.checks).toHaveLength(5)
+    expect(result.ok).toBe(true)
   })
 
   it('shows the standards library with the active version and plots a standard', async () => {

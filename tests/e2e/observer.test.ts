@@ -77,7 +77,7 @@ describe('the observer submits a night and looks at a spectrum', () => {
     await page.getByTestId('spectrum-edit-cancel').click()
   })
 
-  it('sees the observed and rectified plots, zooms to a classic region and reads the line table', async () => {
+  it('sees the observed and rectified plots, zooms to a named region and reads the line table', async () => {
     await page.getByTestId('spectrum-plot-observed').locator('canvas').waitFor()
     // Processing runs in the background; reload until the measurement is there.
     await expect
@@ -94,9 +94,9 @@ describe('the observer submits a night and looks at a spectrum', () => {
     await page.getByTestId('spectrum-plot-rectified').locator('canvas').waitFor()
     expect(await page.getByTestId('spectrum-line-row').count()).toBeGreaterThan(5)
     await screenshot(page, 'observer-spectrum')
-    await page.getByTestId('spectrum-region-hdelta').click()
+    await page.getByTestId('spectrum-region-delta').click()
     await page.waitForTimeout(600)
-    await screenshot(page, 'observer-spectrum-hdelta')
+    await screenshot(page, 'observer-spectrum-delta')
   })
 
   it('finds the batch on My spectra, and filters it', async () => {

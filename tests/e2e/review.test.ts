@@ -34,10 +34,15 @@ describe('Spectrum review from the keyboard', () => {
     await screenshot(page, 'review-queue')
   })
 
-  it('reviews three spectra in a row using only keys', async () => {
+  it('reviews three spectra in a row using only keys, seeing each suggestion after the blind call', async () => {
     const { page } = browser
     await page.locator('body').focus()
-    await page.keyboard.press('n')
+    // Queue: ↓ and ↑ move the highlighted row, Enter opens it.
+    const second = await page.getByTestId('queue-row').nth(1).getAttribute('data-spectrum-id')
+    await page.keyboard.press('ArrowDown')
+    await expect.poll(() => page.locator('[data-testid="queue-row"][data-selected="true"]').getAttribute('data-spectrum-id')).toBe(second)
+    await page.keyboard.press('ArrowUp')
+    await page.keyboard.press('Enter')
     await page.waitForURL(/\/review\/\d+$/)
 
     for (let k = 0; k < 3; k++) {
@@ -45,36 +50,47 @@ describe('Spectrum review from the keyboard', () => {
       expect(id).not.toBeNull()
       await page.getByTestId('call-form').waitFor()
       await page.getByTestId('review-plot').waitFor()
-      await page.getByTestId('key-legend').waitFor()
+      await page.getByTestId('key-map').waitFor()
+      await page.locator('[data-testid="matrix-tile-0-0"] [data-testid="matrix-tile-type"]').waitFor()
       const blind = await page.getByTestId('blind-note').isVisible()
 
       if (k === 0) {
-        // Overlay keys: choose a standard by type, then step to its neighbours; zoom to Hδ.
-        await page.keyboard.press('s')
-        await page.keyboard.type('A0 V')
+        // The neighbour matrix: → highlights the later type, Enter shows it in the large plot and re-centres.
+        const right = (await page.locator('[data-testid="matrix-tile-0-1"] [data-testid="matrix-tile-type"]').textContent())!.trim()
+        await page.keyboard.press('ArrowRight')
+        await expect.poll(() => page.getByTestId('matrix-tile-0-1').getAttribute('aria-selected')).toBe('true')
         await page.keyboard.press('Enter')
-        await page.keyboard.press('Escape')
-        await expect.poll(() => page.getByTestId('overlay-current').textContent()).toContain('A0 V')
-        await page.keyboard.press('.')
+        await expect.poll(() => page.getByTestId('overlay-current').textContent()).toContain(right)
         await expect.poll(() => page.getByTestId('overlay-current').textContent()).toContain('one subtype later')
-        await page.keyboard.press('-')
+        await expect.poll(async () => (await page.locator('[data-testid="matrix-tile-0-0"] [data-testid="matrix-tile-type"]').textContent())?.trim()).toBe(right)
+        // ↑ then Enter: one class brighter.
+        await page.keyboard.press('ArrowUp')
+        await page.keyboard.press('Enter')
         await expect.poll(() => page.getByTestId('overlay-current').textContent()).toContain('one class brighter')
-        await page.keyboard.press('2')
-        await expect.poll(() => page.getByTestId('zoom-hdelta').getAttribute('class')).toContain('--on')
-        await page.keyboard.press('Shift+M')
-        await page.getByTestId('review-plot-residual').waitFor()
+        // The region strip: r steps to the next region, d shows ratios, m the labels, w back to the whole region.
+        await page.keyboard.press('r')
+        await expect.poll(() => page.getByTestId('region-violet').getAttribute('aria-pressed')).toBe('true')
+        await page.keyboard.press('d')
+        await expect.poll(() => page.getByTestId('neighbour-matrix').getAttribute('data-mode')).toBe('ratio')
+        await page.keyboard.press('m')
+        await expect.poll(() => page.getByTestId('marker-mode').textContent()).toContain('all lines')
         await screenshot(page, blind ? 'review-blind' : 'review-spectrum')
-        await page.keyboard.press('0')
+        await page.keyboard.press('w')
+        await expect.poll(() => page.getByTestId('region-whole').getAttribute('aria-pressed')).toBe('true')
+        await page.keyboard.press('d')
       }
 
       if (blind) {
         expect(await page.getByTestId('call-accept').count()).toBe(0)
         expect(await page.getByTestId('suggestion-type').count()).toBe(0)
+        // A key that cannot work here says why.
+        await page.keyboard.press('y')
+        await page.locator('.n-message', { hasText: 'Blind review: the suggestion is hidden' }).first().waitFor()
       }
       if (!blind && (await page.getByTestId('call-accept').isVisible())) {
-        await page.keyboard.press('a')
+        await page.keyboard.press('y')
       } else {
-        await page.keyboard.press('t')
+        await page.keyboard.press('/')
         await page.keyboard.type(k === 1 ? 'B9.5' : 'A1')
         await page.keyboard.press('Tab')
         await page.keyboard.type(k === 1 ? 'IV' : 'V')
@@ -83,6 +99,15 @@ describe('Spectrum review from the keyboard', () => {
           await page.keyboard.press('Escape')
           await page.keyboard.press('Control+Enter')
         } else await page.keyboard.press('Enter')
+      }
+      if (blind) {
+        // After a blind call the suggestion is shown before moving on; Space goes on.
+        await page.getByTestId('blind-reveal').waitFor({ timeout: 15_000 })
+        expect(((await page.getByTestId('reveal-suggestion').textContent()) ?? '').trim()).toMatch(/^[OBAFGKM]\d/)
+        await page.getByTestId('suggestion-type').waitFor()
+        if (k === 0) await screenshot(page, 'review-blind-reveal')
+        await page.locator('body').focus()
+        await page.keyboard.press(' ')
       }
       try {
         await page.waitForURL((url) => url.pathname !== `/review/${id}`, { timeout: 15_000 })

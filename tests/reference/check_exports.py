@@ -4,7 +4,7 @@
 Run with Debian's Python (apt-get install python3-astropy), not the python3 first on PATH:
     npx tsx tests/unit/exports/make-samples.ts     # when the writers change
     /usr/bin/python3 tests/reference/check_exports.py
-Reads tests/fixtures/exports/{catalogue,types}.{csv,vot,fits,mrt.txt,dat,ReadMe,expected.json};
+Reads tests/fixtures/exports/{catalogue,types}.{csv,ecsv,vot,fits,mrt.txt,dat,ReadMe,expected.json};
 writes tests/reference/out/exports_check.json, which tests/unit/exports/samples.test.ts
 reads: every check must be ok and the SHA-256 of the samples must match the committed files.
 """
@@ -238,9 +238,48 @@ def check_fits(stem, expected):
     return chk.result()
 
 
-def check_ecsv(stem, expected):
+def check_plain_csv(stem, expected):
+    """The plain CSV: one header line of labels, then rows; numbers at their display precision."""
     chk = Check(f"{stem}.csv")
     path = SAMPLES / f"{stem}.csv"
+    text = path.read_bytes().decode("utf-8")
+    if "\r\n" not in text or any(line and not line.endswith("\r") for line in text.split("\n")[:-1]):
+        chk.fail("lines do not end in CRLF")
+    if text.startswith("#"):
+        chk.fail("starts with a comment line: wanted one header line")
+    rows = list(csv.reader(io.StringIO(text, newline="")))
+    if rows[0] != [c["name"] for c in expected["columns"]]:
+        chk.fail(f"header row {rows[0]}")
+    if len(rows) - 1 != len(expected["rows"]):
+        chk.fail(f"{len(rows) - 1} data lines, expected {len(expected['rows'])}")
+    t = ascii.read(str(path), format="csv", fill_values=[("", "0")], fast_reader=False)
+    for c in expected["columns"]:
+        if c["type"] == "boolean":
+            continue
+        col = t[c["name"]]
+        atol, rtol = tolerance(c, True)
+        for i, row in enumerate(expected["rows"]):
+            want = row.get(c["name"])
+            chk.compared += 1
+            cell = rows[i + 1][[x["name"] for x in expected["columns"]].index(c["name"])]
+            if want is None or (c["type"] == "string" and want == ""):
+                if cell != "":
+                    chk.fail(f"{c['name']}[{i}]: wanted empty, got {cell!r}")
+                continue
+            if c["type"] == "double":
+                if not math.isclose(float(py(col[i])), want, rel_tol=rtol, abs_tol=atol):
+                    chk.fail(f"{c['name']}[{i}]: {py(col[i])!r} != {want!r} (atol {atol}, rtol {rtol})")
+            elif c["type"] == "int":
+                if int(py(col[i])) != want:
+                    chk.fail(f"{c['name']}[{i}]: {py(col[i])!r} != {want!r}")
+            elif cell != want:
+                chk.fail(f"{c['name']}[{i}]: {cell!r} != {want!r}")
+    return chk.result()
+
+
+def check_ecsv(stem, expected):
+    chk = Check(f"{stem}.ecsv")
+    path = SAMPLES / f"{stem}.ecsv"
     t = ascii.read(str(path), format="ecsv")
     for c in expected["columns"]:
         col = t[c["name"]]
@@ -268,15 +307,18 @@ def check_ecsv(stem, expected):
     return chk.result()
 
 
-def check_cds(stem, expected, combined):
-    name = f"{stem}.mrt.txt" if combined else f"{stem}.dat + {stem}.ReadMe"
+def check_cds(stem, expected, combined, data_name=None, readme_name=None):
+    data_name = data_name or f"{stem}.dat"
+    readme_name = readme_name or f"{stem}.ReadMe"
+    name = f"{stem}.mrt.txt" if combined else f"{data_name} + {readme_name}"
     chk = Check(name)
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         if combined:
             t = ascii.read(str(SAMPLES / f"{stem}.mrt.txt"), format="cds")
         else:
-            t = ascii.read(str(SAMPLES / f"{stem}.dat"), readme=str(SAMPLES / f"{stem}.ReadMe"), format="cds")
+            # The ReadMe names the data file it describes; astropy finds the table by that name.
+            t = ascii.read(str(SAMPLES / data_name), readme=str(SAMPLES / readme_name), format="cds")
     for w in caught:
         chk.fail(f"warning: {w.message}")
     for c in expected["columns"]:
@@ -290,7 +332,7 @@ def check_cds(stem, expected, combined):
         last = max(i for i, l in enumerate(text) if l.startswith(("------", "=======")))
         lines = [l for l in text[last + 1 :] if l]
     else:
-        lines = (SAMPLES / f"{stem}.dat").read_text("ascii").splitlines()
+        lines = (SAMPLES / data_name).read_text("ascii").splitlines()
     if len({len(l) for l in lines}) > 1:
         chk.fail("records differ in length")
     compare_values(chk, t, expected, text_form=True, relaxed=True, strings="ascii-strip")
@@ -298,20 +340,32 @@ def check_cds(stem, expected, combined):
 
 
 def check_downloads(directory, out_path):
-    """Checks one release as downloaded (catalogue.{vot,fits,csv,mrt.txt} + expected.json from the API) the same way."""
+    """Checks one release as downloaded (catalogue.{vot,fits,csv,ecsv,zip} + expected.json from the API) the same way.
+    The zip must hold ReadMe and the data file its byte-by-byte description names."""
     global SAMPLES
+    import re
+    import zipfile
+
     SAMPLES = pathlib.Path(directory)
     expected = json.loads((SAMPLES / "expected.json").read_text())
     results = []
-    for fn in (check_votable, check_fits, check_ecsv):
+    for fn in (check_votable, check_fits, check_plain_csv, check_ecsv):
         try:
             results.append(fn("catalogue", expected))
         except Exception as e:  # noqa: BLE001
             results.append({"file": f"catalogue ({fn.__name__})", "ok": False, "valuesCompared": 0, "problems": [f"{type(e).__name__}: {e}"]})
     try:
-        results.append(check_cds("catalogue", expected, True))
+        with zipfile.ZipFile(SAMPLES / "catalogue.zip") as z:
+            names = z.namelist()
+            readme = z.read("ReadMe").decode("ascii")
+            cited = re.search(r"Byte-by-byte Description of file: (\S+)", readme).group(1)
+            if cited not in names:
+                raise ValueError(f"the ReadMe cites {cited}, the zip holds {names}")
+            z.extractall(SAMPLES / "zip")
+        SAMPLES = pathlib.Path(directory) / "zip"
+        results.append(check_cds("catalogue", expected, False, data_name=cited, readme_name="ReadMe"))
     except Exception as e:  # noqa: BLE001
-        results.append({"file": "catalogue (cds)", "ok": False, "valuesCompared": 0, "problems": [f"{type(e).__name__}: {e}"]})
+        results.append({"file": "catalogue (zip: ReadMe + data)", "ok": False, "valuesCompared": 0, "problems": [f"{type(e).__name__}: {e}"]})
     out = {"astropy": astropy.__version__, "ok": all(r["ok"] for r in results), "checks": results}
     pathlib.Path(out_path).write_text(json.dumps(out, indent=1) + "\n")
     return 0 if out["ok"] else 1
@@ -323,7 +377,7 @@ def main():
     results = []
     for stem in ("catalogue", "types"):
         expected = json.loads((SAMPLES / f"{stem}.expected.json").read_text())
-        for fn in (check_votable, check_fits, check_ecsv):
+        for fn in (check_votable, check_fits, check_plain_csv, check_ecsv):
             try:
                 results.append(fn(stem, expected))
             except Exception as e:  # noqa: BLE001

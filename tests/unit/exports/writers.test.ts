@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { cdsUnit, commentCards, FITS_BLOCK, FITS_INT_NULL, formatDouble, headerCards, toAscii, writeCsv, writeFits, writeFixedWidth, writeVotable, xmlEscape, type ExportTable } from '../../../server/exports'
+import { cdsUnit, commentCards, csvNumber, FITS_BLOCK, FITS_INT_NULL, formatDouble, headerCards, toAscii, writeCsv, writeEcsv, writeFits, writeFixedWidth, writeVotable, xmlEscape, type ExportTable } from '../../../server/exports'
 import { sampleCatalogue, sampleTypes } from './samples'
 
 /** A minimal RFC 4180 reader for the round trips (quoted fields, doubled quotes, CRLF). */
@@ -154,20 +154,16 @@ describe('writeCsv', () => {
   const text = writeCsv(sampleCatalogue()).toString('utf8')
   const table = sampleCatalogue()
 
-  it('starts with an ECSV 1.0 header in # comments that names each column, unit and UCD', () => {
-    expect(text.startsWith('# %ECSV 1.0\r\n# ---\r\n')).toBe(true)
-    expect(text).toContain('# - {name: "RAdeg", unit: "deg", datatype: float64, description: "Right ascension (ICRS)", meta: {ucd: "pos.eq.ra;meta.main"}}')
-    expect(text).toContain('# - {name: "Rad", unit: "solRad", datatype: float64')
-    expect(text).toContain('#   release: 2')
+  it('has exactly one header line of column labels, and no comment lines', () => {
+    const lines = text.split('\r\n')
+    expect(lines[0]).toBe(table.columns.map((c) => c.name).join(','))
+    expect(lines.filter((l) => l.startsWith('#'))).toEqual([])
+    expect(lines).toHaveLength(1 + table.rows.length + 1)
+    expect(lines[lines.length - 1]).toBe('')
   })
 
   it('writes RFC 4180 rows: CRLF, quoted commas and quotes, empty fields for missing values', () => {
-    const lines = text.split('\r\n')
-    expect(lines[lines.length - 1]).toBe('')
-    const body = lines.filter((l) => !l.startsWith('#')).join('\r\n')
-    const rows = parseCsv(body)
-    expect(rows[0]).toEqual(table.columns.map((c) => c.name))
-    expect(rows.length).toBe(1 + table.rows.length)
+    const rows = parseCsv(text)
     const col = (name: string) => rows[0]!.indexOf(name)
     expect(rows[2]![col('Object')]).toBe('Cluster member, "bright" #4')
     expect(text).toContain('"Cluster member, ""bright"" #4"')
@@ -175,21 +171,52 @@ describe('writeCsv', () => {
     expect(rows[2]![col('DecidedBy')]).toBe('Renée Lead')
     expect(rows[2]![col('RV')]).toBe('')
     expect(rows[2]![col('ObsDate')]).toBe('')
-    // numbers keep every digit
-    expect(Number(rows[2]![col('RAdeg')])).toBe(359.9999991)
-    expect(Number(rows[2]![col('e_Lum')])).toBe(0.0000456)
     expect(rows[3]![col('TypeCode')]).toBe('')
+  })
+
+  it('writes numbers at their column’s display precision, as short as they read', () => {
+    const rows = parseCsv(text)
+    const col = (name: string) => rows[0]!.indexOf(name)
+    // RAdeg is F10.6: 359.9999991 → 359.999999; Lum is E10.3: 4 significant digits.
+    expect(rows[2]![col('RAdeg')]).toBe('359.999999')
+    expect(rows[1]![col('Teff')]).toBe('11912')
+    expect(rows[1]![col('SNR')]).toBe('84.3')
+    expect(csvNumber(0.30000000000000004, { notation: 'F', width: 6, decimals: 2 })).toBe('0.3')
+    expect(csvNumber(-0.0001, { notation: 'F', width: 6, decimals: 2 })).toBe('0')
+    expect(csvNumber(389.04, { notation: 'E', width: 10, decimals: 3 })).toBe('389')
   })
 
   it('writes booleans as True/False and quotes text that starts with # or a blank', () => {
     const t = sampleTypes()
     t.rows[0]!.label = '# not a comment'
     t.rows[2]!.label = ' leading'
-    const body = writeCsv(t).toString('utf8').split('\r\n').filter((l) => !l.startsWith('#'))
-    expect(body[1]).toBe('1,2147483647,True,299792.458,2000-01-01T12:00:00.000,"# not a comment"')
+    const body = writeCsv(t).toString('utf8').split('\r\n')
+    expect(body[1]!.startsWith('1,2147483647,True,')).toBe(true)
+    expect(body[1]!.endsWith(',2000-01-01T12:00:00.000,"# not a comment"')).toBe(true)
     expect(body[2]).toBe('2,,,,,')
     expect(body[3]).toContain('False')
     expect(body[3]!.endsWith('," leading"')).toBe(true)
+  })
+})
+
+describe('writeEcsv', () => {
+  const text = writeEcsv(sampleCatalogue()).toString('utf8')
+  const table = sampleCatalogue()
+
+  it('starts with an ECSV 1.0 header in # comments that names each column, unit and UCD', () => {
+    expect(text.startsWith('# %ECSV 1.0\r\n# ---\r\n')).toBe(true)
+    expect(text).toContain('# - {name: "RAdeg", unit: "deg", datatype: float64, description: "Right ascension (ICRS)", meta: {ucd: "pos.eq.ra;meta.main"}}')
+    expect(text).toContain('# - {name: "Rad", unit: "solRad", datatype: float64')
+    expect(text).toContain('#   release: 2')
+    expect(text).toContain('#   authors: "Test, A.; Test, B. (Kestrel Ridge)"')
+  })
+
+  it('keeps every digit of the numbers', () => {
+    const rows = parseCsv(text.split('\r\n').filter((l) => !l.startsWith('#')).join('\r\n'))
+    expect(rows[0]).toEqual(table.columns.map((c) => c.name))
+    const col = (name: string) => rows[0]!.indexOf(name)
+    expect(Number(rows[2]![col('RAdeg')])).toBe(359.9999991)
+    expect(Number(rows[2]![col('e_Lum')])).toBe(0.0000456)
   })
 })
 
