@@ -33,6 +33,12 @@ export interface AnalyseOptions {
   snrRegion?: WavelengthRange
   /** Lines below this S/N are not measured. @default 10 */
   snrFloor?: number
+  /**
+   * S/N the caller measured on the residual from the best standard (pipeline.ts): used instead of
+   * DER_SNR when the file has no errors and it is higher, since both overestimate the noise and the
+   * residual is free of the line pattern that DER_SNR reads as noise. @default undefined
+   */
+  residualSnr?: number
   /** Per-pixel flags from the file (non-zero = bad). @default undefined */
   flagged?: ArrayLike<number>
   /** Options for the continuum fit. @default {} */
@@ -64,7 +70,7 @@ export interface AnalysisResult {
    */
   snr: number | null
   /** How the S/N was measured; 'capped' when it reached SNR_CAP. */
-  snrMethod: 'errors' | 'der-snr' | 'capped' | null
+  snrMethod: 'errors' | 'der-snr' | 'residual' | 'capped' | null
   /** Radial velocity removed before measuring, km/s; null when no reference was given or none was found. */
   rv: { v: number; error: number } | null
   prepared: PreparedSpectrum
@@ -99,6 +105,7 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
     maxVelocity = 1000,
     snrRegion = DEFAULT_CLASSIFICATION_REGION,
     snrFloor = 10,
+    residualSnr,
     flagged,
     continuum: continuumOptions = {},
   } = options
@@ -108,9 +115,11 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
   if (maskedCount > 0) warnings.push(`${maskedCount} of ${spectrum.wavelength.length} pixels are masked`)
 
   const fromErrors = spectrumSnrFromErrors(masked, { region: snrRegion }) ?? spectrumSnrFromErrors(masked)
-  const measured = fromErrors ?? estimateSpectrumSnr(masked, { region: snrRegion }) ?? estimateSpectrumSnr(masked)
+  const derSnr = estimateSpectrumSnr(masked, { region: snrRegion }) ?? estimateSpectrumSnr(masked)
+  const fromResidual = fromErrors === null && residualSnr !== undefined && Number.isFinite(residualSnr) && residualSnr > (derSnr ?? 0) ? residualSnr : null
+  const measured = fromErrors ?? fromResidual ?? derSnr
   const snr = measured === null ? null : Math.min(SNR_CAP, measured)
-  const snrMethod: AnalysisResult['snrMethod'] = measured === null ? null : measured >= SNR_CAP ? 'capped' : fromErrors !== null ? 'errors' : 'der-snr'
+  const snrMethod: AnalysisResult['snrMethod'] = measured === null ? null : measured >= SNR_CAP ? 'capped' : fromErrors !== null ? 'errors' : fromResidual !== null ? 'residual' : 'der-snr'
   if (snr === null) warnings.push('S/N could not be estimated (too few usable pixels)')
   else if (snr < snrFloor) warnings.push(`S/N ${snr.toFixed(1)} is below the floor of ${snrFloor}`)
 

@@ -1,7 +1,7 @@
 import { DEFAULT_CLASSIFICATION_REGION, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../shared/grid'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
-import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type MatchResult, type PreparedMatchLibrary } from './match'
+import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
 import { fitSpectrumAtLevel } from './match/classify'
 import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
 
@@ -89,9 +89,9 @@ function subtractRunningMedian(values: Float64Array, wavelength: Float64Array, h
  *    of spectrum and standards is always brought to the coarser.
  * 2. Prepare at that level (no line measurements), find the best standard, measure the radial
  *    velocity against it and analyse the spectrum shifted to rest, with every line.
- * 3. Match (matchSpectrum). When the type sits at an end of the level's types and a coarser level
- *    has standards beyond it (O stars are only in the 15 Å library), the spectrum is matched there
- *    too and the coarser result kept if it lies beyond.
+ * 3. Match (matchSpectrum). When the type is within two subtypes of an end of the level's types
+ *    and a coarser level has standards beyond it (O stars are only in the 15 Å library), the
+ *    spectrum is matched there too and the coarser result kept if it lies beyond.
  * 4. Not a star: emission away from stellar lines or broad emission (notStarEvidence), as the
  *    spectra of galaxies and quasars show: flag 'not-star' and widen the uncertainty.
  */
@@ -128,13 +128,16 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     first = level > fwhm * 1.02 ? analyseSpectrum(input.spectrum, atLevel(quick, fwhm, level)) : unsmoothed
   }
   steps.analyse = (performance.now() - t) / 1000
-  const options = atLevel(base, fwhm, resolution.level!)
+  const options: AnalyseOptions = atLevel(base, fwhm, resolution.level!)
 
   t = performance.now()
   const located = fitSpectrumAtLevel(library, matchInput(first, resolution.level!), resolution.level!, { region, ...exclude })
   let bestRow = 0
   for (let r = 1; r < located.fit.chi2.length; r++) if (located.fit.chi2[r]! < located.fit.chi2[bestRow]!) bestRow = r
   steps.match = (performance.now() - t) / 1000
+
+  const residual = first.snrMethod === 'der-snr' ? residualSnr(library, located.level, bestRow, first, input.spectrum, region) : null
+  if (residual !== null) options.residualSnr = residual
 
   t = performance.now()
   const rest = analyseAtRest(input, options, first, standardOnGrid(library, located.level, bestRow))
@@ -143,7 +146,8 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
 
   t = performance.now()
   let suggestion = matchSpectrum(library, matchInput(analysis, resolution.level!), matchOptions)
-  if (suggestion.flags.includes('outside-grid')) {
+  const types = library.level(resolution.level!).typeCodes
+  if (suggestion.typeCode <= types[0]! + 2 || suggestion.typeCode >= types[types.length - 1]! - 2) {
     const beyond = coarserLevelBeyond(library, resolution.level!, suggestion.typeCode)
     if (beyond !== null) {
       const wide = analyseSpectrum(rest.spectrum, { ...atLevel(base, fwhm, beyond), ...(input.region ? { rvRegion: input.region } : {}) })
@@ -167,6 +171,61 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
 }
 
+/**
+ * S/N per input pixel from the residual of the best standard's fit over the region: DER_SNR's
+ * noise formula (Stoehr et al. 2008) applied to spectrum − (a + b · standard), with the lag of the
+ * second differences stretched to about two input pixels, since the grid oversamples the input and
+ * its neighbouring pixels share noise. The lines of star and standard cancel, so what DER_SNR
+ * reads as noise in a spectrum sampled at a few pixels per resolution element (every line) is gone.
+ */
+function residualSnr(library: PreparedMatchLibrary, level: LibraryLevel, row: number, first: AnalysisResult, spectrum: Spectrum1D, region: readonly [number, number]): number | null {
+  const p = first.prepared
+  const { offset, pixels, wavelength } = library
+  const template = level.flux.subarray(row * pixels, (row + 1) * pixels)
+  const used: number[] = []
+  let m = 0, sx = 0, sy = 0, sxx = 0, sxy = 0
+  for (let i = 0; i < pixels; i++) {
+    const x = template[i]!
+    const y = p.rectified[i + offset]!
+    if (wavelength[i]! < region[0] || wavelength[i]! > region[1] || p.mask[i + offset] !== 0 || !Number.isFinite(x) || !Number.isFinite(y)) continue
+    used.push(i)
+    m++
+    sx += x
+    sy += y
+    sxx += x * x
+    sxy += x * y
+  }
+  if (m < 50) return null
+  const b = (m * sxy - sx * sy) / (m * sxx - sx * sx)
+  const a = (sy - b * sx) / m
+  const steps = new Float64Array(spectrum.wavelength.length - 1)
+  for (let i = 1; i < spectrum.wavelength.length; i++) steps[i - 1] = spectrum.wavelength[i]! - spectrum.wavelength[i - 1]!
+  const inputStep = medianOf(Array.from(steps))
+  const centre = (region[0] + region[1]) / 2
+  const lag = Math.max(2, Math.round((2 * inputStep) / (centre * library.grid.step)))
+  const r = new Float64Array(pixels).fill(Number.NaN)
+  const flux: number[] = []
+  for (const i of used) {
+    r[i] = p.rectified[i + offset]! - (a + b * template[i]!)
+    flux.push(p.rectified[i + offset]!)
+  }
+  const d: number[] = []
+  for (const i of used) {
+    const lo = r[i - lag]
+    const hi = r[i + lag]
+    if (lo === undefined || hi === undefined || !Number.isFinite(lo) || !Number.isFinite(hi)) continue
+    d.push(Math.abs(2 * r[i]! - lo - hi))
+  }
+  if (d.length < 20) return null
+  const noise = (1.482602 / Math.sqrt(6)) * medianOf(d)
+  return noise > 0 ? medianOf(flux) / noise : null
+}
+
+function medianOf(values: number[]): number {
+  const sorted = values.filter(Number.isFinite).sort((x, y) => x - y)
+  return sorted.length === 0 ? Number.NaN : sorted[sorted.length >> 1]!
+}
+
 /** Options that bring a spectrum of resolution `fwhm` to `level` (smoothing only when the level is coarser). */
 function atLevel(options: AnalyseOptions, fwhm: number, level: number): AnalyseOptions {
   return level > fwhm * 1.001 ? { ...options, targetFwhm: level, inputFwhm: fwhm } : { ...options, inputFwhm: fwhm }
@@ -175,7 +234,7 @@ function atLevel(options: AnalyseOptions, fwhm: number, level: number): AnalyseO
 /** The sharpest level coarser than `level` whose standards reach beyond `typeCode`'s end of `level`'s types. */
 function coarserLevelBeyond(library: PreparedMatchLibrary, level: number, typeCode: number): number | null {
   const types = library.level(level).typeCodes
-  const early = typeCode <= types[0]! + 0.5
+  const early = typeCode - types[0]! < types[types.length - 1]! - typeCode
   for (const l of library.resolutions) {
     if (l <= level) continue
     const other = library.level(l).typeCodes

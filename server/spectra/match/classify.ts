@@ -309,7 +309,7 @@ export function windowMode(values: ArrayLike<number>, weights: ArrayLike<number>
  */
 export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, options: MatchOptions = {}): MatchResult {
   const { region = DEFAULT_CLASSIFICATION_REGION, modelError = 0.01, neighbours = 16, temperature = 1.5, classBalance = 0.5, lowSnr = 20, exhaustive = false, exclude } = options
-  const refineCount = Math.max(options.refineCount ?? 48, 2 * neighbours)
+  const refineCount = Math.max(options.refineCount ?? 48, 2 * neighbours, 5)
   const levelFwhm = levelFor(library, input.fwhm)
   const { level, fit, from, to, scratch: s } = fitSpectrumAtLevel(library, input, levelFwhm, { region, modelError, exhaustive, refineCount, ...(exclude ? { exclude } : {}) })
   const { chi2, scale, used } = fit

@@ -33,11 +33,12 @@ export function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined,
 /**
  * The residual beyond which a fit counts as poor for a star of `typeCode`: 1.15 × the 95th
  * percentile of the standards' residuals against their nearest neighbour (LibraryLevel
- * neighbourResidual) within ±4 subtypes (±8 where fewer than five standards are that close).
- * Null when the level has too few standards near the type to say.
+ * neighbourResidual) within ±4 subtypes (±8, then the whole level, where fewer than five standards
+ * are that close), and at least 0.005 of the continuum, so that a library of near-identical
+ * standards does not call every small difference poor. Null when the level has fewer than five standards.
  */
 export function typicalResidual(level: LibraryLevel, standards: readonly MatchStandardInfo[], typeCode: number): number | null {
-  for (const width of [4, 8]) {
+  for (const width of [4, 8, Infinity]) {
     const values: number[] = []
     level.rows.forEach((k, r) => {
       const v = level.neighbourResidual[r]!
@@ -45,7 +46,7 @@ export function typicalResidual(level: LibraryLevel, standards: readonly MatchSt
     })
     if (values.length >= 5) {
       values.sort((a, b) => a - b)
-      return 1.15 * values[Math.min(values.length - 1, Math.floor(0.95 * values.length))]!
+      return Math.max(0.005, 1.15 * values[Math.min(values.length - 1, Math.floor(0.95 * values.length))]!)
     }
   }
   return null

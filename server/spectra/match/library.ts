@@ -246,11 +246,15 @@ function fillNeighbourResiduals(level: LibraryLevel, standards: readonly MatchSt
   }
 }
 
-/** The level for a spectrum of resolution `fwhm`: the sharpest level at least as coarse (within 8 %), else the coarsest. */
+/**
+ * The level for a spectrum of resolution `fwhm`: the sharpest level at least as coarse, else the
+ * coarsest. Never a sharper one: a spectrum cannot be sharpened, and standards sharper than it
+ * leave residuals at every line.
+ */
 export function levelFor(library: PreparedMatchLibrary, fwhm: number | undefined): number {
   const r = library.resolutions
   if (fwhm === undefined || !(fwhm > 0)) return r[0]!
-  return r.find((l) => l >= fwhm / 1.08) ?? r[r.length - 1]!
+  return r.find((l) => l >= fwhm * 0.999) ?? r[r.length - 1]!
 }
 
 /** What {@link modelMatchInputs} needs of a loaded model library (templates/generator/library.ts). */

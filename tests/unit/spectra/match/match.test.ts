@@ -193,7 +193,9 @@ describe('matchSpectrum', () => {
     const flat = new Float64Array(DEFAULT_GRID.length)
     const wl = gridWavelengths(DEFAULT_GRID)
     for (let i = 0; i < flat.length; i++) flat[i] = 1 - 0.6 * Math.exp(-0.5 * ((wl[i]! - 4200) / 30) ** 2)
-    expect(matchSpectrum(toy, { rectified: flat, snr: 300, fwhm: 1.5 }).flags).toContain('poor-fit')
+    const odd = matchSpectrum(toy, { rectified: flat, snr: 300, fwhm: 1.5 })
+    expect(odd.residual.rms, JSON.stringify(odd.residual)).toBeGreaterThan(odd.residual.typical!)
+    expect(odd.flags).toContain('poor-fit')
   })
 
   it('flags Balmer emission and appends "e" to the type', () => {
