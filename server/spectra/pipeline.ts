@@ -178,7 +178,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
  * its neighbouring pixels share noise. The lines of star and standard cancel, so what DER_SNR
  * reads as noise in a spectrum sampled at a few pixels per resolution element (every line) is gone.
  */
-function residualSnr(library: PreparedMatchLibrary, level: LibraryLevel, row: number, first: AnalysisResult, spectrum: Spectrum1D, region: readonly [number, number]): number | null {
+export function residualSnr(library: PreparedMatchLibrary, level: LibraryLevel, row: number, first: AnalysisResult, spectrum: Spectrum1D, region: readonly [number, number]): number | null {
   const p = first.prepared
   const { offset, pixels, wavelength } = library
   const template = level.flux.subarray(row * pixels, (row + 1) * pixels)

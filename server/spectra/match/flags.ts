@@ -11,21 +11,23 @@ import type { LibraryLevel, MatchStandardInfo, PreparedMatchLibrary } from './li
 
 /**
  * Whether the Balmer lines show emission: a line of the table measured with a significantly
- * negative equivalent width and its extreme point above the continuum. Hβ and Hγ count only for
- * types earlier than G0 (type code 40); Hα counts for every type.
+ * negative equivalent width (beyond −1 Å and 3σ). Before G0 (type code 40) Hα, Hβ and Hγ count,
+ * and an emission core inside broad absorption wings (as Be stars show) is enough; from G0 on only
+ * Hα counts, and its extreme point must stand above the continuum.
  */
 export function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined, typeCode: number): boolean {
   if (!lines) return false
   // From G on, the side bands of Hβ and Hγ sit in metal lines and the G band, so their
   // side-band equivalent widths go negative without any emission (the Lick HγA index of a K giant
-  // is about −6 Å, common practice); there only Hα speaks for emission.
-  const ids = typeCode < 40 ? ['h-alpha', 'h-beta', 'h-gamma'] : ['h-alpha']
+  // is about −6 Å, common practice); there only Hα speaks for emission, and only with its peak up.
+  const hot = typeCode < 40
+  const ids = hot ? ['h-alpha', 'h-beta', 'h-gamma'] : ['h-alpha']
   return lines.some(
     (l) =>
       l.measured &&
       ids.includes(l.id) &&
       l.equivalentWidth < -1 &&
-      l.depth < -0.05 &&
+      (hot || l.depth < -0.05) &&
       (l.equivalentWidthError === null || -l.equivalentWidth > 3 * l.equivalentWidthError),
   )
 }
@@ -121,7 +123,7 @@ export interface CompositeEvidence {
  * flux ratio of two stars does). Any star is fitted a little better by a mix than by one standard
  * (the mix has more freedom), so the test compares like with like: the best such mix against the
  * best mix of the nearest standard with one of its neighbours within 6 subtypes. Returned when the
- * distant mix lowers that χ² by more than 30 % with each star giving at least 7 % of the light;
+ * distant mix lowers that χ² by more than 20 % with each star giving at least 7 % of the light;
  * null otherwise. The mixes are fitted on the coarse pixels (every `coarseStep`-th): a two-star
  * sum changes whole bands and line groups, not single pixels.
  * @param flux, weights the spectrum and its weights on the coarse pixels; from, to their range
@@ -151,7 +153,7 @@ export function compositeEvidence(library: PreparedMatchLibrary, level: LibraryL
       if (Math.abs(typeOf(r1) - typeOf(r2)) < 12) continue
       const mix = smoothPairChiSquare(flux, weights, rows, pixels, r1, r2, from, to)
       const ratio = mix.chi2 / near
-      if (mix.fraction >= 0.07 && mix.fraction <= 0.93 && ratio < 0.7 && (found === null || ratio < found.ratio)) {
+      if (mix.fraction >= 0.07 && mix.fraction <= 0.93 && ratio < 0.8 && (found === null || ratio < found.ratio)) {
         found = { rows: [r1, r2], fraction: mix.fraction, ratio }
       }
     }

@@ -20,7 +20,7 @@ export interface SnrOptions {
  * Works on the spectrum as observed: on a resampled (oversampled) spectrum neighbouring pixels are
  * correlated and DER_SNR overestimates the S/N, so run it before rebinning.
  *
- * @returns S/N per pixel, or null when fewer than 5 usable pixels remain or the noise is zero.
+ * @returns S/N per pixel; Infinity for noiseless data; null when fewer than 5 usable pixels remain.
  */
 export function estimateSpectrumSnr(spectrum: Spectrum1D, options: SnrOptions = {}): number | null {
   assertSpectrum(spectrum)
@@ -86,6 +86,8 @@ function derSnr(
   for (let i = 2; i < m - 2; i++) scratch[i - 2] = Math.abs(2 * good[i]! - good[i - 2]! - good[i + 2]!)
   const noise = DER_SNR_SCALE * medianInPlace(scratch, m - 4)
   const signal = medianInPlace(good, m)
+  // Noiseless (made-up) data: no noise to measure, so the S/N is unbounded.
+  if (noise === 0 && signal > 0) return Infinity
   if (!(noise > 0)) return null
   return signal / noise
 }

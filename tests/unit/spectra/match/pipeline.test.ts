@@ -8,7 +8,7 @@ import { DEFAULT_OBSERVED_DIR, defaultLibrary, observedLibraryAt } from '../../.
 import { analyseSpectrum } from '../../../../server/spectra/analyse'
 import { standardOnGrid } from '../../../../server/spectra/match'
 import { fitSpectrumAtLevel } from '../../../../server/spectra/match/classify'
-import { runPipeline } from '../../../../server/spectra/pipeline'
+import { residualSnr, runPipeline } from '../../../../server/spectra/pipeline'
 
 const library = defaultLibrary()
 const { library: observed, inputs } = observedLibraryAt(DEFAULT_OBSERVED_DIR)
@@ -43,7 +43,9 @@ describe('runPipeline', () => {
       const { level, fit } = fitSpectrumAtLevel(library, { rectified: first.prepared.rectified, mask: first.prepared.mask, snr: first.snr, fwhm: 2.5 }, 2.5)
       let best = 0
       for (let r = 1; r < fit.chi2.length; r++) if (fit.chi2[r]! < fit.chi2[best]!) best = r
-      const direct = analyseSpectrum(spectrum, { inputFwhm: 2.5, rvReference: standardOnGrid(library, level, best) })
+      const residual = residualSnr(library, level, best, first, spectrum, [3850, 5000])
+      expect(residual).not.toBeNull()
+      const direct = analyseSpectrum(spectrum, { inputFwhm: 2.5, rvReference: standardOnGrid(library, level, best), residualSnr: residual! })
       expect(out.analysis.rv!.v).toBe(direct.rv!.v)
       // The standards are at rest only to about ±10 km/s each (from memory of the MILES papers), so the
       // velocity against another star carries that too.

@@ -1,0 +1,178 @@
+// Suggestions for real stars against the shipped observed library (templates/observed-v1), each
+// star left out of the library it is matched against (leave one star out). Published types are
+// those of the libraries' own indexes: MILES v9.1 (Sánchez-Blázquez et al. 2006, MNRAS 371, 703;
+// 2.5 Å FWHM, Falcón-Barroso et al. 2011) and the JHC library (Jacoby, Hunter & Christian 1984,
+// ApJS 56, 257; these copies smoothed to about 15 Å). Flag fixtures: tests/fixtures/flags/PROVENANCE.md.
+import { readFileSync } from 'node:fs'
+import { describe, expect, it } from 'vitest'
+import { DEFAULT_GRID, gridWavelengths } from '../../../../shared/grid'
+import type { Spectrum1D } from '../../../../shared/spectrum'
+import { defaultLibrary } from '../../../../server/jobs/worker'
+import { readSpectrum } from '../../../../server/spectra/io'
+import { toSpectrum1D } from '../../../../server/spectra/io/types'
+import { runPipeline } from '../../../../server/spectra/pipeline'
+import { referenceStars, type ReferenceStar } from '../../../../bench/reference'
+import { classSpan, exactClass } from '../../../../bench/score'
+import { degradeSpectrum } from '../../../../bench/synthetic'
+import { realA0V } from '../../../helpers/spectra'
+
+const library = defaultLibrary()
+const stars = referenceStars()
+const star = (name: string): ReferenceStar => {
+  const s = stars.find((x) => x.star === name)
+  if (!s) throw new Error(`no reference star ${name}`)
+  return s
+}
+/** Classifies a reference star (or a spectrum made from it) with every spectrum of it left out; `given: false` leaves the resolution to the pipeline. */
+const classify = (s: ReferenceStar, spectrum: Spectrum1D = s.spectrum, given = true) =>
+  runPipeline({ spectrum, ...(given ? { inputFwhm: s.fwhm } : {}), exclude: s.exclude }, library)
+
+function fixture(name: string, z = 0): Spectrum1D {
+  const read = readSpectrum(readFileSync(new URL(`../../../fixtures/flags/${name}`, import.meta.url)), name)
+  if (!read.ok) throw new Error(read.message)
+  const s = toSpectrum1D(read.spectrum)
+  return { ...s, wavelength: s.wavelength.map((w) => w * (1 + z)) }
+}
+
+/** Two library stars summed at equal flux near 5500 Å, on the library grid (the library's copies of their spectra). */
+function composite(a: ReferenceStar, b: ReferenceStar): Spectrum1D {
+  const wl = gridWavelengths(DEFAULT_GRID)
+  const at = (s: ReferenceStar) => {
+    const i = s.spectrum.wavelength.findIndex((w) => w >= 5500)
+    return s.spectrum.flux[i]!
+  }
+  const sample = (s: ReferenceStar, lambda: number) => {
+    const w = s.spectrum.wavelength
+    let j = 0
+    while (j < w.length - 2 && w[j + 1]! < lambda) j++
+    const t = (lambda - w[j]!) / (w[j + 1]! - w[j]!)
+    return s.spectrum.flux[j]! + t * (s.spectrum.flux[j + 1]! - s.spectrum.flux[j]!)
+  }
+  const fa = at(a)
+  const fb = at(b)
+  const keep = Array.from(wl).filter((l) => l > 3600 && l < 7300)
+  return { wavelength: Float64Array.from(keep), flux: Float64Array.from(keep, (l) => sample(a, l) / fa + sample(b, l) / fb) }
+}
+
+describe('the class and type of named reference stars', () => {
+  // [star, source]: the published type is checked, not the code's own earlier answers.
+  it.each([
+    ['HD031295', 'A0 V (MILES)'],
+    ['HD204041', 'A1 IV (MILES)'],
+    ['HD175640', 'B9 III (MILES)'],
+    ['HD160762', 'B3 IV (MILES)'],
+    ['HD004307', 'G0 V (MILES)'],
+    ['HD010307', 'G2 V (MILES)'],
+    ['HD017382', 'K1 V (MILES)'],
+    ['HD207130', 'K0 III (MILES)'],
+    ['HD013520', 'K4 III (MILES)'],
+    ['HD121130', 'M3 III (MILES)'],
+    ['HD 9973', 'F5 I (JHC)'],
+  ])('%s, published %s, gets its class and its type within one subtype', (name) => {
+    const s = star(name)
+    const r = classify(s).suggestion!
+    expect(Math.abs(r.typeCode - s.typeCode), `${name}: ${r.spectralType} for ${s.publishedType}`).toBeLessThanOrEqual(1)
+    const published: [number, number] = s.publishedType.trim().endsWith(' I') ? [1, 2] : s.classRange
+    expect(exactClass({ truthType: s.typeCode, truthClass: s.classCode, truthClassRange: published, type: r.typeCode, classCode: r.classCode, sigmaType: 0, sigmaClass: 0, flags: [] }), `${name}: ${r.spectralType} for ${s.publishedType}`).toBe(true)
+  }, 60_000)
+
+  it('reports Teff, log g and [Fe/H] near the published values of a solar-type dwarf (HD 10307, G2 V; MILES parameter table)', () => {
+    const s = star('HD010307')
+    const p = classify(s).suggestion!.parameters
+    expect(Math.abs(p.teff!.value - s.teff!)).toBeLessThan(Math.max(250, 2 * p.teff!.error))
+    expect(Math.abs(p.logg!.value - s.logg!)).toBeLessThan(0.4)
+    expect(Math.abs(p.feh!.value - s.feh!)).toBeLessThan(0.3)
+  }, 60_000)
+})
+
+describe('the resolution estimate', () => {
+  // MILES is at 2.5 Å FWHM (Falcón-Barroso et al. 2011); degraded here with a Gaussian of √(target² − 2.5²).
+  it.each([['HD207130', 'K0 III'], ['HD013520', 'K4 III'], ['HD004307', 'G0 V']])('recovers %s (%s) degraded to 4, 7 and 12 Å FWHM within 15 %%', (name) => {
+    const s = star(name)
+    for (const fwhm of [4, 7, 12]) {
+      const out = classify(s, degradeSpectrum(s.spectrum, { from: 2.5, to: fwhm, seed: 7 }), false)
+      expect(out.resolution.source).toBe('estimated')
+      expect(Math.abs(out.resolution.fwhm! / fwhm - 1), `${name} at ${fwhm} Å: ${out.resolution.fwhm}`).toBeLessThan(0.15)
+    }
+  }, 120_000)
+
+  it('says a spectrum at the standards\' own resolution is at least as sharp as they are', () => {
+    const out = classify(star('HD207130'), undefined, false)
+    expect(out.resolution).toMatchObject({ source: 'estimated', bound: 'sharpest', fwhm: 2.5, level: 2.5 })
+  }, 60_000)
+})
+
+describe('the flags on real spectra', () => {
+  it('raises possible-composite for two stars of different type at equal flux near 5500 Å, and not for either alone', () => {
+    // A0 V HD 31295 + K0 III HD 10975, and B9 V HD 130095 + K2 III HD 104307 (MILES types).
+    for (const [a, b] of [['HD031295', 'HD010975'], ['HD130095', 'HD104307']] as const) {
+      const sa = star(a)
+      const sb = star(b)
+      const out = runPipeline({ spectrum: composite(sa, sb), inputFwhm: 2.5, exclude: new Set([...sa.exclude, ...sb.exclude]) }, library)
+      expect(out.suggestion!.flags, `${a} + ${b}`).toContain('possible-composite')
+      expect(classify(sa).suggestion!.flags).not.toContain('possible-composite')
+      expect(classify(sb).suggestion!.flags).not.toContain('possible-composite')
+    }
+  }, 120_000)
+
+  it('calls the DA white dwarf GRW +70 5824 outside the MK system, and neither the A0 V standard Vega nor an M dwarf', () => {
+    const da = runPipeline({ spectrum: fixture('grw_70d5824_stisnic_005.fits') }, library).suggestion!
+    expect(da.flags).toContain('not-mk')
+    expect(da.uncertainty.subtypes).toBeGreaterThanOrEqual(10)
+    const read = readSpectrum(realA0V(), 'alpha_lyr_stis_010.fits')
+    if (!read.ok) throw new Error(read.message)
+    expect(runPipeline({ spectrum: toSpectrum1D(read.spectrum), inputFwhm: 5.5 }, library).suggestion!.flags).not.toContain('not-mk')
+    // HD 95735, M2 V (MILES).
+    expect(classify(star('HD095735')).suggestion!.flags).not.toContain('not-mk')
+  }, 60_000)
+
+  it('calls a Seyfert galaxy (NGC 1068, at rest and at z = 0.2) and a quasar (at rest and at z = 0.3) not a star, with no confident type', () => {
+    for (const [name, z] of [['ngc1068_template.fits', 0], ['ngc1068_template.fits', 0.2], ['qso_template.fits', 0], ['qso_template.fits', 0.3]] as const) {
+      const out = runPipeline({ spectrum: fixture(name, z) }, library)
+      expect(out.suggestion!.flags, `${name} z=${z}`).toContain('not-star')
+      expect(out.suggestion!.uncertainty.subtypes).toBeGreaterThanOrEqual(10)
+      expect(out.notes.join(' ')).toContain('Not a star')
+    }
+  }, 120_000)
+
+  it('raises poor-fit on at most 10 % of normal reference stars, and on the composites and the quasar', () => {
+    const sample = stars.filter((_, i) => i % 6 === 0)
+    const poor = sample.filter((s) => classify(s).suggestion!.flags.includes('poor-fit')).length
+    expect(poor / sample.length).toBeLessThanOrEqual(0.1)
+    expect(runPipeline({ spectrum: fixture('qso_template.fits', 0.3) }, library).suggestion!.flags).toContain('poor-fit')
+  }, 300_000)
+
+  it('raises low-snr for a star with noise to S/N 10, and not for the stars as the libraries give them (S/N from the residual of the best standard)', () => {
+    const s = star('HD207130')
+    const noisy = degradeSpectrum(s.spectrum, { from: 2.5, to: 2.5, snr: 10, seed: 3 })
+    delete noisy.error
+    const low = classify(s, noisy)
+    expect(low.suggestion!.flags).toContain('low-snr')
+    expect(low.analysis.snr!).toBeLessThan(20)
+    // K giants at 2.5 Å: DER_SNR alone put these near S/N 20 (its second differences take the lines for noise).
+    for (const name of ['HD207130', 'HD013520', 'HD104307']) {
+      const out = classify(star(name))
+      expect(out.suggestion!.flags, name).not.toContain('low-snr')
+      expect(out.analysis.snrMethod).toBe('residual')
+    }
+  }, 60_000)
+
+  it('caps the S/N of a noiseless spectrum and says so', () => {
+    const s = star('HD207130')
+    const wl = gridWavelengths(DEFAULT_GRID)
+    const flux = Float64Array.from(wl, (l) => 1 - 0.5 * Math.exp(-0.5 * ((l - 4340) / 3) ** 2) - 0.4 * Math.exp(-0.5 * ((l - 4861) / 3) ** 2))
+    const out = runPipeline({ spectrum: { wavelength: wl, flux }, inputFwhm: 2.5, exclude: s.exclude }, library)
+    expect(out.analysis.snr).toBe(1000)
+    expect(out.analysis.snrMethod).toBe('capped')
+  }, 60_000)
+
+  it('raises emission for a real A dwarf with an Hα emission line added as Be stars show (6 Å FWHM, peak 4 × the continuum, EW about −25 Å)', () => {
+    const s = star('HD031295')
+    const w = s.spectrum.wavelength
+    const withEmission = { ...s.spectrum, flux: s.spectrum.flux.map((f, i) => f * (1 + 4 * Math.exp(-0.5 * ((w[i]! - 6562.8) / 2.55) ** 2))) }
+    const r = classify(s, withEmission).suggestion!
+    expect(r.flags).toContain('emission')
+    expect(classify(s).suggestion!.flags).not.toContain('emission')
+    void classSpan
+  }, 60_000)
+})
