@@ -97,7 +97,8 @@ describe('readSpectrum on FITS layouts', () => {
   it('follows the user when told the wavelengths are vacuum', () => {
     const r = ok(readSpectrum(load('image_awav_cdelt_f32.fits'), 'x.fits', { assumeVacuum: true }))
     expect(r.meta.vacuumConverted).toBe(true)
-    expect(r.meta.vacuumSource).toMatch(/user's choice/)
+    expect(r.meta.vacuumSource).toBe('your choice (vacuum)')
+    expect(r.meta.decisions!.medium.conflict).toBe("the file says air (CTYPE1 = 'AWAV' (air, FITS WCS Paper III)); your choice was used")
     expect(r.spectrum.wavelengthAir[0]).toBeCloseTo(vacuumToAir(3600), 9)
   })
 })
@@ -125,7 +126,7 @@ describe('readSpectrum on multi-extension files', () => {
   it('refuses a picked extension that is not a spectrum', () => {
     const r = readSpectrum(load(ref.file), 'mef.fits', { hdu: 1 })
     expect(r.ok).toBe(false)
-    if (!r.ok) expect(r.message).toBe('mef.fits: HDU 1 is not a spectrum: it is a 50 × 40 image with 40 rows and no multispec keywords, not a 1-D spectrum')
+    if (!r.ok) expect(r.message).toBe('mef.fits: HDU 1 is not a spectrum: it is a 50 × 40 image with 40 rows and nothing saying what the rows are (no multispec keywords, wavelength image or wavelength row), not a 1-D spectrum: extract a 1-D spectrum first')
   })
 })
 
@@ -198,7 +199,7 @@ describe('readSpectrum refusals for FITS', () => {
   })
   it('refuses a frequency axis and an unknown wavelength unit', () => {
     expect(refusal(linearImage(500, 4000, 1, flat, [['CTYPE1', 'FREQ']])).code).toBe('NO_WAVELENGTH_SCALE')
-    expect(refusal(linearImage(500, 4000, 1, flat, [['CUNIT1', 'furlong']]))).toEqual({ ok: false, code: 'UNKNOWN_UNIT', message: "bad.fits: wavelength unit 'furlong' is not one of Angstrom, nm, um, m" })
+    expect(refusal(linearImage(500, 4000, 1, flat, [['CUNIT1', 'furlong']]))).toEqual({ ok: false, code: 'UNKNOWN_UNIT', message: "bad.fits: wavelength unit 'furlong' (CUNIT1) is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)" })
   })
   it('refuses all-NaN and all-zero flux', () => {
     expect(refusal(linearImage(500, 3800, 2.5, () => NaN))).toEqual({ ok: false, code: 'NO_VALID_FLUX', message: 'bad.fits: every flux value is NaN or flagged' })
@@ -214,7 +215,9 @@ describe('readSpectrum refusals for FITS', () => {
     expect(refusal(holed).code).toBe('NO_COVERAGE')
   })
   it('refuses wavelengths that cannot be optical and hints at a missing unit', () => {
-    expect(refusal(linearImage(500, 380, 0.2, flat))).toEqual({ ok: false, code: 'NOT_OPTICAL', message: 'bad.fits: wavelengths run from 380.0 to 479.8 Å, which cannot be an optical spectrum; they look like nm: name the unit in the file' })
+    expect(refusal(linearImage(500, 380, 0.2, flat))).toEqual({ ok: false, code: 'NOT_OPTICAL', message: 'bad.fits: wavelengths run from 380.0 to 479.8 Å, which cannot be an optical spectrum; they look like nm but the file names no unit: choose the wavelength unit when you submit (--unit with npm run classify), or name it in the file (CUNIT1, TUNITn, or a "wavelength (nm)" column header)' })
+    const told = readSpectrum(linearImage(500, 380, 0.2, flat), 'bad.fits', { wavelengthUnit: 'nm' })
+    expect(told.ok && told.spectrum.wavelengthAir[0]).toBe(3800)
     expect(refusal(linearImage(500, 20000, 10, flat, [['CUNIT1', 'Angstrom']])).code).toBe('NOT_OPTICAL')
   })
   it('accepts a spectrum far wider than the optical and leaves cropping to the pipeline', () => {
