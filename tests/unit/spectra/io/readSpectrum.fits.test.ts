@@ -165,6 +165,34 @@ describe('readSpectrum on the real HST spectrum', () => {
   })
 })
 
+describe('readSpectrum on the real HST table with DATAQUAL', () => {
+  // Reference: astropy 5.2.1 via tests/reference/calspec_dataqual_reference.py → out/calspec_dataqual.json.
+  const ref = JSON.parse(readFileSync(join(__dirname, '../../../reference/out/calspec_dataqual.json'), 'utf8')) as {
+    rows: number; dataqualComment: string; flaggedByDataqual: number; wavelengthMin: number; wavelengthMax: number
+    airMin: number; airMax: number; sample: { rows: number[]; wavelength: number[]; flux: number[]; staterror: number[]; dataqual: number[] }
+  }
+  const bytes = new Uint8Array(readFileSync(join(__dirname, '../../../fixtures/real/bd_75d325_stis_001.fits')))
+  it('reads every row and masks exactly the rows whose DATAQUAL is 0, as the column comment says', () => {
+    const r = ok(readSpectrum(bytes, 'bd_75d325_stis_001.fits'))
+    expect(r.meta.pixels).toBe(ref.rows)
+    expect(r.meta.maskedPixels).toBe(ref.flaggedByDataqual)
+    expect(ref.dataqualComment).toBe('Data quality: 1=good, 0=bad')
+    expect(r.meta.decisions!.masks).toEqual([{ source: 'DATAQUAL column', rule: `0 is bad, 1 is good (as its comment says: "${ref.dataqualComment}")`, pixels: ref.flaggedByDataqual }])
+    ref.sample.rows.forEach((row, k) => {
+      expect(r.spectrum.mask?.[row] ?? 0).toBe(ref.sample.dataqual[k] === 0 ? 1 : 0)
+      relClose(r.spectrum.flux[row]!, ref.sample.flux[k]!, 1e-6)
+      relClose(r.spectrum.error![row]!, ref.sample.staterror[k]!, 1e-6)
+    })
+  })
+  it('converts its vacuum wavelengths to air as the reference formula does', () => {
+    const r = ok(readSpectrum(bytes, 'bd_75d325_stis_001.fits'))
+    expect(r.meta.decisions!.medium).toEqual({ vacuum: true, why: 'header text "All wavelengths are in vacuum."' })
+    relClose(r.spectrum.wavelengthAir[0]!, ref.airMin, 1e-9)
+    relClose(r.spectrum.wavelengthAir[ref.rows - 1]!, ref.airMax, 1e-9)
+    expect(r.meta.decisions!.ignored).toEqual(['columns SYSERROR, FWHM, TOTEXP'])
+  })
+})
+
 const flat = (i: number) => 1 + 0.001 * (i % 7)
 function refusal(bytes: Uint8Array, options = {}) {
   const r = readSpectrum(bytes, 'bad.fits', options)

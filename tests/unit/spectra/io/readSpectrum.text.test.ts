@@ -81,3 +81,20 @@ describe('parseNumberToken', () => {
     expect(parseNumberToken('0x10')).toBeUndefined()
   })
 })
+
+describe('readSpectrum on the library text spectra in ../shared/data/jhc-reference', () => {
+  // The file's own first and last rows: 349.70 nm (flux 17.5332) and 744.22 nm; 2821 lines less the two
+  // comment lines. The unit is named only in the comment "# Wavelength [nm]    Normalized Amplitude".
+  const path = join(__dirname, '../../../../../shared/data/jhc-reference/HD23733-Jacoby-spec.csv')
+  it('reads the unit from the commented header and gives the range in Å', () => {
+    const r = readSpectrum(new Uint8Array(readFileSync(path)), 'HD23733-Jacoby-spec.csv')
+    if (!r.ok) throw new Error(r.message)
+    expect(r.meta.pixels).toBe(2819)
+    expect(r.spectrum.wavelengthAir[0]).toBeCloseTo(3497.0, 9)
+    expect(r.spectrum.wavelengthAir[2818]).toBeCloseTo(7442.2, 9)
+    expect(r.spectrum.flux[0]).toBeCloseTo(17.5332, 12)
+    expect(r.meta.wavelengthUnit).toBe('nm')
+    expect(r.meta.decisions!.unit.why).toBe("the column header 'Wavelength [nm]'")
+    expect(r.meta.decisions!.medium).toEqual({ vacuum: false, why: 'the file does not say; air assumed (common practice for ground-based spectra)' })
+  })
+})
