@@ -5,6 +5,7 @@ import * as m0003 from './0003-measurements'
 import * as m0004 from './0004-standards-suggestions'
 import * as m0006 from './0006-review'
 import * as m0007 from './0007-releases'
+import * as m0008 from './0008-reading-corrections'
 
 export interface Migration {
   name: string
@@ -20,4 +21,5 @@ export const migrations: Migration[] = [
   { name: '0004-standards-suggestions', ...m0004 },
   { name: '0006-review', ...m0006 },
   { name: '0007-releases', ...m0007 },
+  { name: '0008-reading-corrections', ...m0008 },
 ]

@@ -129,7 +129,13 @@ export interface SpectrumDetail extends SpectrumListItem {
   fileSha256: string
   vacuumConverted: boolean
   read: ReadMeta
+  /** How the observer asked for the file to be read. */
+  readChoices: ReadChoices
   canEdit: boolean
+  /** The submitter, before any call. */
+  canWithdraw: boolean
+  /** Whether reading choices and resolution may be changed (re-read and re-process): the submitter before any call, or a lead. */
+  canReread: boolean
 }
 
 /** GET /api/spectra/:id: the spectrum with its measurements and the suggestions the caller may see. */

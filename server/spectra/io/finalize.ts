@@ -59,7 +59,7 @@ export function decideMedium(evidence: readonly MediumEvidence[], choice: boolea
   }
   if (!strongest) return { vacuum: false, why: 'the file does not say; air assumed (common practice for ground-based spectra)' }
   const out: ReadDecisions['medium'] = { vacuum: strongest.vacuum, why: strongest.source }
-  const against = evidence.filter((e) => e.vacuum !== strongest.vacuum)
+  const against = evidence.filter((e) => e.vacuum !== strongest.vacuum && !e.inferred)
   if (against.length) {
     const reason = against.every((e) => e.strength < strongest.strength)
       ? `${strongest.source} is the stronger statement`

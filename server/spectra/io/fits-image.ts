@@ -183,7 +183,7 @@ function keywordDispersion(ctx: ImageContext, hdu: FitsHdu, k: number): Dispersi
     if (coeff1 === 0) throw new SpectrumReadError('NO_WAVELENGTH_SCALE', `${fileName}: COEFF1 is zero, so every pixel has the same wavelength`)
     return {
       at: (i) => 10 ** (coeff0 + coeff1 * i), kind: 'log10 λ = COEFF0 + COEFF1 · i (survey convention)', inherited: inheritedFrom('COEFF0'),
-      medium: [{ vacuum: true, source: 'COEFF0/COEFF1 log10 wavelengths, vacuum by the survey convention', strength: 1.5 }],
+      medium: [{ vacuum: true, source: 'COEFF0/COEFF1 log10 wavelengths, vacuum by the survey convention', strength: 1.5, inferred: true }],
     }
   }
   const ctype = (axisString(ctx, hdu, `CTYPE${k}`) ?? '').toUpperCase()
@@ -306,7 +306,7 @@ export function readImageHdu(ctx: ImageContext, hdu: FitsHdu): RawSpectrum {
     solution = `row ${waveRow + 1} of the image holds the wavelengths (${describeDispersion(fitDispersion(row))})`
     const k = keywordUnit(ctx, hdu, 1)
     unit = k.unit ? k : { source: 'assumed Å: the image names no unit' }
-    if (axisNumber(ctx, hdu, 'COEFF0') !== undefined) medium.push({ vacuum: true, source: 'survey image with COEFF0/COEFF1: log10 vacuum wavelengths by the survey convention', strength: 1.5 })
+    if (axisNumber(ctx, hdu, 'COEFF0') !== undefined) medium.push({ vacuum: true, source: 'survey image with COEFF0/COEFF1: log10 vacuum wavelengths by the survey convention', strength: 1.5, inferred: true })
     const rows = shape.lines
     const used = new Set([waveRow, fluxRow])
     if (rows === 5 && waveRow === 2) {

@@ -224,7 +224,7 @@ function tableMedium(hdu: FitsHdu, primary: FitsHdu | undefined, wave: TableColu
   const colText = [wave.unit, wave.comment].filter((s): s is string => !!s).join(' ')
   const colVac = colText ? vacuumFromText(colText) : undefined
   if (colVac !== undefined) out.push({ vacuum: colVac, source: `column ${wave.name.trim()} says "${colText}"`, strength: 2 })
-  if (isLog) out.push({ vacuum: true, source: 'LOGLAM column: log10 vacuum wavelengths by the survey convention', strength: 1.5 })
+  if (isLog) out.push({ vacuum: true, source: 'LOGLAM column: log10 vacuum wavelengths by the survey convention', strength: 1.5, inferred: true })
   return out.sort((a, b) => b.strength - a.strength)
 }
 

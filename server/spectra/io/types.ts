@@ -123,6 +123,8 @@ export interface MediumEvidence {
    * 1: the generic CTYPE WAVE that many writers put on air wavelengths too.
    */
   strength: number
+  /** A layout's convention rather than a statement: overruling it is no contradiction. */
+  inferred?: boolean
 }
 
 /**
