@@ -1,13 +1,15 @@
 import { computed, reactive, ref, shallowRef } from 'vue'
 import { ApiError, messageOf } from '@/api/http'
-import { uploadSpectrumFile, type FileResult, type SubmitFields, type UploadHandle } from '@/api/spectra'
+import { uploadSpectrumFile, type FileResult, type SubmitFields, type UploadHandle, type WavelengthUnitChoice } from '@/api/spectra'
 import { coordinateError, type MetadataDraft } from '@/lib/spectrumMetadata'
 
 /** The batch form as the person fills it in; empty means "take it from the file". */
 export interface BatchMetadata extends MetadataDraft {
   campaignId: number | null
   wavelengthMedium: 'file' | 'air' | 'vacuum'
+  wavelengthUnit: WavelengthUnitChoice
   hdu: number | null
+  aperture: number | null
 }
 
 export const emptyBatchMetadata = (): BatchMetadata => ({
@@ -24,7 +26,9 @@ export const emptyBatchMetadata = (): BatchMetadata => ({
   parallaxErrorMas: null,
   ebv: null,
   wavelengthMedium: 'file',
+  wavelengthUnit: 'file',
   hdu: null,
+  aperture: null,
   notes: '',
 })
 
@@ -48,7 +52,9 @@ export function toSubmitFields(meta: BatchMetadata, batchId: string): SubmitFiel
     parallaxErrorMas: num(meta.parallaxErrorMas),
     ebv: num(meta.ebv),
     wavelengthMedium: meta.wavelengthMedium,
+    wavelengthUnit: meta.wavelengthUnit === 'file' ? undefined : meta.wavelengthUnit,
     hdu: num(meta.hdu),
+    aperture: num(meta.aperture),
     notes: text(meta.notes),
   }
 }
