@@ -198,26 +198,28 @@ export function decodeFixedColumns(bytes: Uint8Array, hdu: FitsHdu, cols: TableC
 function decodeWithFitsjs(bytes: Uint8Array, hdu: FitsHdu, cols: TableColumn[], heapCols: TableColumn[]): Float64Array[] {
   const rows = rowCount(hdu)
   const header = newHeader(hideColumns(hdu.headerText, heapCols))
-  const table = new BinaryTable(header, dataBuffer(bytes, hdu)) as unknown as RowDecoder
+  const buffer = dataBuffer(bytes, hdu)
+  const table = new BinaryTable(header, buffer) as unknown as RowDecoder
   const out = cols.map((c) => new Float64Array(rows * c.repeat))
   const scalers = cols.map((c) => scaler(hdu, c))
-  const buffer = dataBuffer(bytes, hdu)
+  const names = cols.map((c) => c.name)
   for (let first = 0; first < rows; first += CHUNK_ROWS) {
     const n = Math.min(CHUNK_ROWS, rows - first)
     const decoded = table._getRows(buffer.slice(first * table.rowByteSize, (first + n) * table.rowByteSize), n) as TableRow[]
     for (let r = 0; r < n; r++) {
       const row = decoded[r]!
-      cols.forEach((c, k) => {
-        const v = row[c.name]
+      for (let k = 0; k < cols.length; k++) {
+        const repeat = cols[k]!.repeat
+        const v = row[names[k]!]
         const target = out[k]!
         const scale = scalers[k]!
-        if (c.repeat === 1) target[first + r] = scale(toNumber(Array.isArray(v) ? v[0] : v))
+        if (repeat === 1) target[first + r] = scale(toNumber(Array.isArray(v) ? v[0] : v))
         else {
           const arr = v as ArrayLike<unknown>
-          const base = (first + r) * c.repeat
-          for (let i = 0; i < c.repeat; i++) target[base + i] = scale(toNumber(arr[i]))
+          const base = (first + r) * repeat
+          for (let i = 0; i < repeat; i++) target[base + i] = scale(toNumber(arr[i]))
         }
-      })
+      }
     }
   }
   return out

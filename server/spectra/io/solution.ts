@@ -7,7 +7,7 @@ import { PolynomialRegression } from 'ml-regression'
 import { SPEED_OF_LIGHT_KMS } from '../../../shared/grid'
 
 /** Points used for a fit: a regular subsample is as good as every pixel for a straight line. */
-const FIT_POINTS = 2000
+const FIT_POINTS = 400
 
 export interface DispersionFit {
   kind: 'linear' | 'log-linear' | 'non-linear'
@@ -36,14 +36,20 @@ export function fitDispersion(wavelength: Float64Array): DispersionFit {
   const idx = subsample(n)
   const x = idx.map(Number)
   const y = idx.map((i) => wavelength[i]!)
-  const medianStep = Math.abs(median(Array.from({ length: n - 1 }, (_, i) => wavelength[i + 1]! - wavelength[i]!)))
+  const steps = new Float64Array(n - 1)
+  for (let i = 1; i < n; i++) steps[i - 1] = Math.abs(wavelength[i]! - wavelength[i - 1]!)
+  const medianStep = steps.sort()[(n - 1) >> 1] ?? 0
   const linear = new PolynomialRegression(x, y, 1)
   const log = new PolynomialRegression(x, y.map(Math.log10), 1)
+  // Residuals at every pixel: a solution that bends between the fitted points must not pass as linear.
+  const [a0, a1] = linear.coefficients as [number, number]
+  const [b0, b1] = log.coefficients as [number, number]
   let linMax = 0
   let logMax = 0
-  for (let k = 0; k < x.length; k++) {
-    linMax = Math.max(linMax, Math.abs(linear.predict(x[k]!) - y[k]!))
-    logMax = Math.max(logMax, Math.abs(10 ** log.predict(x[k]!) - y[k]!))
+  for (let i = 0; i < n; i++) {
+    const w = wavelength[i]!
+    linMax = Math.max(linMax, Math.abs(a0 + a1 * i - w))
+    logMax = Math.max(logMax, Math.abs(10 ** (b0 + b1 * i) - w))
   }
   const tolerance = medianStep / 100
   if (linMax <= tolerance && linMax <= logMax) return { kind: 'linear', step: Math.abs(linear.coefficients[1]!), maxResidual: linMax }
@@ -72,12 +78,6 @@ export function isWavelengthRow(row: Float64Array): boolean {
     if (i > 0 && (rising ? v <= row[i - 1]! : v >= row[i - 1]!)) return false
   }
   return fitDispersion(row).kind !== 'non-linear'
-}
-
-function median(values: number[]): number {
-  if (values.length === 0) return 0
-  const s = values.slice().sort((a, b) => a - b)
-  return s[s.length >> 1]!
 }
 
 /** Where each pixel of a merged spectrum comes from: segment and pixel index. */
