@@ -6,7 +6,7 @@
  * reads floating-point heap arrays without byte-swapping them and stops ASCII D-exponent fields
  * (1.0D+03, what astropy writes) at the 'D' (see DEVELOPERS.md).
  */
-import { BinaryTable, CompressedImage, Header, type CompressedImageDecoderProvider, type TableRow } from 'fitsjs-ng'
+import { BinaryTable, CompressedImage, Header, type CompressedImageDecoderProvider } from 'fitsjs-ng'
 import { cardNumber, cardString, type FitsHdu } from './fits'
 import { SpectrumReadError } from './types'
 import { gunzipBounded } from './zip'
@@ -30,9 +30,6 @@ export interface TableColumn {
 }
 
 const TYPE_BYTES: Record<string, number> = { L: 1, B: 1, I: 2, J: 4, K: 8, A: 1, E: 4, D: 8, C: 8, M: 16 }
-
-/** Rows decoded through fitsjs-ng at a time: bounds the row objects alive at once. */
-const CHUNK_ROWS = 4096
 
 /** Column layout of a BINTABLE or ASCII TABLE HDU from its TFORMn/TTYPEn/TUNITn cards; checks the row width. */
 export function tableColumns(hdu: FitsHdu, fileName: string): TableColumn[] {
@@ -164,12 +161,20 @@ function toNumber(v: unknown): number {
   return NaN
 }
 
-/** The fitsjs-ng decoder of an HDU; its row decoder is synchronous, so readSpectrum stays synchronous. */
+/**
+ * The parts of fitsjs-ng's table decoders used here: they are synchronous (its public getRows and
+ * getColumn are async), so readSpectrum stays synchronous. Pinned version: 1.0.2.
+ */
+interface ColumnDecoder {
+  rowByteSize: number
+  accessors: ((view: DataView, offset: number) => [unknown, number])[]
+  elementByteLengths: number[]
+}
 interface RowDecoder {
   rowByteSize: number
   rows: number
   heap?: ArrayBuffer
-  _getRows(buffer: ArrayBuffer, rows: number): TableRow[] | Float32Array
+  _getRows(buffer: ArrayBuffer, rows: number): Float32Array
 }
 
 /** A fitsjs-ng header; its warnings about odd cards would go to the console, and the readers report their own. */
@@ -183,7 +188,7 @@ function dataBuffer(bytes: Uint8Array, hdu: FitsHdu): ArrayBuffer {
 }
 
 /**
- * Decodes fixed-width columns of a binary table through fitsjs-ng, row chunk by row chunk, into
+ * Decodes fixed-width columns of a binary table through fitsjs-ng's column decoders into
  * one Float64Array per wanted column: scalar columns give one value per row, array columns
  * `repeat` values per row (row-major). Scaling and nulls are applied here.
  */
@@ -198,31 +203,26 @@ export function decodeFixedColumns(bytes: Uint8Array, hdu: FitsHdu, cols: TableC
 function decodeWithFitsjs(bytes: Uint8Array, hdu: FitsHdu, cols: TableColumn[], heapCols: TableColumn[]): Float64Array[] {
   const rows = rowCount(hdu)
   const header = newHeader(hideColumns(hdu.headerText, heapCols))
-  const buffer = dataBuffer(bytes, hdu)
-  const table = new BinaryTable(header, buffer) as unknown as RowDecoder
-  const out = cols.map((c) => new Float64Array(rows * c.repeat))
-  const scalers = cols.map((c) => scaler(hdu, c))
-  const names = cols.map((c) => c.name)
-  for (let first = 0; first < rows; first += CHUNK_ROWS) {
-    const n = Math.min(CHUNK_ROWS, rows - first)
-    const decoded = table._getRows(buffer.slice(first * table.rowByteSize, (first + n) * table.rowByteSize), n) as TableRow[]
-    for (let r = 0; r < n; r++) {
-      const row = decoded[r]!
-      for (let k = 0; k < cols.length; k++) {
-        const repeat = cols[k]!.repeat
-        const v = row[names[k]!]
-        const target = out[k]!
-        const scale = scalers[k]!
-        if (repeat === 1) target[first + r] = scale(toNumber(Array.isArray(v) ? v[0] : v))
-        else {
-          const arr = v as ArrayLike<unknown>
-          const base = (first + r) * repeat
-          for (let i = 0; i < repeat; i++) target[base + i] = scale(toNumber(arr[i]))
-        }
+  const table = new BinaryTable(header, dataBuffer(bytes, hdu)) as unknown as ColumnDecoder
+  const view = new DataView(bytes.buffer, bytes.byteOffset + hdu.dataOffset, hdu.dataBytes)
+  return cols.map((c) => {
+    // Its per-column decoder, stepped row by row as its own getColumn does for files read in pieces.
+    const index = c.number - 1
+    const accessor = table.accessors[index]!
+    const start = table.elementByteLengths.slice(0, index).reduce((a, b) => a + b, 0)
+    const scale = scaler(hdu, c)
+    const out = new Float64Array(rows * c.repeat)
+    for (let r = 0; r < rows; r++) {
+      const [v] = accessor(view, r * table.rowByteSize + start)
+      if (c.repeat === 1) out[r] = scale(toNumber(Array.isArray(v) ? v[0] : v))
+      else {
+        const arr = v as ArrayLike<unknown>
+        const base = r * c.repeat
+        for (let i = 0; i < c.repeat; i++) out[base + i] = scale(toNumber(arr[i]))
       }
     }
-  }
-  return out
+    return out
+  })
 }
 
 /**
@@ -331,7 +331,7 @@ export function decodeCompressedImage(bytes: Uint8Array, hdu: FitsHdu, maxPixels
     const theap = cardNumber(hdu, 'THEAP')
     if (theap !== undefined) image.heap = data.slice(theap)
     const rows = rowCount(hdu)
-    const out = image._getRows(data.slice(0, image.rowByteSize * rows), rows) as Float32Array
+    const out = image._getRows(data.slice(0, image.rowByteSize * rows), rows)
     if (out.length !== pixels) throw new Error(`decoded ${out.length} pixels, expected ${pixels}`)
     return Float64Array.from(out)
   } catch (err) {
