@@ -281,6 +281,10 @@ export function readImageHdu(ctx: ImageContext, hdu: FitsHdu): RawSpectrum {
   if (n > options.maxPixels) {
     throw new SpectrumReadError('TOO_MANY_PIXELS', `${fileName}: ${n} pixels is more than the limit of ${options.maxPixels}`)
   }
+  // Every line's wavelengths may be computed to choose one: bound the whole, not only a line.
+  if (n * shape.lines > options.maxPixels * 4) {
+    throw new SpectrumReadError('TOO_MANY_PIXELS', `${fileName}: ${shape.lines} lines of ${n} pixels is more than the limit of ${options.maxPixels * 4} pixels in all; pick the spectrum out of the file first`)
+  }
   const cache = new Map<FitsHdu, Float64Array>()
   const companions = companionsOf(ctx, hdu)
   const ignored: string[] = []

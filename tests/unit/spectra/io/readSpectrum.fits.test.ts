@@ -256,3 +256,14 @@ describe('readSpectrum refusals for FITS', () => {
     expect(refusal(linearImage(500, -100, 10, flat)).code).toBe('BAD_WAVELENGTHS')
   })
 })
+
+describe('readSpectrum bounds the work on many-line images', () => {
+  it('refuses a multispec image whose lines hold more pixels in all than four spectra may', () => {
+    // 60 apertures of 2000 pixels with multispec keywords: 120 000 pixels, limit 4 × 20 000.
+    const n = 2000
+    const lines = 60
+    const cards: Card[] = [['SIMPLE', true], ['BITPIX', -32], ['NAXIS', 2], ['NAXIS1', n], ['NAXIS2', lines], ['CTYPE1', 'LINEAR'], ['CRVAL1', 3800], ['CDELT1', 1], ['APNUM1', '1 1 1 2']]
+    const r = readSpectrum(concat(header(cards), dataFloat32(new Array(n * lines).fill(1))), 'many.fits', { maxPixels: 20_000 })
+    expect(r).toEqual({ ok: false, code: 'TOO_MANY_PIXELS', message: 'many.fits: 60 lines of 2000 pixels is more than the limit of 80000 pixels in all; pick the spectrum out of the file first' })
+  })
+})
