@@ -7,6 +7,7 @@ import * as m0006 from './0006-review'
 import * as m0007 from './0007-releases'
 import * as m0008 from './0008-observed-standards'
 import * as m0009 from './0009-workflow'
+import * as m0010 from './0010-reading-corrections'
 import * as m0012 from './0012-stored-files-and-leases'
 
 export interface Migration {
@@ -25,5 +26,6 @@ export const migrations: Migration[] = [
   { name: '0007-releases', ...m0007 },
   { name: '0008-observed-standards', ...m0008 },
   { name: '0009-workflow', ...m0009 },
+  { name: '0010-reading-corrections', ...m0010 },
   { name: '0012-stored-files-and-leases', ...m0012 },
 ]

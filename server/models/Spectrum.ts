@@ -36,6 +36,8 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
   declare vacuumConverted: boolean
   /** JSON: the reader's metadata (header keywords, units, notes, HDUs). */
   declare readInfo: string
+  /** JSON ReadChoices: how the observer asked for the file to be read. */
+  declare readChoices: CreationOptional<string>
   declare createdAt: CreationOptional<Date>
   declare updatedAt: CreationOptional<Date>
 
@@ -76,6 +78,7 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
         snr: num(),
         vacuumConverted: { type: DataTypes.BOOLEAN, allowNull: false },
         readInfo: { type: DataTypes.TEXT('medium'), allowNull: false },
+        readChoices: { type: DataTypes.STRING(255), allowNull: false, defaultValue: '{}' },
         createdAt: DataTypes.DATE(3),
         updatedAt: DataTypes.DATE(3),
       },
@@ -111,6 +114,49 @@ export class SpectrumBlob extends Model<InferAttributes<SpectrumBlob>, InferCrea
         mask: { type: DataTypes.BLOB('long'), allowNull: true },
       },
       { sequelize, tableName: 'spectrum_blobs', timestamps: false },
+    )
+  }
+}
+
+const refuseChange = () => {
+  throw new Error('Spectrum events are history: written once, never changed or removed')
+}
+
+export type SpectrumEventKind = 'reread' | 'reprocess' | 'withdrawn'
+
+/** Something done to a spectrum that is not a call: a reading correction, a re-run, a withdrawal. Never updated. */
+export class SpectrumEvent extends Model<InferAttributes<SpectrumEvent>, InferCreationAttributes<SpectrumEvent>> {
+  declare id: CreationOptional<number>
+  /** No foreign key: the record of a withdrawal outlives the spectrum. */
+  declare spectrumId: number
+  declare campaignId: number
+  declare kind: SpectrumEventKind
+  declare userId: number | null
+  declare summary: string
+  /** JSON: what was before and after. */
+  declare details: string
+  declare createdAt: CreationOptional<Date>
+
+  static initModel(sequelize: Sequelize): void {
+    SpectrumEvent.init(
+      {
+        id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+        spectrumId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+        campaignId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+        kind: { type: DataTypes.STRING(20), allowNull: false },
+        userId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        summary: { type: DataTypes.TEXT, allowNull: false },
+        details: { type: DataTypes.TEXT('medium'), allowNull: false },
+        createdAt: DataTypes.DATE(3),
+      },
+      {
+        sequelize,
+        tableName: 'spectrum_events',
+        updatedAt: false,
+        hooks: {
+          beforeUpdate: refuseChange, beforeBulkUpdate: refuseChange, beforeDestroy: refuseChange, beforeBulkDestroy: refuseChange,
+        },
+      },
     )
   }
 }

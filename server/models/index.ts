@@ -5,13 +5,14 @@ import { LineMeasurementRow, Measurement, ProcessingJob } from './Measurement'
 import { Release, ReleaseRow } from './Release'
 import { Classification, Dispute, DisputeAction, ReviewCall, ReviewClaim } from './Review'
 import { Session } from './Session'
-import { Spectrum, SpectrumBlob } from './Spectrum'
+import { Spectrum, SpectrumBlob, SpectrumEvent } from './Spectrum'
 import { LibraryVersion, LibraryVersionStandard, Standard, Suggestion } from './Standard'
 import { User } from './User'
 import { UserToken } from './UserToken'
 
 export { LibraryVersion, LibraryVersionStandard, Standard, Suggestion }
-export { Campaign, CampaignMember, LineMeasurementRow, MailMessage, Measurement, ProcessingJob, Session, Spectrum, SpectrumBlob, User, UserToken }
+export { Campaign, CampaignMember, LineMeasurementRow, MailMessage, Measurement, ProcessingJob, Session, Spectrum, SpectrumBlob, SpectrumEvent, User, UserToken }
+export type { SpectrumEventKind } from './Spectrum'
 export type { JobStatus } from './Measurement'
 export { Classification, Dispute, DisputeAction, ReviewCall, ReviewClaim }
 export { Release, ReleaseRow }
@@ -20,7 +21,7 @@ export type { TokenPurpose } from './UserToken'
 
 /** Registers every model and association on one connection. */
 export function initModels(sequelize: Sequelize): void {
-  for (const model of [User, UserToken, Session, MailMessage, Campaign, CampaignMember, Spectrum, SpectrumBlob, ProcessingJob, Measurement, LineMeasurementRow, LibraryVersion, Standard, LibraryVersionStandard, Suggestion, ReviewClaim, ReviewCall, Dispute, DisputeAction, Classification, Release, ReleaseRow]) model.initModel(sequelize)
+  for (const model of [User, UserToken, Session, MailMessage, Campaign, CampaignMember, Spectrum, SpectrumBlob, SpectrumEvent, ProcessingJob, Measurement, LineMeasurementRow, LibraryVersion, Standard, LibraryVersionStandard, Suggestion, ReviewClaim, ReviewCall, Dispute, DisputeAction, Classification, Release, ReleaseRow]) model.initModel(sequelize)
   UserToken.belongsTo(User, { foreignKey: 'userId', as: 'user' })
   Campaign.belongsToMany(User, { through: CampaignMember, foreignKey: 'campaignId', otherKey: 'userId', as: 'members' })
   Spectrum.belongsTo(Campaign, { foreignKey: 'campaignId', as: 'campaign' })

@@ -6,11 +6,11 @@ import { currentUser } from '../middleware/auth'
 import { boundedUpload } from '../middleware/body-limit'
 import { multipartToDisk, uploadSlots } from '../middleware/upload'
 import { idParams } from '../schemas/common'
-import { dataQuery, listQuery, spectrumMetadata, submitBody } from '../schemas/spectra.schemas'
+import { dataQuery, listQuery, spectrumCorrection, submitBody } from '../schemas/spectra.schemas'
 import { getPreparedSeries, measurementsOf, requeueSpectrum } from '../services/measurements.service'
 import { liveStatus } from '../services/status.service'
 import { visibleSuggestionsOf } from '../services/suggestions.service'
-import { getRawFile, getSpectrumDetail, getSpectrumSeries, listSpectra, submitFiles, updateSpectrumMetadata } from '../services/spectra.service'
+import { getRawFile, getSpectrumDetail, getSpectrumSeries, listSpectra, submitFiles, updateSpectrumMetadata, withdrawSpectrum } from '../services/spectra.service'
 import { SUBMITTERS, defineRoutes } from './route'
 
 export function spectraRoutes(ctx: AppContext) {
@@ -90,9 +90,18 @@ export function spectraRoutes(ctx: AppContext) {
       method: 'patch',
       path: '/spectra/:id',
       access: SUBMITTERS,
-      schema: { params: idParams, body: spectrumMetadata },
+      schema: { params: idParams, body: spectrumCorrection },
       handler: async (req, res) => {
-        res.json({ spectrum: await updateSpectrumMetadata(currentUser(req), res.locals.params.id, res.locals.body) })
+        res.json({ spectrum: await updateSpectrumMetadata(ctx, currentUser(req), res.locals.params.id, res.locals.body) })
+      },
+    },
+    {
+      method: 'delete',
+      path: '/spectra/:id',
+      access: SUBMITTERS,
+      schema: { params: idParams },
+      handler: async (req, res) => {
+        res.json(await withdrawSpectrum(ctx, currentUser(req), res.locals.params.id))
       },
     },
     {

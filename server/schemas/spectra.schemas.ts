@@ -35,12 +35,30 @@ export const spectrumMetadata = z.object({
 })
 export type SpectrumMetadataInput = z.infer<typeof spectrumMetadata>
 
+/** Wavelength units an observer can choose instead of the file's ('file': as the file says). */
+export const WAVELENGTH_UNIT_CHOICES = ['file', 'Angstrom', 'nm', 'um', 'm'] as const
+const medium = z.enum(['file', 'air', 'vacuum'], { message: "must be 'file', 'air' or 'vacuum'" })
+const unit = z.enum(WAVELENGTH_UNIT_CHOICES, { message: `must be one of ${WAVELENGTH_UNIT_CHOICES.join(', ')}` })
+const hdu = numeric(z.number({ message: 'must be a number' }).int().min(0, 'HDU must be at least 0').max(999, 'HDU must be at most 999'))
+const aperture = numeric(z.number({ message: 'must be a number' }).int().min(1, 'apertures are counted from 1').max(1000, 'aperture must be at most 1000'))
+
 export const submitBody = spectrumMetadata.extend({
   campaignId: numeric(z.number({ message: 'choose a campaign' }).int().positive({ message: 'choose a campaign' })),
   batchId: z.string().uuid().optional(),
-  wavelengthMedium: z.enum(['file', 'air', 'vacuum']).default('file'),
-  hdu: z.preprocess((v) => (v === '' ? undefined : v), numeric(z.number({ message: 'must be a number' }).int().min(0).max(999)).optional()),
+  wavelengthMedium: medium.default('file'),
+  wavelengthUnit: z.preprocess((v) => (v === '' ? undefined : v), unit.default('file')),
+  hdu: z.preprocess((v) => (v === '' ? undefined : v), hdu.optional()),
+  aperture: z.preprocess((v) => (v === '' ? undefined : v), aperture.optional()),
 })
+
+/** A correction: the details, and how the stored file is to be read (null: as the file says / automatic). */
+export const spectrumCorrection = spectrumMetadata.extend({
+  wavelengthMedium: medium.optional(),
+  wavelengthUnit: unit.optional(),
+  hdu: hdu.nullable().optional(),
+  aperture: aperture.nullable().optional(),
+})
+export type SpectrumCorrectionInput = z.infer<typeof spectrumCorrection>
 
 const sortable = ['createdAt', 'objectName', 'snr', 'status', 'obsDate', 'id'] as const
 export const listQuery = z.object({

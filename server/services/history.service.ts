@@ -1,11 +1,11 @@
-import { Campaign, Classification, Dispute, Measurement, ReviewCall, Suggestion, type User } from '../models'
+import { Campaign, Classification, Dispute, Measurement, ReviewCall, SpectrumEvent, Suggestion, type User } from '../models'
 import { isBlindFor, namesOf, toCallView, toFinalClassification, type PersonRef } from './review.service'
 import { findVisibleSpectrum } from './spectra.service'
 import type { HistoryEvent, HistoryKind, SpectrumHistory } from '../../shared/api/history'
 
 export type { HistoryEvent, HistoryKind }
 
-const KIND_ORDER: HistoryKind[] = ['upload', 'measurement', 'suggestion', 'call', 'correction', 'dispute', 'agreed', 'settled']
+const KIND_ORDER: HistoryKind[] = ['upload', 'reread', 'reprocess', 'measurement', 'suggestion', 'call', 'correction', 'dispute', 'agreed', 'settled']
 
 /**
  * Everything that happened to a spectrum, oldest first, from rows that are never changed. Blind
@@ -13,18 +13,19 @@ const KIND_ORDER: HistoryKind[] = ['upload', 'measurement', 'suggestion', 'call'
  */
 export async function historyOf(user: User, spectrumId: number): Promise<SpectrumHistory> {
   const spectrum = await findVisibleSpectrum(user, spectrumId)
-  const [campaign, measurements, suggestions, calls, disputes, classifications] = await Promise.all([
+  const [campaign, measurements, suggestions, calls, disputes, classifications, spectrumEvents] = await Promise.all([
     Campaign.findByPk(spectrum.campaignId, { rejectOnEmpty: true }),
     Measurement.findAll({ where: { spectrumId }, attributes: ['id', 'pipelineVersion', 'snr', 'rv', 'isCurrent', 'createdAt'], order: [['id', 'ASC']] }),
     Suggestion.findAll({ where: { spectrumId }, attributes: { exclude: ['probabilities', 'votes', 'candidates'] }, order: [['id', 'ASC']] }),
     ReviewCall.findAll({ where: { spectrumId }, order: [['id', 'ASC']] }),
     Dispute.findAll({ where: { spectrumId }, order: [['id', 'ASC']] }),
     Classification.findAll({ where: { spectrumId }, order: [['id', 'ASC']] }),
+    SpectrumEvent.findAll({ where: { spectrumId, kind: ['reread', 'reprocess'] }, order: [['id', 'ASC']] }),
   ])
   const hasCalled = calls.some((c) => c.userId === user.id)
   const blind = user.role !== 'observer' && isBlindFor(campaign, spectrum, hasCalled)
   const visibleCalls = blind ? calls.filter((c) => c.userId === user.id) : calls
-  const names = await namesOf([spectrum.submittedBy, ...visibleCalls.map((c) => c.userId), ...classifications.map((c) => c.decidedBy)])
+  const names = await namesOf([spectrum.submittedBy, ...visibleCalls.map((c) => c.userId), ...classifications.map((c) => c.decidedBy), ...spectrumEvents.flatMap((e) => (e.userId === null ? [] : [e.userId]))])
   const person = (id: number | null): PersonRef | null => (id === null ? null : { id, name: names.get(id) ?? '' })
 
   const events: HistoryEvent[] = [
@@ -36,6 +37,18 @@ export async function historyOf(user: User, spectrumId: number): Promise<Spectru
       details: { fileName: spectrum.fileName, format: spectrum.format, pixels: spectrum.pixels, campaignId: spectrum.campaignId },
     },
   ]
+  for (const e of spectrumEvents) {
+    const details = JSON.parse(e.details) as { before?: Record<string, unknown>; after?: Record<string, unknown> }
+    // Blind review: the earlier suggestion is not shown to a classifier who has not called yet.
+    if (blind && details.before) details.before = { ...details.before, suggestion: null, suggestionId: null }
+    events.push({
+      at: e.createdAt.toISOString(),
+      kind: e.kind as HistoryKind,
+      who: person(e.userId),
+      summary: e.summary,
+      details: details as Record<string, unknown>,
+    })
+  }
   for (const m of measurements) {
     events.push({
       at: m.createdAt.toISOString(),

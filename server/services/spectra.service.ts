@@ -10,13 +10,17 @@ import { decimateMinMax, lowerBound } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { sha256Hex } from '../lib/tokens'
 import { rawFileKey } from '../storage'
-import { Campaign, ProcessingJob, Spectrum, SpectrumBlob, User } from '../models'
-import type { SpectrumMetadataInput } from '../schemas/spectra.schemas'
-import { readSpectrum, unpackZip, type ReadMeta, type ReadSuccess } from '../spectra/io'
+import {
+  Campaign, Classification, LineMeasurementRow, Measurement, ProcessingJob, ReviewCall, ReviewClaim, Spectrum, SpectrumBlob,
+  SpectrumEvent, Standard, Suggestion, User,
+} from '../models'
+import type { SpectrumCorrectionInput, SpectrumMetadataInput } from '../schemas/spectra.schemas'
+import { readSpectrum, unpackZip, type ReadMeta, type ReadOptions, type ReadSuccess } from '../spectra/io'
+import type { Config } from '../config'
 import { estimateSpectrumSnr } from '../spectra/prepare/snr'
 import { campaignForSubmission, campaignIdsOf } from './campaigns.service'
 import { finalClassificationsFor, type FinalClassification } from './review.service'
-import type { FileResult, SpectrumDetail, SpectrumList, SpectrumListItem } from '../../shared/api/spectra'
+import type { FileResult, ReadChoices, SpectrumDetail, SpectrumList, SpectrumListItem } from '../../shared/api/spectra'
 
 export type { FileResult, SpectrumDetail, SpectrumListItem }
 
@@ -37,7 +41,44 @@ export interface SubmitOptions extends SpectrumMetadataInput {
   campaignId: number
   batchId?: string
   wavelengthMedium: 'file' | 'air' | 'vacuum'
+  /** 'file': as the file says. */
+  wavelengthUnit?: 'file' | 'Angstrom' | 'nm' | 'um' | 'm'
   hdu?: number
+  aperture?: number
+}
+
+/** The observer's reading choices from a form: 'file' and absent mean "as the file says". */
+function choicesOf(input: { wavelengthMedium?: string | undefined; wavelengthUnit?: string | undefined; hdu?: number | null | undefined; aperture?: number | null | undefined }, base: ReadChoices = {}): ReadChoices {
+  const out: ReadChoices = { ...base }
+  if (input.wavelengthMedium !== undefined) {
+    if (input.wavelengthMedium === 'file') delete out.medium
+    else out.medium = input.wavelengthMedium as 'air' | 'vacuum'
+  }
+  if (input.wavelengthUnit !== undefined) {
+    if (input.wavelengthUnit === 'file') delete out.unit
+    else out.unit = input.wavelengthUnit
+  }
+  if (input.hdu !== undefined) {
+    if (input.hdu === null) delete out.hdu
+    else out.hdu = input.hdu
+  }
+  if (input.aperture !== undefined) {
+    if (input.aperture === null) delete out.aperture
+    else out.aperture = input.aperture
+  }
+  return out
+}
+
+const sameChoices = (a: ReadChoices, b: ReadChoices) => a.medium === b.medium && a.unit === b.unit && a.hdu === b.hdu && a.aperture === b.aperture
+
+/** Reader options for stored or new choices, with the server's limits. */
+function readOptionsFor(config: Config, choices: ReadChoices): ReadOptions {
+  const out: ReadOptions = { maxBytes: config.UPLOAD_MAX_BYTES, maxPixels: config.UPLOAD_MAX_PIXELS, minPixels: config.UPLOAD_MIN_PIXELS }
+  if (choices.medium) out.assumeVacuum = choices.medium === 'vacuum'
+  if (choices.unit) out.wavelengthUnit = choices.unit
+  if (choices.hdu !== undefined) out.hdu = choices.hdu
+  if (choices.aperture !== undefined) out.aperture = choices.aperture
+  return out
 }
 
 const ZIP_MAGIC = [0x50, 0x4b, 0x03, 0x04]
@@ -110,14 +151,8 @@ async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: U
   const existing = await findDuplicate(user, campaign.id, sha)
   if (existing) return duplicate(existing.id)
 
-  const { config } = ctx
-  const read = readSpectrum(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length), file.name, {
-    maxBytes: config.UPLOAD_MAX_BYTES,
-    maxPixels: config.UPLOAD_MAX_PIXELS,
-    minPixels: config.UPLOAD_MIN_PIXELS,
-    hdu: opts.hdu,
-    assumeVacuum: opts.wavelengthMedium === 'file' ? undefined : opts.wavelengthMedium === 'vacuum',
-  })
+  const choices = choicesOf(opts)
+  const read = readSpectrum(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length), file.name, readOptionsFor(ctx.config, choices))
   if (!read.ok) return { file: file.name, outcome: 'refused', code: read.code, message: read.message }
   // The file is stored before its row: a crash in between leaves an unreferenced file, never a row without its file.
   const key = rawFileKey(sha)
@@ -125,7 +160,7 @@ async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: U
     if ('path' in file) await ctx.files.putFile(key, file.path)
     else await ctx.files.put(key, bytes)
   }
-  return insertSpectrum(ctx, user, campaign, { name: file.name, size: bytes.length, key }, sha, read, opts).catch(async (error: unknown) => {
+  return insertSpectrum(ctx, user, campaign, { name: file.name, size: bytes.length, key }, sha, read, opts, choices).catch(async (error: unknown) => {
     if (error instanceof UniqueConstraintError) return duplicate((await findDuplicate(user, campaign.id, sha))?.id ?? null)
     throw error
   })
@@ -137,11 +172,35 @@ interface StoredFile {
   key: string
 }
 
-async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, file: StoredFile, sha: string, read: ReadSuccess, opts: SubmitOptions): Promise<FileResult> {
+/** The columns and arrays a read gives a spectrum row and its blob. */
+function readColumns(read: ReadSuccess) {
   const { spectrum: s, meta } = read
   const wl = s.wavelengthAir
   const snr = estimateSpectrumSnr({ wavelength: wl, flux: s.flux, ...(s.mask ? { mask: s.mask } : {}) }, { region: DEFAULT_CLASSIFICATION_REGION })
-  const dispersion = medianDispersion(wl)
+  return {
+    row: {
+      format: meta.format,
+      hdu: meta.hdu ?? null,
+      pixels: wl.length,
+      wlMin: wl[0]!,
+      wlMax: wl[wl.length - 1]!,
+      dispersion: medianDispersion(wl),
+      snr: snr !== null && Number.isFinite(snr) ? snr : null,
+      vacuumConverted: meta.vacuumConverted,
+      readInfo: JSON.stringify(meta),
+    },
+    blob: {
+      wavelength: float64ToBuffer(wl),
+      flux: float32ToBuffer(s.flux),
+      error: s.error ? float32ToBuffer(s.error) : null,
+      mask: s.mask ? Buffer.from(s.mask) : null,
+    },
+  }
+}
+
+async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, file: StoredFile, sha: string, read: ReadSuccess, opts: SubmitOptions, choices: ReadChoices): Promise<FileResult> {
+  const { meta } = read
+  const columns = readColumns(read)
   const metadata = resolveMetadata(opts, meta, file.name)
   const row = await ctx.sequelize.transaction(async (transaction) => {
     const spectrum = await Spectrum.create(
@@ -154,30 +213,12 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
         fileName: fitText(file.name, 255),
         fileSha256: sha,
         fileSize: file.size,
-        format: meta.format,
-        hdu: meta.hdu ?? null,
-        pixels: wl.length,
-        wlMin: wl[0]!,
-        wlMax: wl[wl.length - 1]!,
-        dispersion,
-        snr: snr !== null && Number.isFinite(snr) ? snr : null,
-        vacuumConverted: meta.vacuumConverted,
-        readInfo: JSON.stringify(meta),
+        ...columns.row,
+        readChoices: JSON.stringify(choices),
       },
       { transaction },
     )
-    await SpectrumBlob.create(
-      {
-        spectrumId: spectrum.id,
-        raw: null,
-        rawKey: file.key,
-        wavelength: float64ToBuffer(wl),
-        flux: float32ToBuffer(s.flux),
-        error: s.error ? float32ToBuffer(s.error) : null,
-        mask: s.mask ? Buffer.from(s.mask) : null,
-      },
-      { transaction },
-    )
+    await SpectrumBlob.create({ spectrumId: spectrum.id, raw: null, rawKey: file.key, ...columns.blob }, { transaction })
     await ProcessingJob.create({ spectrumId: spectrum.id, error: null, requestedBy: user.id, startedAt: null, finishedAt: null }, { transaction })
     return spectrum
   })
@@ -192,6 +233,7 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
     snr: row.snr,
     objectName: row.objectName,
     notes: meta.notes,
+    decisions: meta.decisions!,
   }
 }
 
@@ -347,10 +389,11 @@ export async function listSpectra(user: User, query: ListQuery): Promise<Spectru
 
 export async function getSpectrumDetail(user: User, id: number): Promise<SpectrumDetail> {
   const s = await findVisibleSpectrum(user, id)
-  const [campaign, submitter, decided] = await Promise.all([
+  const [campaign, submitter, decided, calls] = await Promise.all([
     Campaign.findByPk(s.campaignId),
     User.findByPk(s.submittedBy, { attributes: ['id', 'name'] }),
     finalClassificationsFor([s.id]),
+    ReviewCall.count({ where: { spectrumId: s.id } }),
   ])
   return {
     ...toListItem(Object.assign(s, { campaign: campaign ?? undefined, submitter: submitter ?? undefined }), decided.get(s.id) ?? null),
@@ -368,12 +411,35 @@ export async function getSpectrumDetail(user: User, id: number): Promise<Spectru
     fileSha256: s.fileSha256,
     vacuumConverted: s.vacuumConverted,
     read: JSON.parse(s.readInfo) as ReadMeta,
+    readChoices: JSON.parse(s.readChoices) as ReadChoices,
     canEdit: s.submittedBy === user.id || user.role === 'lead',
+    canWithdraw: s.submittedBy === user.id && calls === 0,
+    canReread: user.role === 'lead' || (s.submittedBy === user.id && calls === 0),
   }
 }
 
-/** The observer corrects what the header said; the arrays and the raw file never change. */
-export async function updateSpectrumMetadata(user: User, id: number, input: SpectrumMetadataInput): Promise<SpectrumDetail> {
+/** Statuses a re-read may send back to "received"; review states keep theirs (the calls stay). */
+const BEFORE_REVIEW = new Set<SpectrumStatus>(['received', 'failed', 'measured', 'suggested'])
+
+const describeRead = (s: Spectrum, meta: ReadMeta) => ({
+  choices: JSON.parse(s.readChoices) as ReadChoices,
+  wavelengthRange: [s.wlMin, s.wlMax],
+  pixels: s.pixels,
+  hdu: meta.hdu ?? null,
+  aperture: meta.decisions?.aperture?.number ?? null,
+  unit: meta.wavelengthUnit,
+  vacuumConverted: meta.vacuumConverted,
+  vacuumSource: meta.vacuumSource,
+})
+
+/**
+ * Corrects what the header or the batch form said. Object, coordinates and the like change in
+ * place. A new reading choice (medium, unit, HDU, aperture) re-reads the stored file; a new
+ * resolution re-processes; either way the earlier measurement and suggestion stay in the history
+ * and a spectrum event says what changed. The submitter may do it until the first call; a lead at
+ * any time. A file the new choices cannot read is refused and nothing changes.
+ */
+export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: number, input: SpectrumCorrectionInput): Promise<SpectrumDetail> {
   const s = await findVisibleSpectrum(user, id)
   if (s.submittedBy !== user.id && user.role !== 'lead') throw new HttpError(403, 'forbidden', 'Only the person who submitted a spectrum, or a lead, can change its details.')
   const changes: Partial<Spectrum> = {}
@@ -388,8 +454,123 @@ export async function updateSpectrumMetadata(user: User, id: number, input: Spec
     const value = input[key]
     if (value !== undefined) changes[key] = value
   }
-  await s.update(changes)
+  const before = JSON.parse(s.readChoices) as ReadChoices
+  const choices = choicesOf(input, before)
+  const reread = !sameChoices(before, choices)
+  const resolutionChanged = (changes.resolutionFwhm !== undefined && changes.resolutionFwhm !== s.resolutionFwhm)
+    || (changes.resolvingPower !== undefined && changes.resolvingPower !== s.resolvingPower)
+  if (!reread && !resolutionChanged) {
+    await s.update(changes)
+    return getSpectrumDetail(user, id)
+  }
+  const calls = await ReviewCall.count({ where: { spectrumId: id } })
+  if (calls > 0 && user.role !== 'lead') {
+    throw new HttpError(409, 'has_calls', 'Classifiers have already called this spectrum, so how it is read and processed can only be changed by a lead. Ask a lead, or correct only the descriptive details.')
+  }
+  let columns: ReturnType<typeof readColumns> | undefined
+  let read: ReadSuccess | undefined
+  const oldMeta = JSON.parse(s.readInfo) as ReadMeta
+  if (reread) {
+    const raw = await storedRawBytes(ctx, id)
+    const result = readSpectrum(new Uint8Array(raw.buffer, raw.byteOffset, raw.length), s.fileName, readOptionsFor(ctx.config, choices))
+    if (!result.ok) {
+      throw new HttpError(422, 'read_refused', `With these choices the file cannot be read: ${result.message}. Nothing was changed.`, { code: result.code })
+    }
+    read = result
+    columns = readColumns(result)
+  }
+  const fwhmText = (fwhm: number | null, power: number | null) => (fwhm != null ? `${fwhm} Å FWHM` : power != null ? `R = ${power}` : 'none given')
+  const resolutionText = `resolution ${fwhmText(changes.resolutionFwhm !== undefined ? changes.resolutionFwhm : s.resolutionFwhm, changes.resolvingPower !== undefined ? changes.resolvingPower : s.resolvingPower)} (was ${fwhmText(s.resolutionFwhm, s.resolvingPower)})`
+  let summary: string
+  if (reread) {
+    const m = read!.meta
+    const d = m.decisions!
+    summary = `Read again as ${m.vacuumConverted ? 'vacuum' : 'air'}, unit ${m.wavelengthUnit}${m.hdu !== undefined ? `, HDU ${m.hdu}` : ''}${d.aperture ? `, aperture ${d.aperture.number}` : ''}: ${columns!.row.wlMin.toFixed(1)}–${columns!.row.wlMax.toFixed(1)} Å, ${columns!.row.pixels} pixels (was ${s.wlMin.toFixed(1)}–${s.wlMax.toFixed(1)} Å, ${s.pixels} pixels)${resolutionChanged ? `; ${resolutionText}` : ''}`
+  } else summary = `Processed again with ${resolutionText}`
+  const [currentMeasurement, currentSuggestion] = await Promise.all([
+    Measurement.findOne({ where: { spectrumId: id, isCurrent: true }, attributes: ['id'] }),
+    Suggestion.findOne({ where: { spectrumId: id, isCurrent: true }, attributes: ['id', 'spectralType'] }),
+  ])
+  await ctx.sequelize.transaction(async (transaction) => {
+    await SpectrumEvent.create(
+      {
+        spectrumId: id,
+        campaignId: s.campaignId,
+        kind: reread ? 'reread' : 'reprocess',
+        userId: user.id,
+        summary,
+        details: JSON.stringify({
+          before: { ...describeRead(s, oldMeta), resolutionFwhm: s.resolutionFwhm, resolvingPower: s.resolvingPower, measurementId: currentMeasurement?.id ?? null, suggestionId: currentSuggestion?.id ?? null, suggestion: currentSuggestion?.spectralType ?? null },
+          after: { choices, resolutionFwhm: changes.resolutionFwhm ?? s.resolutionFwhm, resolvingPower: changes.resolvingPower ?? s.resolvingPower, ...(read ? { wavelengthRange: [columns!.row.wlMin, columns!.row.wlMax], pixels: columns!.row.pixels, vacuumConverted: read.meta.vacuumConverted, vacuumSource: read.meta.vacuumSource, unit: read.meta.wavelengthUnit, hdu: read.meta.hdu ?? null, aperture: read.meta.decisions?.aperture?.number ?? null } : {}) },
+        }),
+      },
+      { transaction },
+    )
+    if (reread) {
+      // The old measurement and suggestion described other arrays: they stay as history, no longer current.
+      await Measurement.update({ isCurrent: false }, { where: { spectrumId: id, isCurrent: true }, transaction })
+      await Suggestion.update({ isCurrent: false }, { where: { spectrumId: id, isCurrent: true }, transaction })
+      await SpectrumBlob.update(columns!.blob, { where: { spectrumId: id }, transaction })
+      Object.assign(changes, columns!.row, { readChoices: JSON.stringify(choices) })
+      if (BEFORE_REVIEW.has(s.status)) Object.assign(changes, { status: 'received', statusReason: null })
+    } else if (s.status === 'failed') Object.assign(changes, { status: 'received', statusReason: null })
+    await s.update(changes, { transaction })
+    const pending = await ProcessingJob.count({ where: { spectrumId: id, status: 'queued' }, transaction })
+    if (pending === 0) await ProcessingJob.create({ spectrumId: id, error: null, requestedBy: user.id, startedAt: null, finishedAt: null }, { transaction })
+  })
+  ctx.jobs?.enqueue(id)
   return getSpectrumDetail(user, id)
+}
+
+/** The uploaded file's bytes, from the file store (or from the row, for spectra stored before the file store). */
+async function storedRawBytes(ctx: Pick<AppContext, 'files'>, id: number): Promise<Buffer> {
+  const blob = await SpectrumBlob.findByPk(id, { attributes: ['spectrumId', 'raw', 'rawKey'] })
+  if (blob?.rawKey && (await ctx.files.exists(blob.rawKey))) return ctx.files.get(blob.rawKey)
+  if (blob?.raw) return blob.raw
+  throw notFound('The uploaded file')
+}
+
+/**
+ * The submitter withdraws their own spectrum before anyone has called it: the raw file, the arrays,
+ * the measurements, suggestions and jobs go; a spectrum event keeps the record of what was withdrawn.
+ */
+export async function withdrawSpectrum(ctx: AppContext, user: User, id: number): Promise<{ message: string }> {
+  const s = await findVisibleSpectrum(user, id)
+  if (s.submittedBy !== user.id) throw new HttpError(403, 'forbidden', 'Only the person who submitted a spectrum can withdraw it.')
+  const [calls, decided, standards, running] = await Promise.all([
+    ReviewCall.count({ where: { spectrumId: id } }),
+    Classification.count({ where: { spectrumId: id } }),
+    Standard.count({ where: { spectrumId: id } }),
+    ProcessingJob.count({ where: { spectrumId: id, status: 'running' } }),
+  ])
+  if (calls > 0 || decided > 0) throw new HttpError(409, 'has_calls', 'Classifiers have already called this spectrum, so it can no longer be withdrawn. Ask a lead if it must go.')
+  if (standards > 0) throw new HttpError(409, 'is_standard', 'This spectrum is in the standards library, so it cannot be withdrawn. Ask a lead to retire the standard first.')
+  if (running > 0) throw new HttpError(409, 'processing', 'This spectrum is being processed right now; withdraw it again in a moment.')
+  await ctx.sequelize.transaction(async (transaction) => {
+    await SpectrumEvent.create(
+      {
+        spectrumId: id,
+        campaignId: s.campaignId,
+        kind: 'withdrawn',
+        userId: user.id,
+        summary: `${user.name || user.email} withdrew ${s.fileName} (${s.objectName}) before any call`,
+        details: JSON.stringify({ fileName: s.fileName, fileSha256: s.fileSha256, fileSize: s.fileSize, objectName: s.objectName, status: s.status, submittedAt: s.createdAt.toISOString(), wavelengthRange: [s.wlMin, s.wlMax], pixels: s.pixels }),
+      },
+      { transaction },
+    )
+    const measurements = (await Measurement.findAll({ where: { spectrumId: id }, attributes: ['id'], transaction })).map((m) => m.id)
+    await Suggestion.destroy({ where: { spectrumId: id }, transaction })
+    if (measurements.length) await LineMeasurementRow.destroy({ where: { measurementId: measurements }, transaction })
+    await Measurement.destroy({ where: { spectrumId: id }, transaction })
+    await ProcessingJob.destroy({ where: { spectrumId: id }, transaction })
+    await ReviewClaim.destroy({ where: { spectrumId: id }, transaction })
+    await SpectrumBlob.destroy({ where: { spectrumId: id }, transaction })
+    await Spectrum.destroy({ where: { id }, transaction })
+  })
+  // The same file may be stored for another campaign under the same key: it goes only with the last.
+  const key = rawFileKey(s.fileSha256)
+  if ((await SpectrumBlob.count({ where: { rawKey: key } })) === 0) await ctx.files.remove(key)
+  return { message: `${s.fileName} was withdrawn; its file and results are gone.` }
 }
 
 export interface SeriesPayload {

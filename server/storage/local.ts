@@ -66,6 +66,10 @@ export class LocalDiskStore implements FileStore {
     }
   }
 
+  async remove(key: string): Promise<void> {
+    await rm(this.path(key), { force: true })
+  }
+
   async *list(prefix = ''): AsyncIterable<string> {
     const start = prefix ? this.path(prefix.replace(/\/$/, '')) : this.root
     let entries

@@ -2,7 +2,8 @@ import type { Readable } from 'node:stream'
 
 /**
  * Where uploaded files are kept. Keys are relative names such as `raw/ab/ab12…`; values never
- * change once written (a key names its content), so a copy taken at any moment is consistent.
+ * change once written (a key names its content), so a copy taken at any moment is consistent; a
+ * value goes only when the last spectrum that holds it is withdrawn.
  * The local-disk store is the default; an object store can take its place behind the same methods.
  */
 export interface FileStore {
@@ -16,6 +17,8 @@ export interface FileStore {
   get(key: string): Promise<Buffer>
   stream(key: string): Promise<Readable>
   exists(key: string): Promise<boolean>
+  /** Removes the value (a withdrawn upload no other spectrum shares); nothing happens when it is absent. */
+  remove(key: string): Promise<void>
   /** Every key under the prefix (backups, checks). */
   list(prefix?: string): AsyncIterable<string>
 }

@@ -1,6 +1,6 @@
 import type { PersonRef } from './review'
 
-export type HistoryKind = 'upload' | 'measurement' | 'suggestion' | 'call' | 'correction' | 'dispute' | 'agreed' | 'settled'
+export type HistoryKind = 'upload' | 'reread' | 'reprocess' | 'measurement' | 'suggestion' | 'call' | 'correction' | 'dispute' | 'agreed' | 'settled'
 
 /** One entry of a spectrum's history, oldest first. */
 export interface HistoryEvent {

@@ -14,6 +14,39 @@ export interface SpectrumHdu {
   kind: 'image' | 'table'
 }
 
+/** A pixel mask the reader applied, with the convention it followed. */
+export interface ReadMask {
+  /** Where the flags came from, e.g. "DATAQUAL column", "DQ extension", "IVAR = 0". */
+  source: string
+  /** The convention applied and why, e.g. "0 = bad (the column comment says 1=good, 0=bad)". */
+  rule: string
+  /** Pixels it flagged. */
+  pixels: number
+}
+
+/** The reader's decisions, shown with the upload result and on the spectrum page. */
+export interface ReadDecisions {
+  /** Where the spectrum came from, e.g. "HDU 2 (BLUE), image" or "text table, 2 columns". */
+  source: string
+  /** HDU read and why (FITS only). */
+  hdu?: { index: number; name?: string; why: string }
+  /** Aperture, order or row read when the file holds several (or "merged" for echelle orders). */
+  aperture?: { number: number | 'merged'; of: number; why: string }
+  /** How the wavelengths were obtained, e.g. "linear: CRVAL1 + CDELT1 (p − CRPIX1)". */
+  wavelengthSolution: string
+  /** Unit of the file's wavelengths and where it came from. */
+  unit: { unit: string; why: string }
+  /** Air or vacuum, why, and what contradicted it. */
+  medium: { vacuum: boolean; why: string; conflict?: string }
+  /** Where the 1σ errors came from, when there are any. */
+  errors?: string
+  masks: ReadMask[]
+  /** Parts of the file not used, each with why. */
+  ignored: string[]
+  /** What the observer should check (contradictions, masks not applied, merged orders). */
+  warnings: string[]
+}
+
 /** What the reader learned from the file. */
 export interface ReadMeta {
   format: SpectrumFormat
@@ -39,6 +72,18 @@ export interface ReadMeta {
   reversed: boolean
   /** Things a person may want to know (e.g. "read the first of 2 rows"). */
   notes: string[]
+  /** The reader's decisions (absent on spectra read before they were recorded). */
+  decisions?: ReadDecisions
+}
+
+/** How the observer asked for a file to be read; every field is optional ("as the file says"). */
+export interface ReadChoices {
+  medium?: 'air' | 'vacuum'
+  /** Wavelength unit to use instead of the file's, e.g. "nm". */
+  unit?: string
+  hdu?: number
+  /** Aperture, order or row, counted from 1. */
+  aperture?: number
 }
 
 /** One row of GET /api/spectra. */
@@ -84,7 +129,13 @@ export interface SpectrumDetail extends SpectrumListItem {
   fileSha256: string
   vacuumConverted: boolean
   read: ReadMeta
+  /** How the observer asked for the file to be read. */
+  readChoices: ReadChoices
   canEdit: boolean
+  /** The submitter, before any call. */
+  canWithdraw: boolean
+  /** Whether reading choices and resolution may be changed (re-read and re-process): the submitter before any call, or a lead. */
+  canReread: boolean
 }
 
 /** GET /api/spectra/:id: the spectrum with its measurements and the suggestions the caller may see. */
@@ -96,7 +147,7 @@ export interface SpectrumPage {
 
 /** The outcome for one uploaded file (zip archives give one per entry). */
 export type FileResult =
-  | { file: string; outcome: 'accepted'; spectrumId: number; pixels: number; wavelengthRange: [number, number]; dispersion: number; snr: number | null; objectName: string; notes: string[] }
+  | { file: string; outcome: 'accepted'; spectrumId: number; pixels: number; wavelengthRange: [number, number]; dispersion: number; snr: number | null; objectName: string; notes: string[]; decisions: ReadDecisions }
   | { file: string; outcome: 'duplicate'; spectrumId: number | null; message: string }
   | { file: string; outcome: 'refused'; code: string; message: string }
 

@@ -8,7 +8,7 @@ import { getSeries } from './series'
 
 export type { SpectrumHistory }
 export type { MeasurementSummary, SpectrumMeasurements } from '@shared/api/measurements'
-export type { FileResult, HeaderValue, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumPage, SubmitReply } from '@shared/api/spectra'
+export type { FileResult, HeaderValue, ReadChoices, ReadDecisions, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumPage, SubmitReply } from '@shared/api/spectra'
 export type { SpectrumSuggestions } from '@shared/api/suggestions'
 
 /** What the reader learned from the file. */
@@ -93,8 +93,22 @@ export interface SpectrumMetadataInput {
   notes?: string
 }
 
-export const updateSpectrum = async (id: number, changes: SpectrumMetadataInput): Promise<SpectrumDetail> =>
+/** Wavelength units an observer can choose instead of the file's (server: WAVELENGTH_UNIT_CHOICES). */
+export type WavelengthUnitChoice = 'file' | 'Angstrom' | 'nm' | 'um' | 'm'
+
+/** How to read the stored file again: 'file' and null mean "as the file says" / automatic. */
+export interface ReadingCorrection {
+  wavelengthMedium?: 'file' | 'air' | 'vacuum'
+  wavelengthUnit?: WavelengthUnitChoice
+  hdu?: number | null
+  aperture?: number | null
+}
+
+export const updateSpectrum = async (id: number, changes: SpectrumMetadataInput & ReadingCorrection): Promise<SpectrumDetail> =>
   (await http.patch<{ spectrum: SpectrumDetail }>(`/spectra/${id}`, changes)).spectrum
+
+/** Withdraws one's own spectrum before any call: the file and its results go. */
+export const withdrawSpectrum = (id: number) => http.delete<{ message: string }>(`/spectra/${id}`)
 
 export const getSpectrumHistory = (id: number) => http.get<SpectrumHistory>(`/spectra/${id}/history`)
 
@@ -136,7 +150,9 @@ export interface SubmitFields {
   parallaxErrorMas?: number
   ebv?: number
   wavelengthMedium: 'file' | 'air' | 'vacuum'
+  wavelengthUnit?: WavelengthUnitChoice
   hdu?: number
+  aperture?: number
   notes?: string
 }
 

@@ -1,6 +1,6 @@
 import { computed, onBeforeUnmount, ref, shallowRef, toValue, watch, type MaybeRefOrGetter } from 'vue'
 import { ApiError } from '@/api/http'
-import { getPreparedData, getSpectrum, getSpectrumData, processSpectrumAgain, updateSpectrum, type SpectrumMetadataInput, type SpectrumPage } from '@/api/spectra'
+import { getPreparedData, getSpectrum, getSpectrumData, processSpectrumAgain, updateSpectrum, withdrawSpectrum, type ReadingCorrection, type SpectrumMetadataInput, type SpectrumPage } from '@/api/spectra'
 import type { DecodedSeries } from '@/lib/series'
 import type { WavelengthRegion } from '@/lib/spectrumPlot'
 import { useAsync } from './useAsync'
@@ -83,6 +83,18 @@ export function useSpectrum(spectrumId: MaybeRefOrGetter<number>) {
     if (page.data.value) page.data.value = { ...page.data.value, spectrum }
   }
 
+  /** Reads the stored file again with other choices; everything drawn from the old arrays is fetched again. */
+  async function reread(changes: ReadingCorrection): Promise<void> {
+    await updateSpectrum(current(), changes)
+    zoomed.value = null
+    region.value = null
+    reloadAll()
+  }
+
+  async function withdraw(): Promise<string> {
+    return (await withdrawSpectrum(current())).message
+  }
+
   async function processAgain(): Promise<string> {
     const reply = await processSpectrumAgain(current())
     await page.reload()
@@ -121,6 +133,8 @@ export function useSpectrum(spectrumId: MaybeRefOrGetter<number>) {
     region,
     zoomState,
     save,
+    reread,
+    withdraw,
     processAgain,
     reloadAll,
   }

@@ -1,6 +1,6 @@
 import { computed, reactive, ref, shallowRef } from 'vue'
 import { ApiError, messageOf } from '@/api/http'
-import { uploadSpectrumFile, type FileResult, type SubmitFields, type UploadHandle } from '@/api/spectra'
+import { uploadSpectrumFile, type FileResult, type SubmitFields, type UploadHandle, type WavelengthUnitChoice } from '@/api/spectra'
 import type { RefusedEntry } from '@/lib/refusedLog'
 import { coordinateError, type MetadataDraft } from '@/lib/spectrumMetadata'
 
@@ -8,7 +8,9 @@ import { coordinateError, type MetadataDraft } from '@/lib/spectrumMetadata'
 export interface BatchMetadata extends MetadataDraft {
   campaignId: number | null
   wavelengthMedium: 'file' | 'air' | 'vacuum'
+  wavelengthUnit: WavelengthUnitChoice
   hdu: number | null
+  aperture: number | null
 }
 
 export const emptyBatchMetadata = (): BatchMetadata => ({
@@ -25,7 +27,9 @@ export const emptyBatchMetadata = (): BatchMetadata => ({
   parallaxErrorMas: null,
   ebv: null,
   wavelengthMedium: 'file',
+  wavelengthUnit: 'file',
   hdu: null,
+  aperture: null,
   notes: '',
 })
 
@@ -49,7 +53,9 @@ export function toSubmitFields(meta: BatchMetadata, batchId: string): SubmitFiel
     parallaxErrorMas: num(meta.parallaxErrorMas),
     ebv: num(meta.ebv),
     wavelengthMedium: meta.wavelengthMedium,
+    wavelengthUnit: meta.wavelengthUnit === 'file' ? undefined : meta.wavelengthUnit,
     hdu: num(meta.hdu),
+    aperture: num(meta.aperture),
     notes: text(meta.notes),
   }
 }

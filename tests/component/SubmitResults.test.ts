@@ -13,7 +13,16 @@ const items: UploadItem[] = [
     progress: 1,
     error: null,
     results: [
-      { file: 'night.zip/kr-1.fits', outcome: 'accepted', spectrumId: 11, pixels: 2000, wavelengthRange: [3800, 5200], dispersion: 0.7, snr: 84.2, objectName: 'KR-1', notes: ['read the first of 2 rows'] },
+      {
+        file: 'night.zip/kr-1.fits', outcome: 'accepted', spectrumId: 11, pixels: 2000, wavelengthRange: [3800, 5200], dispersion: 0.7, snr: 84.2, objectName: 'KR-1', notes: [],
+        decisions: {
+          source: 'HDU 2 (BLUE), image 2000', hdu: { index: 2, name: 'BLUE', why: 'the first HDU that covers the classification region (HDU 1 (RED) does not)' },
+          wavelengthSolution: 'linear: λ = CRVAL1 + CDELT1 (p − CRPIX1)', unit: { unit: 'nm', why: 'CUNIT1' },
+          medium: { vacuum: false, why: "AIRORVAC = 'air'", conflict: "the header contradicts itself: AIRORVAC = 'air' says air but CTYPE1 = 'WAVE' says vacuum" },
+          masks: [{ source: 'HDU 3 (DQ)', rule: '0 is good, non-zero is bad', pixels: 12 }], ignored: ['HDU 1 (RED): another spectrum (5600–6959 Å); pick it with the HDU option'],
+          warnings: ["the header contradicts itself: AIRORVAC = 'air' says air but CTYPE1 = 'WAVE' says vacuum"],
+        },
+      },
       { file: 'night.zip/kr-2.fits', outcome: 'duplicate', spectrumId: 9, message: 'night.zip/kr-2.fits was submitted before (spectrum #9); it is not stored twice.' },
       { file: 'night.zip/notes.txt', outcome: 'refused', code: 'NOT_A_SPECTRUM', message: 'notes.txt has no wavelength and flux columns' },
     ],
@@ -61,7 +70,9 @@ describe('toSubmitFields and checkBatchMetadata', () => {
       parallaxErrorMas: undefined,
       ebv: undefined,
       wavelengthMedium: 'file',
+      wavelengthUnit: undefined,
       hdu: undefined,
+      aperture: undefined,
       notes: undefined,
     })
   })
@@ -89,6 +100,18 @@ describe('SubmitResultsTable', () => {
     expect(r.findAll('td.num').map((c) => c.text())).toContain('84')
     expect(r.get('[data-testid="submit-result-link"]').attributes('href')).toBe('/spectra/11')
     expect(r.get('[data-testid="submit-result-edit"]').attributes('href')).toBe('/spectra/11?edit=1')
+  })
+
+  it("shows the reader's decisions: HDU, unit, medium and why, masks, parts not used, and what to check", () => {
+    const r = row('night.zip/kr-1.fits')
+    expect(r.get('[data-testid="read-decision-hdu"]').text()).toBe('HDU 2 (BLUE)')
+    expect(r.get('[data-testid="read-decision-hdu"]').attributes('title')).toBe('the first HDU that covers the classification region (HDU 1 (RED) does not)')
+    expect(r.get('[data-testid="read-decision-unit"]').text()).toBe('nm')
+    expect(r.get('[data-testid="read-decision-medium"]').attributes('title')).toBe("AIRORVAC = 'air'")
+    expect(r.get('[data-testid="read-decision-masks"]').text()).toBe('12 px masked')
+    expect(r.get('[data-testid="read-decision-ignored"]').text()).toBe('1 part not used')
+    expect(r.get('[data-testid="read-decision-warning"]').text()).toMatch(/^the header contradicts itself/)
+    expect(r.text()).toContain('HDU 1 (RED): another spectrum (5600–6959 Å); pick it with the HDU option')
   })
 
   it('links a duplicate to the spectrum already stored, and gives a refusal its code and message', () => {

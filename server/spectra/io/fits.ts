@@ -4,14 +4,20 @@
  * claims is checked against the bytes the file holds before anything is allocated.
  * Layout and keyword rules: FITS Standard 4.0 (IAU FITS Working Group, 2018).
  */
-import { SpectrumReadError, type HeaderValue } from './types'
+import { SpectrumReadError, type HeaderValue, type MediumEvidence } from './types'
+import { vacuumFromText } from './units'
 
 export const BLOCK = 2880
 const CARD = 80
 
 export interface FitsHdu {
   index: number
-  kind: 'image' | 'bintable' | 'other'
+  /** 'image' includes tile-compressed images (ZIMAGE = T tables); 'ascii' is XTENSION = 'TABLE'. */
+  kind: 'image' | 'bintable' | 'ascii' | 'other'
+  /** True for a tile-compressed image: naxis and bitpix are then ZNAXISn and ZBITPIX. */
+  compressed: boolean
+  /** The header blocks as text, for the fitsjs-ng decoders. */
+  headerText: string
   /** XTENSION value, or 'PRIMARY'. */
   xtension: string
   /** Keyword → value; the first occurrence wins, as in astropy. */
@@ -22,6 +28,8 @@ export interface FitsHdu {
   commentary: string[]
   bitpix: number
   naxis: number[]
+  /** Row width and row count of a table (NAXIS1, NAXIS2 as written, also for compressed images). */
+  table: { rowBytes: number; rows: number }
   dataOffset: number
   dataBytes: number
 }
@@ -82,7 +90,7 @@ function parseHeader(bytes: Uint8Array, offset: number, index: number, fileName:
       const card = block.slice(c, c + CARD)
       const key = card.slice(0, 8).trimEnd()
       if (first === '') first = key || ' '
-      if (key === 'END') return { cards, comments, commentary, first, dataOffset: pos }
+      if (key === 'END') return { cards, comments, commentary, first, dataOffset: pos, headerText: TEXT.decode(bytes.subarray(offset, pos)) }
       if (key === 'COMMENT' || key === 'HISTORY' || key === '') {
         const text = card.slice(8).trim()
         if (text) commentary.push(text)
@@ -153,15 +161,48 @@ export function parseFits(bytes: Uint8Array, fileName: string): FitsHdu[] {
         `${fileName}: HDU ${index} claims more data than the file holds (${available} bytes left after its header)`,
       )
     }
-    const kind: FitsHdu['kind'] =
-      xtension === 'PRIMARY' || xtension === 'IMAGE' ? 'image' : xtension === 'BINTABLE' ? 'bintable' : 'other'
-    hdus.push({
-      index, kind, xtension, cards: h.cards, comments: h.comments, commentary: h.commentary,
-      bitpix, naxis, dataOffset: h.dataOffset, dataBytes,
-    })
+    const compressed = xtension === 'BINTABLE' && h.cards.get('ZIMAGE') === true
+    const kind: FitsHdu['kind'] = xtension === 'PRIMARY' || xtension === 'IMAGE' || compressed
+      ? 'image' : xtension === 'BINTABLE' ? 'bintable' : xtension === 'TABLE' ? 'ascii' : 'other'
+    const hdu: FitsHdu = {
+      index, kind, compressed, headerText: h.headerText, xtension, cards: h.cards, comments: h.comments,
+      commentary: h.commentary, bitpix, naxis, table: { rowBytes: naxis[0] ?? 0, rows: naxis[1] ?? 0 },
+      dataOffset: h.dataOffset, dataBytes,
+    }
+    if (compressed) {
+      // The image a compressed table stands for: its size is checked before any tile is decoded.
+      const zbitpix = h.cards.get('ZBITPIX')
+      const zn = h.cards.get('ZNAXIS')
+      if (typeof zbitpix !== 'number' || ![8, 16, 32, 64, -32, -64].includes(zbitpix) || typeof zn !== 'number' || !Number.isInteger(zn) || zn < 0 || zn > 999) {
+        throw new SpectrumReadError('FITS_MALFORMED', `${fileName}: HDU ${index} is a compressed image without a valid ZBITPIX and ZNAXIS`)
+      }
+      hdu.bitpix = zbitpix
+      hdu.naxis = []
+      for (let k = 1; k <= zn; k++) hdu.naxis.push(intCard(h.cards, `ZNAXIS${k}`, index, fileName))
+    }
+    hdus.push(hdu)
     offset = h.dataOffset + Math.ceil(dataBytes / BLOCK) * BLOCK
   }
   return hdus
+}
+
+/**
+ * Whether an extension takes the primary header's keywords it lacks. FITS INHERIT convention:
+ * INHERIT = T says so; INHERIT = F forbids it. Many writers omit the card, so without it the
+ * primary is used for what the extension lacks and the reader says so.
+ */
+export function inheritance(hdu: FitsHdu, primary: FitsHdu | undefined): 'yes' | 'no' | 'unstated' | 'primary' {
+  if (!primary || hdu === primary) return 'primary'
+  const v = hdu.cards.get('INHERIT')
+  return v === true ? 'yes' : v === false ? 'no' : 'unstated'
+}
+
+/** A keyword of the HDU, or of the primary header when the HDU may inherit it. */
+export function inheritedCard(hdu: FitsHdu, primary: FitsHdu | undefined, key: string): HeaderValue | undefined {
+  const own = hdu.cards.get(key)
+  if (own !== undefined) return own
+  const inherit = inheritance(hdu, primary)
+  return inherit === 'yes' || inherit === 'unstated' ? primary?.cards.get(key) : undefined
 }
 
 export function cardNumber(hdu: FitsHdu, key: string): number | undefined {
@@ -210,87 +251,6 @@ export function readImagePixels(bytes: Uint8Array, hdu: FitsHdu, first: number, 
   return out
 }
 
-export interface TableColumn {
-  /** 1-based column number. */
-  number: number
-  name: string
-  type: string
-  repeat: number
-  /** Byte offset within a row. */
-  offset: number
-  unit?: string
-  comment?: string
-}
-
-const TYPE_BYTES: Record<string, number> = { L: 1, B: 1, I: 2, J: 4, K: 8, A: 1, E: 4, D: 8, C: 8, M: 16, P: 8, Q: 16 }
-
-/** Column layout of a BINTABLE HDU from its TFORMn/TTYPEn/TUNITn cards; checks the row width. */
-export function tableColumns(hdu: FitsHdu, fileName: string): TableColumn[] {
-  const nFields = cardNumber(hdu, 'TFIELDS') ?? 0
-  if (!Number.isInteger(nFields) || nFields < 0 || nFields > 999) {
-    throw new SpectrumReadError('FITS_MALFORMED', `${fileName}: HDU ${hdu.index} has an invalid TFIELDS`)
-  }
-  const cols: TableColumn[] = []
-  let offset = 0
-  for (let n = 1; n <= nFields; n++) {
-    const form = cardString(hdu, `TFORM${n}`) ?? ''
-    const m = /^(\d*)([LXBIJKAEDCMPQ])/.exec(form.toUpperCase())
-    if (!m) throw new SpectrumReadError('FITS_MALFORMED', `${fileName}: HDU ${hdu.index} column ${n} has an invalid TFORM '${form}'`)
-    const repeat = m[1] ? Number(m[1]) : 1
-    const type = m[2]!
-    const width = type === 'X' ? Math.ceil(repeat / 8) : repeat * TYPE_BYTES[type]!
-    const col: TableColumn = { number: n, name: cardString(hdu, `TTYPE${n}`) ?? `COL${n}`, type, repeat, offset }
-    const unit = cardString(hdu, `TUNIT${n}`)
-    if (unit) col.unit = unit
-    const comment = hdu.comments.get(`TTYPE${n}`)
-    if (comment) col.comment = comment
-    cols.push(col)
-    offset += width
-  }
-  const rowBytes = hdu.naxis[0] ?? 0
-  if (offset !== rowBytes) {
-    throw new SpectrumReadError('FITS_MALFORMED', `${fileName}: HDU ${hdu.index} columns add up to ${offset} bytes a row but NAXIS1 = ${rowBytes}`)
-  }
-  return cols
-}
-
-/** True for the numeric column types a spectrum can be stored in. */
-export function isNumericColumn(col: TableColumn): boolean {
-  return 'BIJKED'.includes(col.type) && col.repeat > 0
-}
-
-/**
- * Reads a numeric column as float64. One value per row (repeat 1) gives NAXIS2 values; an array
- * column gives the array of row `row`. TSCALn/TZEROn are applied and TNULLn integers become NaN.
- * `count` is bounded by the caller against maxPixels before this allocates.
- */
-export function readColumn(bytes: Uint8Array, hdu: FitsHdu, col: TableColumn, row: number): Float64Array {
-  const rowBytes = hdu.naxis[0] ?? 0
-  const rows = hdu.naxis[1] ?? 0
-  const perRow = col.repeat === 1
-  const count = perRow ? rows : col.repeat
-  const size = TYPE_BYTES[col.type]!
-  const scale = cardNumber(hdu, `TSCAL${col.number}`) ?? 1
-  const zero = cardNumber(hdu, `TZERO${col.number}`) ?? 0
-  const nul = cardNumber(hdu, `TNULL${col.number}`)
-  const view = new DataView(bytes.buffer, bytes.byteOffset + hdu.dataOffset, rowBytes * rows)
-  const out = new Float64Array(count)
-  for (let i = 0; i < count; i++) {
-    const at = perRow ? i * rowBytes + col.offset : row * rowBytes + col.offset + i * size
-    let raw: number
-    switch (col.type) {
-      case 'B': raw = view.getUint8(at); break
-      case 'I': raw = view.getInt16(at); break
-      case 'J': raw = view.getInt32(at); break
-      case 'K': raw = Number(view.getBigInt64(at)); break
-      case 'E': raw = view.getFloat32(at); break
-      default: raw = view.getFloat64(at)
-    }
-    out[i] = col.type !== 'E' && col.type !== 'D' && raw === nul ? NaN : zero + scale * raw
-  }
-  return out
-}
-
 /** Observation and resolution keywords passed on to the caller, as the file writes them. */
 const KEPT_KEYWORDS = [
   'OBJECT', 'RA', 'DEC', 'RA_OBJ', 'DEC_OBJ', 'EQUINOX', 'RADESYS', 'DATE-OBS', 'MJD-OBS', 'EXPTIME',
@@ -311,32 +271,31 @@ export function keptHeader(hdu: FitsHdu, primary: FitsHdu | undefined): Record<s
 }
 
 /**
- * Air/vacuum from keywords: VACUUM (logical, survey convention) or AIRORVAC ('air'/'vac'),
- * in the HDU first and then the primary header.
+ * What the keywords of the HDU and then the primary header say about air or vacuum: VACUUM
+ * (logical, survey convention), AIRORVAC ('air'/'vac'), and COMMENT/HISTORY lines about the
+ * wavelengths ("All wavelengths are in vacuum.").
  */
-export function vacuumFromKeywords(hdu: FitsHdu, primary: FitsHdu | undefined): { vacuum: boolean; source: string } | undefined {
-  for (const h of primary && primary !== hdu ? [hdu, primary] : [hdu]) {
+export function mediumFromHeaders(hdus: (FitsHdu | undefined)[]): MediumEvidence[] {
+  const out: MediumEvidence[] = []
+  const seen = new Set<FitsHdu>()
+  for (const h of hdus) {
+    if (!h || seen.has(h)) continue
+    seen.add(h)
     const vac = h.cards.get('VACUUM')
-    if (typeof vac === 'boolean') return { vacuum: vac, source: `VACUUM = ${vac ? 'T' : 'F'}` }
+    if (typeof vac === 'boolean') out.push({ vacuum: vac, source: `VACUUM = ${vac ? 'T' : 'F'}`, strength: 3 })
     const aov = h.cards.get('AIRORVAC')
     if (typeof aov === 'string') {
       const t = aov.trim().toLowerCase()
-      if (t.startsWith('vac')) return { vacuum: true, source: `AIRORVAC = '${aov}'` }
-      if (t === 'air') return { vacuum: false, source: `AIRORVAC = '${aov}'` }
+      if (t.startsWith('vac')) out.push({ vacuum: true, source: `AIRORVAC = '${aov}'`, strength: 3 })
+      else if (t === 'air') out.push({ vacuum: false, source: `AIRORVAC = '${aov}'`, strength: 3 })
     }
   }
-  return undefined
-}
-
-/** Air/vacuum from COMMENT/HISTORY text, e.g. "All wavelengths are in vacuum." */
-export function vacuumFromCommentary(hdus: (FitsHdu | undefined)[], test: (s: string) => boolean | undefined) {
-  for (const h of hdus) {
-    if (!h) continue
+  for (const h of seen) {
     for (const line of h.commentary) {
       if (!/wavelength/i.test(line)) continue
-      const v = test(line)
-      if (v !== undefined) return { vacuum: v, source: `header text "${line}"` }
+      const v = vacuumFromText(line)
+      if (v !== undefined) out.push({ vacuum: v, source: `header text "${line}"`, strength: 2 })
     }
   }
-  return undefined
+  return out
 }

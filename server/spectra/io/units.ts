@@ -6,7 +6,7 @@
 const ANGSTROM_PER_UNIT: Record<string, number> = {
   angstrom: 1, angstroms: 1, angstroem: 1, angstrem: 1, ang: 1, angs: 1, a: 1, aa: 1, 'å': 1, 'Å': 1,
   '0.1nm': 1, '1e-10m': 1, '10**-10m': 1,
-  nm: 10, nanometer: 10, nanometers: 10, nanometre: 10, nanometres: 10,
+  nm: 10, nanometer: 10,  nanometers: 10, nanometre: 10, nanometres: 10,
   um: 1e4, micron: 1e4, microns: 1e4, micrometer: 1e4, micrometers: 1e4, micrometre: 1e4, micrometres: 1e4, mum: 1e4,
   mm: 1e7,
   cm: 1e8,
@@ -36,12 +36,19 @@ export function isBlankUnit(unit: string | undefined): boolean {
 }
 
 /**
- * Reads "vacuum" or "air" from free text (a comment, a unit, a HISTORY line).
- * Returns undefined when the text says neither, or both.
+ * Reads "vacuum" or "air" from free text (a comment, a unit, a HISTORY line). A conversion
+ * ("converted from air to vacuum", "air-to-vacuum") names the medium the numbers are in last, so
+ * that one counts. Returns undefined when the text says neither, or both without a conversion.
  */
 export function vacuumFromText(text: string): boolean | undefined {
-  const vac = /\bvac(uum)?\b/i.test(text)
+  const converted = /\b(?:convert|transform|shift)\w*\b[^.;]{0,60}?\bto\s+(air|vac\w*)\b/i.exec(text)
+    ?? /\b(?:air|vac\w*)[\s-]+to[\s-]+(air|vac\w*)\b/i.exec(text)
+  if (converted) return converted[1]!.toLowerCase().startsWith('vac')
+  const vac = /\b(vac(uum)?|in vacuo)\b/i.test(text)
   const air = /\bair\b/i.test(text)
   if (vac === air) return undefined
   return vac
 }
+
+/** Names of wavelength units accepted as an observer's choice, with what they mean. */
+export const UNIT_CHOICES = ['Angstrom', 'nm', 'um', 'm'] as const

@@ -97,7 +97,8 @@ describe('readSpectrum on FITS layouts', () => {
   it('follows the user when told the wavelengths are vacuum', () => {
     const r = ok(readSpectrum(load('image_awav_cdelt_f32.fits'), 'x.fits', { assumeVacuum: true }))
     expect(r.meta.vacuumConverted).toBe(true)
-    expect(r.meta.vacuumSource).toMatch(/user's choice/)
+    expect(r.meta.vacuumSource).toBe('your choice (vacuum)')
+    expect(r.meta.decisions!.medium.conflict).toBe("the file says air (CTYPE1 = 'AWAV' (air, FITS WCS Paper III)); your choice was used")
     expect(r.spectrum.wavelengthAir[0]).toBeCloseTo(vacuumToAir(3600), 9)
   })
 })
@@ -125,7 +126,7 @@ describe('readSpectrum on multi-extension files', () => {
   it('refuses a picked extension that is not a spectrum', () => {
     const r = readSpectrum(load(ref.file), 'mef.fits', { hdu: 1 })
     expect(r.ok).toBe(false)
-    if (!r.ok) expect(r.message).toBe('mef.fits: HDU 1 is not a spectrum: it is a 50 × 40 image with 40 rows and no multispec keywords, not a 1-D spectrum')
+    if (!r.ok) expect(r.message).toBe('mef.fits: HDU 1 is not a spectrum: it is a 50 × 40 image with 40 rows and nothing saying what the rows are (no multispec keywords, wavelength image or wavelength row), not a 1-D spectrum: extract a 1-D spectrum first')
   })
 })
 
@@ -164,6 +165,34 @@ describe('readSpectrum on the real HST spectrum', () => {
   })
 })
 
+describe('readSpectrum on the real HST table with DATAQUAL', () => {
+  // Reference: astropy 5.2.1 via tests/reference/calspec_dataqual_reference.py → out/calspec_dataqual.json.
+  const ref = JSON.parse(readFileSync(join(__dirname, '../../../reference/out/calspec_dataqual.json'), 'utf8')) as {
+    rows: number; dataqualComment: string; flaggedByDataqual: number; wavelengthMin: number; wavelengthMax: number
+    airMin: number; airMax: number; sample: { rows: number[]; wavelength: number[]; flux: number[]; staterror: number[]; dataqual: number[] }
+  }
+  const bytes = new Uint8Array(readFileSync(join(__dirname, '../../../fixtures/real/bd_75d325_stis_001.fits')))
+  it('reads every row and masks exactly the rows whose DATAQUAL is 0, as the column comment says', () => {
+    const r = ok(readSpectrum(bytes, 'bd_75d325_stis_001.fits'))
+    expect(r.meta.pixels).toBe(ref.rows)
+    expect(r.meta.maskedPixels).toBe(ref.flaggedByDataqual)
+    expect(ref.dataqualComment).toBe('Data quality: 1=good, 0=bad')
+    expect(r.meta.decisions!.masks).toEqual([{ source: 'DATAQUAL column', rule: `0 is bad, 1 is good (as its comment says: "${ref.dataqualComment}")`, pixels: ref.flaggedByDataqual }])
+    ref.sample.rows.forEach((row, k) => {
+      expect(r.spectrum.mask?.[row] ?? 0).toBe(ref.sample.dataqual[k] === 0 ? 1 : 0)
+      relClose(r.spectrum.flux[row]!, ref.sample.flux[k]!, 1e-6)
+      relClose(r.spectrum.error![row]!, ref.sample.staterror[k]!, 1e-6)
+    })
+  })
+  it('converts its vacuum wavelengths to air as the reference formula does', () => {
+    const r = ok(readSpectrum(bytes, 'bd_75d325_stis_001.fits'))
+    expect(r.meta.decisions!.medium).toEqual({ vacuum: true, why: 'header text "All wavelengths are in vacuum."' })
+    relClose(r.spectrum.wavelengthAir[0]!, ref.airMin, 1e-9)
+    relClose(r.spectrum.wavelengthAir[ref.rows - 1]!, ref.airMax, 1e-9)
+    expect(r.meta.decisions!.ignored).toEqual(['columns SYSERROR, FWHM, TOTEXP'])
+  })
+})
+
 const flat = (i: number) => 1 + 0.001 * (i % 7)
 function refusal(bytes: Uint8Array, options = {}) {
   const r = readSpectrum(bytes, 'bad.fits', options)
@@ -198,7 +227,7 @@ describe('readSpectrum refusals for FITS', () => {
   })
   it('refuses a frequency axis and an unknown wavelength unit', () => {
     expect(refusal(linearImage(500, 4000, 1, flat, [['CTYPE1', 'FREQ']])).code).toBe('NO_WAVELENGTH_SCALE')
-    expect(refusal(linearImage(500, 4000, 1, flat, [['CUNIT1', 'furlong']]))).toEqual({ ok: false, code: 'UNKNOWN_UNIT', message: "bad.fits: wavelength unit 'furlong' is not one of Angstrom, nm, um, m" })
+    expect(refusal(linearImage(500, 4000, 1, flat, [['CUNIT1', 'furlong']]))).toEqual({ ok: false, code: 'UNKNOWN_UNIT', message: "bad.fits: wavelength unit 'furlong' (CUNIT1) is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)" })
   })
   it('refuses all-NaN and all-zero flux', () => {
     expect(refusal(linearImage(500, 3800, 2.5, () => NaN))).toEqual({ ok: false, code: 'NO_VALID_FLUX', message: 'bad.fits: every flux value is NaN or flagged' })
@@ -214,7 +243,9 @@ describe('readSpectrum refusals for FITS', () => {
     expect(refusal(holed).code).toBe('NO_COVERAGE')
   })
   it('refuses wavelengths that cannot be optical and hints at a missing unit', () => {
-    expect(refusal(linearImage(500, 380, 0.2, flat))).toEqual({ ok: false, code: 'NOT_OPTICAL', message: 'bad.fits: wavelengths run from 380.0 to 479.8 Å, which cannot be an optical spectrum; they look like nm: name the unit in the file' })
+    expect(refusal(linearImage(500, 380, 0.2, flat))).toEqual({ ok: false, code: 'NOT_OPTICAL', message: 'bad.fits: wavelengths run from 380.0 to 479.8 Å, which cannot be an optical spectrum; they look like nm but the file names no unit: choose the wavelength unit when you submit (--unit with npm run classify), or name it in the file (CUNIT1, TUNITn, or a "wavelength (nm)" column header)' })
+    const told = readSpectrum(linearImage(500, 380, 0.2, flat), 'bad.fits', { wavelengthUnit: 'nm' })
+    expect(told.ok && told.spectrum.wavelengthAir[0]).toBe(3800)
     expect(refusal(linearImage(500, 20000, 10, flat, [['CUNIT1', 'Angstrom']])).code).toBe('NOT_OPTICAL')
   })
   it('accepts a spectrum far wider than the optical and leaves cropping to the pipeline', () => {
@@ -223,5 +254,16 @@ describe('readSpectrum refusals for FITS', () => {
   })
   it('refuses non-positive wavelengths', () => {
     expect(refusal(linearImage(500, -100, 10, flat)).code).toBe('BAD_WAVELENGTHS')
+  })
+})
+
+describe('readSpectrum bounds the work on many-line images', () => {
+  it('refuses a multispec image whose lines hold more pixels in all than four spectra may', () => {
+    // 60 apertures of 2000 pixels with multispec keywords: 120 000 pixels, limit 4 × 20 000.
+    const n = 2000
+    const lines = 60
+    const cards: Card[] = [['SIMPLE', true], ['BITPIX', -32], ['NAXIS', 2], ['NAXIS1', n], ['NAXIS2', lines], ['CTYPE1', 'LINEAR'], ['CRVAL1', 3800], ['CDELT1', 1], ['APNUM1', '1 1 1 2']]
+    const r = readSpectrum(concat(header(cards), dataFloat32(new Array(n * lines).fill(1))), 'many.fits', { maxPixels: 20_000 })
+    expect(r).toEqual({ ok: false, code: 'TOO_MANY_PIXELS', message: 'many.fits: 60 lines of 2000 pixels is more than the limit of 80000 pixels in all; pick the spectrum out of the file first' })
   })
 })

@@ -38,12 +38,12 @@ describe('readSpectrum on text files', () => {
       const r = readSpectrum(new Uint8Array(readFileSync(join(DIR, name))), name)
       if (!r.ok) throw new Error(r.message)
       expect(r.meta.vacuumConverted).toBe(ref.vacuum === true)
-      if (ref.vacuum === null) expect(r.meta.vacuumSource).toBe('the file does not say; air assumed')
+      if (ref.vacuum === null) expect(r.meta.vacuumSource).toBe('the file does not say; air assumed (common practice for ground-based spectra)')
     })
   }
   it('refuses a file with four unnamed columns', () => {
     const r = read(rows(200, (w) => `${w} 1 0.1 7`))
-    expect(r).toEqual({ ok: false, code: 'TEXT_MALFORMED', message: 'spec.txt: line 1 has 4 columns; without a header row naming them, 2 or 3 columns (wavelength, flux, error) are expected' })
+    expect(r).toEqual({ ok: false, code: 'TEXT_MALFORMED', message: 'spec.txt: the rows have 4 columns; without a header row naming them, 2 or 3 columns (wavelength, flux, error) are expected: add a header row such as "wavelength flux error"' })
   })
   it('picks named columns out of a wider table', () => {
     const r = read('id,flux,err,wavelength_A\n' + rows(600, (w) => `7,${1 + w / 1e5},0.1,${w}`))
@@ -53,7 +53,7 @@ describe('readSpectrum on text files', () => {
     expect(r.meta.wavelengthUnit).toBe('A')
   })
   it('refuses a header row that names no flux column', () => {
-    expect(read('wavelength,temperature\n' + rows(200, (w) => `${w},1`))).toEqual({ ok: false, code: 'TEXT_MALFORMED', message: 'spec.txt: line 1 looks like a header (wavelength, temperature) but names no flux column' })
+    expect(read('wavelength,temperature,pressure\n' + rows(200, (w) => `${w},1,2`))).toEqual({ ok: false, code: 'TEXT_MALFORMED', message: 'spec.txt: the header row names no flux column (wavelength, temperature, pressure); name the columns wavelength and flux (with the unit, e.g. "wavelength (nm)")' })
   })
   it('refuses a text file with no numbers at all', () => {
     expect(read('# only a comment\n\n').ok).toBe(false)
@@ -79,5 +79,22 @@ describe('parseNumberToken', () => {
     expect(parseNumberToken('constructor')).toBeUndefined()
     expect(parseNumberToken('12abc')).toBeUndefined()
     expect(parseNumberToken('0x10')).toBeUndefined()
+  })
+})
+
+describe('readSpectrum on the library text spectra in ../shared/data/jhc-reference', () => {
+  // The file's own first and last rows: 349.70 nm (flux 17.5332) and 744.22 nm; 2821 lines less the two
+  // comment lines. The unit is named only in the comment "# Wavelength [nm]    Normalized Amplitude".
+  const path = join(__dirname, '../../../../../shared/data/jhc-reference/HD23733-Jacoby-spec.csv')
+  it('reads the unit from the commented header and gives the range in Å', () => {
+    const r = readSpectrum(new Uint8Array(readFileSync(path)), 'HD23733-Jacoby-spec.csv')
+    if (!r.ok) throw new Error(r.message)
+    expect(r.meta.pixels).toBe(2819)
+    expect(r.spectrum.wavelengthAir[0]).toBeCloseTo(3497.0, 9)
+    expect(r.spectrum.wavelengthAir[2818]).toBeCloseTo(7442.2, 9)
+    expect(r.spectrum.flux[0]).toBeCloseTo(17.5332, 12)
+    expect(r.meta.wavelengthUnit).toBe('nm')
+    expect(r.meta.decisions!.unit.why).toBe("the column header 'Wavelength [nm]'")
+    expect(r.meta.decisions!.medium).toEqual({ vacuum: false, why: 'the file does not say; air assumed (common practice for ground-based spectra)' })
   })
 })

@@ -20,7 +20,12 @@ describe('vacuumFromText', () => {
     expect(vacuumFromText('All wavelengths are in vacuum.')).toBe(true)
     expect(vacuumFromText('air wavelengths')).toBe(false)
     expect(vacuumFromText('airmass 1.2')).toBeUndefined()
-    expect(vacuumFromText('converted from vacuum to air')).toBeUndefined()
+    // A conversion names the medium the numbers end up in last (common practice in reducers' notes).
+    expect(vacuumFromText('converted from vacuum to air')).toBe(false)
+    expect(vacuumFromText('wavelengths converted from air to vacuum (Morton 2000)')).toBe(true)
+    expect(vacuumFromText('air-to-vacuum correction applied')).toBe(true)
+    expect(vacuumFromText('vacuum wavelengths converted to air')).toBe(false)
+    expect(vacuumFromText('air and vacuum')).toBeUndefined()
   })
 })
 
