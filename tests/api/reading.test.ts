@@ -129,8 +129,9 @@ describe('PATCH /api/spectra/:id: correcting how the file is read', () => {
     const details = JSON.parse(events[0]!.details)
     expect(details.before).toMatchObject({ choices: {}, vacuumConverted: false, measurementId: before!.id, suggestionId: oldSuggestion!.id })
     expect(details.after).toMatchObject({ choices: { medium: 'vacuum' }, vacuumConverted: true })
+    // The uploaded file itself is kept as it came.
     const blob = await SpectrumBlob.findByPk(first.spectrumId)
-    expect(blob!.raw.toString('utf8').startsWith('3800.')).toBe(false)
+    expect((await t.ctx.files.get(blob!.rawKey!)).toString('utf8').startsWith('3800.')).toBe(false)
     const history = await observer.agent.get(`/api/spectra/${first.spectrumId}/history`).expect(200)
     const kinds = history.body.events.map((e: { kind: string }) => e.kind)
     expect(kinds.filter((k: string) => k === 'measurement')).toHaveLength(2)
