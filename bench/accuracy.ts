@@ -19,11 +19,10 @@ import { mkdirSync, writeFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
 import { defaultLibrary } from '../server/jobs/worker'
 import { runPipeline } from '../server/spectra/pipeline'
-import { formatTypeCode } from '../shared/mk'
 import { referenceStars, REFERENCE_DATA_DIR, type ReferenceStar } from './reference'
 import { classError, figures, groupTable, type Scored } from './score'
-import { degradeSpectrum } from './synthetic'
-import { selfConsistency } from './synthetic'
+import { gateFigures } from './gate'
+import { degradeSpectrum, selfConsistency } from './synthetic'
 
 const EVERY = Number(process.env.ACCURACY_EVERY ?? 1)
 const out: string[] = []
@@ -138,6 +137,10 @@ function main() {
   for (const line of self.lines) log(line)
   summary['self-consistency'] = self.figures
 
+  const gate = gateFigures(library)
+  log('')
+  log(`## The npm test gate (every 6th star, the library's copies, native, resolution given): n ${gate.n}, ±1 sub ${gate.within1} %, exact class ${gate.exactClass} %`)
+
   log('')
   log(`total ${((performance.now() - started) / 1000).toFixed(0)} s`)
   const dir = fileURLToPath(new URL('./results/', import.meta.url))
@@ -145,8 +148,8 @@ function main() {
   if (EVERY === 1) {
     writeFileSync(`${dir}accuracy.txt`, `${out.join('\n')}\n`)
     writeFileSync(`${dir}accuracy.json`, `${JSON.stringify({ date: new Date().toISOString().slice(0, 10), library: library.versionName, summary }, null, 1)}\n`)
+    writeFileSync(`${dir}accuracy-gate.json`, `${JSON.stringify(gate, null, 1)}\n`)
   }
-  void formatTypeCode
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) main()

@@ -59,8 +59,12 @@ function readJhcText(bytes: Uint8Array): Spectrum1D {
   return { wavelength, flux }
 }
 
-/** Every kept standard of the shipped library as a reference star. */
-export function referenceStars(observedDir = DEFAULT_OBSERVED_DIR): ReferenceStar[] {
+/**
+ * Every kept standard of the shipped library as a reference star.
+ * @param options.fromFiles read the source files when present @default true; false takes the library's copies, as on a machine without them
+ */
+export function referenceStars(observedDir = DEFAULT_OBSERVED_DIR, options: { fromFiles?: boolean } = {}): ReferenceStar[] {
+  const fromFiles = options.fromFiles ?? true
   const { library, inputs } = observedLibraryAt(observedDir)
   const wl = gridWavelengths(DEFAULT_GRID)
   const byKey = new Map<string, Set<number>>()
@@ -73,7 +77,7 @@ export function referenceStars(observedDir = DEFAULT_OBSERVED_DIR): ReferenceSta
     const e = s.entry
     const path = join(REFERENCE_DATA_DIR, folders[e.source]!, e.file)
     let spectrum: Spectrum1D | null = null
-    if (existsSync(path)) {
+    if (fromFiles && existsSync(path)) {
       const bytes = readFileSync(path)
       const read = readSpectrum(bytes, e.file)
       spectrum = read.ok ? toSpectrum1D(read.spectrum) : e.source === 'jhc' ? readJhcText(bytes) : null

@@ -1,3 +1,4 @@
+import type { SuggestionDetails } from '../../shared/api/suggestions'
 import { Op, UniqueConstraintError, type Transaction } from 'sequelize'
 import { classCodeOf, formatMK, parseMK, type MKValue } from '../../shared/mk'
 import type { SpectrumStatus } from '../../shared/status'
@@ -194,6 +195,7 @@ export function toSuggestionView(s: Suggestion): SuggestionView {
     votes: parseJson<unknown>(s.votes, []),
     flags: suggestionFlags(s),
     probabilities: parseJson<unknown[]>(s.probabilities, []),
+    details: s.details ? parseJson<SuggestionDetails | null>(s.details, null) : null,
     createdAt: s.createdAt.toISOString(),
   }
 }

@@ -7,7 +7,7 @@ import type { ObservedLibraryManifest } from '../../templates/observed/library'
 import { DEFAULT_MODEL_DIR, DEFAULT_OBSERVED_DIR, modelLibraryAt, observedLibraryAt, type LibrarySpec } from '../jobs/worker'
 import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
 import { HttpError, notFound } from '../lib/http-error'
-import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, type User } from '../models'
+import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, Suggestion, type User } from '../models'
 import { replaceModelsByObserved } from '../spectra/match'
 import { resolutionFwhm } from '../spectra/pipeline'
 import type { StandardSummary, StandardsLibrary, VersionSummary } from '../../shared/api/standards'
@@ -23,12 +23,15 @@ export const MODEL_VERSION_NAME = 'model-v1'
  * Makes sure the default version exists: one `standards` row per standard of the shipped observed
  * library (template_id = its id, with star, source, published type and parameters) and a published
  * version holding them all. It becomes the active version when none is active or when the active
- * one is the old model library. Safe to call at every start.
+ * one is the old model library. The model standards, where a database still has them, are retired:
+ * on real stars they suggested the right type far less often (bench/results/accuracy.txt), so later
+ * versions leave them out; versions already published keep them. Safe to call at every start.
  */
 export async function ensureDefaultLibrary(sequelize: Sequelize, observedDir = DEFAULT_OBSERVED_DIR): Promise<LibraryVersion> {
   const manifest = JSON.parse(readFileSync(join(observedDir, 'manifest.json'), 'utf8')) as ObservedLibraryManifest
   return sequelize.transaction(async (transaction) => {
     const active = await LibraryVersion.findOne({ where: { isActive: true }, transaction })
+    await Standard.update({ retiredAt: new Date() }, { where: { source: 'model', retiredAt: null }, transaction })
     const existing = await LibraryVersion.findOne({ where: { name: manifest.version }, transaction })
     if (existing) {
       if (!active || active.name === MODEL_VERSION_NAME) {
@@ -182,6 +185,9 @@ export async function addObservedStandard(user: User, input: AddStandardInput): 
   if (m.gridStart !== DEFAULT_GRID.start || m.gridStep !== DEFAULT_GRID.step || m.gridLength !== DEFAULT_GRID.length) {
     throw new HttpError(409, 'grid_mismatch', 'The measurement is on a different grid from the standards library.')
   }
+  // Measured at the library level for its resolution (pipeline.ts): that is the standard's resolution.
+  const suggestion = await Suggestion.findOne({ where: { spectrumId: input.spectrumId, isCurrent: true }, attributes: ['details'] })
+  const level = suggestion?.details ? (JSON.parse(suggestion.details) as { resolution?: { level?: number | null } }).resolution?.level ?? null : null
   const rectified = bufferToFloat32(m.rectified)
   const mask = m.mask
   for (let i = 0; i < rectified.length; i++) if (mask[i] === 1) rectified[i] = Number.NaN
@@ -196,6 +202,7 @@ export async function addObservedStandard(user: User, input: AddStandardInput): 
     classCode: v.classCode,
     teff: null,
     logg: null,
+    resolutionFwhm: level,
     note: input.note.trim(),
     rectified: float32ToBuffer(rectified),
     addedBy: user.id,

@@ -107,7 +107,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     const resolution: PipelineResolution = { fwhm: input.inputFwhm ?? null, source: input.inputFwhm !== undefined ? 'given' : 'unknown', bound: null, level: null }
     return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion: null, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
   }
-  const region = input.region ?? DEFAULT_CLASSIFICATION_REGION
+  const region = classificationRegion(library, input.region, notes)
   const exclude = input.exclude ? { exclude: input.exclude } : {}
   const matchOptions = { region, ...exclude }
   // An infinite S/N floor skips the line measurements: only the prepared arrays are used before the rest frame.
@@ -224,6 +224,25 @@ export function residualSnr(library: PreparedMatchLibrary, level: LibraryLevel, 
 function medianOf(values: number[]): number {
   const sorted = values.filter(Number.isFinite).sort((x, y) => x - y)
   return sorted.length === 0 ? Number.NaN : sorted[sorted.length >> 1]!
+}
+
+/** Narrowest classification region the matcher accepts, Å. */
+const MIN_REGION = 300
+
+/**
+ * The campaign's classification region as far as the standards reach (their stored span); the
+ * default region, with a note, when less than MIN_REGION Å of it is left.
+ */
+function classificationRegion(library: PreparedMatchLibrary, wanted: readonly [number, number] | undefined, notes: string[]): readonly [number, number] {
+  if (!wanted) return DEFAULT_CLASSIFICATION_REGION
+  const lo = Math.max(wanted[0], library.wavelength[0]!)
+  const hi = Math.min(wanted[1], library.wavelength[library.pixels - 1]!)
+  if (hi - lo < MIN_REGION) {
+    notes.push(`The campaign's region ${wanted[0]}–${wanted[1]} Å lies outside the standards (${Math.round(library.wavelength[0]!)}–${Math.round(library.wavelength[library.pixels - 1]!)} Å); classified over ${DEFAULT_CLASSIFICATION_REGION[0]}–${DEFAULT_CLASSIFICATION_REGION[1]} Å.`)
+    return DEFAULT_CLASSIFICATION_REGION
+  }
+  if (lo > wanted[0] || hi < wanted[1]) notes.push(`Classified over ${Math.round(lo)}–${Math.round(hi)} Å, the part of the campaign's region ${wanted[0]}–${wanted[1]} Å the standards cover.`)
+  return [lo, hi]
 }
 
 /** Options that bring a spectrum of resolution `fwhm` to `level` (smoothing only when the level is coarser). */

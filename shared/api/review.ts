@@ -1,3 +1,4 @@
+import type { SuggestionDetails } from './suggestions'
 import type { SpectrumStatus } from '../status'
 import type { MeasurementSummary } from './measurements'
 
@@ -29,6 +30,8 @@ export interface SuggestionView {
   flags: string[]
   /** Probability of each (type, class) grid point, for the probability map (display only; stored JSON, read leniently). */
   probabilities?: unknown[]
+  /** How the suggestion was reached and the parameters it implies; null before pipeline 2. */
+  details?: SuggestionDetails | null
   createdAt: string
 }
 

@@ -25,6 +25,9 @@ export interface SuggestionCandidate {
   standardId: number
   spectralType: string
   source?: 'model' | 'observed'
+  /** Star name and library of an observed standard (suggestions from pipeline 2 on). */
+  star?: string | null
+  origin?: string | null
   chi2: number
   reducedChi2: number
   scale?: number

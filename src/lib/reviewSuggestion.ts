@@ -3,6 +3,8 @@
 export interface Candidate {
   standardId: number
   spectralType: string
+  /** Star name of an observed standard. */
+  star: string | null
   chi2: number | null
   reducedChi2: number | null
   probability: number | null
@@ -29,7 +31,7 @@ export function readCandidates(raw: unknown): Candidate[] {
   return raw.filter(isObject).flatMap((c) => {
     const id = num(c.standardId) ?? num(c.id)
     if (id === null) return []
-    return [{ standardId: id, spectralType: str(c.spectralType) ?? `#${id}`, chi2: num(c.chi2), reducedChi2: num(c.reducedChi2), probability: num(c.probability) }]
+    return [{ standardId: id, spectralType: str(c.spectralType) ?? `#${id}`, star: str(c.star), chi2: num(c.chi2), reducedChi2: num(c.reducedChi2), probability: num(c.probability) }]
   })
 }
 

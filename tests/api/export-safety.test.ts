@@ -1,7 +1,11 @@
+import { unzipSync } from 'fflate'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { closeDatabase, createTestContext, type TestContext } from '../helpers/context'
 import { signedInPerson, type Person } from '../helpers/review'
 import { frozenRelease, makeCampaign } from '../helpers/world'
+
+/** The fixed-width table comes as a zip of the data file and its ReadMe: both, as ASCII text. */
+const unzippedText = (zip: Buffer) => Object.values(unzipSync(new Uint8Array(zip))).map((b) => Buffer.from(b).toString('ascii')).join('\n')
 
 let t: TestContext
 let lead: Person
@@ -36,7 +40,7 @@ describe('release downloads', () => {
     expect(rows[1]).toMatch(/^1,"'=HYPERLINK\(/)
     expect(rows[1]).toContain(",'@SUM(1+1),")
     expect(csv).not.toMatch(/(^|,)"?[=@]/m)
-    const mrt = (await download('mrt')).toString('ascii')
+    const mrt = unzippedText(await download('mrt'))
     expect(mrt).toContain("'=HYPERLINK(")
     expect(mrt).not.toMatch(/ =HYPERLINK/)
     const vot = (await download('votable')).toString('utf8')
@@ -48,7 +52,7 @@ describe('release downloads', () => {
     expect(fits).toContain('zet Oph')
     expect(fits).toContain('Zoe Odegaard')
     expect(fits).toContain('transliterated')
-    const mrt = (await download('mrt')).toString('ascii')
+    const mrt = unzippedText(await download('mrt'))
     expect(mrt).toContain('zet Oph')
     expect(mrt).toContain('Zoe Odegaard')
     expect(mrt).toMatch(/transliterated/)

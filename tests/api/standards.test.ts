@@ -17,8 +17,8 @@ let spectrumId: number
 beforeAll(async () => {
   t = await createTestContext()
   const base = await ensureDefaultLibrary(t.ctx.sequelize)
-  // The dev database is shared between runs: start from the shipped version with no observed standards.
-  await Standard.update({ retiredAt: new Date() }, { where: { source: 'observed', retiredAt: null } })
+  // The dev database is shared between runs: start from the shipped version with no standards made from uploads.
+  await Standard.update({ retiredAt: new Date() }, { where: { source: 'observed', templateId: null, retiredAt: null } })
   await LibraryVersion.update({ isActive: false }, { where: {} })
   // Through the table, not the instance: the instance may already think it is active and skip the write.
   await LibraryVersion.update({ isActive: true }, { where: { id: base.id } })
@@ -58,7 +58,11 @@ describe('processing with the standards library', () => {
     expect(current[0]!.classCode).toBeGreaterThanOrEqual(5.5)
     const active = await LibraryVersion.findOne({ where: { isActive: true } })
     expect(current[0]!.libraryVersionId).toBe(active!.id)
-    expect(JSON.parse(current[0]!.candidates)).toHaveLength(3)
+    expect(JSON.parse(current[0]!.candidates)).toHaveLength(5)
+    // The resolution given on upload is the one it was matched at (its level), and the details say so.
+    const details = JSON.parse(current[0]!.details!)
+    expect(details.resolution).toMatchObject({ fwhm: 5.5, source: 'given' })
+    expect(details.resolution.level).toBeGreaterThanOrEqual(5.5)
   })
 })
 
@@ -66,13 +70,18 @@ describe('GET /api/standards', () => {
   it('lists versions and standards for leads and classifiers, not observers', async () => {
     const res = await classifier.agent.get('/api/standards').expect(200)
     expect(res.body.activeVersionId).not.toBeNull()
-    expect(res.body.versions.some((v: { name: string }) => v.name === 'model-v1')).toBe(true)
-    expect(res.body.standards.filter((s: { source: string }) => s.source === 'model').length).toBeGreaterThanOrEqual(211)
+    const shipped = res.body.versions.find((v: { name: string }) => v.name === 'observed-v1')
+    expect(shipped.standardCount).toBeGreaterThanOrEqual(300)
+    // Every shipped standard names its star and its library (templates/observed-v1/manifest.json).
+    const templates = res.body.standards.filter((s: { templateId: string | null }) => s.templateId !== null)
+    expect(templates.length).toBe(shipped.standardCount)
+    const a0v = templates.find((s: { templateId: string }) => s.templateId === 'miles-m0166')
+    expect(a0v).toMatchObject({ star: 'HD031295', spectralType: 'A0 V', origin: 'MILES stellar library v9.1', resolutionFwhm: 2.5 })
     await observer.agent.get('/api/standards').expect(403)
   })
 
-  it('serves a model standard as float32 columns', async () => {
-    const std = await Standard.findOne({ where: { modelId: 'A0-V' } })
+  it('serves a shipped standard as float32 columns', async () => {
+    const std = await Standard.findOne({ where: { templateId: 'miles-m0166' } })
     const res = await classifier.agent.get(`/api/standards/${std!.id}/data`).buffer(true).parse((r, cb) => {
       const chunks: Buffer[] = []
       r.on('data', (c: Buffer) => chunks.push(c))
@@ -92,7 +101,7 @@ describe('POST /api/standards and /api/standards/versions', () => {
     await lead.agent.post('/api/standards').set('x-csrf-token', lead.csrf).send({ spectrumId, spectralType: 'A0', luminosityClass: 'V' }).expect(422)
   })
 
-  it('adds an observed standard that replaces the model one in a new version, retires it, and re-suggests keeping history', async () => {
+  it('adds an observed standard to a new version, retires it, and re-suggests keeping history', async () => {
     const added = await lead.agent.post('/api/standards').set('x-csrf-token', lead.csrf).send({ spectrumId, spectralType: 'A0', luminosityClass: 'V', note: 'MK primary standard (common practice)' }).expect(201)
     expect(added.body.standard.spectralType).toBe('A0 V')
     expect(added.body.standard.source).toBe('observed')
@@ -103,9 +112,9 @@ describe('POST /api/standards and /api/standards/versions', () => {
     const pub = await lead.agent.post('/api/standards/versions').set('x-csrf-token', lead.csrf).send({ name, description: 'with an observed A0 V' }).expect(201)
     expect(pub.body.version.isActive).toBe(true)
     const members = (await LibraryVersionStandard.findAll({ where: { versionId: pub.body.version.id } })).map((l) => l.standardId)
-    const modelA0V = await Standard.findOne({ where: { modelId: 'A0-V' } })
+    const shippedA0V = await Standard.findOne({ where: { templateId: 'miles-m0166' } })
     expect(members).toContain(added.body.standard.id)
-    expect(members).not.toContain(modelA0V!.id)
+    expect(members).toContain(shippedA0V!.id)
     expect(await LibraryVersion.count({ where: { isActive: true } })).toBe(1)
 
     const before = await Suggestion.count({ where: { spectrumId } })
@@ -129,7 +138,7 @@ describe('POST /api/standards and /api/standards/versions', () => {
     const next = await lead.agent.post('/api/standards/versions').set('x-csrf-token', lead.csrf).send({ name: `${name}-b`, description: '' }).expect(201)
     const nextMembers = (await LibraryVersionStandard.findAll({ where: { versionId: next.body.version.id } })).map((l) => l.standardId)
     expect(nextMembers).not.toContain(added.body.standard.id)
-    expect(nextMembers).toContain(modelA0V!.id)
+    expect(nextMembers).toContain(shippedA0V!.id)
     await classifier.agent.post(`/api/campaigns/${campaign.id}/resuggest`).set('x-csrf-token', classifier.csrf).expect(403)
   }, 120_000)
 })

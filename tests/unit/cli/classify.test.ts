@@ -72,7 +72,8 @@ describe('npm run classify', () => {
     const arm = r.lines[2]!
     expect(arm.read.hdu).toEqual({ index: 2, name: 'BLUE', why: 'the first HDU that covers the classification region (HDU 1 (RED) does not)' })
     expect(arm.read.medium.why).toBe("CTYPE1 = 'AWAV' (air, FITS WCS Paper III)")
-    expect(Math.abs(arm.rv.v)).toBeLessThan(5)
+    // Measured against real standards (each at rest to about ±10 km/s) for a model star: well under the 84 km/s of a medium mistake.
+    expect(Math.abs(arm.rv.v)).toBeLessThan(25)
     expect(r.lines[0]!.error).toMatch(/extract a 1-D spectrum first/)
     expect(r.stderr).toMatch(/^classify: \d\/5 files, \d failed — /m)
     expect(r.stderr).toMatch(/^classify: 4 classified, 1 failed \(NOT_A_SPECTRUM 1\) in \d+\.\d s$/m)
