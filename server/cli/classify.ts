@@ -51,7 +51,9 @@ function classified(file: string, read: Extract<ReadResult, { ok: true }>, optio
     wavelengthRange: [r3(wl[0]), r3(wl[wl.length - 1])],
     dispersion: r3(medianStep(wl)),
     inputFwhm: options.fwhm ?? null,
+    resolution: out.resolution,
     snr: r3(out.analysis.snr),
+    snrMethod: out.analysis.snrMethod,
     rv: out.analysis.rv ? { v: r3(out.analysis.rv.v), error: r3(out.analysis.rv.error) } : null,
     lines: out.analysis.lines.map((l) =>
       l.measured
@@ -62,8 +64,12 @@ function classified(file: string, read: Extract<ReadResult, { ok: true }>, optio
     type: { letter: s.letter, subtype: s.subtype },
     luminosityClass: s.luminosityClass,
     uncertainty: s.uncertainty,
+    classShares: s.classShares,
+    classNote: s.classNote,
+    parameters: s.parameters,
     candidates: s.candidates,
     flags: s.flags,
+    notes: out.notes,
     libraryVersion: s.libraryVersion.name,
   }
 }

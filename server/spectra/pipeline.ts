@@ -88,7 +88,9 @@ function subtractRunningMedian(values: Float64Array, wavelength: Float64Array, h
  *    spectrum is then brought to the library level at or just above it (levelFor) — the sharper
  *    of spectrum and standards is always brought to the coarser.
  * 2. Prepare at that level (no line measurements), find the best standard, measure the radial
- *    velocity against it and analyse the spectrum shifted to rest, with every line.
+ *    velocity against it and analyse the spectrum shifted to rest, with every line, its continuum
+ *    placed as the best standard's (fitContinuumToReference), so that reddening and flux
+ *    calibration do not change how it is rectified.
  * 3. Match (matchSpectrum). When the type is within two subtypes of an end of the level's types
  *    and a coarser level has standards beyond it (O stars are only in the 15 Å library), the
  *    spectrum is matched there too and the coarser result kept if it lies beyond.
@@ -121,7 +123,14 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     first = analyseSpectrum(input.spectrum, atLevel(quick, fwhm, level))
   } else {
     const unsmoothed = analyseSpectrum(input.spectrum, quick)
-    const estimate = estimateResolution(library, matchInput(unsmoothed, undefined), { region, ...exclude })
+    // Lines out of place fit broad standards best: estimate at rest (velocity against the best sharp standard).
+    const sharp = fitSpectrumAtLevel(library, matchInput(unsmoothed, undefined), library.resolutions[0]!, { region, ...exclude })
+    let nearest = 0
+    for (let r = 1; r < sharp.fit.chi2.length; r++) if (sharp.fit.chi2[r]! < sharp.fit.chi2[nearest]!) nearest = r
+    const p0 = unsmoothed.prepared
+    const velocity = measureSpectrumRadialVelocity({ wavelength: gridWavelengths(p0.grid), flux: p0.rectified, mask: p0.mask }, standardOnGrid(library, sharp.level, nearest), { grid: p0.grid, region })
+    const atRest = velocity.found && Math.abs(velocity.velocity) > 15 ? analyseSpectrum(shiftSpectrumToRest(input.spectrum, { velocity: velocity.velocity }), quick) : unsmoothed
+    const estimate = estimateResolution(library, matchInput(atRest, undefined), { region, ...exclude })
     fwhm = estimate.fwhm
     const level = levelFor(library, fwhm)
     resolution = { fwhm, source: 'estimated', bound: estimate.bound, level }

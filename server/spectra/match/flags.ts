@@ -92,7 +92,7 @@ export function balmerHalfDepthWidth(flux: ArrayLike<number>, wavelength: ArrayL
 
 /**
  * True when the Balmer lines are wider at half depth than those of every O–A dwarf or subgiant standard at this level
- * (A dwarfs have the widest) by more than a third. Cooler standards are left out: among their
+ * (A dwarfs have the widest) by more than 30 %. Cooler standards are left out: among their
  * crowded metal lines the flux never climbs back to half the Balmer depth.
  */
 export function isBeyondDwarfs(level: LibraryLevel, standards: readonly MatchStandardInfo[], width: number): boolean {
@@ -101,7 +101,7 @@ export function isBeyondDwarfs(level: LibraryLevel, standards: readonly MatchSta
     const v = level.balmerWidth[r]!
     if (standards[k]!.typeCode < 30 && standards[k]!.classCode >= 5 && Number.isFinite(v) && v > max) max = v
   })
-  return Number.isFinite(max) && width > 1.35 * max
+  return Number.isFinite(max) && width > 1.3 * max
 }
 
 /** Type bins from which one standard each enters the two-star fits. */

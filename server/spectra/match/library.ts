@@ -29,6 +29,8 @@ export interface MatchStandardInput {
   feh: number | null
   /** Continuum-normalised flux on the library grid; NaN where undefined. */
   rectified: ArrayLike<number>
+  /** The continuum `rectified` was divided by, on the grid, when known: spectra are then rectified as this standard was. */
+  continuum?: ArrayLike<number>
   /** Resolution of `rectified`, FWHM Å. */
   resolutionFwhm: number
 }
@@ -52,7 +54,7 @@ export interface MatchLibraryOptions {
 }
 
 /** A standard's classification and provenance, without its arrays. */
-export type MatchStandardInfo = Omit<MatchStandardInput, 'rectified'>
+export type MatchStandardInfo = Omit<MatchStandardInput, 'rectified' | 'continuum'>
 
 /** One resolution level of a prepared library: the standards usable at it, brought to its resolution. */
 export interface LibraryLevel {
@@ -94,6 +96,8 @@ export interface PreparedMatchLibrary {
   resolutions: number[]
   /** The level of resolution `fwhm` (one of `resolutions`), prepared on first use. */
   level(fwhm: number): LibraryLevel
+  /** Standard k's continuum and rectified flux on the full grid at its own resolution, or null when its continuum is not known. */
+  reference(k: number): { continuum: ArrayLike<number>; rectified: ArrayLike<number> } | null
   /** Decimation of the coarse blocks, pixels. */
   coarseStep: number
   /** Pixels per standard in a coarse block: ⌈pixels / coarseStep⌉. */
@@ -128,9 +132,10 @@ export function resolutionLadder(own: readonly number[], max = 20): number[] {
 /**
  * Prepares a library version for matching: applies {@link replaceModelsByObserved}, cuts every
  * standard to the span and, level by level on first use, smooths each standard sharper than the
- * level with a Gaussian of √(level² − own²) Å (smoothSpectrumToFwhm), measures the line criteria
+ * level with a Gaussian of √(level² − own²) Å (smoothSpectrumToFwhm) — its flux, rectified again
+ * in ln F as spectra are, where its continuum is known — measures the line criteria
  * (criteria.ts) and each standard's residual against its nearest neighbour.
- * Cost per level: about 0.5–1 s for 350 standards; done once per version and thread.
+ * Cost per level: about 1–2 s for 350 standards; done once per version and thread.
  * @throws when no standard is given, or a standard's array does not match the grid
  */
 export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], options: MatchLibraryOptions): PreparedMatchLibrary {
@@ -146,14 +151,15 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
   const wavelength = all.slice(offset, end)
   const coarsePixels = Math.ceil(pixels / coarseStep)
   const sources = kept.map((s) => Float64Array.from(s.rectified))
-  const standards = kept.map(({ rectified: _r, ...info }) => info)
+  const continua = kept.map((s) => (s.continuum && s.continuum.length === grid.length ? s.continuum : null))
+  const standards = kept.map(({ rectified: _r, continuum: _c, ...info }) => info)
   const levels = new Map<number, LibraryLevel>()
 
   const prepareLevel = (fwhm: number): LibraryLevel => {
     const rowList: number[] = []
     standards.forEach((s, k) => {
-      // 5 % slack: a standard a hair coarser than the level still serves it.
-      if (s.resolutionFwhm <= fwhm * 1.05) rowList.push(k)
+      // A standard up to 30 % coarser than the level still serves it: an estimated resolution may fall just short of the level where the only standards of some types (the O stars, at 15 Å) are.
+      if (s.resolutionFwhm <= fwhm * 1.3) rowList.push(k)
     })
     const rows = Int32Array.from(rowList)
     const n = rows.length
@@ -172,9 +178,19 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
       const own = standards[k]!.resolutionFwhm
       let smoothed: Float64Array = flux
       if (fwhm > own * 1.001) {
+        const continuum = continua[k]
         const mask = new Uint8Array(flux.length)
-        for (let i = 0; i < flux.length; i++) if (!Number.isFinite(flux[i]!)) mask[i] = 1
-        smoothed = smoothSpectrumToFwhm({ wavelength: all, flux, mask }, { grid, targetFwhm: fwhm, inputFwhm: own }).flux
+        for (let i = 0; i < flux.length; i++) if (!Number.isFinite(flux[i]!) || (continuum && !Number.isFinite(continuum[i]!))) mask[i] = 1
+        if (continuum) {
+          // Smoothed as flux and rectified again, as a spectrum of this resolution is: blended lines
+          // move a fitted continuum, so smoothing the rectified flux would not give what a spectrum shows.
+          const raw = Float64Array.from(flux, (v, i) => (mask[i] ? 0 : v * continuum[i]!))
+          const blurred = smoothSpectrumToFwhm({ wavelength: all, flux: raw, mask }, { grid, targetFwhm: fwhm, inputFwhm: own })
+          const fit = fitSpectrumContinuum(blurred, { space: 'log' })
+          smoothed = Float64Array.from(fit.rectified, (v, i) => (blurred.mask![i] ? Number.NaN : v))
+        } else {
+          smoothed = smoothSpectrumToFwhm({ wavelength: all, flux, mask }, { grid, targetFwhm: fwhm, inputFwhm: own }).flux
+        }
       }
       const slice = smoothed.subarray(offset, end)
       level.flux.set(slice, r * pixels)
@@ -205,6 +221,10 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
         levels.set(fwhm, level)
       }
       return level
+    },
+    reference(k: number) {
+      const continuum = continua[k]
+      return continuum ? { continuum, rectified: sources[k]! } : null
     },
     coarseStep,
     coarsePixels,
@@ -308,7 +328,7 @@ export interface ObservedLibraryLike {
 
 /**
  * The standards of an observed library as matcher inputs, each rectified with the same continuum
- * fit the spectra get (fitSpectrumContinuum, about 2 ms a standard); `idOf` gives each template
+ * fit the spectra get (fitSpectrumContinuum in ln F, about 2 ms a standard); `idOf` gives each template
  * id its database id (default: the row number + 1), and templates it returns undefined for are left out.
  */
 export function observedMatchInputs(library: ObservedLibraryLike, idOf: (templateId: string, row: number) => number | undefined = (_t, row) => row + 1): MatchStandardInput[] {
@@ -319,7 +339,7 @@ export function observedMatchInputs(library: ObservedLibraryLike, idOf: (templat
     if (id === undefined) return
     const flux = Float64Array.from(s.flux, (v) => (Number.isFinite(v) ? v : 0))
     const mask = Uint8Array.from(s.flux, (v) => (Number.isFinite(v) ? 0 : 1))
-    const { rectified } = fitSpectrumContinuum({ wavelength, flux, mask })
+    const { rectified, continuum } = fitSpectrumContinuum({ wavelength, flux, mask }, { space: 'log' })
     out.push({
       id,
       modelId: null,
@@ -335,6 +355,7 @@ export function observedMatchInputs(library: ObservedLibraryLike, idOf: (templat
       logg: s.entry.logg,
       feh: s.entry.feh,
       rectified: Float64Array.from(rectified, (v, i) => (mask[i] ? Number.NaN : v)),
+      continuum: Float64Array.from(continuum, (v, i) => (mask[i] ? Number.NaN : v)),
       resolutionFwhm: s.source.resolutionFwhm,
     })
   })

@@ -29,6 +29,13 @@ export interface ContinuumOptions {
    * ≤ 8 is fixed by far fewer points, and the log grid oversamples the resolution). @default 1600
    */
   maxPoints?: number
+  /**
+   * 'log' fits the polynomial to ln F: a smooth factor on the flux (reddening, a flux calibration,
+   * an instrument's response) is then a smooth term added to ln F, which the polynomial takes up
+   * while the same pixels are clipped, so two spectra that differ by such a factor are rectified
+   * alike. 'linear' fits F itself. @default 'linear'
+   */
+  space?: 'linear' | 'log'
 }
 
 export interface ContinuumResult {
@@ -73,7 +80,9 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
     bandDepthLimit = 0.15,
     envelopeWidth = 80,
     maxPoints = 1600,
+    space = 'linear',
   } = options
+  const log = space === 'log'
   const { wavelength, flux, error } = spectrum
   const n = wavelength.length
   let first = -1
@@ -112,8 +121,9 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
       if (count < 5) continue
       centre /= count
       const top = percentileInPlace(segment, count, 0.95)
+      if (log && !(top > 0)) continue
       xs[m] = scale(centre, lo, hi)
-      ys[m] = top
+      ys[m] = log ? Math.log(top) : top
       ws[m] = 1
       m++
     }
@@ -128,10 +138,14 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
     const stride = Math.max(1, Math.ceil((last - first + 1) / maxPoints))
     for (let i = first; i <= last; i += stride) {
       if (!isGoodPixel(spectrum, i) || inRanges(wavelength[i]!, masks)) continue
+      const f = flux[i]!
+      if (log && !(f > 0)) continue
       xs[m] = scale(wavelength[i]!, lo, hi)
-      ys[m] = flux[i]!
+      ys[m] = log ? Math.log(f) : f
       const e = error ? Math.max(error[i]!, floor) : 1
-      ws[m] = e > 0 && Number.isFinite(e) ? 1 / (e * e) : 0
+      // In ln F the error is σ/F.
+      const se = log ? e / f : e
+      ws[m] = se > 0 && Number.isFinite(se) ? 1 / (se * se) : 0
       m++
     }
   }
@@ -190,7 +204,7 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
       if (rectifiedError) rectifiedError[i] = Number.NaN
       continue
     }
-    const c = chebyshev(coefficients, scale(w, lo, hi))
+    const c = log ? Math.exp(chebyshev(coefficients, scale(w, lo, hi))) : chebyshev(coefficients, scale(w, lo, hi))
     continuum[i] = c
     rectified[i] = flux[i]! / c
     if (rectifiedError && error) rectifiedError[i] = error[i]! / c
@@ -309,4 +323,94 @@ function fitChebyshev(
 function percentileInPlace(values: Float64Array, n: number, q: number): number {
   const sorted = values.subarray(0, n).sort()
   return sorted[Math.min(n - 1, Math.max(0, Math.round(q * (n - 1))))]!
+}
+
+/** A standard's flux model on the spectrum's pixels: its continuum and its rectified flux (NaN where unknown). */
+export interface ContinuumReference {
+  continuum: ArrayLike<number>
+  rectified: ArrayLike<number>
+}
+
+export interface ReferenceContinuumOptions {
+  /** Degree of the smooth ratio between spectrum and reference. @default 3 */
+  degree?: number
+  /** Pixels more than this many rms from the ratio fit are dropped at each pass. @default 3 */
+  clip?: number
+  /** Most fit-and-clip passes. @default 8 */
+  maxIterations?: number
+  /** Most pixels the fit uses (even stride). @default 1600 */
+  maxPoints?: number
+}
+
+/**
+ * The continuum of a spectrum placed as that of a reference star of similar type: the ratio of the
+ * spectrum to the reference's flux model (continuum × rectified) is fitted with a low-degree
+ * Chebyshev series (symmetric sigma clipping, so lines that differ drop out), and the continuum is
+ * that series times the reference's continuum. Whatever smooth factor separates the two — reddening,
+ * a flux calibration, an instrument's response — goes into the series, so the spectrum is rectified
+ * exactly as the reference was, where a fit of its own would ride the line-crowded blue of a cool
+ * star differently once the slope changes (template-guided normalisation, common practice).
+ * @returns the fitted continuum (NaN where the spectrum or the reference is undefined) and the rectified flux;
+ *   null when fewer than 50 pixels are usable
+ */
+export function fitContinuumToReference(spectrum: Spectrum1D, reference: ContinuumReference, options: ReferenceContinuumOptions = {}): { continuum: Float64Array; rectified: Float64Array } | null {
+  assertSpectrum(spectrum)
+  const { degree = 3, clip = 3, maxIterations = 8, maxPoints = 1600 } = options
+  const { wavelength, flux } = spectrum
+  const n = wavelength.length
+  const good: number[] = []
+  for (let i = 0; i < n; i++) {
+    const c = reference.continuum[i]!
+    const r = reference.rectified[i]!
+    if (isGoodPixel(spectrum, i) && Number.isFinite(c) && Number.isFinite(r) && c * r > 0) good.push(i)
+  }
+  if (good.length < 50) return null
+  const stride = Math.max(1, Math.ceil(good.length / maxPoints))
+  const picked = good.filter((_, k) => k % stride === 0)
+  const m = picked.length
+  const lo = wavelength[good[0]!]!
+  const hi = wavelength[good[good.length - 1]!]!
+  const size = degree + 1
+  const basis = new Float64Array(m * size)
+  const ys = new Float64Array(m)
+  const ws = new Float64Array(m).fill(1)
+  const used = new Uint8Array(m).fill(1)
+  const model = new Float64Array(m)
+  const t = new Float64Array(size)
+  picked.forEach((i, k) => {
+    const x = scale(wavelength[i]!, lo, hi)
+    t[0] = 1
+    if (size > 1) t[1] = x
+    for (let j = 2; j < size; j++) t[j] = 2 * x * t[j - 1]! - t[j - 2]!
+    basis.set(t, k * size)
+    ys[k] = flux[i]! / (reference.continuum[i]! * reference.rectified[i]!)
+  })
+  let c = fitChebyshev(basis, ys, ws, used, m, size, model)
+  for (let pass = 0; pass < maxIterations; pass++) {
+    let ss = 0
+    let count = 0
+    for (let k = 0; k < m; k++) {
+      if (!used[k]) continue
+      ss += (ys[k]! - model[k]!) ** 2
+      count++
+    }
+    const rms = Math.sqrt(ss / Math.max(1, count))
+    let changed = 0
+    for (let k = 0; k < m; k++) {
+      const keep = Math.abs(ys[k]! - model[k]!) <= clip * rms ? 1 : 0
+      if (keep !== used[k]) changed++
+      used[k] = keep
+    }
+    if (changed === 0) break
+    c = fitChebyshev(basis, ys, ws, used, m, size, model)
+  }
+  const continuum = new Float64Array(n).fill(Number.NaN)
+  const rectified = new Float64Array(n).fill(Number.NaN)
+  for (let i = 0; i < n; i++) {
+    const rc = reference.continuum[i]!
+    if (!Number.isFinite(rc) || wavelength[i]! < lo || wavelength[i]! > hi) continue
+    continuum[i] = chebyshev(c, scale(wavelength[i]!, lo, hi)) * rc
+    if (isGoodPixel(spectrum, i)) rectified[i] = flux[i]! / continuum[i]!
+  }
+  return { continuum, rectified }
 }

@@ -75,7 +75,6 @@ describe('runPipeline', () => {
       for (const given of [15, undefined]) {
         const out = runPipeline({ spectrum, ...(given ? { inputFwhm: given } : {}), exclude: sameStar(row) }, library)
         expect(out.suggestion!.letter, `${id} ${given ?? 'estimated'}`).toBe('O')
-        expect(out.resolution.level, `${id} ${given ?? 'estimated'}`).toBeGreaterThanOrEqual(15)
       }
     }
   }, 60_000)
