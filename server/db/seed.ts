@@ -6,14 +6,14 @@ import { JobRunner } from '../jobs/runner'
 import { createLogger } from '../lib/logger'
 import { startFakeSmtp } from '../mail/fake-smtp'
 import { createMailer } from '../mail/mailer'
-import { Campaign, CampaignMember, Dispute, Spectrum, User } from '../models'
+import { Campaign, CampaignMember, Dispute, Spectrum, Suggestion, User } from '../models'
 import { settleDispute } from '../services/disputes.service'
 import { createRelease } from '../services/releases.service'
 import { recordCall } from '../services/review.service'
 import { submitFiles } from '../services/spectra.service'
 import { ensureDefaultLibrary } from '../services/standards.service'
 import { hashPassword } from '../services/users.service'
-import { spectralTypeLabel, typeCode, type SpectralLetter } from '../../shared/calibration'
+import { spectralTypeLabel } from '../../shared/calibration'
 import { DEMO_ENTRIES, DEMO_RESOLUTION_FWHM, demoFits, demoObservation, demoText, seededRandom, type DemoEntry } from './demo-spectra'
 
 /** The invented demo scenario: one observatory, two campaigns, one person per role (and a second classifier). */
@@ -128,14 +128,22 @@ async function seedDemoSpectra(sequelize: Sequelize, config: Config, people: See
   }
 }
 
-function shifted(standard: string, subtypes: number): { spectralType: string; luminosityClass: string } {
-  const [type, luminosityClass] = standard.split('-') as [string, string]
-  const letter = type[0] as SpectralLetter
-  const code = Math.min(69, Math.max(0, typeCode(letter, Number(type.slice(1))) + subtypes))
-  return { spectralType: spectralTypeLabel(code), luminosityClass }
+/** The demo's classifiers call what the standards show: the suggestion's type, a whole subtype, and its class (the brighter end of an intermediate one). */
+interface DemoCall {
+  code: number
+  luminosityClass: string
 }
 
-const CLASS_STEP: Record<string, string> = { Ia: 'Ib', Ib: 'II', II: 'III', III: 'IV', IV: 'V', V: 'IV' }
+function callOf(c: DemoCall, subtypes = 0): { spectralType: string; luminosityClass: string } {
+  return { spectralType: spectralTypeLabel(Math.min(69, Math.max(0, Math.round(c.code) + subtypes))), luminosityClass: c.luminosityClass }
+}
+
+async function suggestedCall(spectrumId: number): Promise<DemoCall | null> {
+  const s = await Suggestion.findOne({ where: { spectrumId, isCurrent: true } })
+  return s ? { code: s.typeCode, luminosityClass: s.luminosityClass.split('-')[0]! } : null
+}
+
+const CLASS_STEP: Record<string, string> = { Ia: 'Ib', Iab: 'Ib', Ib: 'II', II: 'III', III: 'IV', IV: 'V', V: 'IV' }
 
 async function walkToStates(ctx: AppContext, people: SeedPeople, ids: Map<DemoEntry, number>, now: number): Promise<void> {
   const first = people.users['classifier@kestrel-ridge.example']!
@@ -150,7 +158,9 @@ async function walkToStates(ctx: AppContext, people: SeedPeople, ids: Map<DemoEn
   for (const [entry, id] of ids) {
     const spectrum = await Spectrum.findByPk(id)
     if (spectrum?.status !== 'suggested') continue
-    const truth = shifted(entry.standard, 0)
+    const suggested = await suggestedCall(id)
+    if (!suggested) continue
+    const truth = callOf(suggested)
     switch (entry.fate) {
       case 'suggested':
         break
@@ -160,17 +170,17 @@ async function walkToStates(ctx: AppContext, people: SeedPeople, ids: Map<DemoEn
       case 'agreed':
         await call(first, id, at(entry, 2), truth)
         // The second classifier tends to call a little later types, which the audit shows.
-        await call(second, id, at(entry, 5), shifted(entry.standard, rand() < 0.5 ? 1 : 0))
+        await call(second, id, at(entry, 5), callOf(suggested, rand() < 0.5 ? 1 : 0))
         break
       case 'disputed':
       case 'settled': {
         await call(first, id, at(entry, 2), truth)
-        const [type, cls] = entry.standard.split('-') as [string, string]
-        await call(second, id, at(entry, 6), { spectralType: shifted(entry.standard, 4).spectralType || type, luminosityClass: CLASS_STEP[cls] ?? cls })
+        const cls = suggested.luminosityClass
+        await call(second, id, at(entry, 6), { spectralType: callOf(suggested, 4).spectralType, luminosityClass: CLASS_STEP[cls] ?? cls })
         if (entry.fate === 'settled') {
           const dispute = await Dispute.findOne({ where: { spectrumId: id } })
           if (dispute) {
-            const note = ['K', 'M'].includes(type[0]!)
+            const note = truth.spectralType.startsWith('K') || truth.spectralType.startsWith('M')
               ? 'Compared the TiO band depths and Ca I 4226 with the standards; the first call stands.'
               : 'Checked He I 4471 against Mg II 4481 and the Balmer wings with the standards; the first call stands.'
             await settleDispute(ctx, lead, dispute.id, { ...truth, note }, at(entry, 30))
