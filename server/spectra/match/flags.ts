@@ -176,7 +176,7 @@ export interface NotStarEvidence {
  * broad (FWHM > 40 Å, as the lines of quasars) or that sit away from every line where stars show
  * emission. A feature is a run of pixels, at least as wide as 0.8 × the resolution, where both the
  * rectified spectrum stands above the continuum and the spectrum stands above the best standard's
- * fit by more than max(0.15, 6σ): above the continuum alone would take the gaps between the
+ * fit by more than max(0.2, 8σ): above the continuum alone would take the gaps between the
  * crowded lines of cool stars for emission, above the fit alone a line weaker than the standard's.
  * Null when there is none.
  * @param wavelength wavelengths, Å; @param rectified flux / continuum, high-passed (NaN where not used)
@@ -187,7 +187,7 @@ export interface NotStarEvidence {
  */
 export function notStarEvidence(wavelength: Float64Array, rectified: ArrayLike<number>, residual: ArrayLike<number>, sigma: number, resolution: number, typeCode: number): NotStarEvidence | null {
   // The heads of the TiO bands of M stars rise steeply out of the band before them: only strong features count there.
-  const threshold = Math.max(typeCode >= 58 ? 0.5 : 0.15, 6 * sigma)
+  const threshold = Math.max(typeCode >= 58 ? 0.5 : 0.2, 8 * sigma)
   const above = (i: number) => rectified[i]! - 1 > threshold && residual[i]! - 1 > threshold
   const features: NotStarEvidence['emission'] = []
   let i = 0
