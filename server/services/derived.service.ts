@@ -1,3 +1,4 @@
+import type { SuggestionDetails } from '../../shared/api/suggestions'
 import { deriveParameters, type DerivedInput, type DerivedParameters } from '../../shared/derived'
 import { parseMK } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
@@ -79,5 +80,8 @@ export async function derivedFor(spectrumId: number, spectrum?: Spectrum, option
   if (!s) throw notFound('The spectrum')
   const basis = await basisFor(s.id, options)
   const inputs = observerInputs(s)
-  return { spectrumId: s.id, basis, inputs, estimates: basis ? estimatesFor(basis, inputs) : null, caution: DERIVED_CAUTION }
+  const current = options.suggestion === false ? null : await Suggestion.findOne({ where: { spectrumId: s.id, isCurrent: true }, attributes: ['id', 'details'] })
+  const details = current?.details ? (JSON.parse(current.details) as SuggestionDetails) : null
+  const spectroscopic = details && details.parameters.standards > 0 ? details.parameters : null
+  return { spectrumId: s.id, basis, inputs, estimates: basis ? estimatesFor(basis, inputs) : null, spectroscopic, caution: DERIVED_CAUTION }
 }

@@ -1,3 +1,4 @@
+import type { SuggestionDetails } from './suggestions'
 import type { DerivedParameters } from '../derived'
 
 /** What derived estimates rest on: the decided classification, else the current suggestion. */
@@ -25,6 +26,12 @@ export interface DerivedView {
   basis: ClassificationBasis | null
   inputs: ObserverInputs
   estimates: DerivedParameters | null
+  /**
+   * Teff, log g and [Fe/H] read off the published values of the standards nearest the spectrum (the
+   * current suggestion's), beside the calibration estimates; null without a suggestion, or when blind
+   * review withholds it.
+   */
+  spectroscopic: SuggestionDetails['parameters'] | null
   /** The server's wording of the caution that these are estimates. */
   caution: string
 }

@@ -63,6 +63,11 @@ describe('processing with the standards library', () => {
     const details = JSON.parse(current[0]!.details!)
     expect(details.resolution).toMatchObject({ fwhm: 5.5, source: 'given' })
     expect(details.resolution.level).toBeGreaterThanOrEqual(5.5)
+    // The spectroscopic Teff beside the calibration one: an A0 V star is near 9700 K (Pecaut & Mamajek
+    // 2013 dwarf table, from memory; REFERENCE.md).
+    const derived = await lead.agent.get(`/api/spectra/${spectrumId}/derived`).expect(200)
+    const teff = derived.body.derived.spectroscopic.teff
+    expect(Math.abs(teff.value - 9700)).toBeLessThan(1200)
   })
 })
 
