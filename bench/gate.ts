@@ -8,7 +8,7 @@
 import type { PreparedMatchLibrary } from '../server/spectra/match'
 import { runPipeline } from '../server/spectra/pipeline'
 import { referenceStars } from './reference'
-import { exactClass, figures, type Scored } from './score'
+import { figures, type Scored } from './score'
 
 export const GATE_EVERY = 6
 export const GATE_MARGIN = 3
@@ -27,6 +27,5 @@ export function gateFigures(library: PreparedMatchLibrary): GateFigures {
     return { truthType: s.typeCode, truthClass: s.classCode, truthClassRange: s.classRange, type: r.typeCode, classCode: r.classCode, sigmaType: r.uncertainty.subtypes, sigmaClass: r.uncertainty.classes, flags: r.flags }
   })
   const f = figures(rows)
-  void exactClass
   return { n: f.n, within1: f.within1, exactClass: f.exactClass }
 }

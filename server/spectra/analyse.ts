@@ -1,7 +1,7 @@
 import { DEFAULT_CLASSIFICATION_REGION, DEFAULT_GRID, gridWavelength, type LogGrid } from '../../shared/grid'
 import { CLASSIFICATION_LINES, lineSpan, type WavelengthRange } from '../../shared/lines'
 import type { Spectrum1D } from '../../shared/spectrum'
-import { fitContinuumToReference, fitSpectrumContinuum, type ContinuumOptions, type ContinuumReference } from './prepare/continuum'
+import { fitSpectrumContinuum, type ContinuumOptions } from './prepare/continuum'
 import { assertSpectrum } from './prepare/guards'
 import { countMaskedPixels, maskSpectrumBadPixels } from './prepare/mask'
 import { rebinNoiseCorrelation, rebinSpectrumToLogGrid } from './prepare/rebin'
@@ -43,11 +43,7 @@ export interface AnalyseOptions {
   flagged?: ArrayLike<number>
   /** Options for the continuum fit. @default {} */
   continuum?: ContinuumOptions
-  /**
-   * A standard of similar type on `grid` (its continuum and rectified flux): the continuum is then
-   * placed as that standard's (fitContinuumToReference) wherever it is defined. @default undefined
-   */
-  continuumReference?: ContinuumReference
+
 }
 
 export interface PreparedSpectrum {
@@ -113,7 +109,6 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
     residualSnr,
     flagged,
     continuum: continuumOptions = {},
-    continuumReference,
   } = options
   const warnings: string[] = []
   const masked = maskSpectrumBadPixels(spectrum, flagged ? { flagged } : {})
@@ -135,7 +130,7 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
   }
 
   let rest = masked
-  let prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions, continuumReference)
+  let prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions)
   let rv: AnalysisResult['rv'] = null
   if (rvReference) {
     const result = measureSpectrumRadialVelocity(
@@ -146,7 +141,7 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
     if (result.found) {
       rv = { v: result.velocity, error: result.error }
       rest = shiftSpectrumToRest(masked, { velocity: result.velocity })
-      prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions, continuumReference)
+      prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions)
     } else {
       warnings.push(`radial velocity not measured: ${result.reason}`)
     }
@@ -214,7 +209,6 @@ function prepareOnGrid(
   targetFwhm: number | undefined,
   inputFwhm: number | undefined,
   continuumOptions: ContinuumOptions,
-  reference?: ContinuumReference,
 ): GridPreparation {
   const rebinned = rebinSpectrumToLogGrid(spectrum, { grid })
   const mask = rebinned.mask!
@@ -233,15 +227,6 @@ function prepareOnGrid(
       ? smoothSpectrumToFwhm(rebinned, { grid, targetFwhm, inputFwhm })
       : rebinned
   const fit = fitSpectrumContinuum(smoothed, { space: 'log', ...continuumOptions })
-  // Placed as the reference standard's continuum where it has one; the spectrum's own fit elsewhere.
-  const guided = reference ? fitContinuumToReference(smoothed, reference) : null
-  if (guided) {
-    for (let i = 0; i < grid.length; i++) {
-      if (!Number.isFinite(guided.continuum[i]!)) continue
-      fit.continuum[i] = guided.continuum[i]!
-      fit.rectified[i] = guided.rectified[i]!
-    }
-  }
   let rectifiedError: Float64Array | undefined
   if (rebinned.error) {
     rectifiedError = new Float64Array(grid.length)

@@ -88,9 +88,8 @@ function subtractRunningMedian(values: Float64Array, wavelength: Float64Array, h
  *    spectrum is then brought to the library level at or just above it (levelFor) — the sharper
  *    of spectrum and standards is always brought to the coarser.
  * 2. Prepare at that level (no line measurements), find the best standard, measure the radial
- *    velocity against it and analyse the spectrum shifted to rest, with every line, its continuum
- *    placed as the best standard's (fitContinuumToReference), so that reddening and flux
- *    calibration do not change how it is rectified.
+ *    velocity against it and analyse the spectrum shifted to rest, with every line (the continuum
+ *    fitted in ln F, so that reddening and flux calibration do not change how it is rectified).
  * 3. Match (matchSpectrum). When the type is within two subtypes of an end of the level's types
  *    and a coarser level has standards beyond it (O stars are only in the 15 Å library), the
  *    spectrum is matched there too and the coarser result kept if it lies beyond.

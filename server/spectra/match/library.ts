@@ -29,7 +29,7 @@ export interface MatchStandardInput {
   feh: number | null
   /** Continuum-normalised flux on the library grid; NaN where undefined. */
   rectified: ArrayLike<number>
-  /** The continuum `rectified` was divided by, on the grid, when known: spectra are then rectified as this standard was. */
+  /** The continuum `rectified` was divided by, on the grid, when known: the library's coarser levels then smooth the flux and rectify it again, as a spectrum of that resolution is. */
   continuum?: ArrayLike<number>
   /** Resolution of `rectified`, FWHM Å. */
   resolutionFwhm: number
@@ -96,8 +96,6 @@ export interface PreparedMatchLibrary {
   resolutions: number[]
   /** The level of resolution `fwhm` (one of `resolutions`), prepared on first use. */
   level(fwhm: number): LibraryLevel
-  /** Standard k's continuum and rectified flux on the full grid at its own resolution, or null when its continuum is not known. */
-  reference(k: number): { continuum: ArrayLike<number>; rectified: ArrayLike<number> } | null
   /** Decimation of the coarse blocks, pixels. */
   coarseStep: number
   /** Pixels per standard in a coarse block: ⌈pixels / coarseStep⌉. */
@@ -221,10 +219,6 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
         levels.set(fwhm, level)
       }
       return level
-    },
-    reference(k: number) {
-      const continuum = continua[k]
-      return continuum ? { continuum, rectified: sources[k]! } : null
     },
     coarseStep,
     coarsePixels,

@@ -12,7 +12,7 @@ import { readSpectrum } from '../../../../server/spectra/io'
 import { toSpectrum1D } from '../../../../server/spectra/io/types'
 import { runPipeline } from '../../../../server/spectra/pipeline'
 import { referenceStars, type ReferenceStar } from '../../../../bench/reference'
-import { classSpan, exactClass } from '../../../../bench/score'
+import { exactClass } from '../../../../bench/score'
 import { degradeSpectrum } from '../../../../bench/synthetic'
 import { realA0V } from '../../../helpers/spectra'
 
@@ -173,6 +173,5 @@ describe('the flags on real spectra', () => {
     const r = classify(s, withEmission).suggestion!
     expect(r.flags).toContain('emission')
     expect(classify(s).suggestion!.flags).not.toContain('emission')
-    void classSpan
   }, 60_000)
 })
