@@ -31,9 +31,9 @@ export interface ContinuumOptions {
   maxPoints?: number
   /**
    * 'log' fits the polynomial to ln F: a smooth factor on the flux (reddening, a flux calibration,
-   * an instrument's response) is then a smooth term added to ln F, which the polynomial takes up
-   * while the same pixels are clipped, so two spectra that differ by such a factor are rectified
-   * alike. 'linear' fits F itself. @default 'linear'
+   * an instrument's response) is then a smooth term added to ln F, which the polynomial takes up,
+   * so two spectra that differ by such a factor are rectified nearly alike (the weights, the
+   * inverse variance of ln F, still follow F). 'linear' fits F itself. @default 'linear'
    */
   space?: 'linear' | 'log'
 }

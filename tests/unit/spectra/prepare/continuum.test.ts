@@ -87,3 +87,32 @@ describe('fitSpectrumContinuum', () => {
     )
   })
 })
+
+describe('fitSpectrumContinuum in ln F', () => {
+  it('rectifies a real K giant and the same star reddened by E(B−V) = 1 more alike than a fit in F does (CCM89 law, checked against python3-extinction)', async () => {
+    const { loadObservedLibrary } = await import('../../../../templates/observed/library')
+    const { DEFAULT_OBSERVED_DIR } = await import('../../../../server/jobs/worker')
+    const { extinctionMagnitudes } = await import('../../../../shared/extinction')
+    const { gridWavelengths } = await import('../../../../shared/grid')
+    // HD 207130, K0 III (MILES v9.1): a line-crowded blue, where a fit in F rides differently once the slope changes.
+    const library = loadObservedLibrary(DEFAULT_OBSERVED_DIR)
+    const star = library.standards.find((s) => s.entry.star === 'HD207130')!
+    const wavelength = gridWavelengths(library.grid)
+    const keep = Array.from(wavelength.keys()).filter((i) => wavelength[i]! >= 3800 && wavelength[i]! <= 5600)
+    const w = Float64Array.from(keep, (i) => wavelength[i]!)
+    const f = Float64Array.from(keep, (i) => star.flux[i]!)
+    const reddened = Float64Array.from(w, (l, k) => f[k]! * 10 ** (-0.4 * extinctionMagnitudes(l, { ebv: 1 })))
+    const plain = fitSpectrumContinuum({ wavelength: w, flux: f }, { space: 'log' }).rectified
+    const red = fitSpectrumContinuum({ wavelength: w, flux: reddened }, { space: 'log' }).rectified
+    // Median |difference| of the rectified fluxes over the classification region 3850–5000 Å.
+    const medianIn = (a: Float64Array, b: Float64Array) => {
+      const d = Array.from(w.keys()).filter((k) => w[k]! >= 3850 && w[k]! <= 5000).map((k) => Math.abs(a[k]! - b[k]!)).sort((x, y) => x - y)
+      return d[d.length >> 1]!
+    }
+    const inLog = medianIn(plain, red)
+    expect(inLog).toBeLessThan(0.025)
+    // In F itself the same fit moves by more than twice as much.
+    const inF = medianIn(fitSpectrumContinuum({ wavelength: w, flux: f }).rectified, fitSpectrumContinuum({ wavelength: w, flux: reddened }).rectified)
+    expect(inF).toBeGreaterThan(2 * inLog)
+  }, 30_000)
+})
