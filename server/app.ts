@@ -73,6 +73,9 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
     }),
   })
   if (config.NODE_ENV === 'test') store.stopExpiringSessions()
+  // The session row's expiry moves with the last-seen time (sessionLifetime writes it at most once a
+  // minute); touching the row on every other request would be a write per GET.
+  store.touch = (_sid: string, _session: unknown, callback?: (err?: unknown) => void) => callback?.()
 
   passport.use(
     new LocalStrategy({ usernameField: 'email', passwordField: 'password' }, (email, password, done) => {

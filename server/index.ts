@@ -10,6 +10,8 @@ import { createMailer } from './mail/mailer'
 import { JobRunner } from './jobs/runner'
 import { moveRawFilesToStore } from './services/spectra.service'
 import { ensureDefaultLibrary } from './services/standards.service'
+import { setFiguresRunner } from './services/audit.service'
+import { Piscina } from 'piscina'
 import { createFileStore } from './storage'
 
 /** Exit code for a setting the server cannot work with (sysexits EX_CONFIG): `npm start` does not retry it. */
@@ -54,6 +56,9 @@ if (config.MAIL_MODE === 'fake') {
   logger.info(`mail catcher listening on 127.0.0.1:${fakeSmtp.port}${wanted === 0 ? ' (a free port; set SMTP_PORT to choose one)' : ''}`)
 }
 const mailer = createMailer({ ...config, SMTP_PORT: fakeSmtp?.port ?? config.SMTP_PORT ?? 2525 })
+// Agreement figures grow with the stored calls: one thread of their own keeps requests answered meanwhile.
+const auditPool = new Piscina({ filename: new URL('./jobs/audit-worker.ts', import.meta.url).href, maxThreads: 1, minThreads: 0, idleTimeout: 60_000 })
+setFiguresRunner((calls, spectra) => auditPool.run({ calls, spectra }))
 const jobs = new JobRunner({ sequelize, logger, threads: config.WORKERS, pollSeconds: config.JOB_POLL_SECONDS, leaseSeconds: config.JOB_LEASE_SECONDS })
 await jobs.start()
 const app = createApp({ config, sequelize, mailer, logger, jobs, files }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
@@ -70,6 +75,7 @@ async function shutdown() {
   server.close()
   server.closeAllConnections()
   await jobs.stop()
+  await auditPool.destroy()
   await settleBackground()
   await fakeSmtp?.close()
   mailer.close()

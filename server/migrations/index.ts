@@ -6,6 +6,7 @@ import * as m0004 from './0004-standards-suggestions'
 import * as m0006 from './0006-review'
 import * as m0007 from './0007-releases'
 import * as m0012 from './0012-stored-files-and-leases'
+import * as m0020 from './0020-lists-at-scale'
 
 export interface Migration {
   name: string
@@ -22,4 +23,5 @@ export const migrations: Migration[] = [
   { name: '0006-review', ...m0006 },
   { name: '0007-releases', ...m0007 },
   { name: '0012-stored-files-and-leases', ...m0012 },
+  { name: '0020-lists-at-scale', ...m0020 },
 ]

@@ -31,6 +31,8 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
   declare wlMax: number
   declare dispersion: number
   declare snr: number | null
+  /** Flags of the current suggestion (0 without one); the review queue orders by it. */
+  declare flagCount: CreationOptional<number>
   declare vacuumConverted: boolean
   /** JSON: the reader's metadata (header keywords, units, notes, HDUs). */
   declare readInfo: string
@@ -71,6 +73,7 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
         wlMax: { type: DataTypes.DOUBLE, allowNull: false },
         dispersion: { type: DataTypes.DOUBLE, allowNull: false },
         snr: num(),
+        flagCount: { type: DataTypes.TINYINT.UNSIGNED, allowNull: false, defaultValue: 0 },
         vacuumConverted: { type: DataTypes.BOOLEAN, allowNull: false },
         readInfo: { type: DataTypes.TEXT('medium'), allowNull: false },
         createdAt: DataTypes.DATE(3),

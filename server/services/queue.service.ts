@@ -28,10 +28,11 @@ export interface QueueQuery {
 /** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
 const sqlTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ')
 
-const ORDER_SQL: Record<QueueOrder, string> = {
-  oldest: 'sp.created_at ASC, sp.id ASC',
-  snr: 'sp.snr IS NULL ASC, sp.snr DESC, sp.id ASC',
-  flagged: 'JSON_LENGTH(sg.flags) DESC, sp.created_at ASC, sp.id ASC',
+/** Each order is the column order of one spectra index (migration 0020); NULL S/N sorts last under DESC. */
+const ORDER_SQL: Record<QueueOrder, { index: string; sql: string }> = {
+  oldest: { index: 'spectra_queue_oldest', sql: 'sp.created_at ASC, sp.id ASC' },
+  snr: { index: 'spectra_queue_snr', sql: 'sp.snr DESC, sp.id ASC' },
+  flagged: { index: 'spectra_queue_flagged', sql: 'sp.flag_count DESC, sp.created_at ASC, sp.id ASC' },
 }
 
 /**
@@ -41,8 +42,9 @@ const ORDER_SQL: Record<QueueOrder, string> = {
 async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery, now: Date, keep?: number): Promise<number[]> {
   const campaigns = await campaignIdsOf(user)
   if (campaigns !== 'all' && campaigns.length === 0) return []
-  const where: string[] = ['sp.status IN (:open)', 'sp.submitted_by <> :uid']
-  const r: Record<string, unknown> = { open: OPEN_FOR_CALLS, uid: user.id, now: sqlTime(now), limit: q.limit }
+  // open_for_calls is stored as status IN OPEN_FOR_CALLS (migration 0020).
+  const where: string[] = ['sp.open_for_calls = 1', 'sp.submitted_by <> :uid']
+  const r: Record<string, unknown> = { uid: user.id, now: sqlTime(now), limit: q.limit }
   if (campaigns !== 'all') {
     where.push('sp.campaign_id IN (:campaigns)')
     r.campaigns = campaigns
@@ -71,7 +73,8 @@ async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: Queue
     where.push(`JSON_CONTAINS(sg.flags, JSON_QUOTE(:flag${i}))`)
     r[`flag${i}`] = flag
   })
-  if (q.typeFrom !== undefined || q.typeTo !== undefined) where.push('c.blind_review = 0')
+  const bySuggestion = (q.flags ?? []).length > 0 || q.typeFrom !== undefined || q.typeTo !== undefined
+  if (q.typeFrom !== undefined || q.typeTo !== undefined) where.push('sp.campaign_id IN (SELECT c.id FROM campaigns c WHERE c.blind_review = 0)')
   if (q.typeFrom !== undefined) {
     where.push('sg.type_code >= :typeFrom')
     r.typeFrom = q.typeFrom
@@ -80,13 +83,14 @@ async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: Queue
     where.push('sg.type_code <= :typeTo')
     r.typeTo = q.typeTo
   }
+  if (!bySuggestion) where.push('EXISTS (SELECT 1 FROM suggestions sg WHERE sg.spectrum_id = sp.id AND sg.is_current = 1)')
+  // One pass down the order's index, stopping at the limit; every test per row is a key lookup.
   const sql = `
     SELECT sp.id AS id
     FROM spectra sp
-    JOIN campaigns c ON c.id = sp.campaign_id
-    JOIN suggestions sg ON sg.id = (SELECT MAX(s2.id) FROM suggestions s2 WHERE s2.spectrum_id = sp.id AND s2.is_current = 1)
+    ${bySuggestion ? 'JOIN suggestions sg ON sg.spectrum_id = sp.id AND sg.is_current = 1' : ''}
     WHERE ${where.join('\n      AND ')}
-    ORDER BY ${ORDER_SQL[q.order]}
+    ORDER BY ${ORDER_SQL[q.order].sql}
     LIMIT :limit`
   const rows = await ctx.sequelize.query<{ id: number }>(sql, { replacements: r, type: QueryTypes.SELECT })
   return rows.map((row) => Number(row.id))

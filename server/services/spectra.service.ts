@@ -1,6 +1,6 @@
 import { open, readFile } from 'node:fs/promises'
 import type { Readable } from 'node:stream'
-import { ConnectionError, Op, UniqueConstraintError, type Order, type WhereOptions } from 'sequelize'
+import { ConnectionError, Op, QueryTypes, UniqueConstraintError, literal, type Order, type WhereOptions } from 'sequelize'
 import { DEFAULT_CLASSIFICATION_REGION } from '../../shared/grid'
 import { parseDeclination, parseRightAscension } from '../../shared/coords'
 import type { SpectrumStatus } from '../../shared/status'
@@ -310,15 +310,61 @@ export interface ListQuery {
   sort: string
 }
 
+/** Words InnoDB's full-text index leaves out by default (its stopword list), so a search never requires one. */
+const FULLTEXT_STOPWORDS = new Set(['about', 'are', 'com', 'for', 'from', 'how', 'that', 'the', 'this', 'was', 'what', 'when', 'where', 'who', 'will', 'with', 'und', 'www'])
+/** InnoDB indexes words of at least this many characters (innodb_ft_min_token_size). */
+const FULLTEXT_MIN_WORD = 3
+
+/**
+ * A search over object and file names. Words long enough for the full-text index narrow the rows
+ * through it (each word matched from its start); the whole text must still appear in a name, as it
+ * always has, which is then checked on the few rows left. Without such a word (say "HD"), names
+ * starting with the text are found through the object-name index.
+ */
+export function nameSearchWhere(q: string): WhereOptions<Spectrum> {
+  const like = (text: string) => text.replace(/[\\%_]/g, (c) => `\\${c}`)
+  const words = q
+    .split(/[^\p{L}\p{N}]+/u)
+    .filter((w) => w.length >= FULLTEXT_MIN_WORD && !FULLTEXT_STOPWORDS.has(w.toLowerCase()))
+  if (words.length === 0) return { objectName: { [Op.like]: `${like(q)}%` } }
+  const against = words.map((w) => `+${w}*`).join(' ')
+  const contains = `%${like(q)}%`
+  return {
+    [Op.and]: [
+      literal(`MATCH (\`Spectrum\`.\`object_name\`, \`Spectrum\`.\`file_name\`) AGAINST (${Spectrum.sequelize!.escape(against)} IN BOOLEAN MODE)`),
+      { [Op.or]: [{ objectName: { [Op.like]: contains } }, { fileName: { [Op.like]: contains } }] },
+    ],
+  } as WhereOptions<Spectrum>
+}
+
+/** Up to this many matching rows are counted exactly on every request; beyond, the count is cached a while. */
+const EXACT_COUNT_LIMIT = 2000
+const COUNT_CACHE_MS = 30_000
+const countCache = new Map<string, { total: number; at: number }>()
+
+/**
+ * The number of rows a list filter matches. Small results are counted exactly each time (a bounded
+ * scan of at most EXACT_COUNT_LIMIT index entries); a larger count is computed once and kept for
+ * COUNT_CACHE_MS, so paging through 100 000 spectra does not count them all on every page.
+ */
+async function countMatching(where: WhereOptions<Spectrum>, key: string, now = Date.now()): Promise<number> {
+  const bounded = await Spectrum.findAll({ where, attributes: ['id'], limit: EXACT_COUNT_LIMIT + 1, raw: true })
+  const n = bounded.length
+  if (n <= EXACT_COUNT_LIMIT) return n
+  const cached = countCache.get(key)
+  if (cached && now - cached.at < COUNT_CACHE_MS) return Math.max(cached.total, n)
+  const total = await Spectrum.count({ where })
+  if (countCache.size > 500) countCache.clear()
+  countCache.set(key, { total, at: now })
+  return total
+}
+
 export async function listSpectra(user: User, query: ListQuery): Promise<SpectrumList> {
   const and: WhereOptions<Spectrum>[] = [await visibilityWhere(user)]
   if (query.status) and.push({ status: query.status })
   if (query.campaign) and.push({ campaignId: query.campaign })
   if (query.mine === '1') and.push({ submittedBy: user.id })
-  if (query.q) {
-    const like = `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`
-    and.push({ [Op.or]: [{ objectName: { [Op.like]: like } }, { fileName: { [Op.like]: like } }] })
-  }
+  if (query.q) and.push(nameSearchWhere(query.q))
   if (query.from) and.push({ createdAt: { [Op.gte]: new Date(query.from) } })
   if (query.to) and.push({ createdAt: { [Op.lte]: new Date(query.to) } })
   if (query.snrMin !== undefined) and.push({ snr: { [Op.gte]: query.snrMin } })
@@ -326,19 +372,29 @@ export async function listSpectra(user: User, query: ListQuery): Promise<Spectru
   const desc = query.sort.startsWith('-')
   const field = query.sort.replace(/^-/, '')
   const order: Order = [[field, desc ? 'DESC' : 'ASC'], ['id', desc ? 'DESC' : 'ASC']]
-  const { rows, count } = await Spectrum.findAndCountAll({
-    where: { [Op.and]: and },
-    include: [
-      { model: Campaign, as: 'campaign', attributes: ['id', 'code', 'name'] },
-      { model: User, as: 'submitter', attributes: ['id', 'name'] },
-    ],
-    order,
-    limit: query.pageSize,
-    offset: (query.page - 1) * query.pageSize,
-  })
-  const decided = await finalClassificationsFor(rows.map((r) => r.id))
+  const where = { [Op.and]: and }
+  const { page: _page, pageSize: _size, sort: _sort, ...filters } = query
+  const countKey = JSON.stringify([user.id, filters])
+  const [rows, count] = await Promise.all([
+    Spectrum.findAll({
+      where,
+      attributes: { exclude: ['readInfo', 'notes'] },
+      order,
+      limit: query.pageSize,
+      offset: (query.page - 1) * query.pageSize,
+    }),
+    countMatching(where, countKey),
+  ])
+  // Names of the few campaigns and people on the page, by key rather than a join per row.
+  const [campaigns, people, decided] = await Promise.all([
+    Campaign.findAll({ where: { id: { [Op.in]: [0, ...new Set(rows.map((r) => r.campaignId))] } }, attributes: ['id', 'code', 'name'] }),
+    User.findAll({ where: { id: { [Op.in]: [0, ...new Set(rows.map((r) => r.submittedBy))] } }, attributes: ['id', 'name'] }),
+    finalClassificationsFor(rows.map((r) => r.id)),
+  ])
+  const campaignOf = new Map(campaigns.map((c) => [c.id, c]))
+  const personOf = new Map(people.map((u) => [u.id, u]))
   return {
-    items: rows.map((r) => toListItem(r as Spectrum & { campaign?: Campaign; submitter?: User }, decided.get(r.id) ?? null)),
+    items: rows.map((r) => toListItem(Object.assign(r, { campaign: campaignOf.get(r.campaignId), submitter: personOf.get(r.submittedBy) }), decided.get(r.id) ?? null)),
     total: count,
     page: query.page,
     pageSize: query.pageSize,
