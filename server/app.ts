@@ -113,6 +113,8 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
       limit: config.API_RATE_PER_MINUTE,
       standardHeaders: 'draft-7',
       legacyHeaders: false,
+      // Uploads are limited by bytes and files per person instead (uploadBudget), so a pipeline may batch as it likes.
+      skip: (req) => req.method === 'POST' && req.path === '/spectra',
       handler: () => {
         throw new HttpError(429, 'rate_limited', 'Too many requests; slow down and try again in a minute.')
       },

@@ -8,6 +8,7 @@ import { settleBackground } from './lib/background'
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp'
 import { createMailer } from './mail/mailer'
 import { JobRunner } from './jobs/runner'
+import { RedisPublisher } from './jobs/redis'
 import { moveRawFilesToStore } from './services/spectra.service'
 import { ensureDefaultLibrary } from './services/standards.service'
 import { setFiguresRunner } from './services/audit.service'
@@ -59,8 +60,13 @@ const mailer = createMailer({ ...config, SMTP_PORT: fakeSmtp?.port ?? config.SMT
 // Agreement figures grow with the stored calls: one thread of their own keeps requests answered meanwhile.
 const auditPool = new Piscina({ filename: new URL('./jobs/audit-worker.ts', import.meta.url).href, maxThreads: 1, minThreads: 0, idleTimeout: 60_000 })
 setFiguresRunner((calls, spectra) => auditPool.run({ calls, spectra }))
-const jobs = new JobRunner({ sequelize, logger, threads: config.WORKERS, pollSeconds: config.JOB_POLL_SECONDS, leaseSeconds: config.JOB_LEASE_SECONDS })
-await jobs.start()
+// QUEUE=redis: this process only publishes; `npm run worker` processes run the pipeline.
+const jobs =
+  config.QUEUE === 'redis'
+    ? new RedisPublisher(config.REDIS_URL, logger)
+    : new JobRunner({ sequelize, logger, threads: config.WORKERS, pollSeconds: config.JOB_POLL_SECONDS, leaseSeconds: config.JOB_LEASE_SECONDS })
+if (jobs instanceof JobRunner) await jobs.start()
+logger.info(config.QUEUE === 'redis' ? `processing jobs go to Redis at ${new URL(config.REDIS_URL).host}; run \`npm run worker\` to process them` : 'processing jobs run in this server')
 const app = createApp({ config, sequelize, mailer, logger, jobs, files }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
 const server = createServer(app)
 server.once('error', (error: NodeJS.ErrnoException) => {
@@ -74,7 +80,8 @@ server.listen(config.PORT, config.HOST, () => {
 async function shutdown() {
   server.close()
   server.closeAllConnections()
-  await jobs.stop()
+  if (jobs instanceof JobRunner) await jobs.stop()
+  else await jobs.close()
   await auditPool.destroy()
   await settleBackground()
   await fakeSmtp?.close()

@@ -1,15 +1,11 @@
-import { availableParallelism } from 'node:os'
-import { Piscina } from 'piscina'
 import { Op } from 'sequelize'
-import { isDatabaseUnavailable } from '../lib/db-errors'
 import type { Logger } from 'pino'
 import type { Sequelize } from 'sequelize'
+import { isDatabaseUnavailable } from '../lib/db-errors'
 import { ProcessingJob } from '../models'
-import type { PipelineOutput } from '../spectra/pipeline'
 import type { ProcessingQueue } from '../context'
-import { librarySpecFor } from '../services/standards.service'
-import { activeLibraryVersionId, claimJobs, loadInput, recordFailure, releaseJobs, renewLeases, returnLapsed, storeOutput, type ClaimedJob } from './process'
-import runTask, { type LibrarySpec } from './worker'
+import { JobExecutor } from './executor'
+import { claimJobs } from './process'
 
 export interface RunnerOptions {
   sequelize: Sequelize
@@ -35,35 +31,24 @@ export interface RunnerOptions {
  * notices first. Nothing is reset at start-up: with several runners, only the lease can tell.
  */
 export class JobRunner implements ProcessingQueue {
-  private pool: Piscina | null = null
+  private readonly executor: JobExecutor
   private inflight = 0
-  private readonly threads: number
   private readonly capacity: number
   private stopped = false
   private pumping = false
   private again = false
   private idleWaiters: (() => void)[] = []
-  /** Library specs by version id: versions are immutable once published. */
-  private specs = new Map<number, Promise<LibrarySpec>>()
-  private running = new Set<number>()
-  /** Jobs this runner gave up on when the database went away; they go back to the queue when it returns. */
-  private abandoned = new Set<number>()
   private timer: NodeJS.Timeout | null = null
   private readonly pollMs: number
-  private readonly leaseMs: number
 
   constructor(private readonly options: RunnerOptions) {
-    this.threads = options.inline ? 1 : options.threads > 0 ? options.threads : Math.max(1, availableParallelism() - 1)
-    this.capacity = options.inline ? 1 : this.threads * 2
+    this.executor = new JobExecutor(options)
+    this.capacity = options.inline ? 1 : this.executor.threads * 2
     this.pollMs = (options.pollSeconds ?? 5) * 1000
-    this.leaseMs = (options.leaseSeconds ?? 120) * 1000
   }
 
   /** Starts taking jobs; jobs whose runner died come back through their lapsed leases. */
   async start(): Promise<void> {
-    if (!this.options.inline) {
-      this.pool = new Piscina({ filename: new URL('./worker.ts', import.meta.url).href, maxThreads: this.threads, minThreads: 1, idleTimeout: 60_000 })
-    }
     this.timer = setInterval(() => void this.tick(), this.pollMs)
     this.timer.unref()
     await this.tick()
@@ -73,14 +58,7 @@ export class JobRunner implements ProcessingQueue {
   async tick(): Promise<void> {
     if (this.stopped) return
     try {
-      await renewLeases([...this.running], this.leaseMs)
-      if (this.abandoned.size > 0) {
-        const ids = [...this.abandoned]
-        await releaseJobs(ids)
-        for (const id of ids) this.abandoned.delete(id)
-      }
-      const lapsed = await returnLapsed([...this.running])
-      if (lapsed > 0) this.options.logger.warn({ jobs: lapsed }, 'jobs whose lease lapsed went back to the queue')
+      await this.executor.keepLeases()
     } catch (error) {
       this.options.logger.warn({ err: (error as Error).message }, 'job queue tick failed; trying again on the next one')
       return
@@ -111,11 +89,11 @@ export class JobRunner implements ProcessingQueue {
       do {
         this.again = false
         while (!this.stopped && this.inflight < this.capacity) {
-          const jobs = await claimJobs(this.options.sequelize, this.capacity - this.inflight, this.leaseMs)
+          const jobs = await claimJobs(this.options.sequelize, this.capacity - this.inflight, this.executor.leaseMs)
           if (jobs.length === 0) break
           for (const job of jobs) {
             this.inflight++
-            void this.run(job).finally(() => {
+            void this.executor.run(job).finally(() => {
               this.inflight--
               if (this.inflight === 0) this.notifyIdle()
               this.poke()
@@ -127,46 +105,6 @@ export class JobRunner implements ProcessingQueue {
       this.pumping = false
     }
     if (this.inflight === 0) this.notifyIdle()
-  }
-
-  private async run(job: ClaimedJob): Promise<void> {
-    const { logger } = this.options
-    this.running.add(job.id)
-    try {
-      const input = await loadInput(job.spectrumId)
-      const versionId = await activeLibraryVersionId()
-      if (versionId !== undefined) input.library = await this.specFor(versionId)
-      const output = this.pool ? ((await this.pool.run(input)) as PipelineOutput) : runTask(input)
-      await storeOutput(this.options.sequelize, job, output, versionId)
-      logger.debug({ spectrumId: job.spectrumId, seconds: output.seconds }, 'spectrum measured')
-    } catch (error) {
-      const message = error instanceof Error ? error.message : String(error)
-      if (this.stopped || isDatabaseUnavailable(error)) {
-        // Not the spectrum's fault: the job keeps its row and goes back to the queue.
-        logger.warn({ spectrumId: job.spectrumId, err: message }, 'spectrum processing stopped before it finished; it goes back to the queue')
-        this.abandoned.add(job.id)
-        return
-      }
-      logger.warn({ spectrumId: job.spectrumId, err: message }, 'spectrum processing failed')
-      try {
-        await recordFailure(job, message)
-      } catch (e) {
-        // The lease returns the job to the queue if this could not be written.
-        logger.warn({ spectrumId: job.spectrumId, err: (e as Error).message }, 'could not record the failure')
-      }
-    } finally {
-      this.running.delete(job.id)
-    }
-  }
-
-  private specFor(versionId: number): Promise<LibrarySpec> {
-    let spec = this.specs.get(versionId)
-    if (!spec) {
-      spec = librarySpecFor(versionId)
-      spec.catch(() => this.specs.delete(versionId))
-      this.specs.set(versionId, spec)
-    }
-    return spec
   }
 
   /** Resolves when nothing is queued or running (tests and shutdown). */
@@ -190,13 +128,6 @@ export class JobRunner implements ProcessingQueue {
   async stop(): Promise<void> {
     this.stopped = true
     if (this.timer) clearInterval(this.timer)
-    const held = [...this.running]
-    await this.pool?.destroy()
-    this.pool = null
-    try {
-      await releaseJobs([...new Set([...held, ...this.abandoned])])
-    } catch {
-      // Without the database the leases lapse and return them instead.
-    }
+    await this.executor.stop()
   }
 }
