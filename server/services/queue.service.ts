@@ -100,7 +100,8 @@ async function queueItems(user: User, ids: number[], now: Date): Promise<QueueIt
   if (ids.length === 0) return []
   const [spectra, suggestions, calls, claims] = await Promise.all([
     Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status'] }),
-    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, order: [['id', 'ASC']] }),
+    // The probability grid is the bulk of a suggestion row and the queue never shows it.
+    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: { exclude: ['probabilities'] }, order: [['id', 'ASC']] }),
     ReviewCall.findAll({ where: { spectrumId: { [Op.in]: ids } }, attributes: ['spectrumId', 'userId'] }),
     ReviewClaim.findAll({ where: { spectrumId: { [Op.in]: ids }, userId: user.id, expiresAt: { [Op.gt]: now } } }),
   ])

@@ -1,6 +1,6 @@
 import { open, readFile } from 'node:fs/promises'
 import type { Readable } from 'node:stream'
-import { ConnectionError, Op, QueryTypes, UniqueConstraintError, literal, type Order, type WhereOptions } from 'sequelize'
+import { ConnectionError, Op, QueryTypes, UniqueConstraintError, Utils, literal, type Order, type WhereOptions } from 'sequelize'
 import { DEFAULT_CLASSIFICATION_REGION } from '../../shared/grid'
 import { parseDeclination, parseRightAscension } from '../../shared/coords'
 import type { SpectrumStatus } from '../../shared/status'
@@ -348,8 +348,13 @@ const countCache = new Map<string, { total: number; at: number }>()
  * COUNT_CACHE_MS, so paging through 100 000 spectra does not count them all on every page.
  */
 async function countMatching(where: WhereOptions<Spectrum>, key: string, now = Date.now()): Promise<number> {
-  const bounded = await Spectrum.findAll({ where, attributes: ['id'], limit: EXACT_COUNT_LIMIT + 1, raw: true })
-  const n = bounded.length
+  const sequelize = Spectrum.sequelize!
+  // The query Sequelize would run for these ids, counted in the database rather than sent over.
+  const options = Utils.mapOptionFieldNames({ where, attributes: ['id'], limit: EXACT_COUNT_LIMIT + 1 } as never, Spectrum as never) as object
+  const generator = sequelize.getQueryInterface().queryGenerator as unknown as { selectQuery(table: string, options: object, model: unknown): string }
+  const inner = generator.selectQuery('spectra', options, Spectrum).replace(/;\s*$/, '')
+  const [bounded] = await sequelize.query<{ n: number }>(`SELECT COUNT(*) AS n FROM (${inner}) AS bounded`, { type: QueryTypes.SELECT })
+  const n = Number(bounded?.n ?? 0)
   if (n <= EXACT_COUNT_LIMIT) return n
   const cached = countCache.get(key)
   if (cached && now - cached.at < COUNT_CACHE_MS) return Math.max(cached.total, n)
