@@ -11,7 +11,7 @@ import { JobRunner } from './jobs/runner'
 import { RedisPublisher } from './jobs/redis'
 import { moveRawFilesToStore } from './services/spectra.service'
 import { ensureDefaultLibrary } from './services/standards.service'
-import { setFiguresRunner } from './services/audit.service'
+import { setAuditRunner } from './services/audit.service'
 import { Piscina } from 'piscina'
 import { createFileStore } from './storage'
 
@@ -57,9 +57,9 @@ if (config.MAIL_MODE === 'fake') {
   logger.info(`mail catcher listening on 127.0.0.1:${fakeSmtp.port}${wanted === 0 ? ' (a free port; set SMTP_PORT to choose one)' : ''}`)
 }
 const mailer = createMailer({ ...config, SMTP_PORT: fakeSmtp?.port ?? config.SMTP_PORT ?? 2525 })
-// Agreement figures grow with the stored calls: one thread of their own keeps requests answered meanwhile.
-const auditPool = new Piscina({ filename: new URL('./jobs/audit-worker.ts', import.meta.url).href, maxThreads: 1, minThreads: 0, idleTimeout: 60_000 })
-setFiguresRunner((calls, spectra) => auditPool.run({ calls, spectra }))
+// The audit grows with the stored calls: a thread of its own keeps requests answered meanwhile.
+const auditPool = new Piscina({ filename: new URL('./jobs/audit-worker.ts', import.meta.url).href, maxThreads: 1, minThreads: 0, idleTimeout: 120_000 })
+setAuditRunner((query, campaign) => auditPool.run({ campaign, campaignId: query.campaignId, from: query.from?.toISOString() ?? null, to: query.to?.toISOString() ?? null }))
 // QUEUE=redis: this process only publishes; `npm run worker` processes run the pipeline.
 const jobs =
   config.QUEUE === 'redis'

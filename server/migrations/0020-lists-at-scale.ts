@@ -11,6 +11,8 @@ const SPECTRA_INDEXES: Array<{ name: string; fields: Array<string | { name: stri
   { name: 'spectra_snr', fields: ['snr', 'id'] },
   { name: 'spectra_obs_date', fields: ['obs_date', 'id'] },
   { name: 'spectra_status', fields: ['status', 'id'] },
+  // Names starting with a searched text (object names already have an index of their own).
+  { name: 'spectra_file_name', fields: ['file_name'] },
   { name: 'spectra_submitter_snr', fields: ['submitted_by', 'snr', 'id'] },
   { name: 'spectra_submitter_object', fields: ['submitted_by', 'object_name', 'id'] },
   { name: 'spectra_submitter_obs_date', fields: ['submitted_by', 'obs_date', 'id'] },

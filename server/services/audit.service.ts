@@ -409,11 +409,33 @@ export async function loadAuditInputs(query: AuditQuery): Promise<{ calls: Audit
   return { calls: auditCalls, spectra }
 }
 
-/** Computes the figures somewhere other than the calling thread; unset, they are computed in place. */
-export type FiguresRunner = (calls: AuditCall[], spectra: AuditSpectrum[]) => Promise<AuditFigures>
-let figuresRunner: FiguresRunner | null = null
-export function setFiguresRunner(runner: FiguresRunner | null): void {
-  figuresRunner = runner
+/** A campaign as the report names it. */
+export interface AuditCampaignRef {
+  id: number
+  code: string
+  name: string
+}
+
+/** The audit report as the API sends it (`{ "audit": … }`), as JSON text. */
+export async function auditReportJson(query: AuditQuery, campaign: AuditCampaignRef): Promise<string> {
+  const { calls, spectra } = await loadAuditInputs(query)
+  const report: AuditReport = {
+    campaign: { id: campaign.id, code: campaign.code, name: campaign.name },
+    from: query.from?.toISOString() ?? null,
+    to: query.to?.toISOString() ?? null,
+    ...auditFigures(calls, spectra),
+  }
+  return JSON.stringify({ audit: report })
+}
+
+/**
+ * Builds the report somewhere other than the calling thread: reading tens of thousands of calls,
+ * computing the figures and writing the JSON all grow with the stored data. Unset, it is built in place.
+ */
+export type AuditRunner = (query: AuditQuery, campaign: AuditCampaignRef) => Promise<string>
+let auditRunner: AuditRunner | null = null
+export function setAuditRunner(runner: AuditRunner | null): void {
+  auditRunner = runner
 }
 
 /**
@@ -432,38 +454,33 @@ async function dataStamp(): Promise<string> {
 }
 
 const AUDIT_CACHE_SIZE = 32
-const auditCache = new Map<string, { stamp: string; report: Promise<AuditReport> }>()
+const auditCache = new Map<string, { stamp: string; json: Promise<string> }>()
 
 /**
- * The audit of one campaign over a date range. Figures are kept per campaign, range and data stamp:
- * asking again without a new call, decision, suggestion or library version answers from memory, and
- * leads asking at the same moment share one computation. The figures themselves are computed off the
- * request thread when a runner is set (the server sets a worker thread).
+ * The audit of one campaign over a date range, as the JSON the API sends. Reports are kept per
+ * campaign, range and data stamp: asking again without a new call, decision, suggestion or library
+ * version answers from memory, and leads asking at the same moment share one computation. The
+ * report is built off the request thread when a runner is set (the server sets a worker thread).
  */
-export async function getAudit(query: AuditQuery): Promise<AuditReport> {
+export async function getAuditJson(query: AuditQuery): Promise<string> {
   const campaign = await Campaign.findByPk(query.campaignId, { attributes: ['id', 'code', 'name'] })
   if (!campaign) throw notFound('The campaign')
-  const key = JSON.stringify([campaign.id, campaign.code, campaign.name, query.from?.toISOString() ?? null, query.to?.toISOString() ?? null])
+  const ref = { id: campaign.id, code: campaign.code, name: campaign.name }
+  const key = JSON.stringify([ref, query.from?.toISOString() ?? null, query.to?.toISOString() ?? null])
   const stamp = await dataStamp()
   const cached = auditCache.get(key)
-  if (cached && cached.stamp === stamp) return cached.report
-  const report = computeAudit(query, campaign)
+  if (cached && cached.stamp === stamp) return cached.json
+  const json = auditRunner ? auditRunner(query, ref) : auditReportJson(query, ref)
   auditCache.delete(key)
-  auditCache.set(key, { stamp, report })
+  auditCache.set(key, { stamp, json })
   if (auditCache.size > AUDIT_CACHE_SIZE) auditCache.delete(auditCache.keys().next().value!)
-  report.catch(() => {
-    if (auditCache.get(key)?.report === report) auditCache.delete(key)
+  json.catch(() => {
+    if (auditCache.get(key)?.json === json) auditCache.delete(key)
   })
-  return report
+  return json
 }
 
-async function computeAudit(query: AuditQuery, campaign: Campaign): Promise<AuditReport> {
-  const { calls, spectra } = await loadAuditInputs(query)
-  const figures = figuresRunner ? await figuresRunner(calls, spectra) : auditFigures(calls, spectra)
-  return {
-    campaign: { id: campaign.id, code: campaign.code, name: campaign.name },
-    from: query.from?.toISOString() ?? null,
-    to: query.to?.toISOString() ?? null,
-    ...figures,
-  }
+/** The audit of one campaign over a date range, from the stored calls, suggestions and decisions. */
+export async function getAudit(query: AuditQuery): Promise<AuditReport> {
+  return (JSON.parse(await getAuditJson(query)) as { audit: AuditReport }).audit
 }

@@ -4,6 +4,7 @@ import { HttpError } from '../lib/http-error'
 import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
 import { OPEN_FOR_CALLS, namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView } from './review.service'
+import type { QueueSuggestion } from '../../shared/api/queue'
 import { findVisibleSpectrum } from './spectra.service'
 import type { QueueItem, QueueOrder, QueuePage } from '../../shared/api/queue'
 
@@ -96,12 +97,17 @@ async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: Queue
   return rows.map((row) => Number(row.id))
 }
 
+function toQueueSuggestion(s: Suggestion): QueueSuggestion {
+  const { candidates: _c, votes: _v, ...rest } = toSuggestionView(s)
+  return rest
+}
+
 async function queueItems(user: User, ids: number[], now: Date): Promise<QueueItem[]> {
   if (ids.length === 0) return []
   const [spectra, suggestions, calls, claims] = await Promise.all([
     Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status'] }),
-    // The probability grid is the bulk of a suggestion row and the queue never shows it.
-    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: { exclude: ['probabilities'] }, order: [['id', 'ASC']] }),
+    // The standards, criteria and probability grid are the bulk of a suggestion row; a queue row shows the call.
+    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: { exclude: ['probabilities', 'candidates', 'votes'] }, order: [['id', 'ASC']] }),
     ReviewCall.findAll({ where: { spectrumId: { [Op.in]: ids } }, attributes: ['spectrumId', 'userId'] }),
     ReviewClaim.findAll({ where: { spectrumId: { [Op.in]: ids }, userId: user.id, expiresAt: { [Op.gt]: now } } }),
   ])
@@ -132,7 +138,7 @@ async function queueItems(user: User, ids: number[], now: Date): Promise<QueueIt
         status: s.status as QueueItem['status'],
         claim: claim ? { state: 'mine' as const, claimedAt: claim.claimedAt.toISOString(), expiresAt: claim.expiresAt.toISOString() } : { state: 'free' as const },
         calls: { count: callers.get(id)?.size ?? 0, needed: campaign.callsRequired },
-        suggestion: suggestion && !hidden ? toSuggestionView(suggestion) : null,
+        suggestion: suggestion && !hidden ? toQueueSuggestion(suggestion) : null,
         hidden: hidden && suggestion !== null,
       },
     ]

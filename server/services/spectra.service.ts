@@ -312,29 +312,43 @@ export interface ListQuery {
 
 /** Words InnoDB's full-text index leaves out by default (its stopword list), so a search never requires one. */
 const FULLTEXT_STOPWORDS = new Set(['about', 'are', 'com', 'for', 'from', 'how', 'that', 'the', 'this', 'was', 'what', 'when', 'where', 'who', 'will', 'with', 'und', 'www'])
+/** File-name endings say nothing about which spectrum is meant, and nearly every name has one. */
+const FILE_ENDINGS = new Set(['fits', 'fit', 'fts', 'txt', 'csv', 'dat', 'zip', 'ascii', 'tsv'])
 /** InnoDB indexes words of at least this many characters (innodb_ft_min_token_size). */
 const FULLTEXT_MIN_WORD = 3
 
+/** Up to this many candidates are taken from the indexes before the text itself is checked. */
+const SEARCH_CANDIDATES = 5000
+
 /**
- * A search over object and file names. Words long enough for the full-text index narrow the rows
- * through it (each word matched from its start); the whole text must still appear in a name, as it
- * always has, which is then checked on the few rows left. Without such a word (say "HD"), names
- * starting with the text are found through the object-name index.
+ * A search over object and file names: names that contain the text and either start with it or
+ * hold its most specific word. Candidates come from indexes — names starting with the text (B-tree)
+ * and, through the full-text index, names holding the text's longest word of three or more letters
+ * (matched from its start; file endings such as "fits" do not count) — and the whole text is then
+ * checked as a substring on those few rows. Catalogue prefixes that every name shares ("HD", "KRF")
+ * are thus never scanned. When a word is so common that the candidates overflow, the full-text
+ * condition is applied in the list query itself (slower, still exact).
  */
-export function nameSearchWhere(q: string): WhereOptions<Spectrum> {
+export async function nameSearchWhere(q: string): Promise<WhereOptions<Spectrum>> {
+  const sequelize = Spectrum.sequelize!
   const like = (text: string) => text.replace(/[\\%_]/g, (c) => `\\${c}`)
-  const words = q
+  const contains = { [Op.or]: [{ objectName: { [Op.like]: `%${like(q)}%` } }, { fileName: { [Op.like]: `%${like(q)}%` } }] }
+  const word = q
     .split(/[^\p{L}\p{N}]+/u)
-    .filter((w) => w.length >= FULLTEXT_MIN_WORD && !FULLTEXT_STOPWORDS.has(w.toLowerCase()))
-  if (words.length === 0) return { objectName: { [Op.like]: `${like(q)}%` } }
-  const against = words.map((w) => `+${w}*`).join(' ')
-  const contains = `%${like(q)}%`
-  return {
-    [Op.and]: [
-      literal(`MATCH (\`Spectrum\`.\`object_name\`, \`Spectrum\`.\`file_name\`) AGAINST (${Spectrum.sequelize!.escape(against)} IN BOOLEAN MODE)`),
-      { [Op.or]: [{ objectName: { [Op.like]: contains } }, { fileName: { [Op.like]: contains } }] },
-    ],
-  } as WhereOptions<Spectrum>
+    .filter((w) => w.length >= FULLTEXT_MIN_WORD && !FULLTEXT_STOPWORDS.has(w.toLowerCase()) && !FILE_ENDINGS.has(w.toLowerCase()))
+    .sort((x, y) => y.length - x.length)[0]
+  const match = word ? `MATCH (object_name, file_name) AGAINST (${sequelize.escape(`+${word}*`)} IN BOOLEAN MODE)` : null
+  const prefix = sequelize.escape(`${like(q)}%`)
+  const rows = await sequelize.query<{ id: number }>(
+    `(SELECT id FROM spectra WHERE object_name LIKE ${prefix} LIMIT ${SEARCH_CANDIDATES + 1})
+     UNION (SELECT id FROM spectra WHERE file_name LIKE ${prefix} LIMIT ${SEARCH_CANDIDATES + 1})
+     ${match ? `UNION (SELECT id FROM spectra WHERE ${match} LIMIT ${SEARCH_CANDIDATES + 1})` : ''}`,
+    { type: QueryTypes.SELECT },
+  )
+  if (rows.length > SEARCH_CANDIDATES && match) {
+    return { [Op.and]: [{ [Op.or]: [literal(match.replace('(object_name, file_name)', '(`Spectrum`.`object_name`, `Spectrum`.`file_name`)')), { objectName: { [Op.like]: `${like(q)}%` } }, { fileName: { [Op.like]: `${like(q)}%` } }] }, contains] } as WhereOptions<Spectrum>
+  }
+  return { [Op.and]: [{ id: { [Op.in]: [0, ...rows.map((r) => Number(r.id))] } }, contains] }
 }
 
 /** Up to this many matching rows are counted exactly on every request; beyond, the count is cached a while. */
@@ -369,7 +383,7 @@ export async function listSpectra(user: User, query: ListQuery): Promise<Spectru
   if (query.status) and.push({ status: query.status })
   if (query.campaign) and.push({ campaignId: query.campaign })
   if (query.mine === '1') and.push({ submittedBy: user.id })
-  if (query.q) and.push(nameSearchWhere(query.q))
+  if (query.q) and.push(await nameSearchWhere(query.q))
   if (query.from) and.push({ createdAt: { [Op.gte]: new Date(query.from) } })
   if (query.to) and.push({ createdAt: { [Op.lte]: new Date(query.to) } })
   if (query.snrMin !== undefined) and.push({ snr: { [Op.gte]: query.snrMin } })
