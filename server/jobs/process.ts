@@ -6,6 +6,7 @@ import { bufferToFloat32, bufferToFloat64, float32ToBuffer } from '../lib/binary
 import { isDatabaseUnavailable } from '../lib/db-errors'
 import { Campaign, LibraryVersion, LineMeasurementRow, Measurement, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
 import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
+import { indexSuggestionFlags } from '../services/queue.service'
 import { storeSuggestion } from '../services/suggestions.service'
 import type { WorkerTask } from './worker'
 
@@ -182,13 +183,8 @@ export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output:
       await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date(), leaseExpiresAt: null }, { where: { id: job.id }, transaction })
       if (suggestion && libraryVersionId !== undefined) {
         await storeSuggestion({ spectrumId: job.spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion }, transaction)
-        // One statement; status_reason is set first because MariaDB applies assignments left to right.
-        await sequelize.query(
-          `UPDATE spectra SET flag_count = :flags, updated_at = NOW(3),
-             status_reason = IF(status IN (:from), NULL, status_reason), status = IF(status IN (:from), 'suggested', status)
-           WHERE id = :id`,
-          { replacements: { flags: Math.min(255, suggestion.flags.length), from: PRE_REVIEW_SUGGESTED, id: job.spectrumId }, transaction },
-        )
+        await indexSuggestionFlags(sequelize, job.spectrumId, suggestion.flags, transaction)
+        await Spectrum.update({ status: 'suggested', statusReason: null }, { where: { id: job.spectrumId, status: { [Op.in]: PRE_REVIEW_SUGGESTED } }, transaction })
         return
       }
       await Spectrum.update({ status: 'measured', statusReason: null }, { where: { id: job.spectrumId, status: { [Op.in]: PRE_REVIEW } }, transaction })

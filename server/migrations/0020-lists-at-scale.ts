@@ -27,7 +27,8 @@ const SPECTRA_INDEXES: Array<{ name: string; fields: Array<string | { name: stri
  * Lists and the review queue at 100 000 spectra: an index for every order and filter the screens
  * offer, full-text search over object and file names, the current suggestion's flag count stored
  * on the spectrum (ordering by flags cannot use an index over JSON), and a stored column that says
- * whether a spectrum takes calls, so the queue reads one index in its order and stops at its limit.
+ * whether a spectrum takes calls, so the queue reads one index in its order and stops at its limit;
+ * and the flags themselves one row each, so a flag filter starts from the flag.
  */
 export async function up({ context: q }: { context: QueryInterface }): Promise<void> {
   await q.addColumn('spectra', 'flag_count', { type: DataTypes.TINYINT.UNSIGNED, allowNull: false, defaultValue: 0 })
@@ -40,12 +41,25 @@ export async function up({ context: q }: { context: QueryInterface }): Promise<v
   )
   for (const index of SPECTRA_INDEXES) await q.addIndex('spectra', index.fields as never, { name: index.name })
   await q.sequelize.query('ALTER TABLE spectra ADD FULLTEXT INDEX spectra_names_fulltext (object_name, file_name)')
+  // The current suggestion's flags, one row each, so the queue's flag filter starts from the flag.
+  await q.createTable('spectrum_flags', {
+    spectrum_id: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, primaryKey: true, references: { model: 'spectra', key: 'id' }, onDelete: 'CASCADE' },
+    flag: { type: DataTypes.STRING(40), allowNull: false, primaryKey: true },
+  })
+  await q.addIndex('spectrum_flags', ['flag', 'spectrum_id'], { name: 'spectrum_flags_flag' })
+  await q.sequelize.query(
+    `INSERT IGNORE INTO spectrum_flags (spectrum_id, flag)
+     SELECT sg.spectrum_id, jt.flag FROM suggestions sg,
+       JSON_TABLE(sg.flags, '$[*]' COLUMNS (flag VARCHAR(40) PATH '$')) AS jt
+     WHERE sg.is_current = 1 AND JSON_VALID(sg.flags) AND jt.flag IS NOT NULL`,
+  )
   await q.addIndex('review_calls', ['spectrum_id', 'id'], { name: 'review_calls_spectrum_id' })
   await q.addIndex('processing_jobs', ['status', 'lease_expires_at'], { name: 'processing_jobs_status_lease' })
 }
 
 export async function down({ context: q }: { context: QueryInterface }): Promise<void> {
   await q.removeIndex('processing_jobs', 'processing_jobs_status_lease')
+  await q.dropTable('spectrum_flags')
   await q.removeIndex('review_calls', 'review_calls_spectrum_id')
   await q.removeIndex('spectra', 'spectra_names_fulltext')
   for (const index of [...SPECTRA_INDEXES].reverse()) await q.removeIndex('spectra', index.name)

@@ -1,4 +1,4 @@
-import { Op, QueryTypes, UniqueConstraintError } from 'sequelize'
+import { Op, QueryTypes, UniqueConstraintError, type Sequelize, type Transaction } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
 import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../models'
@@ -24,6 +24,23 @@ export interface QueueQuery {
   snrMax?: number
   order: QueueOrder
   limit: number
+}
+
+/**
+ * Writes what the queue orders and filters by for a spectrum's new current suggestion: the flag
+ * count on the spectrum and one spectrum_flags row per flag. Called in the transaction that stores
+ * the suggestion.
+ */
+export async function indexSuggestionFlags(sequelize: Sequelize, spectrumId: number, flags: readonly string[], transaction?: Transaction): Promise<void> {
+  const unique = [...new Set(flags)]
+  await sequelize.query('UPDATE spectra SET flag_count = :n WHERE id = :id', { replacements: { n: Math.min(255, unique.length), id: spectrumId }, transaction })
+  await sequelize.query('DELETE FROM spectrum_flags WHERE spectrum_id = :id', { replacements: { id: spectrumId }, transaction })
+  if (unique.length > 0) {
+    await sequelize.query(`INSERT INTO spectrum_flags (spectrum_id, flag) VALUES ${unique.map(() => '(?, ?)').join(', ')}`, {
+      replacements: unique.flatMap((f) => [spectrumId, f.slice(0, 40)]),
+      transaction,
+    })
+  }
 }
 
 /** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
@@ -71,10 +88,10 @@ async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: Queue
     r.snrMax = q.snrMax
   }
   ;(q.flags ?? []).forEach((flag, i) => {
-    where.push(`JSON_CONTAINS(sg.flags, JSON_QUOTE(:flag${i}))`)
+    where.push(`sp.id IN (SELECT f.spectrum_id FROM spectrum_flags f WHERE f.flag = :flag${i})`)
     r[`flag${i}`] = flag
   })
-  const bySuggestion = (q.flags ?? []).length > 0 || q.typeFrom !== undefined || q.typeTo !== undefined
+  const bySuggestion = q.typeFrom !== undefined || q.typeTo !== undefined
   if (q.typeFrom !== undefined || q.typeTo !== undefined) where.push('sp.campaign_id IN (SELECT c.id FROM campaigns c WHERE c.blind_review = 0)')
   if (q.typeFrom !== undefined) {
     where.push('sg.type_code >= :typeFrom')
