@@ -352,7 +352,7 @@ export async function nameSearchWhere(q: string): Promise<WhereOptions<Spectrum>
 }
 
 /** Up to this many matching rows are counted exactly on every request; beyond, the count is cached a while. */
-const EXACT_COUNT_LIMIT = 2000
+const EXACT_COUNT_LIMIT = 1000
 const COUNT_CACHE_MS = 30_000
 const countCache = new Map<string, { total: number; at: number }>()
 
