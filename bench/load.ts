@@ -63,7 +63,7 @@ await ensureDefaultLibrary(sequelize)
 
 const children: ChildProcess[] = []
 function startProcess(script: string, env: NodeJS.ProcessEnv): ChildProcess {
-  const child = spawn('node_modules/.bin/tsx', [script], { env: { ...baseEnv, ...env }, detached: true, stdio: ['ignore', 'ignore', 'inherit'] })
+  const child = spawn('node_modules/.bin/tsx', [script], { env: { ...baseEnv, ...env }, detached: true, stdio: ['ignore', 'inherit', 'inherit'] })
   children.push(child)
   return child
 }
@@ -98,6 +98,13 @@ async function cleanup(): Promise<void> {
   rmSync(dir, { recursive: true, force: true })
 }
 process.on('SIGINT', () => void cleanup().then(() => process.exit(130)))
+// A failed step stops everything it started before the error is shown.
+const fail = (error: unknown) => {
+  console.error(error)
+  void cleanup().finally(() => process.exit(1))
+}
+process.on('uncaughtException', fail)
+process.on('unhandledRejection', fail)
 
 // ---------------------------------------------------------------------------------------------
 // People, sign-in

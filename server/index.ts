@@ -58,7 +58,8 @@ if (config.MAIL_MODE === 'fake') {
 }
 const mailer = createMailer({ ...config, SMTP_PORT: fakeSmtp?.port ?? config.SMTP_PORT ?? 2525 })
 // The audit grows with the stored calls: a thread of its own keeps requests answered meanwhile.
-const auditPool = new Piscina({ filename: new URL('./jobs/audit-worker.ts', import.meta.url).href, maxThreads: 1, minThreads: 0, idleTimeout: 120_000 })
+// Kept started, so the first audit does not wait for a thread to load the code and connect.
+const auditPool = new Piscina({ filename: new URL('./jobs/audit-worker.ts', import.meta.url).href, maxThreads: 1, minThreads: 1, idleTimeout: Number.POSITIVE_INFINITY })
 setAuditRunner((query, campaign) => auditPool.run({ campaign, campaignId: query.campaignId, from: query.from?.toISOString() ?? null, to: query.to?.toISOString() ?? null }))
 // QUEUE=redis: this process only publishes; `npm run worker` processes run the pipeline.
 const jobs =

@@ -64,8 +64,15 @@ export function isoWeek(date: Date): string {
  */
 export function typeScale(values: readonly number[]): number[] {
   if (values.length === 0) return []
-  const lo = Math.floor(Math.min(...values) * 2) / 2
-  const hi = Math.ceil(Math.max(...values) * 2) / 2
+  // A loop, not Math.min(...values): spreading 100 000 calls overflows the call stack.
+  let min = Infinity
+  let max = -Infinity
+  for (const v of values) {
+    if (v < min) min = v
+    if (v > max) max = v
+  }
+  const lo = Math.floor(min * 2) / 2
+  const hi = Math.ceil(max * 2) / 2
   const set = new Set<number>()
   for (let v = lo; v <= hi + 1e-9; v += 0.5) set.add(Math.round(v * 2) / 2)
   for (const v of values) set.add(v)

@@ -122,10 +122,11 @@ function toQueueSuggestion(s: Suggestion): QueueSuggestion {
 async function queueItems(user: User, ids: number[], now: Date): Promise<QueueItem[]> {
   if (ids.length === 0) return []
   const [spectra, suggestions, calls, claims] = await Promise.all([
-    Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status'] }),
+    // Plain rows (raw): a page holds a few hundred, and model instances cost more than the query.
+    Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status'], raw: true }),
     // The standards, criteria and probability grid are the bulk of a suggestion row; a queue row shows the call.
-    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: { exclude: ['probabilities', 'candidates', 'votes'] }, order: [['id', 'ASC']] }),
-    ReviewCall.findAll({ where: { spectrumId: { [Op.in]: ids } }, attributes: ['spectrumId', 'userId'] }),
+    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: { exclude: ['probabilities', 'candidates', 'votes'] }, order: [['id', 'ASC']], raw: true }),
+    ReviewCall.findAll({ where: { spectrumId: { [Op.in]: ids } }, attributes: ['spectrumId', 'userId'], raw: true }),
     ReviewClaim.findAll({ where: { spectrumId: { [Op.in]: ids }, userId: user.id, expiresAt: { [Op.gt]: now } } }),
   ])
   const campaigns = new Map((await Campaign.findAll({ where: { id: { [Op.in]: [...new Set(spectra.map((s) => s.campaignId))] } } })).map((c) => [c.id, c]))
