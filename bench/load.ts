@@ -23,7 +23,7 @@ import { Campaign, CampaignMember, User } from '../server/models'
 import { ensureDefaultLibrary } from '../server/services/standards.service'
 import { hashPassword } from '../server/services/users.service'
 
-const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000').split(',').map(Number)
+const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000').split(',').map(Number).filter((n) => n > 0)
 const INGEST_FILES = Number(process.env.BENCH_INGEST_FILES ?? 2000)
 const FILES_PER_REQUEST = 50
 const PASSWORD = 'bench-password-2026'
