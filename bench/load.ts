@@ -11,7 +11,7 @@
 // decisions that follow, as in the issue's measurement of today (100 000 spectra, 62 000 called).
 import { spawn, type ChildProcess } from 'node:child_process'
 import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs'
-import { availableParallelism, tmpdir } from 'node:os'
+import { availableParallelism, loadavg, tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { QueryTypes, type Sequelize } from 'sequelize'
 import { ensureDatabase, freePort, startMariaDB, startRedis } from '../scripts/lib/setup.mjs'
@@ -34,6 +34,7 @@ const say = (m: string) => console.log(`[bench:load] ${m}`)
 // Services
 // ---------------------------------------------------------------------------------------------
 
+const loadAtStart = loadavg()[0]!
 const dir = mkdtempSync(join(tmpdir(), 'lineweight-bench-'))
 const dbPort = Number(process.env.BENCH_DB_PORT ?? (await freePort()))
 const db = await startMariaDB({ dir: join(dir, 'mariadb'), port: dbPort })
@@ -63,7 +64,9 @@ await ensureDefaultLibrary(sequelize)
 
 const children: ChildProcess[] = []
 function startProcess(script: string, env: NodeJS.ProcessEnv): ChildProcess {
-  const child = spawn('node_modules/.bin/tsx', [script], { env: { ...baseEnv, ...env }, detached: true, stdio: ['ignore', 'inherit', 'inherit'] })
+  // BENCH_NODE_FLAGS, e.g. "--cpu-prof --cpu-prof-dir=/tmp/prof", goes to every server and worker process.
+  const flags = (process.env.BENCH_NODE_FLAGS ?? '').split(' ').filter(Boolean)
+  const child = spawn('node_modules/.bin/tsx', [...flags, script], { env: { ...baseEnv, ...env }, detached: true, stdio: ['ignore', 'inherit', 'inherit'] })
   children.push(child)
   return child
 }
@@ -413,6 +416,7 @@ const f = (v: number) => (v >= 100 ? v.toFixed(0) : v.toFixed(1))
 const lines: string[] = []
 lines.push(`# Load benchmark (${new Date().toISOString().slice(0, 10)})`, '')
 lines.push(`Machine: ${availableParallelism()} cores, Node ${process.version}. Made by \`npm run bench:load\` (bench/load.ts); every request over HTTP on loopback to the real server.`, '')
+lines.push(`Load average (1 min) when the run started: ${loadAtStart.toFixed(1)}; when it ended: ${loadavg()[0]!.toFixed(1)}. Anything above the benchmark's own share is other work on the machine, and slows every figure here.`, '')
 lines.push('## Ingest through the API', '', `${INGEST_FILES} real upload files (FITS and text), ${FILES_PER_REQUEST} per request, two requests at a time; from the first byte sent until every job is done.`, '')
 lines.push('| processing | files | seconds | spectra/s | failed jobs | refused files |', '| --- | ---: | ---: | ---: | ---: | ---: |')
 for (const r of ingests) lines.push(`| ${r.label} | ${r.files} | ${r.seconds.toFixed(1)} | ${r.perSecond.toFixed(1)} | ${r.failed} | ${r.refused} |`)
