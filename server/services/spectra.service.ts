@@ -1,4 +1,4 @@
-import { open, readFile, stat } from 'node:fs/promises'
+import { open, readFile } from 'node:fs/promises'
 import type { Readable } from 'node:stream'
 import { ConnectionError, Op, QueryTypes, UniqueConstraintError, Utils, literal, type Order, type WhereOptions } from 'sequelize'
 import { DEFAULT_CLASSIFICATION_REGION } from '../../shared/grid'
@@ -219,65 +219,37 @@ function skippedEntry(archive: string, name: string): FileResult | null {
   return { file, outcome: 'refused', code: 'ZIP_ENTRY_SKIPPED', message: `${file}: hidden files and system folders (names starting with a dot, __MACOSX) are skipped.` }
 }
 
-/** Files of one upload stored at once: their database round trips overlap, and so does the reading. */
-const STORE_PARALLEL = 4
-/** …while their bytes together stay under this (a large file is stored on its own), so memory stays bounded. */
-const STORE_PARALLEL_BYTES = 8 * 1024 * 1024
-
-/** Runs the tasks a few at a time and returns their results in the tasks' order. */
-async function inOrder(tasks: Array<{ size: number; run: () => Promise<FileResult> }>): Promise<FileResult[]> {
-  const results: FileResult[] = new Array(tasks.length)
-  const running = new Set<Promise<void>>()
-  let bytes = 0
-  for (const [i, task] of tasks.entries()) {
-    while (running.size >= STORE_PARALLEL || (running.size > 0 && bytes + task.size > STORE_PARALLEL_BYTES)) await Promise.race(running)
-    bytes += task.size
-    const p: Promise<void> = task.run().then((r) => {
-      results[i] = r
-      bytes -= task.size
-      running.delete(p)
-    })
-    running.add(p)
-  }
-  await Promise.all(running)
-  return results
-}
-
-const sizeOf = async (file: UploadedFile) => ('bytes' in file ? file.bytes.length : (await stat(file.path)).size)
-
 /** Reads and stores each uploaded file (zip archives file by file); one bad file never stops the others. */
 export async function submitFiles(ctx: AppContext, user: User, files: UploadedFile[], opts: SubmitOptions): Promise<FileResult[]> {
   const campaign = await campaignForSubmission(user, opts.campaignId)
-  const tasks: Array<{ size: number; run: () => Promise<FileResult> }> = []
-  const said = (r: FileResult) => tasks.push({ size: 0, run: () => Promise.resolve(r) })
-  const store = (file: UploadedFile, size: number) => tasks.push({ size, run: () => storeSafely(ctx, user, campaign, file, opts) })
+  const results: FileResult[] = []
   let budget = ctx.config.UPLOAD_MAX_FILES
   for (const file of files) {
     const head = 'bytes' in file ? file.bytes.subarray(0, 4) : await readHead(file.path)
     if (isZip(head)) {
       const unzipped = unpackZip(new Uint8Array(await bytesOf(file)), { maxEntries: budget, maxTotalBytes: ctx.config.UPLOAD_MAX_BYTES * 4, maxEntryBytes: ctx.config.UPLOAD_MAX_BYTES })
       if (!unzipped.ok) {
-        said({ file: file.name, outcome: 'refused', code: unzipped.code, message: unzipped.message })
+        results.push({ file: file.name, outcome: 'refused', code: unzipped.code, message: unzipped.message })
         continue
       }
       for (const entry of unzipped.entries) {
         budget--
-        store({ name: `${file.name}/${entry.name}`, bytes: Buffer.from(entry.bytes) }, entry.bytes.length)
+        results.push(await storeSafely(ctx, user, campaign, { name: `${file.name}/${entry.name}`, bytes: Buffer.from(entry.bytes) }, opts))
       }
       for (const name of unzipped.skipped) {
         const line = skippedEntry(file.name, name)
-        if (line) said(line)
+        if (line) results.push(line)
       }
       continue
     }
     budget--
     if (budget < 0) {
-      said({ file: file.name, outcome: 'refused', code: 'TOO_MANY_FILES', message: `${file.name}: a batch holds at most ${ctx.config.UPLOAD_MAX_FILES} files` })
+      results.push({ file: file.name, outcome: 'refused', code: 'TOO_MANY_FILES', message: `${file.name}: a batch holds at most ${ctx.config.UPLOAD_MAX_FILES} files` })
       continue
     }
-    store(file, await sizeOf(file))
+    results.push(await storeSafely(ctx, user, campaign, file, opts))
   }
-  return inOrder(tasks)
+  return results
 }
 
 async function readHead(path: string): Promise<Buffer> {
