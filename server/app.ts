@@ -73,6 +73,9 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
     }),
   })
   if (config.NODE_ENV === 'test') store.stopExpiringSessions()
+  // The session row's expiry moves with the last-seen time (sessionLifetime writes it at most once a
+  // minute); touching the row on every other request would be a write per GET.
+  store.touch = (_sid: string, _session: unknown, callback?: (err?: unknown) => void) => callback?.()
 
   passport.use(
     new LocalStrategy({ usernameField: 'email', passwordField: 'password' }, (email, password, done) => {
@@ -110,6 +113,8 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
       limit: config.API_RATE_PER_MINUTE,
       standardHeaders: 'draft-7',
       legacyHeaders: false,
+      // Uploads are limited by bytes and files per person instead (uploadBudget), so a pipeline may batch as it likes.
+      skip: (req) => req.method === 'POST' && req.path === '/spectra',
       handler: () => {
         throw new HttpError(429, 'rate_limited', 'Too many requests; slow down and try again in a minute.')
       },

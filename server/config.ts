@@ -45,8 +45,22 @@ const schema = z.object({
   UPLOAD_MIN_PIXELS: int(100, 2),
   UPLOADS_PER_USER: int(2, 1),
   UPLOADS_TOTAL: int(8, 1),
-  STORAGE_DRIVER: z.enum(['local']).default('local'),
+  UPLOAD_BYTES_PER_MINUTE: int(1024 * 1024 * 1024, 1024),
+  UPLOAD_FILES_PER_MINUTE: int(20_000, 1),
+  STORAGE_DRIVER: z.enum(['local', 's3']).default('local'),
   STORAGE_DIR: z.string().default(resolve('.data', 'files')),
+  /** S3-compatible object storage (STORAGE_DRIVER=s3); the endpoint is unset for AWS itself. */
+  S3_ENDPOINT: z.string().url().optional(),
+  S3_REGION: z.string().default('us-east-1'),
+  S3_BUCKET: z.string().min(3).default('lineweight'),
+  S3_PREFIX: z.string().regex(/^([a-z0-9][a-z0-9_.-]*\/)*$/, 'lower-case path ending in /, or empty').default(''),
+  S3_ACCESS_KEY_ID: z.string().optional(),
+  S3_SECRET_ACCESS_KEY: z.string().optional(),
+  /** Path-style URLs (endpoint/bucket/key), which local S3 servers need. */
+  S3_FORCE_PATH_STYLE: bool.default(true),
+  /** Processing queue: `database` (the processing_jobs table, worker threads in the server) or `redis` (BullMQ; `npm run worker` processes). */
+  QUEUE: z.enum(['database', 'redis']).default('database'),
+  REDIS_URL: z.string().url().default('redis://127.0.0.1:6379'),
   WORKERS: int(0, 0),
   JOB_POLL_SECONDS: z.coerce.number().positive().default(5),
   JOB_LEASE_SECONDS: z.coerce.number().positive().default(120),

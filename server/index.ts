@@ -8,8 +8,11 @@ import { settleBackground } from './lib/background'
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp'
 import { createMailer } from './mail/mailer'
 import { JobRunner } from './jobs/runner'
+import { RedisPublisher } from './jobs/redis'
 import { moveRawFilesToStore } from './services/spectra.service'
 import { ensureDefaultLibrary } from './services/standards.service'
+import { setAuditRunner } from './services/audit.service'
+import { Piscina } from 'piscina'
 import { createFileStore } from './storage'
 
 /** Exit code for a setting the server cannot work with (sysexits EX_CONFIG): `npm start` does not retry it. */
@@ -54,8 +57,17 @@ if (config.MAIL_MODE === 'fake') {
   logger.info(`mail catcher listening on 127.0.0.1:${fakeSmtp.port}${wanted === 0 ? ' (a free port; set SMTP_PORT to choose one)' : ''}`)
 }
 const mailer = createMailer({ ...config, SMTP_PORT: fakeSmtp?.port ?? config.SMTP_PORT ?? 2525 })
-const jobs = new JobRunner({ sequelize, logger, threads: config.WORKERS, pollSeconds: config.JOB_POLL_SECONDS, leaseSeconds: config.JOB_LEASE_SECONDS })
-await jobs.start()
+// The audit grows with the stored calls: a thread of its own keeps requests answered meanwhile.
+// Kept started, so the first audit does not wait for a thread to load the code and connect.
+const auditPool = new Piscina({ filename: new URL('./jobs/audit-worker.ts', import.meta.url).href, maxThreads: 1, minThreads: 1, idleTimeout: Number.POSITIVE_INFINITY })
+setAuditRunner((query, campaign) => auditPool.run({ campaign, campaignId: query.campaignId, from: query.from?.toISOString() ?? null, to: query.to?.toISOString() ?? null }))
+// QUEUE=redis: this process only publishes; `npm run worker` processes run the pipeline.
+const jobs =
+  config.QUEUE === 'redis'
+    ? new RedisPublisher(config.REDIS_URL, logger)
+    : new JobRunner({ sequelize, logger, threads: config.WORKERS, pollSeconds: config.JOB_POLL_SECONDS, leaseSeconds: config.JOB_LEASE_SECONDS })
+if (jobs instanceof JobRunner) await jobs.start()
+logger.info(config.QUEUE === 'redis' ? `processing jobs go to Redis at ${new URL(config.REDIS_URL).host}; run \`npm run worker\` to process them` : 'processing jobs run in this server')
 const app = createApp({ config, sequelize, mailer, logger, jobs, files }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
 const server = createServer(app)
 server.once('error', (error: NodeJS.ErrnoException) => {
@@ -69,7 +81,9 @@ server.listen(config.PORT, config.HOST, () => {
 async function shutdown() {
   server.close()
   server.closeAllConnections()
-  await jobs.stop()
+  if (jobs instanceof JobRunner) await jobs.stop()
+  else await jobs.close()
+  await auditPool.destroy()
   await settleBackground()
   await fakeSmtp?.close()
   mailer.close()

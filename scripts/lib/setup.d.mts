@@ -30,3 +30,6 @@ export function supervise(options: {
   onFatal?: (code: number | null) => void
 }): Supervisor
 export function mariadbRunning(dir: string): boolean
+export function freePort(): Promise<number>
+export function startRedis(options: { dir: string; port: number }): Promise<{ url: string; stop(): Promise<void> }>
+export function startS3Fake(options: { dir: string; port: number; bucket: string }): Promise<{ endpoint: string; stop(): Promise<void> }>

@@ -1,7 +1,7 @@
 // Plain Node (no packages): this runs before `npm ci` has installed anything.
 import { spawn, spawnSync } from 'node:child_process'
 import { createHash, randomBytes } from 'node:crypto'
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
+import { existsSync, mkdirSync, openSync, readFileSync, writeFileSync } from 'node:fs'
 import { createServer } from 'node:net'
 import { join, resolve } from 'node:path'
 
@@ -231,4 +231,75 @@ export function supervise({ start, name = 'server', minDelayMs = 1000, maxDelayM
       }
     },
   }
+}
+
+/** A port nothing listens on right now (the kernel picks it). */
+export function freePort() {
+  return new Promise((resolve, reject) => {
+    const server = createServer()
+    server.once('error', reject)
+    server.listen(0, '127.0.0.1', () => {
+      const { port } = server.address()
+      server.close(() => resolve(port))
+    })
+  })
+}
+
+/** Starts a child in its own process group and waits until `ready()` says yes; stop() ends the group. */
+async function startService({ name, command, args, ready, logFile }) {
+  const out = openSync(logFile, 'a')
+  const child = spawn(command, args, { detached: true, stdio: ['ignore', out, out] })
+  for (let i = 0; ; i++) {
+    if (child.exitCode !== null) throw new Error(`${name} exited with ${child.exitCode}; see ${logFile}`)
+    if (await ready()) break
+    if (i > 200) throw new Error(`${name} did not start within 20 s; see ${logFile}`)
+    await sleep(100)
+  }
+  return {
+    async stop() {
+      if (child.exitCode !== null || !child.pid) return
+      const exited = new Promise((r) => child.once('exit', r))
+      try {
+        process.kill(-child.pid, 'SIGTERM')
+      } catch {
+        return
+      }
+      await Promise.race([exited, sleep(5000)])
+    },
+  }
+}
+
+/** A private redis-server on 127.0.0.1:`port`, nothing saved to disk. Returns { url, stop() }. */
+export async function startRedis({ dir, port }) {
+  mkdirSync(dir, { recursive: true })
+  const service = await startService({
+    name: 'redis-server',
+    command: 'redis-server',
+    args: ['--bind', '127.0.0.1', '--port', String(port), '--dir', dir, '--save', '', '--appendonly', 'no', '--protected-mode', 'yes'],
+    ready: async () => portInUse(port),
+    logFile: join(dir, 'redis.log'),
+  })
+  log(`redis-server listening on 127.0.0.1:${port}`)
+  return { url: `redis://127.0.0.1:${port}`, stop: service.stop }
+}
+
+/** A local S3-compatible server (the s3rver npm package) on 127.0.0.1:`port` with `bucket` made. Returns { endpoint, stop() }. */
+export async function startS3Fake({ dir, port, bucket }) {
+  mkdirSync(dir, { recursive: true })
+  const endpoint = `http://127.0.0.1:${port}`
+  const service = await startService({
+    name: 'the S3 fake (s3rver)',
+    command: process.execPath,
+    args: [join(root, 'node_modules', 's3rver', 'bin', 's3rver.js'), '--directory', dir, '--address', '127.0.0.1', '--port', String(port), '--silent', '--configure-bucket', bucket],
+    ready: async () => {
+      try {
+        return (await fetch(`${endpoint}/`)).status < 500
+      } catch {
+        return false
+      }
+    },
+    logFile: join(dir, '..', 's3rver.log'),
+  })
+  log(`S3 fake listening on ${endpoint}`)
+  return { endpoint, stop: service.stop }
 }

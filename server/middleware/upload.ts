@@ -37,6 +37,75 @@ export function uploadSlots(perUser: number, total: number): RequestHandler {
   }
 }
 
+/** A refilling allowance: `perMinute` units a minute, holding at most a minute's worth. */
+class Bucket {
+  private level: number
+  private at: number
+  constructor(private readonly perMinute: number, now: number) {
+    this.level = perMinute
+    this.at = now
+  }
+  refill(now: number): number {
+    this.level = Math.min(this.perMinute, this.level + ((now - this.at) / 60_000) * this.perMinute)
+    this.at = now
+    return this.level
+  }
+  take(units: number): void {
+    this.level -= units
+  }
+  /** Seconds until the level is back up to `units` (at most a minute's worth). */
+  secondsUntil(units: number): number {
+    const missing = Math.min(units, this.perMinute) - this.level
+    return missing <= 0 ? 0 : Math.ceil((missing / this.perMinute) * 60)
+  }
+  get full(): boolean {
+    return this.level >= this.perMinute
+  }
+}
+
+/**
+ * Limits what one person uploads by what it weighs, not by how many requests carry it: at most
+ * `bytesPerMinute` bytes and `filesPerMinute` files a minute, so a pipeline may send one file per
+ * request or five hundred. The bytes are taken from the declared size before anything is read;
+ * the files are counted once the upload is parsed (a batch that overdraws makes the next wait).
+ * Refusals are 429 with Retry-After saying when the allowance will be back.
+ */
+export function uploadBudget(bytesPerMinute: number, filesPerMinute: number): { before: RequestHandler; countFiles: RequestHandler } {
+  const budgets = new Map<number, { bytes: Bucket; files: Bucket }>()
+  const budgetOf = (userId: number, now: number) => {
+    let b = budgets.get(userId)
+    if (!b) {
+      // Forget people whose allowance is whole again, so the map stays small.
+      if (budgets.size > 1000) for (const [id, x] of budgets) if (x.bytes.refill(now) && x.bytes.full && x.files.refill(now) && x.files.full) budgets.delete(id)
+      b = { bytes: new Bucket(bytesPerMinute, now), files: new Bucket(filesPerMinute, now) }
+      budgets.set(userId, b)
+    }
+    b.bytes.refill(now)
+    b.files.refill(now)
+    return b
+  }
+  const before: RequestHandler = (req, res, next) => {
+    const now = Date.now()
+    const b = budgetOf((req.user as User).id, now)
+    const bytes = Number(req.get('content-length') ?? 0)
+    const wait = Math.max(b.bytes.secondsUntil(bytes), b.files.secondsUntil(1))
+    if (wait > 0) {
+      res.set('retry-after', String(wait))
+      throw new HttpError(429, 'upload_allowance_used', `You have uploaded as much as the server takes in a minute (${bytesPerMinute} bytes and ${filesPerMinute} files per person); send the rest in ${wait} s.`, {
+        retryAfterSeconds: wait,
+      })
+    }
+    b.bytes.take(bytes)
+    next()
+  }
+  const countFiles: RequestHandler = (req, _res, next) => {
+    const files = (req.files as Express.Multer.File[] | undefined) ?? []
+    budgetOf((req.user as User).id, Date.now()).files.take(files.length)
+    next()
+  }
+  return { before, countFiles }
+}
+
 /** Control characters cannot be part of a multipart header value (RFC 7578 / RFC 9110). */
 const BAD_NAME = /[\u0000-\u001f\u007f]/
 

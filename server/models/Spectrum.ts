@@ -33,6 +33,8 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
   declare wlMax: number
   declare dispersion: number
   declare snr: number | null
+  /** Flags of the current suggestion (0 without one); the review queue orders by it. */
+  declare flagCount: CreationOptional<number>
   declare vacuumConverted: boolean
   /** JSON: the reader's metadata (header keywords, units, notes, HDUs). */
   declare readInfo: string
@@ -76,6 +78,7 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
         wlMax: { type: DataTypes.DOUBLE, allowNull: false },
         dispersion: { type: DataTypes.DOUBLE, allowNull: false },
         snr: num(),
+        flagCount: { type: DataTypes.TINYINT.UNSIGNED, allowNull: false, defaultValue: 0 },
         vacuumConverted: { type: DataTypes.BOOLEAN, allowNull: false },
         readInfo: { type: DataTypes.TEXT('medium'), allowNull: false },
         readChoices: { type: DataTypes.STRING(255), allowNull: false, defaultValue: '{}' },

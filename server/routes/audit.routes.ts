@@ -1,5 +1,5 @@
 import { auditQuery } from '../schemas/audit.schemas'
-import { getAudit } from '../services/audit.service'
+import { getAuditJson } from '../services/audit.service'
 import { LEAD, defineRoutes } from './route'
 
 export function auditRoutes() {
@@ -10,7 +10,8 @@ export function auditRoutes() {
       access: LEAD,
       schema: { query: auditQuery },
       handler: async (_req, res) => {
-        res.json({ audit: await getAudit(res.locals.query) })
+        // Already JSON: the report is written where it is made, off this thread.
+        res.type('application/json').send(await getAuditJson(res.locals.query))
       },
     },
   ])

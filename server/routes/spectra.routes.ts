@@ -4,7 +4,7 @@ import type { AppContext } from '../context'
 import { sendSeries } from '../lib/series'
 import { currentUser } from '../middleware/auth'
 import { boundedUpload } from '../middleware/body-limit'
-import { multipartToDisk, uploadSlots } from '../middleware/upload'
+import { multipartToDisk, uploadBudget, uploadSlots } from '../middleware/upload'
 import { idParams } from '../schemas/common'
 import { dataQuery, listQuery, spectrumCorrection, submitBody } from '../schemas/spectra.schemas'
 import { getPreparedSeries, measurementsOf, requeueSpectrum } from '../services/measurements.service'
@@ -14,6 +14,7 @@ import { getRawFile, getSpectrumDetail, getSpectrumSeries, listSpectra, submitFi
 import { SUBMITTERS, defineRoutes } from './route'
 
 export function spectraRoutes(ctx: AppContext) {
+  const budget = uploadBudget(ctx.config.UPLOAD_BYTES_PER_MINUTE, ctx.config.UPLOAD_FILES_PER_MINUTE)
   return defineRoutes([
     {
       method: 'get',
@@ -30,8 +31,10 @@ export function spectraRoutes(ctx: AppContext) {
       access: SUBMITTERS,
       before: [
         boundedUpload(ctx.config.UPLOAD_MAX_REQUEST_BYTES),
+        budget.before,
         uploadSlots(ctx.config.UPLOADS_PER_USER, ctx.config.UPLOADS_TOTAL),
         multipartToDisk(ctx.files.incomingDir, ctx.config),
+        budget.countFiles,
       ],
       schema: { body: submitBody },
       handler: async (req, res) => {

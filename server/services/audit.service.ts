@@ -1,8 +1,8 @@
-import { Op } from 'sequelize'
+import { Op, QueryTypes } from 'sequelize'
 import { agreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
-import { Campaign, Classification, LibraryVersion, ReviewCall, Spectrum, Suggestion, User } from '../models'
+import { Campaign, LibraryVersion, ReviewCall, User } from '../models'
 import type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef } from '../../shared/api/audit'
 
 export type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef }
@@ -64,8 +64,15 @@ export function isoWeek(date: Date): string {
  */
 export function typeScale(values: readonly number[]): number[] {
   if (values.length === 0) return []
-  const lo = Math.floor(Math.min(...values) * 2) / 2
-  const hi = Math.ceil(Math.max(...values) * 2) / 2
+  // A loop, not Math.min(...values): spreading 100 000 calls overflows the call stack.
+  let min = Infinity
+  let max = -Infinity
+  for (const v of values) {
+    if (v < min) min = v
+    if (v > max) max = v
+  }
+  const lo = Math.floor(min * 2) / 2
+  const hi = Math.ceil(max * 2) / 2
   const set = new Set<number>()
   for (let v = lo; v <= hi + 1e-9; v += 0.5) set.add(Math.round(v * 2) / 2)
   for (const v of values) set.add(v)
@@ -114,12 +121,14 @@ export function labelledMatrix(pairs: Array<{ row: string; column: string; spect
   const labels = order.filter((l) => used.has(l))
   const index = new Map(labels.map((l, i) => [l, i]))
   const cells = labels.map(() => labels.map((): MatrixCell => ({ count: 0, spectrumIds: [] })))
+  const seen = labels.map(() => labels.map(() => new Set<number>()))
   for (const p of pairs) {
-    const cell = cells[index.get(p.row)!]![index.get(p.column)!]!
-    cell.count++
-    if (!cell.spectrumIds.includes(p.spectrumId)) cell.spectrumIds.push(p.spectrumId)
+    const r = index.get(p.row)!
+    const c = index.get(p.column)!
+    cells[r]![c]!.count++
+    seen[r]![c]!.add(p.spectrumId)
   }
-  for (const row of cells) for (const c of row) c.spectrumIds.sort((x, y) => x - y)
+  cells.forEach((row, r) => row.forEach((cell, c) => (cell.spectrumIds = [...seen[r]![c]!].sort((x, y) => x - y))))
   return { rowsAre, columnsAre, labels, cells, n: pairs.length }
 }
 
@@ -197,8 +206,8 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
   const ids = [...people.keys()].sort((a, b) => a - b)
   const ref = (id: number): RaterRef => ({ kind: 'classifier', id, name: people.get(id)! })
   const suggestionRef: RaterRef = { kind: 'suggestion', id: null, name: 'Suggestion' }
-  const callOf = (userId: number) => new Map(calls.filter((c) => c.classifierId === userId).map((c) => [c.spectrumId, c]))
-  const byPerson = new Map(ids.map((id) => [id, callOf(id)]))
+  const byPerson = new Map(ids.map((id) => [id, new Map<number, AuditCall>()]))
+  for (const c of calls) byPerson.get(c.classifierId)!.set(c.spectrumId, c)
 
   const pairs: PairFigures[] = []
   for (let i = 0; i < ids.length; i++) {
@@ -251,7 +260,9 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
     for (const c of calls) {
       const k = keyOf(c)
       if (k === null) continue
-      groups.set(k, [...(groups.get(k) ?? []), c])
+      const list = groups.get(k)
+      if (list) list.push(c)
+      else groups.set(k, [c])
     }
     return [...groups.entries()]
       .sort((x, y) => (x[0] < y[0] ? -1 : x[0] > y[0] ? 1 : 0))
@@ -317,63 +328,166 @@ export interface AuditQuery {
   to?: Date
 }
 
-/** The audit of one campaign over a date range, from the stored calls, suggestions and decisions. */
-export async function getAudit(query: AuditQuery): Promise<AuditReport> {
-  const campaign = await Campaign.findByPk(query.campaignId)
-  if (!campaign) throw notFound('The campaign')
-  const spectrumIds = (await Spectrum.findAll({ where: { campaignId: campaign.id }, attributes: ['id'] })).map((s) => s.id)
-  const range: Record<symbol, Date> = {}
-  if (query.from) range[Op.gte] = query.from
-  if (query.to) range[Op.lt] = query.to
-  const rows = spectrumIds.length
-    ? await ReviewCall.findAll({
-        where: { spectrumId: { [Op.in]: spectrumIds }, ...(query.from || query.to ? { createdAt: range } : {}) },
-        order: [['id', 'ASC']],
-      })
-    : []
+interface CallRow {
+  id: number
+  spectrum_id: number
+  user_id: number
+  type_code: number
+  class_code: number
+  created_at: Date
+  seconds_spent: number | null
+  suggestion_shown: number
+  accepted_suggestion: number
+  suggestion_id: number | null
+}
+
+/**
+ * The rows the audit needs, read by campaign through indexes in four queries (no per-spectrum
+ * lookups), as plain AuditCall and AuditSpectrum values.
+ */
+export async function loadAuditInputs(query: AuditQuery): Promise<{ calls: AuditCall[]; spectra: AuditSpectrum[] }> {
+  const sequelize = ReviewCall.sequelize!
+  const r = { campaign: query.campaignId, from: query.from ?? null, to: query.to ?? null }
+  const rows = await sequelize.query<CallRow>(
+    `SELECT rc.id, rc.spectrum_id, rc.user_id, rc.type_code, rc.class_code, rc.created_at, rc.seconds_spent,
+            rc.suggestion_shown, rc.accepted_suggestion, rc.suggestion_id
+     FROM review_calls rc JOIN spectra sp ON sp.id = rc.spectrum_id
+     WHERE sp.campaign_id = :campaign ${query.from ? 'AND rc.created_at >= :from' : ''} ${query.to ? 'AND rc.created_at < :to' : ''}
+     ORDER BY rc.id`,
+    { replacements: r, type: QueryTypes.SELECT },
+  )
   // The standing call of each person on each spectrum: the latest row.
-  const standing = new Map<string, ReviewCall>()
-  for (const r of rows) standing.set(`${r.spectrumId}:${r.userId}`, r)
+  const standing = new Map<string, CallRow>()
+  for (const row of rows) standing.set(`${row.spectrum_id}:${row.user_id}`, row)
   const calls = [...standing.values()]
-  const called = [...new Set(calls.map((c) => c.spectrumId))]
+  // The suggestion the calls were made against (the first standing call that names one), else the current one.
+  const shownOf = new Map<number, number>()
+  for (const c of calls) if (c.suggestion_id !== null && !shownOf.has(c.spectrum_id)) shownOf.set(c.spectrum_id, Number(c.suggestion_id))
 
-  const users = calls.length ? await User.findAll({ where: { id: { [Op.in]: [...new Set(calls.map((c) => c.userId))] } }, attributes: ['id', 'name'] }) : []
+  const [users, suggestions, versions, decisions] = await Promise.all([
+    calls.length ? User.findAll({ where: { id: { [Op.in]: [...new Set(calls.map((c) => c.user_id))] } }, attributes: ['id', 'name'], raw: true }) : [],
+    calls.length
+      ? sequelize.query<{ id: number; spectrum_id: number; type_code: number; class_code: number; library_version_id: number; is_current: number }>(
+          `SELECT sg.id, sg.spectrum_id, sg.type_code, sg.class_code, sg.library_version_id, sg.is_current
+           FROM suggestions sg JOIN spectra sp ON sp.id = sg.spectrum_id
+           WHERE sp.campaign_id = :campaign
+             AND (sg.is_current = 1 OR sg.id IN (SELECT rc.suggestion_id FROM review_calls rc WHERE rc.spectrum_id = sg.spectrum_id))`,
+          { replacements: r, type: QueryTypes.SELECT },
+        )
+      : [],
+    LibraryVersion.findAll({ attributes: ['id', 'name'], raw: true }),
+    calls.length
+      ? sequelize.query<{ spectrum_id: number; type_code: number; class_code: number }>(
+          `SELECT c.spectrum_id, c.type_code, c.class_code FROM classifications c JOIN spectra sp ON sp.id = c.spectrum_id
+           WHERE sp.campaign_id = :campaign ORDER BY c.id`,
+          { replacements: r, type: QueryTypes.SELECT },
+        )
+      : [],
+  ])
   const names = new Map(users.map((u) => [u.id, u.name]))
-  const suggestionIds = [...new Set(calls.map((c) => c.suggestionId).filter((x): x is number => x !== null))]
-  const suggestions = called.length
-    ? await Suggestion.findAll({ where: { [Op.or]: [{ id: { [Op.in]: suggestionIds.length ? suggestionIds : [0] } }, { spectrumId: { [Op.in]: called }, isCurrent: true }] } })
-    : []
-  const versions = new Map((await LibraryVersion.findAll({ attributes: ['id', 'name'] })).map((v) => [v.id, v.name]))
-  const decisions = called.length ? await Classification.findAll({ where: { spectrumId: { [Op.in]: called } }, order: [['id', 'ASC']] }) : []
-  const latestDecision = new Map<number, Classification>()
-  for (const d of decisions) latestDecision.set(d.spectrumId, d)
+  const versionName = new Map(versions.map((v) => [v.id, v.name]))
+  const byId = new Map(suggestions.map((s) => [Number(s.id), s]))
+  const current = new Map<number, (typeof suggestions)[number]>()
+  for (const s of suggestions) if (Number(s.is_current) === 1) current.set(Number(s.spectrum_id), s)
+  const latestDecision = new Map<number, { typeCode: number; classCode: number }>()
+  for (const d of decisions) latestDecision.set(Number(d.spectrum_id), { typeCode: Number(d.type_code), classCode: Number(d.class_code) })
 
+  const called = [...new Set(calls.map((c) => c.spectrum_id))]
   const spectra: AuditSpectrum[] = called.map((id) => {
-    // The suggestion the calls were made against, else the spectrum's current one.
-    const shownId = calls.find((c) => c.spectrumId === id && c.suggestionId !== null)?.suggestionId
-    const s = suggestions.find((x) => x.id === shownId) ?? suggestions.find((x) => x.spectrumId === id && x.isCurrent)
-    const d = latestDecision.get(id)
+    const shown = shownOf.get(id)
+    const s = (shown !== undefined ? byId.get(shown) : undefined) ?? current.get(id)
     return {
       spectrumId: id,
-      suggestion: s ? { typeCode: s.typeCode, classCode: s.classCode, libraryVersion: versions.get(s.libraryVersionId) ?? `#${s.libraryVersionId}` } : null,
-      decision: d ? { typeCode: d.typeCode, classCode: d.classCode } : null,
+      suggestion: s ? { typeCode: Number(s.type_code), classCode: Number(s.class_code), libraryVersion: versionName.get(s.library_version_id) ?? `#${s.library_version_id}` } : null,
+      decision: latestDecision.get(id) ?? null,
     }
   })
   const auditCalls: AuditCall[] = calls.map((c) => ({
-    spectrumId: c.spectrumId,
-    classifierId: c.userId,
-    classifierName: names.get(c.userId) ?? `#${c.userId}`,
-    typeCode: c.typeCode,
-    classCode: c.classCode,
-    at: c.createdAt,
-    secondsSpent: c.secondsSpent,
-    suggestionShown: c.suggestionShown,
-    acceptedSuggestion: c.acceptedSuggestion,
+    spectrumId: c.spectrum_id,
+    classifierId: c.user_id,
+    classifierName: names.get(c.user_id) ?? `#${c.user_id}`,
+    typeCode: Number(c.type_code),
+    classCode: Number(c.class_code),
+    at: new Date(c.created_at),
+    secondsSpent: c.seconds_spent === null ? null : Number(c.seconds_spent),
+    suggestionShown: Boolean(Number(c.suggestion_shown)),
+    acceptedSuggestion: Boolean(Number(c.accepted_suggestion)),
   }))
-  return {
+  return { calls: auditCalls, spectra }
+}
+
+/** A campaign as the report names it. */
+export interface AuditCampaignRef {
+  id: number
+  code: string
+  name: string
+}
+
+/** The audit report as the API sends it (`{ "audit": … }`), as JSON text. */
+export async function auditReportJson(query: AuditQuery, campaign: AuditCampaignRef): Promise<string> {
+  const { calls, spectra } = await loadAuditInputs(query)
+  const report: AuditReport = {
     campaign: { id: campaign.id, code: campaign.code, name: campaign.name },
     from: query.from?.toISOString() ?? null,
     to: query.to?.toISOString() ?? null,
-    ...auditFigures(auditCalls, spectra),
+    ...auditFigures(calls, spectra),
   }
+  return JSON.stringify({ audit: report })
+}
+
+/**
+ * Builds the report somewhere other than the calling thread: reading tens of thousands of calls,
+ * computing the figures and writing the JSON all grow with the stored data. Unset, it is built in place.
+ */
+export type AuditRunner = (query: AuditQuery, campaign: AuditCampaignRef) => Promise<string>
+let auditRunner: AuditRunner | null = null
+export function setAuditRunner(runner: AuditRunner | null): void {
+  auditRunner = runner
+}
+
+/**
+ * What the stored review data looks like right now: the newest call, decision and suggestion and
+ * the library versions. Rows are only ever added (calls, decisions and suggestions are never
+ * edited), so an unchanged stamp means unchanged figures.
+ */
+async function dataStamp(): Promise<string> {
+  const [row] = await ReviewCall.sequelize!.query<Record<string, unknown>>(
+    `SELECT (SELECT MAX(id) FROM review_calls) AS calls, (SELECT MAX(id) FROM classifications) AS decisions,
+            (SELECT MAX(id) FROM suggestions) AS suggestions, (SELECT COUNT(*) FROM library_versions) AS versions,
+            (SELECT MAX(updated_at) FROM users) AS people`,
+    { type: QueryTypes.SELECT },
+  )
+  return JSON.stringify(row)
+}
+
+const AUDIT_CACHE_SIZE = 32
+const auditCache = new Map<string, { stamp: string; json: Promise<string> }>()
+
+/**
+ * The audit of one campaign over a date range, as the JSON the API sends. Reports are kept per
+ * campaign, range and data stamp: asking again without a new call, decision, suggestion or library
+ * version answers from memory, and leads asking at the same moment share one computation. The
+ * report is built off the request thread when a runner is set (the server sets a worker thread).
+ */
+export async function getAuditJson(query: AuditQuery): Promise<string> {
+  const campaign = await Campaign.findByPk(query.campaignId, { attributes: ['id', 'code', 'name'] })
+  if (!campaign) throw notFound('The campaign')
+  const ref = { id: campaign.id, code: campaign.code, name: campaign.name }
+  const key = JSON.stringify([ref, query.from?.toISOString() ?? null, query.to?.toISOString() ?? null])
+  const stamp = await dataStamp()
+  const cached = auditCache.get(key)
+  if (cached && cached.stamp === stamp) return cached.json
+  const json = auditRunner ? auditRunner(query, ref) : auditReportJson(query, ref)
+  auditCache.delete(key)
+  auditCache.set(key, { stamp, json })
+  if (auditCache.size > AUDIT_CACHE_SIZE) auditCache.delete(auditCache.keys().next().value!)
+  json.catch(() => {
+    if (auditCache.get(key)?.json === json) auditCache.delete(key)
+  })
+  return json
+}
+
+/** The audit of one campaign over a date range, from the stored calls, suggestions and decisions. */
+export async function getAudit(query: AuditQuery): Promise<AuditReport> {
+  return (JSON.parse(await getAuditJson(query)) as { audit: AuditReport }).audit
 }

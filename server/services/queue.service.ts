@@ -1,9 +1,10 @@
-import { Op, QueryTypes, UniqueConstraintError } from 'sequelize'
+import { Op, QueryTypes, UniqueConstraintError, type Sequelize, type Transaction } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
 import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
 import { OPEN_FOR_CALLS, namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView } from './review.service'
+import type { QueueSuggestion } from '../../shared/api/queue'
 import { findVisibleSpectrum } from './spectra.service'
 import type { QueueItem, QueueOrder, QueuePage } from '../../shared/api/queue'
 
@@ -25,13 +26,31 @@ export interface QueueQuery {
   limit: number
 }
 
+/**
+ * Writes what the queue orders and filters by for a spectrum's new current suggestion: the flag
+ * count on the spectrum and one spectrum_flags row per flag. Called in the transaction that stores
+ * the suggestion.
+ */
+export async function indexSuggestionFlags(sequelize: Sequelize, spectrumId: number, flags: readonly string[], transaction?: Transaction): Promise<void> {
+  const unique = [...new Set(flags)]
+  await sequelize.query('UPDATE spectra SET flag_count = :n WHERE id = :id', { replacements: { n: Math.min(255, unique.length), id: spectrumId }, transaction })
+  await sequelize.query('DELETE FROM spectrum_flags WHERE spectrum_id = :id', { replacements: { id: spectrumId }, transaction })
+  if (unique.length > 0) {
+    await sequelize.query(`INSERT INTO spectrum_flags (spectrum_id, flag) VALUES ${unique.map(() => '(?, ?)').join(', ')}`, {
+      replacements: unique.flatMap((f) => [spectrumId, f.slice(0, 40)]),
+      transaction,
+    })
+  }
+}
+
 /** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
 const sqlTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ')
 
-const ORDER_SQL: Record<QueueOrder, string> = {
-  oldest: 'sp.created_at ASC, sp.id ASC',
-  snr: 'sp.snr IS NULL ASC, sp.snr DESC, sp.id ASC',
-  flagged: 'JSON_LENGTH(sg.flags) DESC, sp.created_at ASC, sp.id ASC',
+/** Each order is the column order of one spectra index (migration 0020); NULL S/N sorts last under DESC. */
+const ORDER_SQL: Record<QueueOrder, { index: string; sql: string }> = {
+  oldest: { index: 'spectra_queue_oldest', sql: 'sp.created_at ASC, sp.id ASC' },
+  snr: { index: 'spectra_queue_snr', sql: 'sp.snr DESC, sp.id ASC' },
+  flagged: { index: 'spectra_queue_flagged', sql: 'sp.flag_count DESC, sp.created_at ASC, sp.id ASC' },
 }
 
 /**
@@ -41,8 +60,9 @@ const ORDER_SQL: Record<QueueOrder, string> = {
 async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery, now: Date, keep?: number): Promise<number[]> {
   const campaigns = await campaignIdsOf(user)
   if (campaigns !== 'all' && campaigns.length === 0) return []
-  const where: string[] = ['sp.status IN (:open)', 'sp.submitted_by <> :uid']
-  const r: Record<string, unknown> = { open: OPEN_FOR_CALLS, uid: user.id, now: sqlTime(now), limit: q.limit }
+  // open_for_calls is stored as status IN OPEN_FOR_CALLS (migration 0020).
+  const where: string[] = ['sp.open_for_calls = 1', 'sp.submitted_by <> :uid']
+  const r: Record<string, unknown> = { uid: user.id, now: sqlTime(now), limit: q.limit }
   if (campaigns !== 'all') {
     where.push('sp.campaign_id IN (:campaigns)')
     r.campaigns = campaigns
@@ -68,10 +88,11 @@ async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: Queue
     r.snrMax = q.snrMax
   }
   ;(q.flags ?? []).forEach((flag, i) => {
-    where.push(`JSON_CONTAINS(sg.flags, JSON_QUOTE(:flag${i}))`)
+    where.push(`sp.id IN (SELECT f.spectrum_id FROM spectrum_flags f WHERE f.flag = :flag${i})`)
     r[`flag${i}`] = flag
   })
-  if (q.typeFrom !== undefined || q.typeTo !== undefined) where.push('c.blind_review = 0')
+  const bySuggestion = q.typeFrom !== undefined || q.typeTo !== undefined
+  if (q.typeFrom !== undefined || q.typeTo !== undefined) where.push('sp.campaign_id IN (SELECT c.id FROM campaigns c WHERE c.blind_review = 0)')
   if (q.typeFrom !== undefined) {
     where.push('sg.type_code >= :typeFrom')
     r.typeFrom = q.typeFrom
@@ -80,24 +101,32 @@ async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: Queue
     where.push('sg.type_code <= :typeTo')
     r.typeTo = q.typeTo
   }
+  if (!bySuggestion) where.push('EXISTS (SELECT 1 FROM suggestions sg WHERE sg.spectrum_id = sp.id AND sg.is_current = 1)')
+  // One pass down the order's index, stopping at the limit; every test per row is a key lookup.
   const sql = `
     SELECT sp.id AS id
     FROM spectra sp
-    JOIN campaigns c ON c.id = sp.campaign_id
-    JOIN suggestions sg ON sg.id = (SELECT MAX(s2.id) FROM suggestions s2 WHERE s2.spectrum_id = sp.id AND s2.is_current = 1)
+    ${bySuggestion ? 'JOIN suggestions sg ON sg.spectrum_id = sp.id AND sg.is_current = 1' : ''}
     WHERE ${where.join('\n      AND ')}
-    ORDER BY ${ORDER_SQL[q.order]}
+    ORDER BY ${ORDER_SQL[q.order].sql}
     LIMIT :limit`
   const rows = await ctx.sequelize.query<{ id: number }>(sql, { replacements: r, type: QueryTypes.SELECT })
   return rows.map((row) => Number(row.id))
 }
 
+function toQueueSuggestion(s: Suggestion): QueueSuggestion {
+  const { candidates: _c, votes: _v, ...rest } = toSuggestionView(s)
+  return rest
+}
+
 async function queueItems(user: User, ids: number[], now: Date): Promise<QueueItem[]> {
   if (ids.length === 0) return []
   const [spectra, suggestions, calls, claims] = await Promise.all([
-    Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status', 'extraCalls'] }),
-    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, order: [['id', 'ASC']] }),
-    ReviewCall.findAll({ where: { spectrumId: { [Op.in]: ids } }, attributes: ['spectrumId', 'userId'] }),
+    // Plain rows (raw): a page holds a few hundred, and model instances cost more than the query.
+    Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status', 'extraCalls'], raw: true }),
+    // The standards, criteria and probability grid are the bulk of a suggestion row; a queue row shows the call.
+    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: { exclude: ['probabilities', 'candidates', 'votes'] }, order: [['id', 'ASC']], raw: true }),
+    ReviewCall.findAll({ where: { spectrumId: { [Op.in]: ids } }, attributes: ['spectrumId', 'userId'], raw: true }),
     ReviewClaim.findAll({ where: { spectrumId: { [Op.in]: ids }, userId: user.id, expiresAt: { [Op.gt]: now } } }),
   ])
   const campaigns = new Map((await Campaign.findAll({ where: { id: { [Op.in]: [...new Set(spectra.map((s) => s.campaignId))] } } })).map((c) => [c.id, c]))
@@ -127,7 +156,7 @@ async function queueItems(user: User, ids: number[], now: Date): Promise<QueueIt
         status: s.status as QueueItem['status'],
         claim: claim ? { state: 'mine' as const, claimedAt: claim.claimedAt.toISOString(), expiresAt: claim.expiresAt.toISOString() } : { state: 'free' as const },
         calls: { count: callers.get(id)?.size ?? 0, needed: campaign.callsRequired + s.extraCalls },
-        suggestion: suggestion && !hidden ? toSuggestionView(suggestion) : null,
+        suggestion: suggestion && !hidden ? toQueueSuggestion(suggestion) : null,
         hidden: hidden && suggestion !== null,
       },
     ]

@@ -1,6 +1,6 @@
 import { open, readFile } from 'node:fs/promises'
 import type { Readable } from 'node:stream'
-import { ConnectionError, Op, UniqueConstraintError, type Order, type WhereOptions } from 'sequelize'
+import { ConnectionError, Op, QueryTypes, UniqueConstraintError, Utils, literal, type Order, type WhereOptions } from 'sequelize'
 import { DEFAULT_CLASSIFICATION_REGION } from '../../shared/grid'
 import { parseDeclination, parseRightAscension } from '../../shared/coords'
 import type { SpectrumStatus } from '../../shared/status'
@@ -352,15 +352,80 @@ export interface ListQuery {
   sort: string
 }
 
+/** Words InnoDB's full-text index leaves out by default (its stopword list), so a search never requires one. */
+const FULLTEXT_STOPWORDS = new Set(['about', 'are', 'com', 'for', 'from', 'how', 'that', 'the', 'this', 'was', 'what', 'when', 'where', 'who', 'will', 'with', 'und', 'www'])
+/** File-name endings say nothing about which spectrum is meant, and nearly every name has one. */
+const FILE_ENDINGS = new Set(['fits', 'fit', 'fts', 'txt', 'csv', 'dat', 'zip', 'ascii', 'tsv'])
+/** InnoDB indexes words of at least this many characters (innodb_ft_min_token_size). */
+const FULLTEXT_MIN_WORD = 3
+
+/** Up to this many candidates are taken from the indexes before the text itself is checked. */
+const SEARCH_CANDIDATES = 5000
+
+/**
+ * A search over object and file names: names that contain the text and either start with it or
+ * hold its most specific word. Candidates come from indexes — names starting with the text (B-tree)
+ * and, through the full-text index, names holding the text's longest word of three or more letters
+ * (matched from its start; file endings such as "fits" do not count) — and the whole text is then
+ * checked as a substring on those few rows. Catalogue prefixes that every name shares ("HD", "KRF")
+ * are thus never scanned. When a word is so common that the candidates overflow, the full-text
+ * condition is applied in the list query itself (slower, still exact).
+ */
+export async function nameSearchWhere(q: string): Promise<WhereOptions<Spectrum>> {
+  const sequelize = Spectrum.sequelize!
+  const like = (text: string) => text.replace(/[\\%_]/g, (c) => `\\${c}`)
+  const contains = { [Op.or]: [{ objectName: { [Op.like]: `%${like(q)}%` } }, { fileName: { [Op.like]: `%${like(q)}%` } }] }
+  const word = q
+    .split(/[^\p{L}\p{N}]+/u)
+    .filter((w) => w.length >= FULLTEXT_MIN_WORD && !FULLTEXT_STOPWORDS.has(w.toLowerCase()) && !FILE_ENDINGS.has(w.toLowerCase()))
+    .sort((x, y) => y.length - x.length)[0]
+  const match = word ? `MATCH (object_name, file_name) AGAINST (${sequelize.escape(`+${word}*`)} IN BOOLEAN MODE)` : null
+  const prefix = sequelize.escape(`${like(q)}%`)
+  const rows = await sequelize.query<{ id: number }>(
+    `(SELECT id FROM spectra WHERE object_name LIKE ${prefix} LIMIT ${SEARCH_CANDIDATES + 1})
+     UNION (SELECT id FROM spectra WHERE file_name LIKE ${prefix} LIMIT ${SEARCH_CANDIDATES + 1})
+     ${match ? `UNION (SELECT id FROM spectra WHERE ${match} LIMIT ${SEARCH_CANDIDATES + 1})` : ''}`,
+    { type: QueryTypes.SELECT },
+  )
+  if (rows.length > SEARCH_CANDIDATES && match) {
+    return { [Op.and]: [{ [Op.or]: [literal(match.replace('(object_name, file_name)', '(`Spectrum`.`object_name`, `Spectrum`.`file_name`)')), { objectName: { [Op.like]: `${like(q)}%` } }, { fileName: { [Op.like]: `${like(q)}%` } }] }, contains] } as WhereOptions<Spectrum>
+  }
+  return { [Op.and]: [{ id: { [Op.in]: [0, ...rows.map((r) => Number(r.id))] } }, contains] }
+}
+
+/** Up to this many matching rows are counted exactly on every request; beyond, the count is cached a while. */
+const EXACT_COUNT_LIMIT = 1000
+const COUNT_CACHE_MS = 30_000
+const countCache = new Map<string, { total: number; at: number }>()
+
+/**
+ * The number of rows a list filter matches. Small results are counted exactly each time (a bounded
+ * scan of at most EXACT_COUNT_LIMIT index entries); a larger count is computed once and kept for
+ * COUNT_CACHE_MS, so paging through 100 000 spectra does not count them all on every page.
+ */
+async function countMatching(where: WhereOptions<Spectrum>, key: string, now = Date.now()): Promise<number> {
+  const sequelize = Spectrum.sequelize!
+  // The query Sequelize would run for these ids, counted in the database rather than sent over.
+  const options = Utils.mapOptionFieldNames({ where, attributes: ['id'], limit: EXACT_COUNT_LIMIT + 1 } as never, Spectrum as never) as object
+  const generator = sequelize.getQueryInterface().queryGenerator as unknown as { selectQuery(table: string, options: object, model: unknown): string }
+  const inner = generator.selectQuery('spectra', options, Spectrum).replace(/;\s*$/, '')
+  const [bounded] = await sequelize.query<{ n: number }>(`SELECT COUNT(*) AS n FROM (${inner}) AS bounded`, { type: QueryTypes.SELECT })
+  const n = Number(bounded?.n ?? 0)
+  if (n <= EXACT_COUNT_LIMIT) return n
+  const cached = countCache.get(key)
+  if (cached && now - cached.at < COUNT_CACHE_MS) return Math.max(cached.total, n)
+  const total = await Spectrum.count({ where })
+  if (countCache.size > 500) countCache.clear()
+  countCache.set(key, { total, at: now })
+  return total
+}
+
 export async function listSpectra(user: User, query: ListQuery): Promise<SpectrumList> {
   const and: WhereOptions<Spectrum>[] = [await visibilityWhere(user)]
   if (query.status) and.push({ status: query.status })
   if (query.campaign) and.push({ campaignId: query.campaign })
   if (query.mine === '1') and.push({ submittedBy: user.id })
-  if (query.q) {
-    const like = `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`
-    and.push({ [Op.or]: [{ objectName: { [Op.like]: like } }, { fileName: { [Op.like]: like } }] })
-  }
+  if (query.q) and.push(await nameSearchWhere(query.q))
   if (query.from) and.push({ createdAt: { [Op.gte]: new Date(query.from) } })
   if (query.to) and.push({ createdAt: { [Op.lte]: new Date(query.to) } })
   if (query.snrMin !== undefined) and.push({ snr: { [Op.gte]: query.snrMin } })
@@ -368,19 +433,29 @@ export async function listSpectra(user: User, query: ListQuery): Promise<Spectru
   const desc = query.sort.startsWith('-')
   const field = query.sort.replace(/^-/, '')
   const order: Order = [[field, desc ? 'DESC' : 'ASC'], ['id', desc ? 'DESC' : 'ASC']]
-  const { rows, count } = await Spectrum.findAndCountAll({
-    where: { [Op.and]: and },
-    include: [
-      { model: Campaign, as: 'campaign', attributes: ['id', 'code', 'name'] },
-      { model: User, as: 'submitter', attributes: ['id', 'name'] },
-    ],
-    order,
-    limit: query.pageSize,
-    offset: (query.page - 1) * query.pageSize,
-  })
-  const decided = await finalClassificationsFor(rows.map((r) => r.id))
+  const where = { [Op.and]: and }
+  const { page: _page, pageSize: _size, sort: _sort, ...filters } = query
+  const countKey = JSON.stringify([user.id, filters])
+  const [rows, count] = await Promise.all([
+    Spectrum.findAll({
+      where,
+      attributes: { exclude: ['readInfo', 'notes'] },
+      order,
+      limit: query.pageSize,
+      offset: (query.page - 1) * query.pageSize,
+    }),
+    countMatching(where, countKey),
+  ])
+  // Names of the few campaigns and people on the page, by key rather than a join per row.
+  const [campaigns, people, decided] = await Promise.all([
+    Campaign.findAll({ where: { id: { [Op.in]: [0, ...new Set(rows.map((r) => r.campaignId))] } }, attributes: ['id', 'code', 'name'] }),
+    User.findAll({ where: { id: { [Op.in]: [0, ...new Set(rows.map((r) => r.submittedBy))] } }, attributes: ['id', 'name'] }),
+    finalClassificationsFor(rows.map((r) => r.id)),
+  ])
+  const campaignOf = new Map(campaigns.map((c) => [c.id, c]))
+  const personOf = new Map(people.map((u) => [u.id, u]))
   return {
-    items: rows.map((r) => toListItem(r as Spectrum & { campaign?: Campaign; submitter?: User }, decided.get(r.id) ?? null)),
+    items: rows.map((r) => toListItem(Object.assign(r, { campaign: campaignOf.get(r.campaignId), submitter: personOf.get(r.submittedBy) }), decided.get(r.id) ?? null)),
     total: count,
     page: query.page,
     pageSize: query.pageSize,

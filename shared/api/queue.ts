@@ -1,5 +1,8 @@
 import type { SuggestionView } from './review'
 
+/** A queue row's suggestion: the call and its uncertainty; the review screen has the standards and criteria behind it. */
+export type QueueSuggestion = Omit<SuggestionView, 'candidates' | 'votes'>
+
 export type QueueOrder = 'oldest' | 'snr' | 'flagged'
 
 /** One spectrum waiting for the caller's call. */
@@ -14,7 +17,7 @@ export interface QueueItem {
   claim: { state: 'free' } | { state: 'mine'; claimedAt: string; expiresAt: string }
   calls: { count: number; needed: number }
   /** Null under blind review (then `hidden`) or when there is no suggestion. */
-  suggestion: SuggestionView | null
+  suggestion: QueueSuggestion | null
   hidden: boolean
 }
 

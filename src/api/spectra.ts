@@ -160,13 +160,19 @@ export interface SubmitFields {
 }
 
 /** The multipart body for one file: the batch fields (empty ones left out) and the file. */
-export function submitFormData(fields: SubmitFields, file: Blob, name: string): FormData {
+/** One file of an upload and the name the server sees. */
+export interface UploadFile {
+  file: Blob
+  name: string
+}
+
+export function submitFormData(fields: SubmitFields, files: readonly UploadFile[]): FormData {
   const form = new FormData()
   for (const [key, value] of Object.entries(fields)) {
     if (value === undefined || value === null || value === '') continue
     form.append(key, String(value))
   }
-  form.append('files', file, name)
+  for (const f of files) form.append('files', f.file, f.name)
   return form
 }
 
@@ -175,15 +181,26 @@ export interface UploadHandle {
   abort: () => void
 }
 
+/** Seconds a 429 or 503 asks to wait (Retry-After in seconds; an HTTP date is read too). */
+export function retryAfterSeconds(header: string | null): number | null {
+  if (!header) return null
+  const seconds = Number(header)
+  if (Number.isFinite(seconds) && seconds >= 0) return seconds
+  const at = Date.parse(header)
+  return Number.isNaN(at) ? null : Math.max(0, (at - Date.now()) / 1000)
+}
+
 /**
- * Sends one file with XMLHttpRequest, so its progress can be drawn (fetch cannot report upload progress).
- * Resolves with the per-file results (also on a 422 that carries them); rejects with an ApiError otherwise.
+ * Sends a batch of files in one request with XMLHttpRequest, so its progress can be drawn (fetch
+ * cannot report upload progress). Resolves with the per-file results (also on a 422 that carries
+ * them); rejects with an ApiError otherwise, whose details carry `retryAfterSeconds` when the server
+ * said when to try again.
  */
-export function uploadSpectrumFile(fields: SubmitFields, file: Blob, name: string, onProgress: (fraction: number) => void): UploadHandle {
+export function uploadSpectrumFiles(fields: SubmitFields, files: readonly UploadFile[], onProgress: (fraction: number) => void): UploadHandle {
   let xhr: XMLHttpRequest | null = null
   let aborted = false
   const send = (token: string) =>
-    new Promise<{ status: number; body: unknown }>((resolve, reject) => {
+    new Promise<{ status: number; body: unknown; retryAfter: number | null }>((resolve, reject) => {
       const req = new XMLHttpRequest()
       xhr = req
       req.open('POST', '/api/spectra')
@@ -201,11 +218,11 @@ export function uploadSpectrumFile(fields: SubmitFields, file: Blob, name: strin
         } catch {
           // a proxy page
         }
-        resolve({ status: req.status, body })
+        resolve({ status: req.status, body, retryAfter: retryAfterSeconds(req.getResponseHeader('retry-after')) })
       }
       req.onerror = () => reject(new ApiError(0, NETWORK_ERROR, NETWORK_MESSAGE))
       req.onabort = () => reject(new ApiError(0, 'aborted', 'The upload was stopped.'))
-      req.send(submitFormData(fields, file, name))
+      req.send(submitFormData(fields, files))
     })
 
   const promise = (async (): Promise<SubmitReply> => {
@@ -220,8 +237,9 @@ export function uploadSpectrumFile(fields: SubmitFields, file: Blob, name: strin
     if (reply.status === 413) {
       throw new ApiError(413, 'file_too_large', body?.error?.message ?? 'This file is larger than the server accepts.')
     }
-    if (body?.error?.code) throw new ApiError(reply.status, body.error.code, body.error.message ?? `The server answered ${reply.status}.`, body.error.details ?? null)
-    throw new ApiError(reply.status, `http_${reply.status}`, `The server answered ${reply.status}.`)
+    const wait = reply.retryAfter === null ? {} : { retryAfterSeconds: reply.retryAfter }
+    if (body?.error?.code) throw new ApiError(reply.status, body.error.code, body.error.message ?? `The server answered ${reply.status}.`, { ...(body.error.details ?? {}), ...wait })
+    throw new ApiError(reply.status, `http_${reply.status}`, `The server answered ${reply.status}.`, reply.retryAfter === null ? null : wait)
   })()
   onProgress(0)
   return {

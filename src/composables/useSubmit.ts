@@ -1,6 +1,6 @@
 import { computed, reactive, ref, shallowRef } from 'vue'
 import { ApiError, messageOf } from '@/api/http'
-import { uploadSpectrumFile, type FileResult, type SubmitFields, type UploadHandle, type WavelengthUnitChoice } from '@/api/spectra'
+import { uploadSpectrumFiles, type FileResult, type SubmitFields, type UploadHandle, type WavelengthUnitChoice } from '@/api/spectra'
 import type { RefusedEntry } from '@/lib/refusedLog'
 import { coordinateError, type MetadataDraft } from '@/lib/spectrumMetadata'
 
@@ -152,15 +152,58 @@ function isBatchError(e: ApiError): boolean {
 
 let keySeq = 0
 
+const isZipName = (name: string) => /\.zip$/i.test(name)
+
+/** Waiting a while: Retry-After when the server gave one, else `fallbackMs`. */
+const pause = (e: ApiError, fallbackMs: number) => {
+  const seconds = e.details?.retryAfterSeconds
+  const ms = typeof seconds === 'number' && Number.isFinite(seconds) ? Math.max(250, seconds * 1000) : fallbackMs
+  return new Promise((r) => setTimeout(r, ms))
+}
+
+/** Answers that mean "not now": the file goes back in line and is sent again after the wait. */
+const isBusy = (e: ApiError) => e.status === 429 || e.status === 503
+
 /**
- * A batch upload: one file per request, a few in flight at once, each with its own progress.
- * One bad file never stops the others; an error about the form itself (a 422 with field messages,
- * a campaign one may not submit to) stops the batch and is shown on the form.
+ * Takes the next request's worth of files off the front of the line: up to `maxFiles` files and
+ * `maxBytes` bytes (always at least one file), no two with the same name. Results come back in
+ * file order; a zip answers with a line per entry and a large file may be refused for its size
+ * with the whole request, so each of those travels alone.
  */
-export function useSubmit(options: { parallel?: number; busyRetryMs?: number; onRefused?: (entries: RefusedEntry[]) => void } = {}) {
+export function takeBatch<T extends { file: File }>(line: T[], maxFiles: number, maxBytes: number): T[] {
+  const batch: T[] = []
+  const names = new Set<string>()
+  let bytes = 0
+  while (line.length > 0) {
+    const next = line[0]!
+    // A zip, or a file large enough to be refused for its size alone, travels alone so its answer is its own.
+    const alone = isZipName(next.file.name) || next.file.size > maxBytes / 4
+    if (batch.length > 0 && (alone || batch.length >= maxFiles || bytes + next.file.size > maxBytes || names.has(next.file.name))) break
+    line.shift()
+    batch.push(next)
+    bytes += next.file.size
+    names.add(next.file.name)
+    if (alone) break
+  }
+  return batch
+}
+
+/**
+ * A batch upload: files go to the server several to a request (up to `batchFiles` files or
+ * `batchBytes` bytes), two requests at a time, each file with the progress of its request. When
+ * the server is busy or the person's upload allowance is used up (429, 503), the files go back in
+ * line and are sent again after the wait the server asked for (Retry-After). One bad file never
+ * stops the others; an error about the form itself (a 422 with field messages, a campaign one may
+ * not submit to) stops the batch and is shown on the form.
+ */
+export function useSubmit(
+  options: { parallel?: number; busyRetryMs?: number; batchFiles?: number; batchBytes?: number; onRefused?: (entries: RefusedEntry[]) => void } = {},
+) {
   // The server takes two uploads of one person at a time (UPLOADS_PER_USER); more wait their turn.
   const parallel = options.parallel ?? 2
   const busyRetryMs = options.busyRetryMs ?? 2000
+  const batchFiles = options.batchFiles ?? 25
+  const batchBytes = options.batchBytes ?? 16 * 1024 * 1024
   const items = ref<UploadItem[]>([])
   const running = ref(false)
   const batchId = ref<string | null>(null)
@@ -209,39 +252,56 @@ export function useSubmit(options: { parallel?: number; busyRetryMs?: number; on
     const worker = async () => {
       for (;;) {
         if (stop) return
-        const item = queue.shift()
-        if (!item) return
-        item.status = 'uploading'
-        const handle = uploadSpectrumFile(fields, item.file, item.file.name, (f) => (item.progress = f))
-        handles.value.set(item.key, handle)
+        const batch = takeBatch(queue, batchFiles, batchBytes)
+        if (batch.length === 0) return
+        for (const item of batch) item.status = 'uploading'
+        const handle = uploadSpectrumFiles(
+          fields,
+          batch.map((i) => ({ file: i.file, name: i.file.name })),
+          (f) => batch.forEach((i) => (i.progress = f)),
+        )
+        const key = batch[0]!.key
+        handles.value.set(key, handle)
         try {
           const reply = await handle.promise
-          item.results = reply.results
-          item.progress = 1
-          item.status = 'done'
+          // Results come in file order; a zip (always alone) answers with a line per entry.
+          let at = 0
+          for (const item of batch) {
+            const take = isZipName(item.file.name) ? reply.results.length - at : 1
+            item.results = reply.results.slice(at, at + take)
+            at += take
+            item.progress = 1
+            item.status = 'done'
+          }
           const refused = reply.results.flatMap((r) => (r.outcome === 'refused' ? [{ at: new Date().toISOString(), file: r.file, kind: 'refused' as const, code: r.code, message: r.message, campaignId: fields.campaignId ?? null }] : []))
           if (refused.length > 0) options.onRefused?.(refused)
         } catch (e) {
           const err = e instanceof ApiError ? e : new ApiError(0, 'client_error', messageOf(e))
-          if (err.status === 429 && err.code === 'too_many_uploads') {
-            // The server is busy with this person's other uploads: the file goes back in line.
-            item.status = 'waiting'
-            item.progress = 0
-            queue.unshift(item)
-            await new Promise((r) => setTimeout(r, busyRetryMs))
+          if (isBusy(err)) {
+            for (const item of batch) {
+              item.status = 'waiting'
+              item.progress = 0
+            }
+            queue.unshift(...batch)
+            await pause(err, busyRetryMs)
           } else if (isBatchError(err)) {
             stop = true
-            item.status = 'waiting'
-            item.progress = 0
+            for (const item of batch) {
+              item.status = 'waiting'
+              item.progress = 0
+            }
             fieldErrors.value = err.fields
             formError.value = Object.keys(err.fields).length > 0 ? 'The server did not accept the batch details; see the marked fields.' : err.message
           } else {
-            item.status = 'failed'
-            item.error = { status: err.status, code: err.status === 0 ? 'network' : err.status === 413 ? 'too_large' : err.code, message: err.message }
-            options.onRefused?.([{ at: new Date().toISOString(), file: item.file.name, kind: 'not sent', code: item.error.code, message: err.message, campaignId: fields.campaignId ?? null }])
+            const code = err.status === 0 ? 'network' : err.status === 413 ? 'too_large' : err.code
+            for (const item of batch) {
+              item.status = 'failed'
+              item.error = { status: err.status, code, message: err.message }
+            }
+            options.onRefused?.(batch.map((item) => ({ at: new Date().toISOString(), file: item.file.name, kind: 'not sent' as const, code, message: err.message, campaignId: fields.campaignId ?? null })))
           }
         } finally {
-          handles.value.delete(item.key)
+          handles.value.delete(key)
         }
       }
     }

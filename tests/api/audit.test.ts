@@ -135,6 +135,27 @@ describe('auditFigures', () => {
     expect(none.fleiss).toEqual({ type: { value: null, n: 0, smallSample: true }, class: { value: null, n: 0, smallSample: true }, ratersPerItem: null })
     expect(none.blind.shown.acceptedSuggestion).toEqual({ value: null, n: 0, smallSample: true })
   })
+
+  it('works through 62 000 spectra called twice in a few seconds, counting each cell once per spectrum', () => {
+    const n = 62_000
+    const calls: AuditCall[] = []
+    const spectra: AuditSpectrum[] = []
+    for (let i = 0; i < n; i++) {
+      // Every fifth spectrum the second classifier calls one subtype later.
+      calls.push(call(i, 1, 20 + (i % 7), 6), call(i, 2, 20 + (i % 7) + (i % 5 === 0 ? 1 : 0), 6))
+      spectra.push({ spectrumId: i, suggestion: { typeCode: 20 + (i % 7), classCode: 6, libraryVersion: 'model-v1' }, decision: null })
+    }
+    const started = performance.now()
+    const r = auditFigures(calls, spectra)
+    expect(performance.now() - started).toBeLessThan(10_000)
+    expect(r.calls).toBe(2 * n)
+    expect(r.pairs[0]!.exactType.value).toBeCloseTo(0.8, 12)
+    expect(r.pairs[0]!.withinOneSubtype.value).toBe(1)
+    expect(r.vsSuggestion[0]!.exactType.value).toBe(1)
+    const cells = r.confusion.callsVsConsensus.type.cells.flat()
+    expect(cells.reduce((sum, c) => sum + c.count, 0)).toBe(2 * n)
+    expect(new Set(cells.flatMap((c) => c.spectrumIds)).size).toBe(n)
+  })
 })
 
 describe('isoWeek', () => {

@@ -129,6 +129,25 @@ describe('sessions', () => {
     }
   })
 
+  it('reads pages without writing the session, and writes the last-seen time again once it is a minute old', async () => {
+    const { user, password } = await makeUser('observer')
+    const client = await signedInAgent(t.app, user.email, password)
+    const before = await Session.findOne({ where: { userId: user.id } })
+    for (let i = 0; i < 5; i++) await client.agent.get('/api/me').expect(200)
+    const after = await Session.findOne({ where: { userId: user.id } })
+    expect(after!.updatedAt.getTime()).toBe(before!.updatedAt.getTime())
+    expect(after!.data).toBe(before!.data)
+    // A last-seen time over a minute old is brought up to date (and the row's expiry with it).
+    const data = JSON.parse(after!.data)
+    data.lastSeenAt = Date.now() - 61_000
+    await after!.update({ data: JSON.stringify(data) })
+    const stale = after!.updatedAt.getTime()
+    await client.agent.get('/api/me').expect(200)
+    const renewed = await Session.findOne({ where: { userId: user.id } })
+    expect(JSON.parse(renewed!.data).lastSeenAt).toBeGreaterThan(Date.now() - 10_000)
+    expect(renewed!.updatedAt.getTime()).toBeGreaterThanOrEqual(stale)
+  })
+
   it('ends a session that has been idle longer than the idle lifetime', async () => {
     const { user, password } = await makeUser('observer')
     const client = await signedInAgent(t.app, user.email, password)

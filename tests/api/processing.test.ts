@@ -1,21 +1,20 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { JobRunner } from '../../server/jobs/runner'
-import { createLogger } from '../../server/lib/logger'
+import { claimJobs, loadInput, storeOutput, withRetry } from '../../server/jobs/process'
+import runTask from '../../server/jobs/worker'
 import { Campaign, CampaignMember, LineMeasurementRow, Measurement, ProcessingJob, Spectrum } from '../../server/models'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
+import { startProcessing, type TestProcessing } from '../helpers/processing'
 import { syntheticTextSpectrum } from '../helpers/spectra'
 
 let t: TestContext
-let runner: JobRunner
+let runner: TestProcessing
 let client: Awaited<ReturnType<typeof signedInAgent>>
 let campaign: Campaign
 let seed = 10_000 + Math.floor(Math.random() * 1e6)
 
 beforeAll(async () => {
   t = await createTestContext()
-  runner = new JobRunner({ sequelize: t.ctx.sequelize, logger: createLogger('silent'), threads: 1, inline: true })
-  t.ctx.jobs = runner
-  await runner.start()
+  runner = await startProcessing(t.ctx)
   campaign = await Campaign.create({ code: `P-${Date.now()}`, name: 'Processing', description: '' })
   const { user, password } = await makeUser('observer')
   await CampaignMember.create({ campaignId: campaign.id, userId: user.id })
@@ -33,7 +32,7 @@ async function submit(bytes: Buffer, name: string): Promise<number> {
   return res.body.results[0].spectrumId
 }
 
-describe('processing off the request path', () => {
+describe(`processing off the request path (${process.env.QUEUE ?? 'database'} queue, ${process.env.STORAGE_DRIVER ?? 'local'} files)`, () => {
   it('measures an accepted upload and moves it from received to measured', async () => {
     const id = await submit(syntheticTextSpectrum(seed++), 'measure-me.txt')
     await runner.idle()
@@ -58,15 +57,68 @@ describe('processing off the request path', () => {
     expect(all.filter((m) => m.isCurrent)).toHaveLength(1)
   })
 
-  it('picks up jobs left running by a stopped server', async () => {
+  it('picks up a job whose runner died (its lease lapsed) and leaves a job with a live lease alone', async () => {
     const id = await submit(syntheticTextSpectrum(seed++), 'interrupted.txt')
     await runner.idle()
-    await ProcessingJob.create({ spectrumId: id, status: 'running', error: null, requestedBy: null, startedAt: new Date(), finishedAt: null })
-    const restarted = new JobRunner({ sequelize: t.ctx.sequelize, logger: createLogger('silent'), threads: 1, inline: true })
-    await restarted.start()
-    await restarted.idle()
-    await restarted.stop()
-    expect(await ProcessingJob.count({ where: { spectrumId: id, status: 'running' } })).toBe(0)
-    expect(await Measurement.count({ where: { spectrumId: id } })).toBe(2)
+    await runner.stop()
+    const past = new Date(Date.now() - 1000)
+    const live = new Date(Date.now() + 60_000)
+    const lapsed = await ProcessingJob.create({ spectrumId: id, status: 'running', error: null, requestedBy: null, startedAt: past, finishedAt: null, leaseExpiresAt: past })
+    const held = await ProcessingJob.create({ spectrumId: id, status: 'running', error: null, requestedBy: null, startedAt: past, finishedAt: null, leaseExpiresAt: live })
+    runner = await startProcessing(t.ctx)
+    // The held job belongs to a runner that is still alive somewhere: only its lease may return it.
+    for (let i = 0; i < 100 && (await lapsed.reload()).status !== 'done'; i++) await new Promise((r) => setTimeout(r, 100))
+    expect(lapsed.status).toBe('done')
+    expect((await held.reload()).status).toBe('running')
+    await held.update({ leaseExpiresAt: past })
+    await runner.idle()
+    expect((await held.reload()).status).toBe('done')
+    expect(await Measurement.count({ where: { spectrumId: id } })).toBe(3)
+    expect(await Measurement.count({ where: { spectrumId: id, isCurrent: true } })).toBe(1)
+  })
+
+  it('stores a batch processed by several writers at once with no deadlock and no job twice', async () => {
+    // Worker threads would make the timing depend on the machine; concurrent writers are what deadlocked.
+    await runner.stop()
+    const ids: number[] = []
+    const files = Array.from({ length: 12 }, (_, i) => ({ name: `batch-${i}.txt`, bytes: syntheticTextSpectrum(seed++) }))
+    let req = client.agent.post('/api/spectra').set('x-csrf-token', client.csrf).field('campaignId', String(campaign.id)).field('resolutionFwhm', '3')
+    for (const f of files) req = req.attach('files', f.bytes, f.name)
+    const res = await req.expect(200)
+    for (const r of res.body.results) ids.push(r.spectrumId)
+    // Six claimers at once, as six runners would: each job is claimed once.
+    const claims = await Promise.all(Array.from({ length: 6 }, () => claimJobs(t.ctx.sequelize, 2, 60_000)))
+    const claimed = claims.flat()
+    expect(claimed.map((j) => j.spectrumId).sort((a, b) => a - b)).toEqual([...ids].sort((a, b) => a - b))
+    const outputs = await Promise.all(claimed.map(async (j) => ({ job: j, output: runTask(await loadInput(j.spectrumId)) })))
+    await Promise.all(outputs.map(({ job, output }) => storeOutput(t.ctx.sequelize, job, output, undefined)))
+    const jobs = await ProcessingJob.findAll({ where: { spectrumId: ids } })
+    expect(jobs.map((j) => j.status)).toEqual(ids.map(() => 'done'))
+    expect(jobs.every((j) => j.attempts === 1)).toBe(true)
+    for (const id of ids) expect(await Measurement.count({ where: { spectrumId: id, isCurrent: true } })).toBe(1)
+    runner = await startProcessing(t.ctx)
+  })
+})
+
+describe('withRetry', () => {
+  const deadlock = () => Object.assign(new Error('Deadlock found when trying to get lock; try restarting transaction'), { errno: 1213 })
+
+  it('tries again after a deadlock and returns the result', async () => {
+    let calls = 0
+    const out = await withRetry(async () => {
+      if (++calls < 3) throw deadlock()
+      return 'stored'
+    }, { baseMs: 1 })
+    expect(out).toBe('stored')
+    expect(calls).toBe(3)
+  })
+
+  it('gives up after the last try, and at once on an error that is not transient', async () => {
+    let calls = 0
+    await expect(withRetry(async () => { calls++; throw deadlock() }, { tries: 3, baseMs: 1 })).rejects.toThrow('Deadlock')
+    expect(calls).toBe(3)
+    calls = 0
+    await expect(withRetry(async () => { calls++; throw new Error('bad row') }, { baseMs: 1 })).rejects.toThrow('bad row')
+    expect(calls).toBe(1)
   })
 })

@@ -1,6 +1,7 @@
 import { randomBytes } from 'node:crypto'
 import type { Express } from 'express'
 import { Measurement, Spectrum, Suggestion, type User } from '../../server/models'
+import { indexSuggestionFlags } from '../../server/services/queue.service'
 import { makeUser, signedInAgent } from './context'
 
 export type Client = Awaited<ReturnType<typeof signedInAgent>>
@@ -107,5 +108,6 @@ export async function createSuggestedSpectrum(o: SuggestedSpectrumOptions) {
     flags: o.flags,
     probabilities: '[]',
   })
+  await indexSuggestionFlags(Spectrum.sequelize!, spectrum.id, JSON.parse(o.flags) as string[])
   return { spectrum, suggestion }
 }

@@ -1,0 +1,24 @@
+// Runs in a worker thread of its own: the agreement audit reads every call of a campaign and its
+// figures grow with them, so the whole report — reading, computing, writing the JSON — is made
+// away from the thread that answers requests. The thread keeps its own database connection.
+import type { Sequelize } from 'sequelize'
+import { loadConfig } from '../config'
+import { createSequelize } from '../db'
+import { auditReportJson, type AuditCampaignRef } from '../services/audit.service'
+
+let sequelize: Sequelize | null = null
+
+export interface AuditTask {
+  campaign: AuditCampaignRef
+  campaignId: number
+  from: string | null
+  to: string | null
+}
+
+export default async function report(task: AuditTask): Promise<string> {
+  sequelize ??= createSequelize({ ...loadConfig(process.env), DB_POOL_MAX: 2 })
+  return auditReportJson(
+    { campaignId: task.campaignId, ...(task.from ? { from: new Date(task.from) } : {}), ...(task.to ? { to: new Date(task.to) } : {}) },
+    task.campaign,
+  )
+}
