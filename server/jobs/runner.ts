@@ -5,7 +5,7 @@ import { isDatabaseUnavailable } from '../lib/db-errors'
 import type { Logger } from 'pino'
 import type { Sequelize } from 'sequelize'
 import { bufferToFloat32, bufferToFloat64, float32ToBuffer } from '../lib/binary'
-import { Campaign, LibraryVersion, LineMeasurementRow, Measurement, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
+import { Campaign, Instrument, LibraryVersion, LineMeasurementRow, Measurement, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
 import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
 import type { ProcessingQueue } from '../context'
 import { librarySpecFor } from '../services/standards.service'
@@ -209,7 +209,7 @@ export class JobRunner implements ProcessingQueue {
 
 async function loadInput(spectrumId: number): Promise<WorkerTask> {
   const [spectrum, blob] = await Promise.all([
-    Spectrum.findByPk(spectrumId, { attributes: ['id', 'campaignId', 'resolutionFwhm', 'resolvingPower'] }),
+    Spectrum.findByPk(spectrumId, { attributes: ['id', 'campaignId', 'resolutionFwhm', 'resolvingPower', 'instrumentId'] }),
     SpectrumBlob.findByPk(spectrumId, { attributes: ['wavelength', 'flux', 'error', 'mask'] }),
   ])
   if (!spectrum || !blob) throw new Error(`spectrum ${spectrumId} has no stored data`)
@@ -221,7 +221,10 @@ async function loadInput(spectrumId: number): Promise<WorkerTask> {
       ...(blob.mask ? { mask: new Uint8Array(blob.mask) } : {}),
     },
   }
-  const fwhm = resolutionFwhm(spectrum.resolutionFwhm, spectrum.resolvingPower)
+  // The instrument's own standards are matched first; its resolution stands in for one the spectrum does not give.
+  const instrument = spectrum.instrumentId !== null ? await Instrument.findByPk(spectrum.instrumentId, { attributes: ['id', 'resolutionFwhm'] }) : null
+  if (instrument) input.instrumentId = instrument.id
+  const fwhm = resolutionFwhm(spectrum.resolutionFwhm, spectrum.resolvingPower) ?? instrument?.resolutionFwhm ?? undefined
   if (fwhm !== undefined) input.inputFwhm = fwhm
   const campaign = await Campaign.findByPk(spectrum.campaignId, { attributes: ['id', 'regionMin', 'regionMax'] })
   if (campaign && campaign.regionMin > 0 && campaign.regionMax > campaign.regionMin) input.region = [campaign.regionMin, campaign.regionMax]
@@ -233,6 +236,7 @@ const finiteOrNull = (v: number | null | undefined) => (v !== null && v !== unde
 async function storeOutput(sequelize: Sequelize, job: ProcessingJob, output: PipelineOutput, libraryVersionId: number | undefined): Promise<void> {
   const { analysis } = output
   const p = analysis.prepared
+  const details = output.suggestion ? await suggestionDetails(output.suggestion, output.resolution, output.notes, output.standards) : null
   await sequelize.transaction(async (transaction) => {
     await Measurement.update({ isCurrent: false }, { where: { spectrumId: job.spectrumId, isCurrent: true }, transaction })
     const m = await Measurement.create(
@@ -280,7 +284,7 @@ async function storeOutput(sequelize: Sequelize, job: ProcessingJob, output: Pip
       { transaction },
     )
     await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date(), leaseExpiresAt: null }, { where: { id: job.id }, transaction })
-    if (output.suggestion && libraryVersionId !== undefined) {
+    if (output.suggestion && details && libraryVersionId !== undefined) {
       await storeSuggestion(
         {
           spectrumId: job.spectrumId,
@@ -288,7 +292,8 @@ async function storeOutput(sequelize: Sequelize, job: ProcessingJob, output: Pip
           libraryVersionId,
           pipelineVersion: output.pipelineVersion,
           result: output.suggestion,
-          details: suggestionDetails(output.suggestion, output.resolution, output.notes),
+          details,
+          instrumentId: output.standards && output.standards.instrumentStandards > 0 ? output.standards.instrumentId : null,
         },
         transaction,
       )

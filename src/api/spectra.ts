@@ -87,6 +87,8 @@ export interface SpectrumMetadataInput {
   dec?: string
   obsDate?: string
   instrument?: string
+  /** The campaign's instrument record; null takes the spectrum off any. */
+  instrumentId?: number | null
   resolutionFwhm?: number | null
   resolvingPower?: number | null
   vMag?: number | null
@@ -146,6 +148,7 @@ export interface SubmitFields {
   dec?: string
   obsDate?: string
   instrument?: string
+  instrumentId?: number
   resolutionFwhm?: number
   resolvingPower?: number
   vMag?: number
