@@ -28,7 +28,7 @@ let instrumentId: number
 let otherInstrumentId: number
 
 /** Shipped reference stars by template id (their published types). */
-const STAR = { k0iii: 'miles-m0119', k0iiiBis: 'miles-m0600', a0v: 'miles-m0166', g8iii: 'miles-m0133' } as const
+const STAR = { k0iii: 'miles-m0070', k0iiiBis: 'miles-m0244', a0v: 'miles-m0166', g8iii: 'miles-m0089' } as const
 const templateOf = (id: string) => {
   const s = observedLibraryAt(DEFAULT_OBSERVED_DIR).inputs.find((i) => i.templateId === id)
   if (!s) throw new Error(`no shipped standard ${id}`)
@@ -275,6 +275,15 @@ describe('candidates, promotion and demotion', () => {
     // A demoted spectrum is not proposed again.
     const c = await lead.client.agent.get(`/api/instruments/${instrumentId}/candidates`).expect(200)
     expect(c.body.candidates.map((x: { spectrumId: number }) => x.spectrumId)).toEqual([k0bis.id])
+  })
+})
+
+describe('the agreement audit', () => {
+  it('scores the instrument\'s suggestions against the decisions, per library version', async () => {
+    const res = await lead.client.agent.get(`/api/audit?campaign=${campaign.id}`).expect(200)
+    const mine = (res.body.audit.suggestionAccuracy.instruments as { instrument: { id: number }; versions: { version: { name: string }; n: number }[] }[]).find((i) => i.instrument.id === instrumentId)!
+    // The six decided spectra were suggested by the shipped version; none of them is one of its standards.
+    expect(mine.versions.map((v) => [v.version.name, v.n])).toEqual([['observed-v1', 6]])
   })
 })
 
