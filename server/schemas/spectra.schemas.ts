@@ -67,6 +67,7 @@ export const listQuery = z.object({
   ...paging,
   status: z.enum(SPECTRUM_STATUSES).optional(),
   campaign: z.coerce.number().int().positive().optional(),
+  instrument: z.coerce.number().int().positive().optional(),
   q: z.string().trim().max(120).optional(),
   from: date.optional(),
   to: date.optional(),

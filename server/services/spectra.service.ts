@@ -348,6 +348,7 @@ export interface ListQuery {
   pageSize: number
   status?: SpectrumStatus
   campaign?: number
+  instrument?: number
   q?: string
   from?: string
   to?: string
@@ -361,6 +362,7 @@ export async function listSpectra(user: User, query: ListQuery): Promise<Spectru
   const and: WhereOptions<Spectrum>[] = [await visibilityWhere(user)]
   if (query.status) and.push({ status: query.status })
   if (query.campaign) and.push({ campaignId: query.campaign })
+  if (query.instrument) and.push({ instrumentId: query.instrument })
   if (query.mine === '1') and.push({ submittedBy: user.id })
   if (query.q) {
     const like = `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`

@@ -159,6 +159,9 @@ describe('instruments of a campaign', () => {
     const byName = await upload({ instrument: 'test lrs, 600 L/MM' }, 2).expect(200)
     expect((await Spectrum.findByPk(byName.body.results[0].spectrumId))!.instrumentId).toBe(instrumentId)
     const before = await Spectrum.count()
+    // Spectra are listed by instrument.
+    const listed = await observer.client.agent.get(`/api/spectra?instrument=${instrumentId}`).expect(200)
+    expect(listed.body.items.map((i: { id: number }) => i.id).sort()).toEqual([byId.body.results[0].spectrumId, byName.body.results[0].spectrumId].sort())
     const wrong = await upload({ instrumentId: String(otherInstrumentId) }, 3).expect(422)
     expect(wrong.body.error.details.fields.instrumentId).toMatch(/not an instrument of this campaign/)
     expect(await Spectrum.count()).toBe(before)
