@@ -9,6 +9,10 @@
  * 2. Self-consistency: spectra made from the library's own standards (bench/synthetic.ts) with
  *    unknown resolution, rotation, reddening, velocity and noise, and two-star composites: it
  *    measures robustness, not how well the product classifies a star.
+ * 3. The instrument experiment (bench/instrument.ts): the MILES stars through a simulated
+ *    instrument, with 0, 10, 25, 50 and 100 of them promoted as its own standards, leave one star
+ *    out; accuracy against the number promoted. ACCURACY_SECTIONS=instrument runs this part alone
+ *    (it writes bench/results/instrument.txt and instrument-gate.json only).
  *
  * The matcher's settings (neighbours, vote temperature, class balance in classify.ts) were chosen
  * on the odd-numbered MILES stars only; the table "tuning half" / "held-out half" shows both.
@@ -22,9 +26,11 @@ import { runPipeline } from '../server/spectra/pipeline'
 import { referenceStars, REFERENCE_DATA_DIR, type ReferenceStar } from './reference'
 import { classError, figures, groupTable, type Scored } from './score'
 import { gateFigures } from './gate'
+import { INSTRUMENT_GATE_EVERY, INSTRUMENT_GATE_PROMOTED, instrumentGateFigures, instrumentReport } from './instrument'
 import { degradeSpectrum, selfConsistency } from './synthetic'
 
 const EVERY = Number(process.env.ACCURACY_EVERY ?? 1)
+const ONLY_INSTRUMENT = process.env.ACCURACY_SECTIONS === 'instrument'
 const out: string[] = []
 const log = (line = '') => {
   out.push(line)
@@ -80,10 +86,32 @@ export function classifyReference(library: ReturnType<typeof defaultLibrary>, st
   }
 }
 
+/** The instrument experiment and its gate; returns the lines it printed. */
+function instrumentSection(stars: ReturnType<typeof referenceStars>): string[] {
+  const from = out.length
+  log('')
+  log('## The instrument experiment: accuracy against the number of promoted instrument standards')
+  instrumentReport(stars, { log })
+  const gate = instrumentGateFigures(referenceStars(undefined, { fromFiles: false }))
+  log(`## The npm test instrument gate (every ${INSTRUMENT_GATE_EVERY}th instrument star, the library's copies, 0 and ${INSTRUMENT_GATE_PROMOTED} promoted): n ${gate.n}, ±1 sub ${gate.none.within1} → ${gate.promoted.within1} %, exact class ${gate.none.exactClass} → ${gate.promoted.exactClass} %`)
+  if (EVERY === 1) {
+    const dir = fileURLToPath(new URL('./results/', import.meta.url))
+    mkdirSync(dir, { recursive: true })
+    writeFileSync(`${dir}instrument.txt`, `Lineweight instrument experiment — ${new Date().toISOString().slice(0, 10)}\n${out.slice(from).join('\n')}\n`)
+    writeFileSync(`${dir}instrument-gate.json`, `${JSON.stringify(gate, null, 1)}\n`)
+  }
+  return out.slice(from)
+}
+
 function main() {
   const started = performance.now()
   const library = defaultLibrary()
   const stars = referenceStars().filter((_, i) => i % EVERY === 0)
+  if (ONLY_INSTRUMENT) {
+    instrumentSection(stars)
+    log(`total ${((performance.now() - started) / 1000).toFixed(0)} s`)
+    return
+  }
   const fromFiles = stars.filter((s) => s.readFrom === 'file').length
   log(`Lineweight accuracy benchmark — ${new Date().toISOString().slice(0, 10)}`)
   log(`library ${library.versionName}: ${library.standards.length} standards; levels ${library.resolutions.join(', ')} Å`)
@@ -136,6 +164,8 @@ function main() {
   const self = selfConsistency(library)
   for (const line of self.lines) log(line)
   summary['self-consistency'] = self.figures
+
+  instrumentSection(stars)
 
   const gate = gateFigures(library)
   log('')

@@ -116,6 +116,8 @@ export function demoText(target: DemoTarget, obs: { wavelength: Float64Array; fl
 }
 
 export const DEMO_RESOLUTION_FWHM = RESOLUTION_FWHM
+/** Wavelengths the demo spectrograph records, Å. */
+export const DEMO_RANGE: readonly [number, number] = [START, START + (PIXELS - 1) * STEP]
 
 /** What the demo does with a spectrum after it is suggested. */
 export type DemoFate = 'suggested' | 'one-call' | 'agreed' | 'disputed' | 'settled' | 'quick-look'

@@ -6,15 +6,15 @@ import { JobRunner } from '../jobs/runner'
 import { createLogger } from '../lib/logger'
 import { startFakeSmtp } from '../mail/fake-smtp'
 import { createMailer } from '../mail/mailer'
-import { Campaign, CampaignMember, Dispute, Spectrum, Suggestion, User } from '../models'
+import { Campaign, CampaignMember, Dispute, Instrument, Spectrum, Suggestion, User } from '../models'
 import { settleDispute } from '../services/disputes.service'
 import { createRelease } from '../services/releases.service'
 import { recordCall } from '../services/review.service'
 import { submitFiles } from '../services/spectra.service'
 import { ensureDefaultLibrary } from '../services/standards.service'
 import { hashPassword } from '../services/users.service'
-import { spectralTypeLabel } from '../../shared/calibration'
-import { DEMO_ENTRIES, DEMO_RESOLUTION_FWHM, demoFits, demoObservation, demoText, seededRandom, type DemoEntry } from './demo-spectra'
+import { spectralTypeLabel, typeCode, type SpectralLetter } from '../../shared/calibration'
+import { DEMO_ENTRIES, DEMO_RANGE, DEMO_RESOLUTION_FWHM, demoFits, demoObservation, demoText, seededRandom, type DemoEntry } from './demo-spectra'
 
 /** The invented demo scenario: one observatory, two campaigns, one person per role (and a second classifier). */
 export const DEMO_PEOPLE = [
@@ -27,6 +27,8 @@ export const DEMO_PEOPLE = [
 export const DEMO_OBSERVATORY = 'Kestrel Ridge Observatory'
 export const DEMO_CAMPAIGN_CODE = 'KRO-NFS26'
 export const DEMO_QUICK_CAMPAIGN_CODE = 'KRO-QL26'
+/** The demo's spectrograph; uploads that name it as their setup are linked to it. */
+export const DEMO_INSTRUMENT = 'KRO-LRS, 600 l/mm grating'
 
 const DAY = 86_400_000
 
@@ -64,6 +66,21 @@ export async function seedDemo(sequelize: Sequelize, config: Config): Promise<bo
       )
       made[p.email] = user
       for (const c of [survey, quick]) await CampaignMember.create({ campaignId: c.id, userId: user.id }, { transaction })
+    }
+    // Both campaigns observe with the same spectrograph; each has its own record of it, as standards are grouped per campaign.
+    for (const c of [survey, quick]) {
+      await Instrument.create(
+        {
+          campaignId: c.id,
+          name: DEMO_INSTRUMENT,
+          resolutionFwhm: DEMO_RESOLUTION_FWHM,
+          wlMin: DEMO_RANGE[0],
+          wlMax: DEMO_RANGE[1],
+          notes: 'Low-resolution long-slit spectrograph on the 1.1 m telescope; 2″ slit.',
+          createdBy: made['lead@kestrel-ridge.example']!.id,
+        },
+        { transaction },
+      )
     }
     return { survey, quick, users: made }
   })
@@ -105,7 +122,7 @@ async function seedDemoSpectra(sequelize: Sequelize, config: Config, people: See
         vMag: entry.vMag,
         ...(entry.parallaxMas !== undefined ? { parallaxMas: entry.parallaxMas, parallaxErrorMas: 0.1 * entry.parallaxMas } : {}),
         resolutionFwhm: DEMO_RESOLUTION_FWHM,
-        instrument: 'KRO-LRS, 600 l/mm grating',
+        instrument: DEMO_INSTRUMENT,
         obsDate: `${date}Z`,
       })
       if (result?.outcome !== 'accepted') throw new Error(`demo spectrum ${entry.objectName} was not accepted: ${JSON.stringify(result)}`)

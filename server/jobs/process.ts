@@ -4,7 +4,7 @@
 import { Op, QueryTypes, Transaction, type Sequelize } from 'sequelize'
 import { bufferToFloat32, bufferToFloat64, float32ToBuffer } from '../lib/binary'
 import { isDatabaseUnavailable } from '../lib/db-errors'
-import { Campaign, LibraryVersion, LineMeasurementRow, Measurement, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
+import { Campaign, Instrument, LibraryVersion, LineMeasurementRow, Measurement, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
 import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
 import { indexSuggestionFlags } from '../services/queue.service'
 import { storeSuggestion, suggestionDetails } from '../services/suggestions.service'
@@ -104,7 +104,7 @@ export async function activeLibraryVersionId(): Promise<number | undefined> {
 export async function loadInput(spectrumId: number): Promise<WorkerTask> {
   const [spectrum, blob] = await Promise.all([
     Spectrum.findByPk(spectrumId, {
-      attributes: ['id', 'campaignId', 'resolutionFwhm', 'resolvingPower'],
+      attributes: ['id', 'campaignId', 'resolutionFwhm', 'resolvingPower', 'instrumentId'],
       include: [{ model: Campaign, as: 'campaign', attributes: ['id', 'regionMin', 'regionMax'] }],
     }) as Promise<(Spectrum & { campaign?: Campaign }) | null>,
     SpectrumBlob.findByPk(spectrumId, { attributes: ['wavelength', 'flux', 'error', 'mask'] }),
@@ -118,7 +118,10 @@ export async function loadInput(spectrumId: number): Promise<WorkerTask> {
       ...(blob.mask ? { mask: new Uint8Array(blob.mask) } : {}),
     },
   }
-  const fwhm = resolutionFwhm(spectrum.resolutionFwhm, spectrum.resolvingPower)
+  // The instrument's own standards are matched first; its resolution stands in for one the spectrum does not give.
+  const instrument = spectrum.instrumentId !== null ? await Instrument.findByPk(spectrum.instrumentId, { attributes: ['id', 'resolutionFwhm'] }) : null
+  if (instrument) input.instrumentId = instrument.id
+  const fwhm = resolutionFwhm(spectrum.resolutionFwhm, spectrum.resolvingPower) ?? instrument?.resolutionFwhm ?? undefined
   if (fwhm !== undefined) input.inputFwhm = fwhm
   const c = spectrum.campaign
   if (c && c.regionMin > 0 && c.regionMax > c.regionMin) input.region = [c.regionMin, c.regionMax]
@@ -174,6 +177,8 @@ export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output:
     seconds: output.seconds,
   }
   const suggestion = output.suggestion && libraryVersionId !== undefined ? output.suggestion : null
+  const details = suggestion ? await suggestionDetails(suggestion, output.resolution, output.notes, output.standards) : null
+  const instrumentId = output.standards && output.standards.instrumentStandards > 0 ? output.standards.instrumentId : null
   await withRetry(() =>
     sequelize.transaction(READ_COMMITTED, async (transaction) => {
       const earlier = await Measurement.findAll({ where: { spectrumId: job.spectrumId, isCurrent: true }, attributes: ['id'], transaction })
@@ -181,9 +186,9 @@ export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output:
       const m = await Measurement.create(measurement, { transaction })
       await LineMeasurementRow.bulkCreate(lines.map((l) => ({ measurementId: m.id, ...l })), { transaction })
       await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date(), leaseExpiresAt: null }, { where: { id: job.id }, transaction })
-      if (suggestion && libraryVersionId !== undefined) {
+      if (suggestion && details && libraryVersionId !== undefined) {
         await storeSuggestion(
-          { spectrumId: job.spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion, details: suggestionDetails(suggestion, output.resolution, output.notes) },
+          { spectrumId: job.spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion, details, instrumentId },
           transaction,
         )
         await indexSuggestionFlags(sequelize, job.spectrumId, suggestion.flags, transaction)

@@ -25,6 +25,12 @@ export interface UploadedStandardSpec {
   origin: string
   rectified: Float32Array
   resolutionFwhm: number
+  /** The instrument it is a standard of (promoted from its agreed spectra), or null. */
+  instrumentId: number | null
+  /** The object the spectrum is of, for promoted standards. */
+  star: string | null
+  /** S/N of the spectrum a promoted standard was made from (its noise is taken out of the χ²). */
+  snr: number | null
 }
 
 /** A library version as sent to a worker: shipped standards by id, uploaded standards with their arrays. */
@@ -86,7 +92,7 @@ export function preparedLibrary(spec: LibrarySpec): PreparedMatchLibrary {
     }
   }
   for (const o of spec.observed) {
-    inputs.push({ id: o.standardId, modelId: null, templateId: null, source: 'observed', star: null, origin: o.origin, spectralType: o.spectralType, typeCode: o.typeCode, luminosityClass: o.luminosityClass, classCode: o.classCode, teff: o.teff, logg: o.logg, feh: o.feh, rectified: o.rectified, resolutionFwhm: o.resolutionFwhm })
+    inputs.push({ id: o.standardId, modelId: null, templateId: null, source: 'observed', star: o.star, instrumentId: o.instrumentId, snr: o.snr, origin: o.origin, spectralType: o.spectralType, typeCode: o.typeCode, luminosityClass: o.luminosityClass, classCode: o.classCode, teff: o.teff, logg: o.logg, feh: o.feh, rectified: o.rectified, resolutionFwhm: o.resolutionFwhm })
   }
   const lib = prepareMatchLibrary(inputs, { versionId: spec.versionId, versionName: spec.name, grid: DEFAULT_GRID })
   // Versions are immutable once published, so old entries only cost memory: keep the two latest.

@@ -9,6 +9,8 @@ import * as m0008 from './0008-observed-standards'
 import * as m0009 from './0009-workflow'
 import * as m0010 from './0010-reading-corrections'
 import * as m0012 from './0012-stored-files-and-leases'
+import * as m0013 from './0013-instruments'
+import * as m0014 from './0014-instrument-standards'
 import * as m0020 from './0020-lists-at-scale'
 
 export interface Migration {
@@ -29,5 +31,7 @@ export const migrations: Migration[] = [
   { name: '0009-workflow', ...m0009 },
   { name: '0010-reading-corrections', ...m0010 },
   { name: '0012-stored-files-and-leases', ...m0012 },
+  { name: '0013-instruments', ...m0013 },
+  { name: '0014-instrument-standards', ...m0014 },
   { name: '0020-lists-at-scale', ...m0020 },
 ]

@@ -15,7 +15,10 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
   declare decDeg: number | null
   declare obsDate: Date | null
   declare exposureS: number | null
+  /** The instrument setup as the observer or the file header wrote it. */
   declare instrument: string
+  /** The campaign's instrument record the spectrum was taken with (instruments). */
+  declare instrumentId: CreationOptional<number | null>
   declare resolutionFwhm: number | null
   declare resolvingPower: number | null
   declare vMag: number | null
@@ -61,6 +64,7 @@ export class Spectrum extends Model<InferAttributes<Spectrum>, InferCreationAttr
         obsDate: { type: DataTypes.DATE(3), allowNull: true },
         exposureS: num(),
         instrument: { type: DataTypes.STRING(160), allowNull: false },
+        instrumentId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true, defaultValue: null },
         resolutionFwhm: num(),
         resolvingPower: num(),
         vMag: num(),

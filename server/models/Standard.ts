@@ -9,6 +9,12 @@ export class LibraryVersion extends Model<InferAttributes<LibraryVersion>, Infer
   declare isActive: CreationOptional<boolean>
   declare publishedAt: Date | null
   declare publishedBy: number | null
+  /** The instrument whose standards this version promoted or demoted; null for other versions. */
+  declare instrumentId: CreationOptional<number | null>
+  /** The version this one was made from by a promotion or demotion. */
+  declare basedOnId: CreationOptional<number | null>
+  /** JSON VersionChanges (shared/api/standards.ts): what a promotion or demotion changed and why. */
+  declare changes: CreationOptional<string | null>
   declare createdAt: CreationOptional<Date>
 
   static initModel(sequelize: Sequelize): void {
@@ -21,6 +27,9 @@ export class LibraryVersion extends Model<InferAttributes<LibraryVersion>, Infer
         isActive: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
         publishedAt: { type: DataTypes.DATE(3), allowNull: true },
         publishedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+        instrumentId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true, defaultValue: null },
+        basedOnId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true, defaultValue: null },
+        changes: { type: DataTypes.TEXT('medium'), allowNull: true, defaultValue: null },
         createdAt: DataTypes.DATE(3),
       },
       { sequelize, tableName: 'library_versions', updatedAt: false },
@@ -53,6 +62,10 @@ export class Standard extends Model<InferAttributes<Standard>, InferCreationAttr
   declare rectified: Buffer | null
   declare addedBy: number | null
   declare retiredAt: Date | null
+  /** The instrument this standard was promoted for (one of its agreed spectra); null for standards every spectrum is matched against. */
+  declare instrumentId: CreationOptional<number | null>
+  /** JSON StandardProvenance (shared/api/standards.ts) of a promoted standard: who decided, the calls, the date. */
+  declare provenance: CreationOptional<string | null>
   declare createdAt: CreationOptional<Date>
 
   static initModel(sequelize: Sequelize): void {
@@ -77,6 +90,8 @@ export class Standard extends Model<InferAttributes<Standard>, InferCreationAttr
         rectified: { type: DataTypes.BLOB('medium'), allowNull: true },
         addedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
         retiredAt: { type: DataTypes.DATE(3), allowNull: true },
+        instrumentId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true, defaultValue: null },
+        provenance: { type: DataTypes.TEXT('medium'), allowNull: true, defaultValue: null },
         createdAt: DataTypes.DATE(3),
       },
       { sequelize, tableName: 'standards', updatedAt: false },
@@ -127,6 +142,8 @@ export class Suggestion extends Model<InferAttributes<Suggestion>, InferCreation
   declare probabilities: string
   /** JSON SuggestionDetails (shared/api/suggestions.ts); null for suggestions made before pipeline 2. */
   declare details: CreationOptional<string | null>
+  /** The instrument whose own standards the spectrum was matched against; null when none took part. */
+  declare instrumentId: CreationOptional<number | null>
   declare createdAt: CreationOptional<Date>
 
   static initModel(sequelize: Sequelize): void {
@@ -153,6 +170,7 @@ export class Suggestion extends Model<InferAttributes<Suggestion>, InferCreation
         flags: { type: DataTypes.TEXT, allowNull: false },
         probabilities: { type: DataTypes.TEXT('medium'), allowNull: false },
         details: { type: DataTypes.TEXT('medium'), allowNull: true },
+        instrumentId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true, defaultValue: null },
         createdAt: DataTypes.DATE(3),
       },
       { sequelize, tableName: 'suggestions', updatedAt: false },

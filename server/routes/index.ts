@@ -3,6 +3,7 @@ import { auditRoutes } from './audit.routes'
 import { authRoutes } from './auth.routes'
 import { campaignRoutes } from './campaigns.routes'
 import { healthRoutes } from './health.routes'
+import { instrumentRoutes } from './instruments.routes'
 import { outboxRoutes } from './outbox.routes'
 import { derivedRoutes, releaseRoutes } from './releases.routes'
 import { reviewRoutes } from './review.routes'
@@ -13,5 +14,5 @@ import { userRoutes } from './users.routes'
 
 /** Every API route in one table: the app mounts it and the role-matrix test walks it. */
 export function apiRoutes(ctx: AppContext): RouteDef[] {
-  return [...healthRoutes(ctx), ...authRoutes(ctx), ...userRoutes(ctx), ...outboxRoutes(), ...campaignRoutes(ctx), ...spectraRoutes(ctx), ...reviewRoutes(ctx), ...standardsRoutes(ctx), ...auditRoutes(), ...releaseRoutes(), ...derivedRoutes()]
+  return [...healthRoutes(ctx), ...authRoutes(ctx), ...userRoutes(ctx), ...outboxRoutes(), ...campaignRoutes(ctx), ...spectraRoutes(ctx), ...reviewRoutes(ctx), ...standardsRoutes(ctx), ...instrumentRoutes(ctx), ...auditRoutes(), ...releaseRoutes(), ...derivedRoutes()]
 }

@@ -25,6 +25,8 @@ export const spectrumMetadata = z.object({
   dec: dec.optional(),
   obsDate: date.optional(),
   instrument: optionalText(160),
+  /** The campaign's instrument record; null takes the spectrum off any. */
+  instrumentId: z.preprocess((v) => (v === '' ? undefined : v), numeric(z.number({ message: 'must be an instrument id' }).int().positive({ message: 'must be an instrument id' })).nullable().optional()),
   resolutionFwhm: optionalNumber(0.01, 100, 'resolution FWHM (Å)'),
   resolvingPower: optionalNumber(10, 1_000_000, 'resolving power'),
   vMag: optionalNumber(-2, 30, 'V magnitude'),
@@ -65,6 +67,7 @@ export const listQuery = z.object({
   ...paging,
   status: z.enum(SPECTRUM_STATUSES).optional(),
   campaign: z.coerce.number().int().positive().optional(),
+  instrument: z.coerce.number().int().positive().optional(),
   q: z.string().trim().max(120).optional(),
   from: date.optional(),
   to: date.optional(),

@@ -2,10 +2,11 @@ import { Op, QueryTypes } from 'sequelize'
 import { agreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
-import { Campaign, LibraryVersion, ReviewCall, User } from '../models'
-import type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef } from '../../shared/api/audit'
+import { Campaign, Classification, Instrument, LibraryVersion, LibraryVersionStandard, ReviewCall, Spectrum, Standard, Suggestion, User } from '../models'
+import type { AccuracyFigures, AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, InstrumentAccuracy, MatrixCell, PairFigures, RaterRef, SuggestionAccuracy, VersionAccuracy } from '../../shared/api/audit'
+import type { SuggestionDetails } from '../../shared/api/suggestions'
 
-export type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef }
+export type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef, SuggestionAccuracy }
 
 // ---------------------------------------------------------------------------------------------
 // Inputs: plain rows, so the figures can be computed (and tested) without a database.
@@ -316,9 +317,138 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
   }
 }
 
+/** One suggestion of a decided spectrum, to be scored against the decision. */
+export interface AccuracyItem {
+  spectrumId: number
+  /** The spectrum's instrument (null: none). */
+  instrument: { id: number | null; name: string }
+  version: { id: number; name: string; publishedAt: Date | null }
+  madeAt: Date
+  suggestion: { typeCode: number; classCode: number }
+  decision: { typeCode: number; classCode: number }
+  /** Share of the type vote from the instrument's own standards, when the suggestion says. */
+  ownShare: number | null
+}
+
+function accuracyFigures(items: readonly AccuracyItem[]): AccuracyFigures {
+  const n = items.length
+  const shares = items.map((i) => i.ownShare).filter((s): s is number => s !== null)
+  return {
+    n,
+    ...fractions(items.map((i) => ({ a: i.suggestion, b: i.decision }))),
+    ownShare: safe(shares.length, () => shares.reduce((a, b) => a + b, 0) / shares.length),
+  }
+}
+
+/**
+ * Suggestions scored against the decided classifications, for each instrument (spectra of none
+ * together): per library version in the order they were published, with the change from the
+ * previous version in points, and per ISO week the suggestions were made. Each spectrum counts
+ * once per version (its latest suggestion from that version), so a campaign suggested again after
+ * a new version shows both on the same spectra.
+ */
+export function suggestionAccuracy(items: readonly AccuracyItem[]): SuggestionAccuracy {
+  const byInstrument = new Map<string, AccuracyItem[]>()
+  for (const item of items) {
+    const key = String(item.instrument.id)
+    const list = byInstrument.get(key)
+    if (list) list.push(item)
+    else byInstrument.set(key, [item])
+  }
+  const instruments: InstrumentAccuracy[] = [...byInstrument.values()]
+    .map((list) => {
+      const versions = new Map<number, AccuracyItem[]>()
+      for (const i of list) {
+        const group = versions.get(i.version.id)
+        if (group) group.push(i)
+        else versions.set(i.version.id, [i])
+      }
+      const ordered = [...versions.values()].sort((a, b) => (a[0]!.version.publishedAt?.getTime() ?? 0) - (b[0]!.version.publishedAt?.getTime() ?? 0) || a[0]!.version.id - b[0]!.version.id)
+      let previous: AccuracyFigures | null = null
+      const perVersion: VersionAccuracy[] = ordered.map((group) => {
+        const f = accuracyFigures(group)
+        const v = group[0]!.version
+        const delta = (a: Figure, b: Figure | undefined) => (a.value === null || !b || b.value === null ? null : Math.round(1000 * (a.value - b.value)) / 10)
+        const out: VersionAccuracy = { ...f, version: { id: v.id, name: v.name, publishedAt: v.publishedAt?.toISOString() ?? null }, change: { withinOneSubtype: delta(f.withinOneSubtype, previous?.withinOneSubtype), exactClass: delta(f.exactClass, previous?.exactClass) } }
+        previous = f
+        return out
+      })
+      const weeks = new Map<string, AccuracyItem[]>()
+      for (const i of list) {
+        const week = isoWeek(i.madeAt)
+        const group = weeks.get(week)
+        if (group) group.push(i)
+        else weeks.set(week, [i])
+      }
+      const byWeek = [...weeks.entries()]
+        .sort((a, b) => (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0))
+        .map(([week, group]) => ({ week, versions: [...new Set(group.map((i) => i.version.name))], ...accuracyFigures(group) }))
+      return { instrument: list[0]!.instrument, versions: perVersion, byWeek }
+    })
+    .sort((a, b) => (a.instrument.id === null ? 1 : b.instrument.id === null ? -1 : a.instrument.name.localeCompare(b.instrument.name)))
+  return {
+    instruments,
+    notes: [
+      'Each decided spectrum counts once per library version: its latest suggestion from that version, against its decided classification.',
+      "A spectrum is left out of a version's figures when it is itself one of that version's standards (it would be matched against itself).",
+      "Own share: the part of the type vote that came from the instrument's own standards (promoted from its agreed spectra).",
+    ],
+  }
+}
+
 // ---------------------------------------------------------------------------------------------
 // Loading
 // ---------------------------------------------------------------------------------------------
+
+/** The suggestions of the campaign's decided spectra made in the range, as AccuracyItems. */
+async function accuracyItems(campaignId: number, range: { from?: Date | undefined; to?: Date | undefined }): Promise<AccuracyItem[]> {
+  const spectra = await Spectrum.findAll({ where: { campaignId }, attributes: ['id', 'instrumentId'] })
+  if (spectra.length === 0) return []
+  const decisions = await Classification.findAll({ where: { spectrumId: { [Op.in]: spectra.map((s) => s.id) } }, order: [['id', 'ASC']] })
+  const decision = new Map<number, Classification>()
+  for (const d of decisions) decision.set(d.spectrumId, d)
+  if (decision.size === 0) return []
+  const when: Record<symbol, Date> = {}
+  if (range.from) when[Op.gte] = range.from
+  if (range.to) when[Op.lt] = range.to
+  const suggestions = await Suggestion.findAll({
+    where: { spectrumId: { [Op.in]: [...decision.keys()] }, ...(range.from || range.to ? { createdAt: when } : {}) },
+    attributes: ['id', 'spectrumId', 'libraryVersionId', 'typeCode', 'classCode', 'details', 'createdAt'],
+    order: [['id', 'ASC']],
+  })
+  const latest = new Map<string, Suggestion>()
+  for (const s of suggestions) latest.set(`${s.spectrumId}|${s.libraryVersionId}`, s)
+  const versionIds = [...new Set(suggestions.map((s) => s.libraryVersionId))]
+  const [versions, selfStandards] = await Promise.all([
+    LibraryVersion.findAll({ where: { id: { [Op.in]: versionIds.length ? versionIds : [0] } }, attributes: ['id', 'name', 'publishedAt'] }),
+    Standard.findAll({ where: { spectrumId: { [Op.in]: [...decision.keys()] } }, attributes: ['id', 'spectrumId'] }),
+  ])
+  const links = selfStandards.length ? await LibraryVersionStandard.findAll({ where: { standardId: { [Op.in]: selfStandards.map((s) => s.id) } } }) : []
+  const spectrumOfStandard = new Map(selfStandards.map((s) => [s.id, s.spectrumId!]))
+  const isOwnStandard = new Set(links.map((l) => `${spectrumOfStandard.get(l.standardId)}|${l.versionId}`))
+  const versionOf = new Map(versions.map((v) => [v.id, v]))
+  const instrumentIds = [...new Set(spectra.map((s) => s.instrumentId).filter((i): i is number => i !== null))]
+  const names = new Map((instrumentIds.length ? await Instrument.findAll({ where: { id: { [Op.in]: instrumentIds } }, attributes: ['id', 'name'] }) : []).map((i) => [i.id, i.name]))
+  const instrumentOf = new Map(spectra.map((s) => [s.id, s.instrumentId]))
+  const out: AccuracyItem[] = []
+  for (const [key, s] of latest) {
+    if (isOwnStandard.has(key)) continue
+    const d = decision.get(s.spectrumId)!
+    const v = versionOf.get(s.libraryVersionId)
+    const instrumentId = instrumentOf.get(s.spectrumId) ?? null
+    const details = s.details ? (JSON.parse(s.details) as SuggestionDetails) : null
+    out.push({
+      spectrumId: s.spectrumId,
+      instrument: { id: instrumentId, name: instrumentId === null ? 'No instrument' : names.get(instrumentId) ?? `#${instrumentId}` },
+      version: { id: s.libraryVersionId, name: v?.name ?? `#${s.libraryVersionId}`, publishedAt: v?.publishedAt ?? null },
+      madeAt: s.createdAt,
+      suggestion: { typeCode: s.typeCode, classCode: s.classCode },
+      decision: { typeCode: d.typeCode, classCode: d.classCode },
+      ownShare: details?.standards ? details.standards.instrumentShare.type : null,
+    })
+  }
+  return out
+}
 
 export interface AuditQuery {
   campaignId: number
@@ -431,6 +561,7 @@ export async function auditReportJson(query: AuditQuery, campaign: AuditCampaign
     from: query.from?.toISOString() ?? null,
     to: query.to?.toISOString() ?? null,
     ...auditFigures(calls, spectra),
+    suggestionAccuracy: suggestionAccuracy(await accuracyItems(campaign.id, query)),
   }
   return JSON.stringify({ audit: report })
 }
@@ -447,14 +578,14 @@ export function setAuditRunner(runner: AuditRunner | null): void {
 
 /**
  * What the stored review data looks like right now: the newest call, decision and suggestion and
- * the library versions. Rows are only ever added (calls, decisions and suggestions are never
+ * the library versions, people and instruments (by name). Rows are only ever added (calls, decisions and suggestions are never
  * edited), so an unchanged stamp means unchanged figures.
  */
 async function dataStamp(): Promise<string> {
   const [row] = await ReviewCall.sequelize!.query<Record<string, unknown>>(
     `SELECT (SELECT MAX(id) FROM review_calls) AS calls, (SELECT MAX(id) FROM classifications) AS decisions,
             (SELECT MAX(id) FROM suggestions) AS suggestions, (SELECT COUNT(*) FROM library_versions) AS versions,
-            (SELECT MAX(updated_at) FROM users) AS people`,
+            (SELECT MAX(updated_at) FROM users) AS people, (SELECT MAX(updated_at) FROM instruments) AS instruments`,
     { type: QueryTypes.SELECT },
   )
   return JSON.stringify(row)

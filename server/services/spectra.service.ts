@@ -11,7 +11,7 @@ import { HttpError, notFound } from '../lib/http-error'
 import { sha256Hex } from '../lib/tokens'
 import { rawFileKey } from '../storage'
 import {
-  Campaign, Classification, LineMeasurementRow, Measurement, ProcessingJob, ReviewCall, ReviewClaim, Spectrum, SpectrumBlob,
+  Campaign, Classification, Instrument, LineMeasurementRow, Measurement, ProcessingJob, ReviewCall, ReviewClaim, Spectrum, SpectrumBlob,
   SpectrumEvent, Standard, Suggestion, User,
 } from '../models'
 import type { SpectrumCorrectionInput, SpectrumMetadataInput } from '../schemas/spectra.schemas'
@@ -19,6 +19,7 @@ import { readSpectrum, unpackZip, type ReadMeta, type ReadOptions, type ReadSucc
 import type { Config } from '../config'
 import { estimateSpectrumSnr } from '../spectra/prepare/snr'
 import { campaignForSubmission, campaignIdsOf } from './campaigns.service'
+import { instrumentForSpectrum } from './instruments.service'
 import { finalClassificationsFor, type FinalClassification } from './review.service'
 import type { FileResult, ReadChoices, SpectrumDetail, SpectrumList, SpectrumListItem } from '../../shared/api/spectra'
 
@@ -203,6 +204,7 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
   const columns = readColumns(read)
   const metadata = resolveMetadata(opts, meta, file.name)
   const row = await ctx.sequelize.transaction(async (transaction) => {
+    const instrument = await instrumentForSpectrum(campaign.id, opts.instrumentId, metadata.instrument, transaction)
     const spectrum = await Spectrum.create(
       {
         campaignId: campaign.id,
@@ -210,6 +212,7 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
         batchId: opts.batchId ?? null,
         statusReason: null,
         ...metadata,
+        instrumentId: instrument?.id ?? null,
         fileName: fitText(file.name, 255),
         fileSha256: sha,
         fileSize: file.size,
@@ -264,6 +267,8 @@ function skippedEntry(archive: string, name: string): FileResult | null {
 /** Reads and stores each uploaded file (zip archives file by file); one bad file never stops the others. */
 export async function submitFiles(ctx: AppContext, user: User, files: UploadedFile[], opts: SubmitOptions): Promise<FileResult[]> {
   const campaign = await campaignForSubmission(user, opts.campaignId)
+  // A wrong instrument is the batch's mistake, not each file's: refuse before reading any.
+  if (opts.instrumentId !== undefined && opts.instrumentId !== null) await instrumentForSpectrum(campaign.id, opts.instrumentId, undefined)
   const results: FileResult[] = []
   let budget = ctx.config.UPLOAD_MAX_FILES
   for (const file of files) {
@@ -343,6 +348,7 @@ export interface ListQuery {
   pageSize: number
   status?: SpectrumStatus
   campaign?: number
+  instrument?: number
   q?: string
   from?: string
   to?: string
@@ -424,6 +430,7 @@ export async function listSpectra(user: User, query: ListQuery): Promise<Spectru
   const and: WhereOptions<Spectrum>[] = [await visibilityWhere(user)]
   if (query.status) and.push({ status: query.status })
   if (query.campaign) and.push({ campaignId: query.campaign })
+  if (query.instrument) and.push({ instrumentId: query.instrument })
   if (query.mine === '1') and.push({ submittedBy: user.id })
   if (query.q) and.push(await nameSearchWhere(query.q))
   if (query.from) and.push({ createdAt: { [Op.gte]: new Date(query.from) } })
@@ -473,6 +480,7 @@ export async function getSpectrumDetail(user: User, id: number): Promise<Spectru
   return {
     ...toListItem(Object.assign(s, { campaign: campaign ?? undefined, submitter: submitter ?? undefined }), decided.get(s.id) ?? null),
     instrument: s.instrument,
+    instrumentRecord: s.instrumentId !== null ? await instrumentRef(s.instrumentId) : null,
     exposureS: s.exposureS,
     resolutionFwhm: s.resolutionFwhm,
     resolvingPower: s.resolvingPower,
@@ -491,6 +499,11 @@ export async function getSpectrumDetail(user: User, id: number): Promise<Spectru
     canWithdraw: s.submittedBy === user.id && calls === 0,
     canReread: user.role === 'lead' || (s.submittedBy === user.id && calls === 0),
   }
+}
+
+async function instrumentRef(id: number): Promise<{ id: number; name: string; resolutionFwhm: number | null } | null> {
+  const i = await Instrument.findByPk(id, { attributes: ['id', 'name', 'resolutionFwhm'] })
+  return i ? { id: i.id, name: i.name, resolutionFwhm: i.resolutionFwhm } : null
 }
 
 /** Statuses a re-read may send back to "received"; review states keep theirs (the calls stay). */
@@ -534,7 +547,15 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
   const reread = !sameChoices(before, choices)
   const resolutionChanged = (changes.resolutionFwhm !== undefined && changes.resolutionFwhm !== s.resolutionFwhm)
     || (changes.resolvingPower !== undefined && changes.resolvingPower !== s.resolvingPower)
-  if (!reread && !resolutionChanged) {
+  // Another instrument means other standards to match against: processed again, like a new resolution.
+  let instrumentText: string | null = null
+  if (input.instrumentId !== undefined && input.instrumentId !== s.instrumentId) {
+    const instrument = input.instrumentId === null ? null : await instrumentForSpectrum(s.campaignId, input.instrumentId, undefined)
+    const old = s.instrumentId !== null ? await Instrument.findByPk(s.instrumentId, { attributes: ['id', 'name'] }) : null
+    changes.instrumentId = instrument?.id ?? null
+    instrumentText = `instrument ${instrument?.name ?? 'none'} (was ${old?.name ?? 'none'})`
+  }
+  if (!reread && !resolutionChanged && instrumentText === null) {
     await s.update(changes)
     return getSpectrumDetail(user, id)
   }
@@ -560,8 +581,8 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
   if (reread) {
     const m = read!.meta
     const d = m.decisions!
-    summary = `Read again as ${m.vacuumConverted ? 'vacuum' : 'air'}, unit ${m.wavelengthUnit}${m.hdu !== undefined ? `, HDU ${m.hdu}` : ''}${d.aperture ? `, aperture ${d.aperture.number}` : ''}: ${columns!.row.wlMin.toFixed(1)}–${columns!.row.wlMax.toFixed(1)} Å, ${columns!.row.pixels} pixels (was ${s.wlMin.toFixed(1)}–${s.wlMax.toFixed(1)} Å, ${s.pixels} pixels)${resolutionChanged ? `; ${resolutionText}` : ''}`
-  } else summary = `Processed again with ${resolutionText}`
+    summary = `Read again as ${m.vacuumConverted ? 'vacuum' : 'air'}, unit ${m.wavelengthUnit}${m.hdu !== undefined ? `, HDU ${m.hdu}` : ''}${d.aperture ? `, aperture ${d.aperture.number}` : ''}: ${columns!.row.wlMin.toFixed(1)}–${columns!.row.wlMax.toFixed(1)} Å, ${columns!.row.pixels} pixels (was ${s.wlMin.toFixed(1)}–${s.wlMax.toFixed(1)} Å, ${s.pixels} pixels)${resolutionChanged ? `; ${resolutionText}` : ''}${instrumentText ? `; ${instrumentText}` : ''}`
+  } else summary = `Processed again with ${[resolutionChanged ? resolutionText : null, instrumentText].filter((x) => x !== null).join(' and ')}`
   const [currentMeasurement, currentSuggestion] = await Promise.all([
     Measurement.findOne({ where: { spectrumId: id, isCurrent: true }, attributes: ['id'] }),
     Suggestion.findOne({ where: { spectrumId: id, isCurrent: true }, attributes: ['id', 'spectralType'] }),
@@ -575,8 +596,8 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
         userId: user.id,
         summary,
         details: JSON.stringify({
-          before: { ...describeRead(s, oldMeta), resolutionFwhm: s.resolutionFwhm, resolvingPower: s.resolvingPower, measurementId: currentMeasurement?.id ?? null, suggestionId: currentSuggestion?.id ?? null, suggestion: currentSuggestion?.spectralType ?? null },
-          after: { choices, resolutionFwhm: changes.resolutionFwhm ?? s.resolutionFwhm, resolvingPower: changes.resolvingPower ?? s.resolvingPower, ...(read ? { wavelengthRange: [columns!.row.wlMin, columns!.row.wlMax], pixels: columns!.row.pixels, vacuumConverted: read.meta.vacuumConverted, vacuumSource: read.meta.vacuumSource, unit: read.meta.wavelengthUnit, hdu: read.meta.hdu ?? null, aperture: read.meta.decisions?.aperture?.number ?? null } : {}) },
+          before: { ...describeRead(s, oldMeta), resolutionFwhm: s.resolutionFwhm, resolvingPower: s.resolvingPower, instrumentId: s.instrumentId, measurementId: currentMeasurement?.id ?? null, suggestionId: currentSuggestion?.id ?? null, suggestion: currentSuggestion?.spectralType ?? null },
+          after: { choices, resolutionFwhm: changes.resolutionFwhm ?? s.resolutionFwhm, resolvingPower: changes.resolvingPower ?? s.resolvingPower, instrumentId: changes.instrumentId !== undefined ? changes.instrumentId : s.instrumentId, ...(read ? { wavelengthRange: [columns!.row.wlMin, columns!.row.wlMax], pixels: columns!.row.pixels, vacuumConverted: read.meta.vacuumConverted, vacuumSource: read.meta.vacuumSource, unit: read.meta.wavelengthUnit, hdu: read.meta.hdu ?? null, aperture: read.meta.decisions?.aperture?.number ?? null } : {}) },
         }),
       },
       { transaction },

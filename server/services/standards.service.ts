@@ -10,7 +10,7 @@ import { HttpError, notFound } from '../lib/http-error'
 import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, Suggestion, type User } from '../models'
 import { replaceModelsByObserved } from '../spectra/match'
 import { resolutionFwhm } from '../spectra/pipeline'
-import type { StandardSummary, StandardsLibrary, VersionSummary } from '../../shared/api/standards'
+import type { StandardProvenance, StandardSummary, StandardsLibrary, VersionChanges, VersionSummary } from '../../shared/api/standards'
 
 export type { StandardSummary, VersionSummary }
 
@@ -118,21 +118,28 @@ export async function listLibrary(): Promise<StandardsLibrary> {
   }
   return {
     activeVersionId: versions.find((v) => v.isActive)?.id ?? null,
-    versions: versions.map((v) => ({
-      id: v.id,
-      name: v.name,
-      description: v.description,
-      status: v.status,
-      isActive: v.isActive,
-      publishedAt: v.publishedAt?.toISOString() ?? null,
-      publishedBy: v.publishedBy,
-      standardCount: counts.get(v.id) ?? 0,
-    })),
+    versions: versions.map((v) => toVersionSummary(v, counts.get(v.id) ?? 0)),
     standards: standards.map((s) => toStandardSummary(s, byStandard.get(s.id) ?? [])),
   }
 }
 
-function toStandardSummary(s: Standard, versionIds: number[]): StandardSummary {
+export function toVersionSummary(v: LibraryVersion, standardCount: number): VersionSummary {
+  return {
+    id: v.id,
+    name: v.name,
+    description: v.description,
+    status: v.status,
+    isActive: v.isActive,
+    publishedAt: v.publishedAt?.toISOString() ?? null,
+    publishedBy: v.publishedBy,
+    standardCount,
+    instrumentId: v.instrumentId ?? null,
+    basedOnId: v.basedOnId ?? null,
+    changes: v.changes ? (JSON.parse(v.changes) as VersionChanges) : null,
+  }
+}
+
+export function toStandardSummary(s: Standard, versionIds: number[]): StandardSummary {
   return {
     id: s.id,
     source: s.source,
@@ -154,6 +161,8 @@ function toStandardSummary(s: Standard, versionIds: number[]): StandardSummary {
     retiredAt: s.retiredAt?.toISOString() ?? null,
     createdAt: s.createdAt.toISOString(),
     versionIds: [...versionIds].sort((a, b) => a - b),
+    instrumentId: s.instrumentId ?? null,
+    provenance: s.provenance ? (JSON.parse(s.provenance) as StandardProvenance) : null,
   }
 }
 
@@ -240,16 +249,7 @@ export async function publishVersion(sequelize: Sequelize, user: User, input: { 
     await LibraryVersionStandard.bulkCreate(kept.map((s) => ({ versionId: v.id, standardId: s.id })), { transaction })
     return v
   })
-  return {
-    id: version.id,
-    name: version.name,
-    description: version.description,
-    status: version.status,
-    isActive: version.isActive,
-    publishedAt: version.publishedAt?.toISOString() ?? null,
-    publishedBy: version.publishedBy,
-    standardCount: kept.length,
-  }
+  return toVersionSummary(version, kept.length)
 }
 
 /** A standard's rectified flux as float32 columns [wavelength, rectified] over its covered pixels. */
@@ -319,7 +319,10 @@ export async function librarySpecFor(versionId: number, modelDir = DEFAULT_MODEL
         teff: s.teff,
         logg: s.logg,
         feh: s.feh ?? null,
-        origin: s.spectrumId !== null ? `uploaded spectrum ${s.spectrumId}` : 'uploaded spectrum',
+        origin: s.instrumentId !== null && s.instrumentId !== undefined ? `${s.origin ?? 'instrument'}, spectrum ${s.spectrumId}` : s.spectrumId !== null ? `uploaded spectrum ${s.spectrumId}` : 'uploaded spectrum',
+        instrumentId: s.instrumentId ?? null,
+        star: s.star ?? null,
+        snr: s.provenance ? (JSON.parse(s.provenance) as StandardProvenance).snr : null,
         rectified: Float32Array.from(bufferToFloat32(s.rectified!)),
         // Measurements are made at the library level at or above the spectrum's resolution, never sharper than the sharpest shipped standards (pipeline.ts).
         resolutionFwhm: s.resolutionFwhm ?? Math.max(SHARPEST_SHIPPED_FWHM, (s.spectrumId !== null ? resolution.get(s.spectrumId) : undefined) ?? SHARPEST_SHIPPED_FWHM),

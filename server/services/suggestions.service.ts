@@ -1,23 +1,32 @@
 import { Op, type Transaction } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError, notFound } from '../lib/http-error'
-import { Campaign, ProcessingJob, ReviewCall, Spectrum, Suggestion, type User } from '../models'
+import { Campaign, Instrument, ProcessingJob, ReviewCall, Spectrum, Suggestion, type User } from '../models'
 import { isBlindFor } from './review.service'
 import type { MatchResult } from '../spectra/match'
 import { activeVersionId } from './standards.service'
 import type { SpectrumSuggestions, SuggestionDetails, SuggestionSummary } from '../../shared/api/suggestions'
+import type { StandardsUsed } from '../spectra/match/instrument'
 import type { PipelineResolution } from '../spectra/pipeline'
 
 export type { SuggestionSummary }
 
-/** What a suggestion keeps beyond type and class: the matcher's result and how the pipeline reached it. */
-export function suggestionDetails(r: MatchResult, resolution: PipelineResolution, notes: readonly string[]): SuggestionDetails {
-  return { parameters: r.parameters, classShares: r.classShares, classNote: r.classNote, resolution, residual: r.residual, notes: [...notes] }
+/**
+ * What a suggestion keeps beyond type and class: the matcher's result, how the pipeline reached it,
+ * and which standards decided it (the instrument's own or the general library's).
+ */
+export async function suggestionDetails(r: MatchResult, resolution: PipelineResolution, notes: readonly string[], used: StandardsUsed | null): Promise<SuggestionDetails> {
+  const details: SuggestionDetails = { parameters: r.parameters, classShares: r.classShares, classNote: r.classNote, resolution, residual: r.residual, notes: [...notes] }
+  if (used) {
+    const instrument = used.instrumentId !== null ? await Instrument.findByPk(used.instrumentId, { attributes: ['id', 'name'] }) : null
+    details.standards = { ...used, instrument: instrument ? { id: instrument.id, name: instrument.name } : null }
+  }
+  return details
 }
 
 /** Stores a matcher result as the spectrum's current suggestion; earlier ones stay with is_current = false. */
 export async function storeSuggestion(
-  input: { spectrumId: number; measurementId: number; libraryVersionId: number; pipelineVersion: string; result: MatchResult; details: SuggestionDetails },
+  input: { spectrumId: number; measurementId: number; libraryVersionId: number; pipelineVersion: string; result: MatchResult; details: SuggestionDetails; instrumentId?: number | null },
   transaction: Transaction,
 ): Promise<Suggestion> {
   const r = input.result
@@ -43,6 +52,7 @@ export async function storeSuggestion(
       flags: JSON.stringify(r.flags),
       probabilities: JSON.stringify(r.probabilities),
       details: JSON.stringify(input.details),
+      instrumentId: input.instrumentId ?? null,
     },
     { transaction },
   )
@@ -69,6 +79,7 @@ export function toSuggestionSummary(s: Suggestion): SuggestionSummary {
     flags: JSON.parse(s.flags) as string[],
     probabilities: JSON.parse(s.probabilities) as unknown[],
     details: s.details ? (JSON.parse(s.details) as SuggestionDetails) : null,
+    instrumentId: s.instrumentId ?? null,
     createdAt: s.createdAt.toISOString(),
   }
 }

@@ -3,6 +3,7 @@ import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
 import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
 import { fitSpectrumAtLevel } from './match/classify'
+import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type StandardsUsed } from './match/instrument'
 import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
 
 /** Version of the numeric pipeline; stored with every measurement and suggestion it makes. */
@@ -16,6 +17,10 @@ export interface PipelineInput {
   region?: readonly [number, number]
   /** Ids of standards left out (every spectrum of the star itself, when measuring accuracy on the library's own stars). */
   exclude?: ReadonlySet<number>
+  /** The instrument the spectrum was taken with: its own standards in the library are matched first (match/instrument.ts). */
+  instrumentId?: number
+  /** How the instrument's standards and the general ones are combined. @default libraryForInstrument's defaults */
+  instrumentOptions?: Omit<InstrumentMatchOptions, 'exclude'>
 }
 
 /** The resolution the spectrum was classified at, and where it came from. */
@@ -35,6 +40,8 @@ export interface PipelineOutput {
   /** The classification against the library, or null when no library was given. */
   suggestion: MatchResult | null
   resolution: PipelineResolution
+  /** Which standards decided the suggestion (the instrument's own or the general library's), or null without a library. */
+  standards: StandardsUsed | null
   /** Notes on how the suggestion was reached (another level used, not a star). */
   notes: string[]
   seconds: number
@@ -85,7 +92,9 @@ function subtractRunningMedian(values: Float64Array, wavelength: Float64Array, h
 
 /**
  * Runs every step of the numeric core on one spectrum; pure, so the CLI, the workers and the
- * benchmarks share it. With a library:
+ * benchmarks share it. With a library, every step sees it as the spectrum's instrument does
+ * (libraryForInstrument: that instrument's own standards, the general ones where they leave gaps,
+ * no other instrument's; `standards` in the output says which decided):
  * 1. Resolution: the observer's, or estimated against the library (estimateResolution); the
  *    spectrum is then brought to the library level at or just above it (levelFor) — the sharper
  *    of spectrum and standards is always brought to the coarser.
@@ -108,8 +117,10 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     const analysis = analyseSpectrum(input.spectrum, { ...base, ...(input.inputFwhm !== undefined ? { inputFwhm: input.inputFwhm } : {}) })
     steps.analyse = (performance.now() - t) / 1000
     const resolution: PipelineResolution = { fwhm: input.inputFwhm ?? null, source: input.inputFwhm !== undefined ? 'given' : 'unknown', bound: null, level: null }
-    return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion: null, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
+    return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion: null, standards: null, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
   }
+  // The instrument's own standards where it has them, the general ones elsewhere; standards of other instruments never.
+  library = libraryForInstrument(library, input.instrumentId ?? null, { ...input.instrumentOptions, ...(input.exclude ? { exclude: input.exclude } : {}) })
   const region = classificationRegion(library, input.region, notes)
   const exclude = input.exclude ? { exclude: input.exclude } : {}
   const matchOptions = { region, ...exclude }
@@ -178,7 +189,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   }
   if (suggestion.flags.includes('not-mk')) suggestion = { ...suggestion, uncertainty: { subtypes: Math.max(suggestion.uncertainty.subtypes, 10), classes: Math.max(suggestion.uncertainty.classes, 2) } }
   steps.matchRest = (performance.now() - t) / 1000
-  return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
+  return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion, standards: standardsUsed(library, suggestion), resolution, notes, seconds: (performance.now() - started) / 1000, steps }
 }
 
 /**

@@ -96,8 +96,41 @@ export interface AuditFigures {
   notes: string[]
 }
 
+/** How often suggestions hit the decided classification. */
+export interface AccuracyFigures {
+  /** Decided spectra scored. */
+  n: number
+  exactType: Figure
+  withinOneSubtype: Figure
+  exactClass: Figure
+  /** Mean share of the type vote that came from the instrument's own standards. */
+  ownShare: Figure
+}
+
+export interface VersionAccuracy extends AccuracyFigures {
+  version: { id: number; name: string; publishedAt: string | null }
+  /** Its ±1-subtype and exact-class figures minus the previous version's for this instrument, in points (null for the first, or without figures). */
+  change: { withinOneSubtype: number | null; exactClass: number | null }
+}
+
+/** Suggestion accuracy for the spectra of one instrument (or of none). */
+export interface InstrumentAccuracy {
+  instrument: { id: number | null; name: string }
+  /** Per library version, in the order they were published. */
+  versions: VersionAccuracy[]
+  /** Per ISO week the suggestions were made, with the versions that made them. */
+  byWeek: (AccuracyFigures & { week: string; versions: string[] })[]
+}
+
+/** Suggestions scored against the decided classifications, per instrument and per library version. */
+export interface SuggestionAccuracy {
+  instruments: InstrumentAccuracy[]
+  notes: string[]
+}
+
 /** GET /api/audit: the figures of one campaign over a date range. */
 export interface AuditReport extends AuditFigures {
+  suggestionAccuracy: SuggestionAccuracy
   campaign: { id: number; code: string; name: string }
   from: string | null
   to: string | null

@@ -115,7 +115,10 @@ export interface SpectrumList {
 }
 
 export interface SpectrumDetail extends SpectrumListItem {
+  /** The instrument setup as the observer or the file header wrote it. */
   instrument: string
+  /** The campaign's instrument record it was taken with. */
+  instrumentRecord: { id: number; name: string; resolutionFwhm: number | null } | null
   exposureS: number | null
   resolutionFwhm: number | null
   resolvingPower: number | null

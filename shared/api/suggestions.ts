@@ -18,6 +18,24 @@ export interface SuggestionDetails {
   residual: { rms: number; typical: number | null }
   /** How the suggestion was reached, in words (another level used, not a star). */
   notes: string[]
+  /** Which standards decided it: the instrument's own or the general library's (absent before instruments had standards). */
+  standards?: StandardsUsedSummary
+}
+
+/** Which standards decided a suggestion (server/spectra/match/instrument.ts StandardsUsed). */
+export interface StandardsUsedSummary {
+  /** The spectrum's instrument, when it has one. */
+  instrument: { id: number; name: string } | null
+  /** The instrument's own standards at the level matched; 0 when it has none. */
+  instrumentStandards: number
+  /** General standards left out there because the instrument's own cover their type and class. */
+  covered: number
+  /** Shares of the type and class votes from the instrument's own standards, 0–1. */
+  instrumentShare: { type: number; class: number }
+  decidedBy: 'instrument' | 'library' | 'mixed'
+  /** Voting standards with at least 5 % of the type or class vote, largest first. */
+  deciding: { standardId: number; spectralType: string; star: string | null; origin: string | null; set: 'instrument' | 'library'; typeShare: number; classShare: number }[]
+  correction: { pairs: number; largest: number } | null
 }
 
 /** A stored suggestion, as the API returns it; candidates, votes and probabilities are stored JSON. */
@@ -43,6 +61,8 @@ export interface SuggestionSummary {
   probabilities: unknown[]
   /** Null for suggestions made before pipeline 2. */
   details: SuggestionDetails | null
+  /** The instrument whose own standards took part, or null. */
+  instrumentId: number | null
   createdAt: string
 }
 

@@ -1,7 +1,7 @@
 import type { AuditReport } from '@shared/api/audit'
 import { http } from './http'
 
-export type { AgreementFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, FourFigures, GroupFigures, MatrixCell, PairFigures, RaterRef } from '@shared/api/audit'
+export type { AccuracyFigures, AgreementFigures, AuditReport, InstrumentAccuracy, SuggestionAccuracy, VersionAccuracy, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, FourFigures, GroupFigures, MatrixCell, PairFigures, RaterRef } from '@shared/api/audit'
 
 export interface AuditQuery {
   campaign: number

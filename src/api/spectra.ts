@@ -53,6 +53,7 @@ export interface SpectrumListQuery {
   sort?: SpectrumSort
   status?: SpectrumStatus
   campaign?: number
+  instrument?: number
   q?: string
   from?: string
   to?: string
@@ -66,6 +67,7 @@ export function listQueryParams(query: SpectrumListQuery): Record<string, string
   if (query.sort) out.sort = query.sort
   if (query.status) out.status = query.status
   if (query.campaign !== undefined) out.campaign = query.campaign
+  if (query.instrument !== undefined) out.instrument = query.instrument
   const q = query.q?.trim()
   if (q) out.q = q
   if (query.from) out.from = query.from
@@ -87,6 +89,8 @@ export interface SpectrumMetadataInput {
   dec?: string
   obsDate?: string
   instrument?: string
+  /** The campaign's instrument record; null takes the spectrum off any. */
+  instrumentId?: number | null
   resolutionFwhm?: number | null
   resolvingPower?: number | null
   vMag?: number | null
@@ -146,6 +150,7 @@ export interface SubmitFields {
   dec?: string
   obsDate?: string
   instrument?: string
+  instrumentId?: number
   resolutionFwhm?: number
   resolvingPower?: number
   vMag?: number

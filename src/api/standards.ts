@@ -1,9 +1,9 @@
-import type { StandardSummary, StandardsLibrary, VersionSummary } from '@shared/api/standards'
+import type { StandardProvenance, StandardSummary, StandardsLibrary, VersionChanges, VersionSummary } from '@shared/api/standards'
 import type { DecodedSeries } from '@/lib/series'
 import { http } from './http'
 import { getSeries } from './series'
 
-export type { StandardSource, StandardSummary, StandardsLibrary } from '@shared/api/standards'
+export type { StandardProvenance, StandardSource, StandardSummary, StandardsLibrary, VersionChanges } from '@shared/api/standards'
 /** A published (or draft) set of standards; suggestions record which one made them. */
 export type LibraryVersionSummary = VersionSummary
 
@@ -35,6 +35,9 @@ export function toVersion(raw: Raw): LibraryVersionSummary {
     publishedAt: iso(raw.publishedAt),
     publishedBy: num(raw.publishedBy),
     standardCount: num(raw.standardCount) ?? 0,
+    instrumentId: num(raw.instrumentId),
+    basedOnId: num(raw.basedOnId),
+    changes: raw.changes && typeof raw.changes === 'object' ? (raw.changes as VersionChanges) : null,
   }
 }
 
@@ -60,6 +63,8 @@ export function toStandard(raw: Raw): StandardSummary {
     retiredAt: iso(raw.retiredAt),
     createdAt: iso(raw.createdAt) ?? '',
     versionIds: Array.isArray(raw.versionIds) ? raw.versionIds.filter((v): v is number => typeof v === 'number') : [],
+    instrumentId: num(raw.instrumentId),
+    provenance: raw.provenance && typeof raw.provenance === 'object' ? (raw.provenance as StandardProvenance) : null,
   }
 }
 

@@ -7,6 +7,8 @@ import { useAsync } from './useAsync'
 export interface SpectraFilters {
   status: SpectrumStatus | null
   campaign: number | null
+  /** The instrument the spectra were taken with. */
+  instrument: number | null
   q: string
   /** Submitted between, as [from, to] in ms since the epoch. */
   submitted: [number, number] | null
@@ -14,13 +16,14 @@ export interface SpectraFilters {
   snrMax: number | null
 }
 
-export const emptySpectraFilters = (): SpectraFilters => ({ status: null, campaign: null, q: '', submitted: null, snrMin: null, snrMax: null })
+export const emptySpectraFilters = (): SpectraFilters => ({ status: null, campaign: null, instrument: null, q: '', submitted: null, snrMin: null, snrMax: null })
 
 /** The list request for a page, sort and filters; the end of the date range covers its whole day. */
 export function spectraQuery(page: number, pageSize: number, sort: SpectrumSort, f: SpectraFilters): SpectrumListQuery {
   const query: SpectrumListQuery = { page, pageSize, sort }
   if (f.status) query.status = f.status
   if (f.campaign !== null) query.campaign = f.campaign
+  if (f.instrument !== null) query.instrument = f.instrument
   if (f.q.trim()) query.q = f.q.trim()
   if (f.submitted) {
     query.from = new Date(f.submitted[0]).toISOString()

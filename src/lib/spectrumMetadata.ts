@@ -7,6 +7,8 @@ export interface MetadataDraft {
   dec: string
   obsDate: string | null
   instrument: string
+  /** The campaign's instrument record the spectrum was taken with. */
+  instrumentId: number | null
   resolutionKind: 'fwhm' | 'power'
   resolution: number | null
   vMag: number | null
@@ -14,6 +16,13 @@ export interface MetadataDraft {
   parallaxErrorMas: number | null
   ebv: number | null
   notes: string
+}
+
+/** An instrument of the campaign, as the metadata form offers it. */
+export interface InstrumentChoice {
+  id: number
+  name: string
+  resolutionFwhm: number | null
 }
 
 /** Why a typed right ascension or declination cannot be read; undefined when it can, or when it is empty. */

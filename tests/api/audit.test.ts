@@ -1,7 +1,7 @@
 import { randomBytes } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Campaign, Classification, LibraryVersion, Measurement, ReviewCall, Spectrum, Suggestion, type User } from '../../server/models'
-import { auditFigures, isoWeek, typeScale, type AuditCall, type AuditSpectrum } from '../../server/services/audit.service'
+import { auditFigures, isoWeek, suggestionAccuracy, typeScale, type AccuracyItem, type AuditCall, type AuditSpectrum } from '../../server/services/audit.service'
 import { weightedKappa } from '../../shared/agreement'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
 
@@ -155,6 +155,54 @@ describe('auditFigures', () => {
     const cells = r.confusion.callsVsConsensus.type.cells.flat()
     expect(cells.reduce((sum, c) => sum + c.count, 0)).toBe(2 * n)
     expect(new Set(cells.flatMap((c) => c.spectrumIds)).size).toBe(n)
+  })
+})
+
+describe('suggestionAccuracy', () => {
+  // Hand-made: four spectra of instrument 7 suggested by version A (January) and again by version B
+  // (February, after a promotion), one spectrum of no instrument.
+  const A = { id: 1, name: 'A', publishedAt: at('2025-01-01T00:00:00Z') }
+  const B = { id: 2, name: 'B', publishedAt: at('2025-02-01T00:00:00Z') }
+  const item = (spectrumId: number, version: typeof A, suggestion: [number, number], decision: [number, number], ownShare: number | null, instrument: number | null = 7): AccuracyItem => ({
+    spectrumId,
+    instrument: { id: instrument, name: instrument === null ? 'No instrument' : 'Spectrograph 7' },
+    version,
+    madeAt: version === A ? at('2025-01-08T12:00:00Z') : at('2025-02-05T12:00:00Z'),
+    suggestion: { typeCode: suggestion[0], classCode: suggestion[1] },
+    decision: { typeCode: decision[0], classCode: decision[1] },
+    ownShare,
+  })
+  const r = suggestionAccuracy([
+    // Version B (listed first) must still come second: versions go in the order they were published.
+    item(1, B, [50, 4], [50, 4], 0.9),
+    item(2, B, [43, 4], [42, 4], 0.5),
+    item(3, B, [21, 6], [20, 6], 0.2),
+    item(4, B, [55, 5], [52, 4], 0.8),
+    item(1, A, [52, 4], [50, 4], 0),
+    item(2, A, [42, 5], [42, 4], 0),
+    item(3, A, [20, 6], [20, 6], 0),
+    item(4, A, [55, 4], [52, 4], 0),
+    item(9, A, [30, 6], [30, 6], null, null),
+  ])
+
+  it('scores each version of an instrument against the decisions, in the order published, with the change from the one before', () => {
+    expect(r.instruments.map((i) => i.instrument.name)).toEqual(['Spectrograph 7', 'No instrument'])
+    const [a, b] = r.instruments[0]!.versions
+    // A: |Δtype| 2, 0, 0, 3 → 2 of 4 within one subtype; classes 4/4, 5/4, 6/6, 4/4 → 3 of 4 exact.
+    expect(a).toMatchObject({ version: { name: 'A' }, n: 4, withinOneSubtype: { value: 0.5 }, exactClass: { value: 0.75 }, ownShare: { value: 0 }, change: { withinOneSubtype: null, exactClass: null } })
+    // B: |Δtype| 0, 1, 1, 3 → 3 of 4; classes 4/4, 4/4, 6/6, 5/4 → 3 of 4; own share (0.9 + 0.5 + 0.2 + 0.8) / 4 = 0.6.
+    expect(b).toMatchObject({ version: { name: 'B' }, n: 4, withinOneSubtype: { value: 0.75 }, exactClass: { value: 0.75 }, change: { withinOneSubtype: 25, exactClass: 0 } })
+    expect(b!.ownShare.value).toBeCloseTo(0.6, 12)
+    expect(a!.withinOneSubtype.smallSample).toBe(true)
+  })
+
+  it('follows each instrument week by week, naming the versions that made the suggestions', () => {
+    expect(r.instruments[0]!.byWeek.map((w) => [w.week, w.versions, w.n])).toEqual([
+      ['2025-W02', ['A'], 4],
+      ['2025-W06', ['B'], 4],
+    ])
+    expect(r.instruments[1]!.versions).toHaveLength(1)
+    expect(r.instruments[1]!.versions[0]!.ownShare).toEqual({ value: null, n: 0, smallSample: true })
   })
 })
 

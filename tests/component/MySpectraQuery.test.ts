@@ -10,13 +10,14 @@ describe('spectraQuery and listQueryParams', () => {
   it('turns every filter into its query parameter, the date range ending with its last day', () => {
     const from = Date.UTC(2026, 2, 1)
     const to = Date.UTC(2026, 2, 14)
-    const query = spectraQuery(3, 50, 'snr', { status: 'failed', campaign: 2, q: '  KR-04 ', submitted: [from, to], snrMin: 20, snrMax: 150 })
+    const query = spectraQuery(3, 50, 'snr', { status: 'failed', campaign: 2, instrument: 5, q: '  KR-04 ', submitted: [from, to], snrMin: 20, snrMax: 150 })
     expect(listQueryParams(query)).toEqual({
       page: 3,
       pageSize: 50,
       sort: 'snr',
       status: 'failed',
       campaign: 2,
+      instrument: 5,
       q: 'KR-04',
       from: '2026-03-01T00:00:00.000Z',
       to: '2026-03-14T23:59:59.999Z',

@@ -25,6 +25,7 @@ function suggestion(overrides: Partial<SpectrumSuggestion> = {}): SpectrumSugges
     classCode: 2,
     uncertainty: { subtypes: 0.5, classes: 0.25 },
     details: null,
+    instrumentId: null,
     bestStandardId: 44,
     candidates: [
       { standardId: 44, spectralType: 'B5 Ib', source: 'model', chi2: 1302.31, reducedChi2: 0.4995, scale: 0.9986, probability: 0.97 },

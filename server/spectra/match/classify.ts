@@ -131,6 +131,8 @@ export interface MatchResult {
   reducedChi2: number
   /** Rms residual of the best fit in the region (continuum units), and what is usual for a normal star of this type. */
   residual: { rms: number; typical: number | null }
+  /** The standards that voted, best fit first, with their shares of the type vote and of the class vote. */
+  voters: { standardId: number; typeShare: number; classShare: number }[]
 }
 
 /** Class codes and their text; half steps are the intermediate classes. */
@@ -141,6 +143,8 @@ export const classText = (code: number): string => CLASS_TEXT[String(code)] ?? S
 interface Scratch {
   flux: Float64Array
   weights: Float64Array
+  /** Each pixel's noise variance (before the model-error floor). */
+  noise: Float64Array
   coarseFlux: Float64Array
   coarseWeights: Float64Array
 }
@@ -152,6 +156,7 @@ function scratchFor(library: PreparedMatchLibrary): Scratch {
     s = {
       flux: new Float64Array(library.pixels),
       weights: new Float64Array(library.pixels),
+      noise: new Float64Array(library.pixels),
       coarseFlux: new Float64Array(library.coarsePixels),
       coarseWeights: new Float64Array(library.coarsePixels),
     }
@@ -164,7 +169,7 @@ function scratchFor(library: PreparedMatchLibrary): Scratch {
  * Fills the scratch flux and weights over the library span: w = 1/(σ² + (modelError·f)²), σ from
  * the errors or 1/S/N, 0 outside the region or where masked. Returns the region's [from, to) range.
  */
-export function fillWeights(library: PreparedMatchLibrary, input: MatchInput, region: readonly [number, number], modelError: number, s: { flux: Float64Array; weights: Float64Array }): [number, number] {
+export function fillWeights(library: PreparedMatchLibrary, input: MatchInput, region: readonly [number, number], modelError: number, s: { flux: Float64Array; weights: Float64Array; noise?: Float64Array }): [number, number] {
   const { wavelength, offset, pixels } = library
   const from = lowerBound(wavelength, region[0])
   const to = lowerBound(wavelength, region[1])
@@ -183,6 +188,7 @@ export function fillWeights(library: PreparedMatchLibrary, input: MatchInput, re
     const sigma = e !== undefined && Number.isFinite(e) && e > 0 ? e : snrSigma
     const f2 = f * f
     s.weights[i] = 1 / (sigma * sigma + m2 * (f2 > 0.01 ? f2 : 0.01))
+    if (s.noise) s.noise[i] = sigma * sigma
   }
   return [from, to]
 }
@@ -213,6 +219,7 @@ export function fitLevel(library: PreparedMatchLibrary, level: LibraryLevel, s: 
     depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, from, to, all, n, chi2, scale, used)
     exact.fill(1)
     leaveOut(level, library, chi2, exclude)
+    removeStandardNoise(level, library, s, from, to, chi2, used, all)
     return { chi2, scale, used, exact }
   }
   const step = library.coarseStep
@@ -229,11 +236,53 @@ export function fitLevel(library: PreparedMatchLibrary, level: LibraryLevel, s: 
     used[k] = good
   }
   leaveOut(level, library, chi2, exclude)
+  removeStandardNoise(level, library, s, from, to, chi2, used, all)
   const order = Array.from({ length: n }, (_, k) => k).sort((a, b) => chi2[a]! - chi2[b]!)
   const list = Int32Array.from(order.slice(0, refineCount).filter((k) => Number.isFinite(chi2[k]!)))
   depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, from, to, list, list.length, chi2, scale, used)
   for (const k of list) exact[k] = 1
+  removeStandardNoise(level, library, s, from, to, chi2, used, list)
   return { chi2, scale, used, exact }
+}
+
+/**
+ * Takes out of the χ² of `rows` what their standards' own noise adds, where a standard carries its
+ * S/N (one made from a team's spectrum, MatchStandardInput.snr): per pixel, its nominal variance
+ * 1/S/N² times the pixel's weight, times ν, the share of the nominal variance that is left once
+ * spectra are resampled and smoothed to the level. ν is read off the spectrum itself: the χ² per
+ * pixel of the best noise-free standard over the spectrum's own Σ w σ² (its noise plus any
+ * mismatch, so an upper bound), kept to 0.2–1. The χ² keeps at least a fifth of its value. Without
+ * it a noisy standard of the right type ranks below a clean one of the wrong type. Standards
+ * without an S/N are unchanged.
+ */
+function removeStandardNoise(level: LibraryLevel, library: PreparedMatchLibrary, s: Scratch, from: number, to: number, chi2: Float64Array, used: Float64Array, rows: ArrayLike<number>): void {
+  const snrOf = (r: number) => library.standards[level.rows[r]!]!.snr ?? 0
+  let noisy = false
+  for (let r = 0; r < level.rows.length && !noisy; r++) if (snrOf(r) > 0) noisy = true
+  if (!noisy) return
+  let sw = 0
+  let swn = 0
+  let m = 0
+  for (let i = from; i < to; i++) {
+    const w = s.weights[i]!
+    if (w > 0) {
+      sw += w
+      swn += w * s.noise[i]!
+      m++
+    }
+  }
+  if (m === 0) return
+  let clean = Infinity
+  for (let r = 0; r < level.rows.length; r++) if (!(snrOf(r) > 0) && used[r]! > 0 && Number.isFinite(chi2[r]!)) clean = Math.min(clean, chi2[r]! / used[r]!)
+  const nu = Number.isFinite(clean) && swn > 0 ? Math.min(1, Math.max(0.2, clean / (swn / m))) : 1
+  const meanWeight = sw / m
+  for (let q = 0; q < rows.length; q++) {
+    const r = rows[q]!
+    const snr = snrOf(r)
+    const c = chi2[r]!
+    if (!(snr > 0) || !Number.isFinite(c)) continue
+    chi2[r] = Math.max(c - (nu * used[r]! * meanWeight) / (snr * snr), c / 5)
+  }
 }
 
 /** Sets χ² to Infinity for the rows of excluded standards. */
@@ -436,6 +485,7 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
     levelFwhm: level.fwhm,
     reducedChi2: round(reduced(best), 4),
     residual: { rms: round(rms, 5), typical: typical === null ? null : round(typical, 5) },
+    voters: voters.map((r, q) => ({ standardId: std(r).id, typeShare: round(typeWeights[q]!, 5), classShare: round(classWeights[q]!, 5) })),
   }
 }
 

@@ -33,6 +33,16 @@ export interface MatchStandardInput {
   continuum?: ArrayLike<number>
   /** Resolution of `rectified`, FWHM Å. */
   resolutionFwhm: number
+  /**
+   * The instrument whose own standard this is (a team's agreed spectrum promoted for its
+   * instrument), or null/absent for a standard every spectrum is matched against (instrument.ts).
+   */
+  instrumentId?: number | null
+  /**
+   * S/N per pixel of the standard's own spectrum, where its noise is not negligible (a team's
+   * spectrum); the matcher takes that noise out of its χ². Absent for the shipped standards.
+   */
+  snr?: number | null
 }
 
 export interface MatchLibraryOptions {
@@ -226,7 +236,7 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
 }
 
 /** Residual of each row against its nearest other row (another star), on the coarse pixels of 3900–5500 Å. */
-function fillNeighbourResiduals(level: LibraryLevel, standards: readonly MatchStandardInfo[], wavelength: Float64Array, step: number, cp: number): void {
+export function fillNeighbourResiduals(level: LibraryLevel, standards: readonly MatchStandardInfo[], wavelength: Float64Array, step: number, cp: number): void {
   const n = level.rows.length
   let from = 0
   while (from < cp && wavelength[from * step]! < 3900) from++
