@@ -9,6 +9,7 @@ import * as m0008 from './0008-observed-standards'
 import * as m0009 from './0009-workflow'
 import * as m0010 from './0010-reading-corrections'
 import * as m0012 from './0012-stored-files-and-leases'
+import * as m0030 from './0030-api-tokens'
 
 export interface Migration {
   name: string
@@ -28,4 +29,5 @@ export const migrations: Migration[] = [
   { name: '0009-workflow', ...m0009 },
   { name: '0010-reading-corrections', ...m0010 },
   { name: '0012-stored-files-and-leases', ...m0012 },
+  { name: '0030-api-tokens', ...m0030 },
 ]

@@ -1,17 +1,7 @@
-import { auditQuery } from '../schemas/audit.schemas'
+import { auditApi } from '../../shared/api/audit'
 import { getAudit } from '../services/audit.service'
-import { LEAD, defineRoutes } from './route'
+import { LEAD, route } from './route'
 
 export function auditRoutes() {
-  return defineRoutes([
-    {
-      method: 'get',
-      path: '/audit',
-      access: LEAD,
-      schema: { query: auditQuery },
-      handler: async (_req, res) => {
-        res.json({ audit: await getAudit(res.locals.query) })
-      },
-    },
-  ])
+  return [route(auditApi.report, { access: LEAD, handler: async ({ query }) => ({ audit: await getAudit(query) }) })]
 }

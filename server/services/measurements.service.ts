@@ -5,7 +5,7 @@ import { decimateMinMax } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, type User } from '../models'
 import type { AppContext } from '../context'
-import { findVisibleSpectrum } from './spectra.service'
+import { findVisibleSpectrum } from './visibility'
 import type { LineRow, MeasurementSummary, SpectrumMeasurements } from '../../shared/api/measurements'
 
 export type { LineRow, MeasurementSummary }

@@ -4,7 +4,7 @@ import { HttpError } from '../lib/http-error'
 import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
 import { OPEN_FOR_CALLS, namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView } from './review.service'
-import { findVisibleSpectrum } from './spectra.service'
+import { findVisibleSpectrum } from './visibility'
 import type { QueueItem, QueueOrder, QueuePage } from '../../shared/api/queue'
 
 export type { QueueItem, QueueOrder }

@@ -6,7 +6,7 @@ import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
 import { Campaign, Classification, Dispute, ReviewCall, ReviewClaim, Spectrum, Suggestion, User, type Agreement, type ClassificationSource } from '../models'
 import { measurementsOf } from './measurements.service'
-import { findVisibleSpectrum } from './spectra.service'
+import { findVisibleSpectrum } from './visibility'
 import type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInput, RecordCallResult, ReviewCampaign, ReviewView, SuggestionView } from '../../shared/api/review'
 
 export type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInput, RecordCallResult, ReviewCampaign, ReviewView, SuggestionView }
@@ -461,7 +461,7 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
           notes: input.notes ?? '',
           confidence: input.confidence,
           uncertain: (input.uncertain ?? false) || parsed.uncertain,
-          acceptedSuggestion: input.acceptedSuggestion,
+          acceptedSuggestion: input.acceptedSuggestion ?? false,
           suggestionId: suggestion?.id ?? null,
           suggestionShown: shown,
           secondsSpent: seconds,
