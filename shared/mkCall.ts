@@ -47,19 +47,19 @@ export function checkCallText(spectralType: string, luminosityClass: string, pec
   if (typeText === '') errors.spectralType = 'write a spectral type, e.g. B8 or K1.5'
   else {
     const typeOnly = parseMK(typeText)
-    if (!typeOnly.ok) errors.spectralType = `cannot be read: ${typeOnly.reason}`
+    if (!typeOnly.ok) errors.spectralType = `not a spectral type: ${typeOnly.reason}`
     else if (typeOnly.value.kind !== 'mk' || !CALL_LETTERS.includes(typeOnly.value.letter)) errors.spectralType = `use an MK letter ${CALL_LETTERS.join(' ')} with a subtype, e.g. B8 or K1.5`
     else if (typeOnly.value.typeCode === undefined) errors.spectralType = `add a subtype, e.g. ${typeOnly.value.letter}5`
     else if (typeOnly.value.luminosityClass !== undefined) errors.spectralType = 'give the luminosity class in its own field'
     else if (typeOnly.value.peculiarities.length > 0) errors.spectralType = 'write peculiarity notes in their own field'
   }
   if (classText === '') errors.luminosityClass = 'choose a luminosity class, e.g. V or III'
-  else if (classCodeOf(classText) === undefined) errors.luminosityClass = `is not a luminosity class; use ${LUMINOSITY_CLASSES.map((c) => c.text).join(', ')} (or IV-V, IIIb …)`
+  else if (classCodeOf(classText) === undefined) errors.luminosityClass = `not a luminosity class; use ${LUMINOSITY_CLASSES.map((c) => c.text).join(', ')} (or IV-V, IIIb …)`
   if (errors.spectralType || errors.luminosityClass) return { ok: false, errors }
 
   const field: CallTextField = notes ? 'peculiarities' : 'luminosityClass'
   const full = parseMK(`${typeText}${uncertain && !typeText.endsWith(':') ? ':' : ''} ${classText} ${notes}`.trim())
-  if (!full.ok) return { ok: false, errors: { [field]: `cannot be read: ${full.reason.replace(/ at character \d+$/, '')}` } }
+  if (!full.ok) return { ok: false, errors: { [field]: `cannot read the ${notes ? 'notes' : 'class'}: ${full.reason.replace(/ at character \d+$/, '')}` } }
   const v = full.value
   if (v.composite) return { ok: false, errors: { [field]: 'a composite spectrum goes in the free note' } }
   if (v.typeCode === undefined || v.classCode === undefined || v.luminosityClass === undefined) return { ok: false, errors: { [field]: 'does not leave a type and a luminosity class' } }

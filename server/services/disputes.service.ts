@@ -2,7 +2,8 @@ import { Op, UniqueConstraintError, type WhereOptions } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError, notFound } from '../lib/http-error'
 import { Campaign, Classification, Dispute, DisputeAction, ReviewCall, Spectrum, Suggestion, type User } from '../models'
-import { namesOf, notifySubmitter, parseCallType, standingCalls, toCallView, toFinalClassification, toSuggestionView } from './review.service'
+import { parseCallType } from '../review/consensus'
+import { namesOf, notifySubmitter, standingCalls, toCallView, toFinalClassification, toSuggestionView } from './review.service'
 import type { DisputeActionInput, DisputeState, DisputeView, SettleInput } from '../../shared/api/disputes'
 
 export type { DisputeActionInput, DisputeState, DisputeView, SettleInput }

@@ -103,16 +103,18 @@ const when = z
   .max(40)
   .refine((v) => !Number.isNaN(Date.parse(DATE_ONLY.test(v) ? `${v}T00:00:00Z` : v)), { message: 'must be a date, e.g. 2026-03-14' })
 
-/** `to` is inclusive: a bare date covers that whole day. */
-export const AuditQuery = z
-  .object({
+/** The audit's query string as sent; `to` is inclusive: a bare date covers that whole day. */
+export const AuditQueryFields = z.object({
     campaign: z.coerce.number({ message: 'choose a campaign' }).int().positive({ message: 'choose a campaign' }),
     /** First day (UTC), YYYY-MM-DD or a date-time. */
     from: when.optional(),
     /** Last day (UTC), inclusive. */
     to: when.optional(),
-  })
-  .transform((q) => ({
+})
+export type AuditQueryFields = z.infer<typeof AuditQueryFields>
+
+/** The query read into a campaign id and a half-open range of instants. */
+export const AuditQuery = AuditQueryFields.transform((q) => ({
     campaignId: q.campaign,
     from: q.from ? new Date(DATE_ONLY.test(q.from) ? `${q.from}T00:00:00Z` : q.from) : undefined,
     to: q.to ? (DATE_ONLY.test(q.to) ? new Date(Date.parse(`${q.to}T00:00:00Z`) + 86_400_000) : new Date(q.to)) : undefined,
