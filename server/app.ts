@@ -30,6 +30,8 @@ export function trustProxy(value: string | undefined): boolean | number | string
 export interface AppOptions {
   /** Serve the built client from this folder (index.html fallback for client routes). */
   clientDir?: string
+  /** Hears every JSON answer of the API with the route that gave it (tests check them against the OpenAPI document). */
+  observeJson?: (answer: { method: string; route: string | null; status: number; body: unknown }) => void
 }
 
 /** Builds the Express app without listening, so tests can drive it through supertest. */
@@ -90,6 +92,17 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
   })
 
   const api = express.Router()
+  const observe = options.observeJson
+  if (observe) {
+    api.use((req, res, next) => {
+      const json = res.json.bind(res)
+      res.json = (body: unknown) => {
+        observe({ method: req.method.toLowerCase(), route: (req.route as { path?: string } | undefined)?.path ?? null, status: res.statusCode, body })
+        return json(body)
+      }
+      next()
+    })
+  }
   api.use(express.json({ limit: '1mb' }))
   // A personal API token signs the request in by itself: no session, no session lifetime, no CSRF token.
   api.use(bearerAuth)
