@@ -14,8 +14,6 @@ import type { StandardSummary, StandardsLibrary, VersionSummary } from '../../sh
 
 export type { StandardSummary, VersionSummary }
 
-/** Name of the version made from the shipped observed library: the default standards. */
-export const DEFAULT_VERSION_NAME = 'observed-v1'
 /** Name of the version made from the model library, the default before the observed library. */
 export const MODEL_VERSION_NAME = 'model-v1'
 

@@ -60,5 +60,3 @@ export type PersonRef = z.infer<typeof PersonRef>
 export const CampaignRef = z.object({ id: z.number().int(), code: z.string(), name: z.string() }).meta({ id: 'CampaignRef' })
 export type CampaignRef = z.infer<typeof CampaignRef>
 
-/** ISO 8601 date-time, UTC. */
-export const isoDate = z.string().meta({ format: 'date-time' })

@@ -1,4 +1,4 @@
-import { releasesApi, type CellValue, type ExportColumn, type ExportFormat, type ExportRow, type FreezeInput as FreezeBody, type ReleaseDetail as ReleasePage, type ReleasePreview, type ReleaseSummary, type TableParam } from '@shared/api/releases'
+import { releasesApi, type ExportColumn, type ExportFormat, type ExportRow, type FreezeInput as FreezeBody, type ReleaseDetail as ReleasePage, type ReleasePreview, type ReleaseSummary } from '@shared/api/releases'
 import { call } from './http'
 
 export type { ReleasePreview, ReleaseSummary }
@@ -14,8 +14,6 @@ export const DOWNLOAD_FORMATS = [
 export type DownloadFormat = ExportFormat
 
 export type ReleaseColumn = ExportColumn
-export type ReleaseParam = TableParam
-export type ReleaseCell = CellValue
 export type ReleaseRow = ExportRow
 
 /** A release with all its rows. */

@@ -2,7 +2,6 @@ import { historyApi, type HistoryEvent, type SpectrumHistory } from '@shared/api
 import type { LineRow } from '@shared/api/measurements'
 import {
   spectraApi,
-  type ReadMeta,
   type SpectrumCorrectionInput,
   type SpectrumDetail,
   type SpectrumList,
@@ -21,8 +20,6 @@ export type { MeasurementSummary, SpectrumMeasurements } from '@shared/api/measu
 export type { FileResult, HeaderValue, ReadChoices, ReadDecisions, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumPage, SpectrumSort, SpectrumSortField, SubmitReply, WavelengthUnitChoice } from '@shared/api/spectra'
 export type { SpectrumSuggestions } from '@shared/api/suggestions'
 
-/** What the reader learned from the file. */
-export type ReadInfo = ReadMeta
 /** One classification line's measurement; unmeasured lines carry a reason and nulls, never zeros. */
 export type LineMeasurement = LineRow
 /** The pipeline's suggested classification; candidates and votes are read leniently (see composables/useSpectrumSuggestion.ts). */
@@ -42,16 +39,6 @@ export interface SuggestionCandidate {
   reducedChi2: number
   scale?: number
   probability: number
-}
-
-/** One luminosity criterion and the class it prefers; `standards` holds its value at each class's standard. */
-export interface SuggestionVote {
-  criterion: string
-  name: string
-  value: number | null
-  vote: string | null
-  standards?: Record<string, number>
-  note?: string
 }
 
 /** A list request as the screens build it (server: SpectrumListQuery); empty filters are left out when sent. */
