@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { parseDeclination, parseRightAscension } from '../coords'
 import { SPECTRUM_STATUSES } from '../status'
 import { CampaignRef, PersonRef, campaignRef, idParams, multiLine, numeric, paging, singleLine } from './common'
-import { MessageReply, binaryBody, endpoint } from './endpoint'
+import { ErrorBody, MessageReply, binaryBody, endpoint } from './endpoint'
 import { SpectrumMeasurements } from './measurements'
 import { FinalClassification } from './review'
 import { SpectrumSuggestions } from './suggestions'
@@ -306,7 +306,12 @@ export const spectraApi = {
     multipart: true,
     body: SubmitFields,
     response: SubmitReply,
-    otherResponses: { 422: { description: 'No files were sent (the reply still carries the per-file results).', schema: SubmitReply.extend({ error: z.object({ code: z.string(), message: z.string(), details: z.null() }) }) } },
+    otherResponses: {
+      422: {
+        description: 'Fields not valid, or no files sent (then the reply also carries the empty per-file results).',
+        schema: z.union([ErrorBody, SubmitReply.extend({ error: z.object({ code: z.literal('no_files'), message: z.string(), details: z.null() }) })]),
+      },
+    },
   }),
   known: endpoint({ method: 'post', path: '/spectra/known', tag: 'Spectra', summary: 'Which of these files (by SHA-256) the campaign already holds', body: KnownFilesInput, response: KnownFiles }),
   list: endpoint({ method: 'get', path: '/spectra', tag: 'Spectra', summary: 'Spectra the caller may see, a page at a time', query: SpectrumListQuery, response: SpectrumList }),
