@@ -73,6 +73,6 @@ export function openApiDocument(routes: RouteDef[], version: string): oas31.Open
       },
       paths,
     },
-    { reused: 'ref' },
+    { reused: 'inline' },
   )
 }

@@ -105,10 +105,12 @@ export function typeLabel(doc: OpenApiDoc, schema: JsonSchema): string {
 /** Limits worth reading next to a field: bounds, lengths, pattern, default. */
 export function constraintsOf(schema: JsonSchema): string[] {
   const out: string[] = []
-  if (schema.minimum !== undefined) out.push(`≥ ${schema.minimum}`)
-  if (schema.exclusiveMinimum !== undefined) out.push(`> ${schema.exclusiveMinimum}`)
-  if (schema.maximum !== undefined) out.push(`≤ ${schema.maximum}`)
-  if (schema.minLength !== undefined && schema.minLength > 0) out.push(`at least ${schema.minLength} characters`)
+  // Whole numbers carry the safe-integer bounds of JavaScript; they say nothing to a reader.
+  const told = (v: number | undefined): v is number => v !== undefined && Math.abs(v) < Number.MAX_SAFE_INTEGER
+  if (told(schema.minimum)) out.push(`≥ ${schema.minimum}`)
+  if (told(schema.exclusiveMinimum)) out.push(`> ${schema.exclusiveMinimum}`)
+  if (told(schema.maximum)) out.push(`≤ ${schema.maximum}`)
+  if (schema.minLength !== undefined && schema.minLength > 0) out.push(schema.minLength === 1 ? 'not empty' : `at least ${schema.minLength} characters`)
   if (schema.maxLength !== undefined) out.push(`at most ${schema.maxLength} characters`)
   if (schema.maxItems !== undefined) out.push(`at most ${schema.maxItems} items`)
   if (schema.pattern) out.push(`matches ${schema.pattern}`)
