@@ -1,5 +1,5 @@
 /** The one fetch wrapper: JSON in and out, same-origin cookies, CSRF token on every non-GET, typed errors. */
-import { fillPath, type Endpoint, type RequestOf, type ResponseOf } from '@shared/api/endpoint'
+import { ErrorBody, fillPath, type Endpoint, type RequestOf, type ResponseOf } from '@shared/api/endpoint'
 
 export interface ApiErrorDetails {
   fields?: Record<string, string>
@@ -94,11 +94,10 @@ async function errorFrom(response: Response): Promise<ApiError> {
   } catch {
     // Not JSON (a proxy page, an empty body): fall back to the status line.
   }
-  const err = (body as { error?: { code?: unknown; message?: unknown; details?: unknown } } | null)?.error
-  if (err && typeof err.code === 'string') {
-    const message = typeof err.message === 'string' ? err.message : response.statusText
-    const details = err.details && typeof err.details === 'object' ? (err.details as ApiErrorDetails) : null
-    return new ApiError(response.status, err.code, message, details)
+  const parsed = ErrorBody.safeParse(body)
+  if (parsed.success) {
+    const { code, message, details } = parsed.data.error
+    return new ApiError(response.status, code, message || response.statusText, (details as ApiErrorDetails | null) ?? null)
   }
   return new ApiError(response.status, `http_${response.status}`, response.statusText || `The server answered ${response.status}.`)
 }

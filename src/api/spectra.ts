@@ -6,6 +6,7 @@ import {
   type SpectrumDetail,
   type SpectrumList,
   type SpectrumListQuery as ListQueryFields,
+  type SeriesQuery,
   type SpectrumSort,
   type SubmitFields as SubmitFieldsOf,
   type SubmitReply,
@@ -78,11 +79,8 @@ export const getSpectrumHistory = (id: number): Promise<SpectrumHistory> => call
 
 export const processSpectrumAgain = (id: number) => call(spectraApi.process, { params: { id } })
 
-export interface SeriesRange {
-  from?: number
-  to?: number
-  maxPoints?: number
-}
+/** A window of a series and the most points to send (server: SeriesQuery). */
+export type SeriesRange = Partial<SeriesQuery>
 
 function seriesQuery(range: SeriesRange): Record<string, string> {
   const query: Record<string, string> = {}
