@@ -3,7 +3,7 @@ import { agreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa }
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { Campaign, Classification, LibraryVersion, ReviewCall, Spectrum, Suggestion, User } from '../models'
-import type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef } from '../../shared/api/audit'
+import type { AgreementFigures, AuditFigures, AuditQuery, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef } from '../../shared/api/audit'
 
 export type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef }
 
@@ -309,13 +309,8 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
 // Loading
 // ---------------------------------------------------------------------------------------------
 
-export interface AuditQuery {
-  campaignId: number
-  /** Calls made on or after this time. */
-  from?: Date
-  /** Calls made before this time. */
-  to?: Date
-}
+/** The audit query as parsed: a campaign id and a half-open range of instants (shared/api/audit.ts). */
+export type { AuditQuery }
 
 /** The audit of one campaign over a date range, from the stored calls, suggestions and decisions. */
 export async function getAudit(query: AuditQuery): Promise<AuditReport> {

@@ -5,25 +5,14 @@ import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } fr
 import { campaignIdsOf } from './campaigns.service'
 import { OPEN_FOR_CALLS, namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView } from './review.service'
 import { findVisibleSpectrum } from './visibility'
-import type { QueueItem, QueueOrder, QueuePage } from '../../shared/api/queue'
+import type { QueueItem, QueueOrder, QueuePage, QueueQuery } from '../../shared/api/queue'
 
 export type { QueueItem, QueueOrder }
 
 /** How long a claim holds an item before it lapses by itself. */
 export const CLAIM_MINUTES = 10
 
-export interface QueueQuery {
-  campaign?: number
-  /** Items whose suggestion carries every one of these flags. */
-  flags?: string[]
-  /** Suggested type code range; blind-review items are left out when it is given, since it would reveal them. */
-  typeFrom?: number
-  typeTo?: number
-  snrMin?: number
-  snrMax?: number
-  order: QueueOrder
-  limit: number
-}
+export type { QueueQuery }
 
 /** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
 const sqlTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ')

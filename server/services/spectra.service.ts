@@ -20,7 +20,7 @@ import { estimateSpectrumSnr } from '../spectra/prepare/snr'
 import { campaignForSubmission } from './campaigns.service'
 import { findVisibleSpectrum, visibilityWhere } from './visibility'
 import { finalClassificationsFor, type FinalClassification } from './review.service'
-import type { FileResult, KnownFiles, KnownFilesInput, ReadChoices, SpectrumCorrectionInput, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumListQuery, SpectrumMetadataInput, SubmitFields } from '../../shared/api/spectra'
+import type { FileResult, KnownFiles, KnownFilesInput, ReadChoices, SeriesQuery, SpectrumCorrectionInput, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumListQuery, SpectrumMetadataInput, SubmitFields } from '../../shared/api/spectra'
 
 export type { FileResult, SpectrumDetail, SpectrumListItem }
 
@@ -555,7 +555,7 @@ export interface SeriesPayload {
 }
 
 /** The observed arrays between from and to (Å), decimated to maxPoints, as float32 columns. */
-export async function getSpectrumSeries(user: User, id: number, q: { from?: number; to?: number; maxPoints: number }): Promise<SeriesPayload> {
+export async function getSpectrumSeries(user: User, id: number, q: SeriesQuery): Promise<SeriesPayload> {
   await findVisibleSpectrum(user, id)
   const blob = await SpectrumBlob.findByPk(id, { attributes: ['wavelength', 'flux', 'error', 'mask'] })
   if (!blob) throw notFound('The spectrum data')

@@ -10,7 +10,7 @@ import { HttpError, notFound } from '../lib/http-error'
 import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, Suggestion, type User } from '../models'
 import { replaceModelsByObserved } from '../spectra/match'
 import { resolutionFwhm } from '../spectra/pipeline'
-import type { StandardSummary, StandardsLibrary, VersionSummary } from '../../shared/api/standards'
+import type { AddStandardInput, PublishVersionInput, StandardSummary, StandardsLibrary, VersionSummary } from '../../shared/api/standards'
 
 export type { StandardSummary, VersionSummary }
 
@@ -155,14 +155,7 @@ function toStandardSummary(s: Standard, versionIds: number[]): StandardSummary {
   }
 }
 
-export interface AddStandardInput {
-  spectrumId: number
-  /** Spectral type, e.g. "A0" (a class written here must agree with `luminosityClass`). */
-  spectralType: string
-  luminosityClass: string
-  /** Where the classification comes from. */
-  note: string
-}
+export type { AddStandardInput }
 
 /**
  * Adds an observed standard: the spectrum's current rectified measurement is copied into the
@@ -224,7 +217,7 @@ export async function retireStandard(id: number): Promise<StandardSummary> {
  * Publishes a new version from the standards that are not retired (observed standards replace
  * model ones of the same type and class) and makes it the active one.
  */
-export async function publishVersion(sequelize: Sequelize, user: User, input: { name: string; description: string }): Promise<VersionSummary> {
+export async function publishVersion(sequelize: Sequelize, user: User, input: PublishVersionInput): Promise<VersionSummary> {
   if (await LibraryVersion.findOne({ where: { name: input.name } })) throw new HttpError(409, 'name_taken', `A version named "${input.name}" already exists.`)
   const live = await Standard.findAll({ where: { retiredAt: null }, attributes: ['id', 'source', 'typeCode', 'classCode'] })
   const kept = replaceModelsByObserved(live)

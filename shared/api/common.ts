@@ -45,6 +45,7 @@ export const paging = {
   pageSize: z.coerce.number().int().min(1).max(200).default(25),
 }
 export const pagingQuery = z.object(paging)
+export type Paging = z.infer<typeof pagingQuery>
 
 /** '' and null in a query string or form mean "not given". */
 export const emptyToUndefined = (v: unknown) => (v === '' || v === null ? undefined : v)

@@ -124,6 +124,8 @@ export const FreezeInput = z.object({
   includeDecider,
 })
 export type FreezeInput = z.infer<typeof FreezeInput>
+/** A freeze as the screens and the service take it: authors and the decider column may be left to their defaults. */
+export type ReleaseInput = Pick<FreezeInput, 'campaignId' | 'title' | 'description'> & Partial<Pick<FreezeInput, 'authors' | 'includeDecider'>>
 
 export const SupersedeInput = z.object({ title, description, authors, includeDecider })
 export type SupersedeInput = z.infer<typeof SupersedeInput>

@@ -1,4 +1,4 @@
-import { releasesApi, type ExportColumn, type ExportFormat, type ExportRow, type FreezeInput as FreezeBody, type ReleaseDetail as ReleasePage, type ReleasePreview, type ReleaseSummary } from '@shared/api/releases'
+import { releasesApi, type ExportColumn, type ExportFormat, type ExportRow, type ReleaseInput, type ReleaseDetail as ReleasePage, type ReleasePreview, type ReleaseSummary } from '@shared/api/releases'
 import { call } from './http'
 
 export type { ReleasePreview, ReleaseSummary }
@@ -19,8 +19,8 @@ export type ReleaseRow = ExportRow
 /** A release with all its rows. */
 export type ReleaseDetail = Omit<ReleasePage, 'page' | 'pageSize'>
 
-/** Name who decided each row (off for privacy); authors and description may be left out. */
-export type FreezeInput = Pick<FreezeBody, 'campaignId' | 'title' | 'description'> & Partial<Pick<FreezeBody, 'authors' | 'includeDecider'>>
+/** Authors and the decider column (off for privacy) may be left to their defaults. */
+export type FreezeInput = ReleaseInput
 
 /** What freezing the campaign now would give. */
 export const previewRelease = async (campaignId: number, includeDecider: boolean): Promise<ReleasePreview> =>
