@@ -118,14 +118,21 @@ async function submit(client: LineweightClient, argv: string[], out: NodeJS.Writ
     outcomes.push({ file: f.path, outcome: 'skipped', spectrumId: id, message: `already on the server${id ? ` (spectrum #${id})` : ''}` })
     return false
   })
-  const report = (o: Outcome) => {
-    outcomes.push(o)
-    out.write(`${o.outcome}\t${o.spectrumId ?? ''}\t${o.file}${o.outcome === 'accepted' ? '' : `\t${o.message}`}\n`)
-  }
-  for (const o of outcomes) out.write(`${o.outcome}\t${o.spectrumId ?? ''}\t${o.file}\t${o.message}\n`)
-
   const totalBytes = todo.reduce((s, f) => s + f.size, 0)
   const tty = Boolean(err.isTTY)
+  // Lines for a terminal that also shows the bar wait until the bar is done; lines for a file or pipe go at once.
+  const held: string[] = []
+  const holdLines = tty && Boolean((out as NodeJS.WriteStream).isTTY)
+  const line = (o: Outcome) => {
+    const text = `${o.outcome}\t${o.spectrumId ?? ''}\t${o.file}${o.outcome === 'accepted' ? '' : `\t${o.message}`}\n`
+    if (holdLines) held.push(text)
+    else out.write(text)
+  }
+  const report = (o: Outcome) => {
+    outcomes.push(o)
+    line(o)
+  }
+  for (const o of outcomes) line(o)
   const bar = tty
     ? new cliProgress.SingleBar(
         { stream: err, format: 'Uploading {bar} {percentage}% | {sentMb}/{totalMb} MB | {done}/{files} files | {refused} refused', hideCursor: true, clearOnComplete: false },
@@ -176,6 +183,7 @@ async function submit(client: LineweightClient, argv: string[], out: NodeJS.Writ
     if (!tty) err.write(`[${done}/${todo.length}] ${f.path}\n`)
   })
   bar?.stop()
+  for (const text of held) out.write(text)
 
   const count = (k: Outcome['outcome']) => outcomes.filter((o) => o.outcome === k).length
   err.write(`\nCampaign ${campaignId}: ${count('accepted')} accepted, ${count('skipped')} already on the server, ${count('duplicate')} duplicates, ${count('refused')} refused, ${count('failed')} not sent.\n`)
