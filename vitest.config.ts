@@ -22,6 +22,7 @@ export default defineConfig({
           name: 'api',
           environment: 'node',
           include: ['tests/api/**/*.test.ts'],
+          setupFiles: ['tests/api/setup.ts'],
           fileParallelism: false,
           testTimeout: 30_000,
           hookTimeout: 60_000,

@@ -2,17 +2,17 @@ import { existsSync } from 'node:fs'
 import { join, resolve } from 'node:path'
 import connectSessionSequelize from 'connect-session-sequelize'
 import express, { type Express } from 'express'
-import { rateLimit } from 'express-rate-limit'
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit'
 import session from 'express-session'
 import helmet from 'helmet'
 import passport from 'passport'
 import { Strategy as LocalStrategy } from 'passport-local'
 import type { AppContext } from './context'
 import { requireAccess } from './middleware/auth'
+import { bearerAuth, unlessBearer } from './middleware/bearer'
 import { csrfProtection } from './middleware/csrf'
 import { apiNotFound, errorHandler } from './middleware/error'
 import { sessionLifetime } from './middleware/session-lifetime'
-import { validate } from './middleware/validate'
 import { HttpError } from './lib/http-error'
 import { User } from './models'
 import { apiRoutes } from './routes'
@@ -30,6 +30,8 @@ export function trustProxy(value: string | undefined): boolean | number | string
 export interface AppOptions {
   /** Serve the built client from this folder (index.html fallback for client routes). */
   clientDir?: string
+  /** Hears every JSON answer of the API with the route that gave it (tests check them against the OpenAPI document). */
+  observeJson?: (answer: { method: string; route: string | null; status: number; body: unknown }) => void
 }
 
 /** Builds the Express app without listening, so tests can drive it through supertest. */
@@ -57,7 +59,8 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
     const started = process.hrtime.bigint()
     res.on('finish', () => {
       const ms = Number(process.hrtime.bigint() - started) / 1e6
-      logger.info({ method: req.method, url: req.originalUrl, status: res.statusCode, ms: Math.round(ms) }, 'request')
+      // Requests made with a personal API token name it, so its use can be followed in the log.
+      logger.info({ method: req.method, url: req.originalUrl, status: res.statusCode, ms: Math.round(ms), ...(req.apiToken ? { token: req.apiToken.id, user: req.apiToken.userId } : {}) }, 'request')
     })
     next()
   })
@@ -92,39 +95,54 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
   })
 
   const api = express.Router()
+  const observe = options.observeJson
+  if (observe) {
+    api.use((req, res, next) => {
+      const json = res.json.bind(res)
+      res.json = (body: unknown) => {
+        observe({ method: req.method.toLowerCase(), route: (req.route as { path?: string } | undefined)?.path ?? null, status: res.statusCode, body })
+        return json(body)
+      }
+      next()
+    })
+  }
   api.use(express.json({ limit: '1mb' }))
+  // A personal API token signs the request in by itself: no session, no session lifetime, no CSRF token.
+  api.use(bearerAuth)
   api.use(
-    session({
-      name: 'lw.sid',
-      secret: config.SESSION_SECRET,
-      store,
-      resave: false,
-      saveUninitialized: false,
-      rolling: true,
-      cookie: { httpOnly: true, sameSite: 'lax', secure: config.COOKIE_SECURE, maxAge: config.SESSION_IDLE_MINUTES * 60_000, path: '/' },
-    }),
+    unlessBearer(
+      session({
+        name: 'lw.sid',
+        secret: config.SESSION_SECRET,
+        store,
+        resave: false,
+        saveUninitialized: false,
+        rolling: true,
+        cookie: { httpOnly: true, sameSite: 'lax', secure: config.COOKIE_SECURE, maxAge: config.SESSION_IDLE_MINUTES * 60_000, path: '/' },
+      }),
+    ),
   )
   api.use(passport.initialize())
-  api.use(passport.session())
-  api.use(sessionLifetime(config.SESSION_IDLE_MINUTES * 60_000, config.SESSION_ABSOLUTE_HOURS * 3600_000))
-  api.use(
+  api.use(unlessBearer(passport.session()))
+  api.use(unlessBearer(sessionLifetime(config.SESSION_IDLE_MINUTES * 60_000, config.SESSION_ABSOLUTE_HOURS * 3600_000)))
+  const limited = (limit: number, key: (req: express.Request) => string, skip: (req: express.Request) => boolean) =>
     rateLimit({
       windowMs: 60_000,
-      limit: config.API_RATE_PER_MINUTE,
+      limit,
       standardHeaders: 'draft-7',
       legacyHeaders: false,
+      keyGenerator: key,
       // Uploads are limited by bytes and files per person instead (uploadBudget), so a pipeline may batch as it likes.
-      skip: (req) => req.method === 'POST' && req.path === '/spectra',
+      skip: (req) => skip(req) || (req.method === 'POST' && req.path === '/spectra'),
       handler: () => {
         throw new HttpError(429, 'rate_limited', 'Too many requests; slow down and try again in a minute.')
       },
-    }),
-  )
-  api.use(csrfProtection)
-  for (const route of apiRoutes(ctx)) {
-    const chain = [requireAccess(route.access), ...(route.before ?? []), ...(route.schema ? [validate(route.schema)] : []), route.handler]
-    api[route.method](route.path, ...chain)
-  }
+    })
+  // Browsers are counted by address; each token has its own budget, so one pipeline cannot starve the office.
+  api.use(limited(config.API_RATE_PER_MINUTE, (req) => ipKeyGenerator(req.ip ?? ''), (req) => req.apiToken !== undefined))
+  api.use(limited(config.API_TOKEN_RATE_PER_MINUTE, (req) => `token:${req.apiToken?.id}`, (req) => req.apiToken === undefined))
+  api.use(unlessBearer(csrfProtection))
+  for (const route of apiRoutes(ctx)) api[route.method](route.path, requireAccess(route.access), ...route.before, route.handler)
   api.use(apiNotFound)
   app.use('/api', api)
 

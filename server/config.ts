@@ -24,6 +24,8 @@ const schema = z.object({
   LOGIN_MAX_ATTEMPTS: int(10, 1),
   LOGIN_WINDOW_MINUTES: int(15, 1),
   API_RATE_PER_MINUTE: int(600, 1),
+  /** Requests a minute one personal API token may make (counted per token, not per address). */
+  API_TOKEN_RATE_PER_MINUTE: int(1200, 1),
   RESET_MAX_REQUESTS: int(5, 1),
   /** Express "trust proxy": unset trusts no proxy; e.g. `loopback`, `1`, `10.0.0.0/8`. */
   TRUST_PROXY: z.string().trim().optional(),

@@ -389,11 +389,3 @@ export function stellarParameters(code: number, luminosityClass: LuminosityClass
   }
 }
 
-/** The anchor points of a calibration table, for display and tests. */
-export function calibrationTable(
-  quantity: 'teff' | 'logg' | 'absoluteMagnitudeV',
-  luminosityClass: LuminosityClass,
-): ReadonlyArray<readonly [number, number]> {
-  const tables = quantity === 'teff' ? TEFF : quantity === 'logg' ? LOGG : ABSOLUTE_MAGNITUDE_V
-  return tables[luminosityClass].points
-}

@@ -52,16 +52,9 @@ const GRID: ReadonlyArray<{ cls: LuminosityClass; code: number }> = [
   { cls: 'V', code: 6 },
 ]
 
-/** A derived value with its uncertainty (1σ, same unit). */
-export interface Estimate {
-  value: number
-  /** Quadrature sum of the two parts below. */
-  uncertainty: number
-  /** Spread from the classification's uncertainty (half the change over type ± Δ, class ± Δ, in quadrature). */
-  fromClassification: number
-  /** Adopted calibration scatter (see {@link CALIBRATION_SCATTER}), propagated. */
-  calibrationScatter: number
-}
+import type { DerivedParameters, Estimate } from './api/derived'
+
+export type { DerivedParameters, Estimate }
 
 /** What the observer supplied beside the classification. */
 export interface DerivedInput {
@@ -81,27 +74,6 @@ export interface DerivedInput {
   parallaxMas?: number
   parallaxErrorMas?: number
 }
-
-/** Result of {@link deriveParameters}. */
-export type DerivedParameters =
-  | {
-      ok: true
-      /** Calibrations used, by quantity. */
-      sources: { teff: string; absoluteMagnitudeV: string; bolometricCorrectionV: string }
-      teff: Estimate
-      absoluteMagnitudeV: Estimate
-      bolometricCorrectionV: Estimate
-      absoluteBolometricMagnitude: Estimate
-      luminositySolar: Estimate
-      radiusSolar: Estimate
-      /** Spectroscopic-parallax distance, pc (when an apparent magnitude is given). */
-      spectroscopicDistancePc?: Estimate
-      /** Distance from the trigonometric parallax, pc (1/ϖ; when a parallax is given). */
-      parallaxDistancePc?: { value: number; uncertainty: number }
-      /** A(V) used, mag. */
-      av: number
-    }
-  | { ok: false; flag: 'outside the MK grid'; reason: string }
 
 /** Distance modulus m − M = 5 log₁₀ d − 5 (d in pc), without extinction. */
 export function distanceModulus(distancePc: number): number {

@@ -26,11 +26,6 @@ export function makeLogGrid(min: number, max: number, step: number): LogGrid {
  */
 export const DEFAULT_GRID: LogGrid = makeLogGrid(3700, 7000, 1e-4)
 
-/** Velocity width of one pixel, km/s. */
-export function gridVelocityStep(grid: LogGrid): number {
-  return SPEED_OF_LIGHT_KMS * grid.step
-}
-
 /** Wavelength of pixel i, Å. */
 export function gridWavelength(grid: LogGrid, i: number): number {
   return grid.start * Math.exp(grid.step * i)

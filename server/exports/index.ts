@@ -2,7 +2,7 @@ import { zipSync } from 'fflate'
 import { writeCsv, writeEcsv } from './csv'
 import { writeFits } from './fits'
 import { writeFixedWidth } from './mrt'
-import type { ExportFormat } from '../../shared/api/releases'
+import { EXPORT_FORMATS, type ExportFormat } from '../../shared/api/releases'
 import type { ExportTable } from './table'
 import { prepareForExport } from './text'
 import { writeVotable } from './votable'
@@ -15,8 +15,7 @@ export { writeFixedWidth, cdsUnit } from './mrt'
 export { writeVotable, xmlEscape } from './votable'
 export { neutraliseFormula, prepareForExport, transliterate } from './text'
 
-export type { ExportFormat }
-export const EXPORT_FORMATS = ['csv', 'ecsv', 'votable', 'fits', 'mrt'] as const satisfies readonly ExportFormat[]
+export { EXPORT_FORMATS, type ExportFormat }
 
 /**
  * The fixed-width table and its ReadMe together, as a zip: `<stem>.dat` and `ReadMe`, the ReadMe's

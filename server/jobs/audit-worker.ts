@@ -18,7 +18,7 @@ export interface AuditTask {
 export default async function report(task: AuditTask): Promise<string> {
   sequelize ??= createSequelize({ ...loadConfig(process.env), DB_POOL_MAX: 2 })
   return auditReportJson(
-    { campaignId: task.campaignId, ...(task.from ? { from: new Date(task.from) } : {}), ...(task.to ? { to: new Date(task.to) } : {}) },
+    { campaignId: task.campaignId, from: task.from ? new Date(task.from) : undefined, to: task.to ? new Date(task.to) : undefined },
     task.campaign,
   )
 }

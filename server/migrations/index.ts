@@ -12,6 +12,7 @@ import * as m0012 from './0012-stored-files-and-leases'
 import * as m0013 from './0013-instruments'
 import * as m0014 from './0014-instrument-standards'
 import * as m0020 from './0020-lists-at-scale'
+import * as m0030 from './0030-api-tokens'
 
 export interface Migration {
   name: string
@@ -34,4 +35,5 @@ export const migrations: Migration[] = [
   { name: '0013-instruments', ...m0013 },
   { name: '0014-instrument-standards', ...m0014 },
   { name: '0020-lists-at-scale', ...m0020 },
+  { name: '0030-api-tokens', ...m0030 },
 ]

@@ -1,4 +1,5 @@
 import type { Sequelize } from 'sequelize'
+import { ApiToken } from './ApiToken'
 import { Campaign, CampaignMember } from './Campaign'
 import { Instrument } from './Instrument'
 import { MailMessage } from './MailMessage'
@@ -12,7 +13,7 @@ import { User } from './User'
 import { UserToken } from './UserToken'
 
 export { LibraryVersion, LibraryVersionStandard, Standard, Suggestion }
-export { Campaign, CampaignMember, Instrument, LineMeasurementRow, MailMessage, Measurement, ProcessingJob, Session, Spectrum, SpectrumBlob, SpectrumEvent, User, UserToken }
+export { ApiToken, Campaign, CampaignMember, Instrument, LineMeasurementRow, MailMessage, Measurement, ProcessingJob, Session, Spectrum, SpectrumBlob, SpectrumEvent, User, UserToken }
 export type { SpectrumEventKind } from './Spectrum'
 export type { JobStatus } from './Measurement'
 export { Classification, Dispute, DisputeAction, ReviewCall, ReviewClaim }
@@ -22,8 +23,9 @@ export type { TokenPurpose } from './UserToken'
 
 /** Registers every model and association on one connection. */
 export function initModels(sequelize: Sequelize): void {
-  for (const model of [User, UserToken, Session, MailMessage, Campaign, CampaignMember, Instrument, Spectrum, SpectrumBlob, SpectrumEvent, ProcessingJob, Measurement, LineMeasurementRow, LibraryVersion, Standard, LibraryVersionStandard, Suggestion, ReviewClaim, ReviewCall, Dispute, DisputeAction, Classification, Release, ReleaseRow]) model.initModel(sequelize)
+  for (const model of [User, UserToken, ApiToken, Session, MailMessage, Campaign, CampaignMember, Instrument, Spectrum, SpectrumBlob, SpectrumEvent, ProcessingJob, Measurement, LineMeasurementRow, LibraryVersion, Standard, LibraryVersionStandard, Suggestion, ReviewClaim, ReviewCall, Dispute, DisputeAction, Classification, Release, ReleaseRow]) model.initModel(sequelize)
   UserToken.belongsTo(User, { foreignKey: 'userId', as: 'user' })
+  ApiToken.belongsTo(User, { foreignKey: 'userId', as: 'owner' })
   Campaign.belongsToMany(User, { through: CampaignMember, foreignKey: 'campaignId', otherKey: 'userId', as: 'members' })
   Spectrum.belongsTo(Campaign, { foreignKey: 'campaignId', as: 'campaign' })
   Spectrum.belongsTo(User, { foreignKey: 'submittedBy', as: 'submitter' })

@@ -1,18 +1,8 @@
-import { auditQuery } from '../schemas/audit.schemas'
+import { auditApi } from '../../shared/api/audit'
 import { getAuditJson } from '../services/audit.service'
-import { LEAD, defineRoutes } from './route'
+import { JsonText, LEAD, route } from './route'
 
 export function auditRoutes() {
-  return defineRoutes([
-    {
-      method: 'get',
-      path: '/audit',
-      access: LEAD,
-      schema: { query: auditQuery },
-      handler: async (_req, res) => {
-        // Already JSON: the report is written where it is made, off this thread.
-        res.type('application/json').send(await getAuditJson(res.locals.query))
-      },
-    },
-  ])
+  // Already JSON: the report is written where it is made, off this thread.
+  return [route(auditApi.report, { access: LEAD, handler: async ({ query }) => new JsonText(await getAuditJson(query)) })]
 }

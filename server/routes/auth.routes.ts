@@ -1,16 +1,16 @@
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit'
-import type { Request } from 'express'
+import type { Request, Response } from 'express'
 import passport from 'passport'
+import { authApi } from '../../shared/api/auth'
 import type { Config } from '../config'
 import type { AppContext } from '../context'
-import { currentUser } from '../middleware/auth'
 import { ensureCsrfToken } from '../middleware/csrf'
 import { inBackground } from '../lib/background'
 import { HttpError } from '../lib/http-error'
 import type { User } from '../models'
-import { changePasswordBody, forgotBody, loginBody, setPasswordBody, tokenQuery } from '../schemas/auth.schemas'
 import { changePassword, describeToken, requestPasswordReset, setPasswordWithToken, toPublicUser } from '../services/users.service'
-import { defineRoutes } from './route'
+import { sessionOnly } from '../middleware/bearer'
+import { route, type PlainRequest } from './route'
 
 /**
  * Failed attempts are counted per address and account, so one person's typos do not lock out the
@@ -61,103 +61,68 @@ const emailKey = (req: Request) => {
   return typeof email === 'string' ? email.trim().toLowerCase().slice(0, 254) : '?'
 }
 
+/** Runs passport's local strategy and signs the user in (the session id changes). */
+function signIn(req: PlainRequest, res: Response): Promise<User> {
+  return new Promise((resolve, reject) => {
+    passport.authenticate('local', (err: unknown, user: User | false, info?: { reason?: string }) => {
+      if (err) return reject(err)
+      if (!user) {
+        if (info?.reason === 'inactive') return reject(new HttpError(403, 'account_inactive', 'This account has been deactivated; ask a lead of your team.'))
+        return reject(new HttpError(401, 'invalid_credentials', 'Wrong e-mail address or password.'))
+      }
+      req.login(user, (loginError) => (loginError ? reject(loginError) : resolve(user)))
+    })(req as Request, res, reject)
+  })
+}
+
 export function authRoutes(ctx: AppContext) {
-  return defineRoutes([
-    {
-      method: 'get',
-      path: '/auth/csrf',
-      access: 'public',
-      handler: (req, res) => {
-        res.json({ csrfToken: ensureCsrfToken(req.session) })
-      },
-    },
-    {
-      method: 'post',
-      path: '/auth/login',
+  return [
+    route(authApi.csrf, { access: 'public', handler: (_input, { req }) => ({ csrfToken: ensureCsrfToken(req.session) }) }),
+    route(authApi.login, {
       access: 'public',
       before: loginLimiter(ctx.config),
-      schema: { body: loginBody },
-      handler: (req, res, next) => {
-        passport.authenticate('local', (err: unknown, user: User | false, info?: { reason?: string }) => {
-          if (err) return next(err)
-          if (!user) {
-            if (info?.reason === 'inactive') return next(new HttpError(403, 'account_inactive', 'This account has been deactivated; ask a lead of your team.'))
-            return next(new HttpError(401, 'invalid_credentials', 'Wrong e-mail address or password.'))
-          }
-          req.login(user, (loginError) => {
-            if (loginError) return next(loginError)
-            req.session.startedAt = Date.now()
-            req.session.lastSeenAt = Date.now()
-            const csrfToken = ensureCsrfToken(req.session)
-            user.lastLoginAt = new Date()
-            user.save().then(
-              () => res.json({ user: toPublicUser(user), csrfToken }),
-              (saveError: unknown) => next(saveError),
-            )
-          })
-        })(req, res, next)
+      handler: async (_input, { req, res }) => {
+        const user = await signIn(req, res)
+        req.session.startedAt = Date.now()
+        req.session.lastSeenAt = Date.now()
+        const csrfToken = ensureCsrfToken(req.session)
+        user.lastLoginAt = new Date()
+        await user.save()
+        return { user: toPublicUser(user), csrfToken }
       },
-    },
-    {
-      method: 'post',
-      path: '/auth/logout',
+    }),
+    route(authApi.logout, {
       access: 'public',
-      handler: (req, res, next) => {
-        req.logout((error) => {
-          if (error) return next(error)
-          res.json({ csrfToken: ensureCsrfToken(req.session) })
-        })
-      },
-    },
-    {
-      method: 'post',
-      path: '/auth/forgot',
+      handler: (_input, { req }) =>
+        new Promise((resolve, reject) => {
+          req.logout((error) => (error ? reject(error) : resolve({ csrfToken: ensureCsrfToken(req.session) })))
+        }),
+    }),
+    route(authApi.forgot, {
       access: 'public',
       before: resetLimiter(ctx.config),
-      schema: { body: forgotBody },
-      handler: (_req, res) => {
+      handler: ({ body }) => {
         // The look-up and the mail happen after the answer, so its timing says nothing about the address.
-        const email = res.locals.body.email as string
-        inBackground(ctx.logger, 'password reset', () => requestPasswordReset(ctx, email))
-        res.status(202).json({ message: 'If that address belongs to an account, a reset link is on its way.' })
+        inBackground(ctx.logger, 'password reset', () => requestPasswordReset(ctx, body.email))
+        return { message: 'If that address belongs to an account, a reset link is on its way.' }
       },
-    },
-    {
-      method: 'get',
-      path: '/auth/token',
+    }),
+    route(authApi.describeLink, { access: 'public', handler: ({ query }) => describeToken(query.token) }),
+    route(authApi.setPassword, {
       access: 'public',
-      schema: { query: tokenQuery },
-      handler: async (_req, res) => {
-        res.json(await describeToken(res.locals.query.token))
+      handler: async ({ body }) => {
+        await setPasswordWithToken(ctx, body.token, body.password)
+        return { message: 'Your password is set; you can sign in now.' }
       },
-    },
-    {
-      method: 'post',
-      path: '/auth/set-password',
-      access: 'public',
-      schema: { body: setPasswordBody },
-      handler: async (_req, res) => {
-        await setPasswordWithToken(ctx, res.locals.body.token, res.locals.body.password)
-        res.json({ message: 'Your password is set; you can sign in now.' })
-      },
-    },
-    {
-      method: 'get',
-      path: '/me',
+    }),
+    route(authApi.me, { access: 'signed-in', handler: ({ user }) => ({ user: toPublicUser(user) }) }),
+    route(authApi.changePassword, {
       access: 'signed-in',
-      handler: (req, res) => {
-        res.json({ user: toPublicUser(currentUser(req)) })
+      before: [sessionOnly('Changing the password')],
+      handler: async ({ body, user }, { req }) => {
+        await changePassword(ctx, user, body.currentPassword, body.newPassword, req.sessionID)
+        return { message: 'Your password has been changed.' }
       },
-    },
-    {
-      method: 'post',
-      path: '/me/password',
-      access: 'signed-in',
-      schema: { body: changePasswordBody },
-      handler: async (req, res) => {
-        await changePassword(ctx, currentUser(req), res.locals.body.currentPassword, res.locals.body.newPassword, req.sessionID)
-        res.json({ message: 'Your password has been changed.' })
-      },
-    },
-  ])
+    }),
+  ]
 }

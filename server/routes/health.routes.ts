@@ -1,21 +1,21 @@
+import { healthApi } from '../../shared/api/health'
 import type { AppContext } from '../context'
-import { defineRoutes } from './route'
+import { route } from './route'
 
 export function healthRoutes(ctx: AppContext) {
-  return defineRoutes([
-    {
-      method: 'get',
-      path: '/health',
+  return [
+    route(healthApi.get, {
       access: 'public',
-      handler: async (_req, res) => {
+      handler: async (_input, { res }) => {
         try {
           await ctx.sequelize.query('SELECT 1')
-          res.json({ status: 'ok', database: 'ok' })
+          return { status: 'ok', database: 'ok' } as const
         } catch {
           res.set('retry-after', String(ctx.config.DB_RETRY_AFTER_SECONDS))
-          res.status(503).json({ status: 'degraded', database: 'unreachable' })
+          res.status(503)
+          return { status: 'degraded', database: 'unreachable' } as const
         }
       },
-    },
-  ])
+    }),
+  ]
 }

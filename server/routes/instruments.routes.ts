@@ -1,75 +1,17 @@
+import { instrumentsApi } from '../../shared/api/instruments'
 import type { AppContext } from '../context'
-import { currentUser } from '../middleware/auth'
-import { idParams } from '../schemas/common'
-import { createInstrumentBody, demoteBody, instrumentListQuery, promoteBody, updateInstrumentBody } from '../schemas/instruments.schemas'
 import { createInstrument, getInstrument, listInstruments, updateInstrument } from '../services/instruments.service'
 import { demoteStandards, instrumentCandidates, promoteCandidates } from '../services/promotion.service'
-import { LEAD, STAFF, defineRoutes } from './route'
+import { LEAD, STAFF, route } from './route'
 
 export function instrumentRoutes(ctx: AppContext) {
-  return defineRoutes([
-    {
-      method: 'get',
-      path: '/instruments',
-      access: 'signed-in',
-      schema: { query: instrumentListQuery },
-      handler: async (req, res) => {
-        res.json({ instruments: await listInstruments(currentUser(req), res.locals.query.campaign) })
-      },
-    },
-    {
-      method: 'post',
-      path: '/instruments',
-      access: LEAD,
-      schema: { body: createInstrumentBody },
-      handler: async (req, res) => {
-        res.status(201).json({ instrument: await createInstrument(currentUser(req), res.locals.body) })
-      },
-    },
-    {
-      method: 'get',
-      path: '/instruments/:id',
-      access: 'signed-in',
-      schema: { params: idParams },
-      handler: async (req, res) => {
-        res.json({ instrument: await getInstrument(currentUser(req), res.locals.params.id) })
-      },
-    },
-    {
-      method: 'patch',
-      path: '/instruments/:id',
-      access: LEAD,
-      schema: { params: idParams, body: updateInstrumentBody },
-      handler: async (_req, res) => {
-        res.json({ instrument: await updateInstrument(res.locals.params.id, res.locals.body) })
-      },
-    },
-    {
-      method: 'get',
-      path: '/instruments/:id/candidates',
-      access: STAFF,
-      schema: { params: idParams },
-      handler: async (req, res) => {
-        res.json(await instrumentCandidates(currentUser(req), res.locals.params.id))
-      },
-    },
-    {
-      method: 'post',
-      path: '/instruments/:id/promote',
-      access: LEAD,
-      schema: { params: idParams, body: promoteBody },
-      handler: async (req, res) => {
-        res.status(201).json(await promoteCandidates(ctx.sequelize, currentUser(req), res.locals.params.id, res.locals.body))
-      },
-    },
-    {
-      method: 'post',
-      path: '/instruments/:id/demote',
-      access: LEAD,
-      schema: { params: idParams, body: demoteBody },
-      handler: async (req, res) => {
-        res.status(201).json(await demoteStandards(ctx.sequelize, currentUser(req), res.locals.params.id, res.locals.body))
-      },
-    },
-  ])
+  return [
+    route(instrumentsApi.list, { access: 'signed-in', handler: async ({ query, user }) => ({ instruments: await listInstruments(user, query.campaign) }) }),
+    route(instrumentsApi.create, { access: LEAD, handler: async ({ body, user }) => ({ instrument: await createInstrument(user, body) }) }),
+    route(instrumentsApi.get, { access: 'signed-in', handler: async ({ params, user }) => ({ instrument: await getInstrument(user, params.id) }) }),
+    route(instrumentsApi.update, { access: LEAD, handler: async ({ params, body }) => ({ instrument: await updateInstrument(params.id, body) }) }),
+    route(instrumentsApi.candidates, { access: STAFF, handler: ({ params, user }) => instrumentCandidates(user, params.id) }),
+    route(instrumentsApi.promote, { access: LEAD, handler: ({ params, body, user }) => promoteCandidates(ctx.sequelize, user, params.id, body) }),
+    route(instrumentsApi.demote, { access: LEAD, handler: ({ params, body, user }) => demoteStandards(ctx.sequelize, user, params.id, body) }),
+  ]
 }

@@ -1,27 +1,10 @@
-import { idParams } from '../schemas/common'
-import { pagingQuery } from '../schemas/paging'
+import { outboxApi } from '../../shared/api/outbox'
 import { getMail, listMail } from '../services/outbox.service'
-import { LEAD, defineRoutes } from './route'
+import { LEAD, route } from './route'
 
 export function outboxRoutes() {
-  return defineRoutes([
-    {
-      method: 'get',
-      path: '/outbox',
-      access: LEAD,
-      schema: { query: pagingQuery },
-      handler: async (_req, res) => {
-        res.json(await listMail(res.locals.query.page, res.locals.query.pageSize))
-      },
-    },
-    {
-      method: 'get',
-      path: '/outbox/:id',
-      access: LEAD,
-      schema: { params: idParams },
-      handler: async (_req, res) => {
-        res.json({ mail: await getMail(res.locals.params.id) })
-      },
-    },
-  ])
+  return [
+    route(outboxApi.list, { access: LEAD, handler: ({ query }) => listMail(query.page, query.pageSize) }),
+    route(outboxApi.get, { access: LEAD, handler: async ({ params }) => ({ mail: await getMail(params.id) }) }),
+  ]
 }

@@ -1,88 +1,40 @@
-import { currentUser } from '../middleware/auth'
-import { idParams } from '../schemas/common'
-import { createReleaseBody, downloadQuery, listReleasesQuery, previewReleaseQuery, releaseRowsQuery, supersedeReleaseBody } from '../schemas/releases.schemas'
+import { derivedApi } from '../../shared/api/derived'
+import { releasesApi } from '../../shared/api/releases'
 import { derivedFor } from '../services/derived.service'
-import { suggestionHiddenFrom } from '../services/suggestions.service'
 import { createRelease, downloadRelease, getRelease, listReleases, previewRelease, supersedeRelease } from '../services/releases.service'
-import { findVisibleSpectrum } from '../services/spectra.service'
-import { LEAD, defineRoutes } from './route'
+import { findVisibleSpectrum } from '../services/visibility'
+import { suggestionHiddenFrom } from '../services/suggestions.service'
+import { LEAD, route } from './route'
 
 export function releaseRoutes() {
-  return defineRoutes([
-    {
-      method: 'get',
-      path: '/releases',
+  return [
+    route(releasesApi.list, { access: 'signed-in', handler: async ({ query, user }) => ({ releases: await listReleases(user, { campaignId: query.campaign }) }) }),
+    route(releasesApi.freeze, { access: LEAD, handler: async ({ body, user }) => ({ release: await createRelease(user, body) }) }),
+    route(releasesApi.preview, { access: LEAD, handler: async ({ query }) => ({ preview: await previewRelease(query.campaign, query.includeDecider) }) }),
+    route(releasesApi.get, { access: 'signed-in', handler: ({ params, query, user }) => getRelease(user, params.id, query) }),
+    route(releasesApi.supersede, { access: LEAD, handler: async ({ params, body, user }) => ({ release: await supersedeRelease(user, params.id, body) }) }),
+    route(releasesApi.download, {
       access: 'signed-in',
-      schema: { query: listReleasesQuery },
-      handler: async (req, res) => {
-        res.json({ releases: await listReleases(currentUser(req), { campaignId: res.locals.query.campaign }) })
-      },
-    },
-    {
-      method: 'post',
-      path: '/releases',
-      access: LEAD,
-      schema: { body: createReleaseBody },
-      handler: async (req, res) => {
-        res.status(201).json({ release: await createRelease(currentUser(req), res.locals.body) })
-      },
-    },
-    {
-      method: 'get',
-      path: '/releases/preview',
-      access: LEAD,
-      schema: { query: previewReleaseQuery },
-      handler: async (_req, res) => {
-        res.json({ preview: await previewRelease(res.locals.query.campaign, res.locals.query.includeDecider) })
-      },
-    },
-    {
-      method: 'get',
-      path: '/releases/:id',
-      access: 'signed-in',
-      schema: { params: idParams, query: releaseRowsQuery },
-      handler: async (req, res) => {
-        res.json(await getRelease(currentUser(req), res.locals.params.id, res.locals.query))
-      },
-    },
-    {
-      method: 'post',
-      path: '/releases/:id/supersede',
-      access: LEAD,
-      schema: { params: idParams, body: supersedeReleaseBody },
-      handler: async (req, res) => {
-        res.status(201).json({ release: await supersedeRelease(currentUser(req), res.locals.params.id, res.locals.body) })
-      },
-    },
-    {
-      method: 'get',
-      path: '/releases/:id/download',
-      access: 'signed-in',
-      schema: { params: idParams, query: downloadQuery },
-      handler: async (req, res) => {
-        const file = await downloadRelease(currentUser(req), res.locals.params.id, res.locals.query.format)
+      handler: async ({ params, query, user }, { res }) => {
+        const file = await downloadRelease(user, params.id, query.format)
         res.attachment(file.fileName)
         res.set('content-type', file.contentType)
         res.send(file.body)
       },
-    },
-  ])
+    }),
+  ]
 }
 
 /** Derived physical parameters belong with the catalogue columns they feed. */
 export function derivedRoutes() {
-  return defineRoutes([
-    {
-      method: 'get',
-      path: '/spectra/:id/derived',
+  return [
+    route(derivedApi.get, {
       access: 'signed-in',
-      schema: { params: idParams },
-      handler: async (req, res) => {
-        const user = currentUser(req)
-        const spectrum = await findVisibleSpectrum(user, res.locals.params.id)
+      handler: async ({ params, user }) => {
+        const spectrum = await findVisibleSpectrum(user, params.id)
         const hidden = await suggestionHiddenFrom(user, spectrum.id)
-        res.json({ derived: await derivedFor(spectrum.id, spectrum, { suggestion: !hidden }) })
+        return { derived: await derivedFor(spectrum.id, spectrum, { suggestion: !hidden }) }
       },
-    },
-  ])
+    }),
+  ]
 }

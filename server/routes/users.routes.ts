@@ -1,47 +1,19 @@
+import { usersApi } from '../../shared/api/users'
 import type { AppContext } from '../context'
-import { currentUser } from '../middleware/auth'
-import { idParams } from '../schemas/common'
-import { inviteBody, updateUserBody } from '../schemas/users.schemas'
 import { inviteUser, listUsers, resendInvitation, updateUser } from '../services/users.service'
-import { LEAD, defineRoutes } from './route'
+import { LEAD, route } from './route'
 
 export function userRoutes(ctx: AppContext) {
-  return defineRoutes([
-    {
-      method: 'get',
-      path: '/users',
+  return [
+    route(usersApi.list, { access: LEAD, handler: async () => ({ users: await listUsers() }) }),
+    route(usersApi.invite, { access: LEAD, handler: async ({ body, user }) => ({ user: await inviteUser(ctx, body, user) }) }),
+    route(usersApi.update, { access: LEAD, handler: async ({ params, body, user }) => ({ user: await updateUser(ctx, params.id, body, user) }) }),
+    route(usersApi.resendInvitation, {
       access: LEAD,
-      handler: async (_req, res) => {
-        res.json({ users: await listUsers() })
+      handler: async ({ params, user }) => {
+        await resendInvitation(ctx, params.id, user)
+        return { message: 'A new invitation has been sent.' }
       },
-    },
-    {
-      method: 'post',
-      path: '/users',
-      access: LEAD,
-      schema: { body: inviteBody },
-      handler: async (req, res) => {
-        res.status(201).json({ user: await inviteUser(ctx, res.locals.body, currentUser(req)) })
-      },
-    },
-    {
-      method: 'patch',
-      path: '/users/:id',
-      access: LEAD,
-      schema: { params: idParams, body: updateUserBody },
-      handler: async (req, res) => {
-        res.json({ user: await updateUser(ctx, res.locals.params.id, res.locals.body, currentUser(req)) })
-      },
-    },
-    {
-      method: 'post',
-      path: '/users/:id/invitation',
-      access: LEAD,
-      schema: { params: idParams },
-      handler: async (req, res) => {
-        await resendInvitation(ctx, res.locals.params.id, currentUser(req))
-        res.status(202).json({ message: 'A new invitation has been sent.' })
-      },
-    },
-  ])
+    }),
+  ]
 }

@@ -3,7 +3,7 @@ import { agreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa }
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { Campaign, Classification, Instrument, LibraryVersion, LibraryVersionStandard, ReviewCall, Spectrum, Standard, Suggestion, User } from '../models'
-import type { AccuracyFigures, AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, InstrumentAccuracy, MatrixCell, PairFigures, RaterRef, SuggestionAccuracy, VersionAccuracy } from '../../shared/api/audit'
+import type { AccuracyFigures, AgreementFigures, AuditFigures, AuditQuery, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, InstrumentAccuracy, MatrixCell, PairFigures, RaterRef, SuggestionAccuracy, VersionAccuracy } from '../../shared/api/audit'
 import type { SuggestionDetails } from '../../shared/api/suggestions'
 
 export type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef, SuggestionAccuracy }
@@ -450,13 +450,8 @@ async function accuracyItems(campaignId: number, range: { from?: Date | undefine
   return out
 }
 
-export interface AuditQuery {
-  campaignId: number
-  /** Calls made on or after this time. */
-  from?: Date
-  /** Calls made before this time. */
-  to?: Date
-}
+/** The audit query as parsed: a campaign id and a half-open range of instants (shared/api/audit.ts). */
+export type { AuditQuery }
 
 interface CallRow {
   id: number

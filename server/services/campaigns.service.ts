@@ -2,7 +2,7 @@ import { Op, QueryTypes, type WhereOptions } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError, forbidden, notFound } from '../lib/http-error'
 import { Campaign, CampaignMember, Spectrum, User } from '../models'
-import type { CreateCampaignInput, UpdateCampaignInput } from '../schemas/campaigns.schemas'
+import type { CreateCampaignInput, UpdateCampaignInput } from '../../shared/api/campaigns'
 import type { CampaignDetail, CampaignMemberSummary, CampaignProgress, CampaignSummary } from '../../shared/api/campaigns'
 
 export type { CampaignDetail, CampaignMemberSummary, CampaignProgress, CampaignSummary }

@@ -2,8 +2,9 @@ import { Op, UniqueConstraintError, type WhereOptions } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError, notFound } from '../lib/http-error'
 import { Campaign, Classification, Dispute, DisputeAction, ReviewCall, Spectrum, Suggestion, type User } from '../models'
-import { namesOf, notifySubmitter, parseCallType, standingCalls, toCallView, toFinalClassification, toSuggestionView } from './review.service'
-import type { DisputeActionInput, DisputeState, DisputeView, SettleInput } from '../../shared/api/disputes'
+import { parseCallType } from '../review/consensus'
+import { namesOf, notifySubmitter, standingCalls, toCallView, toFinalClassification, toSuggestionView } from './review.service'
+import type { DisputeActionInput, DisputeQuery, DisputeState, DisputeView, SettleInput } from '../../shared/api/disputes'
 
 export type { DisputeActionInput, DisputeState, DisputeView, SettleInput }
 
@@ -51,10 +52,7 @@ async function disputeViews(disputes: Dispute[]): Promise<DisputeView[]> {
   })
 }
 
-export interface DisputeQuery {
-  state: DisputeState | 'all'
-  campaign?: number
-}
+export type { DisputeQuery }
 
 /** Open and settled disputes, open ones first, oldest first within each. */
 export async function listDisputes(q: DisputeQuery): Promise<{ disputes: DisputeView[] }> {

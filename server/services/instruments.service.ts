@@ -1,7 +1,7 @@
 import { Op, UniqueConstraintError, type Transaction } from 'sequelize'
 import { HttpError, notFound } from '../lib/http-error'
 import { Campaign, Instrument, LibraryVersion, LibraryVersionStandard, Spectrum, Standard, type User } from '../models'
-import type { CreateInstrumentInput, UpdateInstrumentInput } from '../schemas/instruments.schemas'
+import type { CreateInstrumentInput, UpdateInstrumentInput } from '../../shared/api/instruments'
 import type { InstrumentSummary } from '../../shared/api/instruments'
 import { campaignIdsOf } from './campaigns.service'
 

@@ -5,8 +5,9 @@ import { decimateMinMax } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, type User } from '../models'
 import type { AppContext } from '../context'
-import { findVisibleSpectrum } from './spectra.service'
+import { findVisibleSpectrum } from './visibility'
 import type { LineRow, MeasurementSummary, SpectrumMeasurements } from '../../shared/api/measurements'
+import type { SeriesQuery } from '../../shared/api/spectra'
 
 export type { LineRow, MeasurementSummary }
 
@@ -72,7 +73,7 @@ export interface PreparedSeries {
 }
 
 /** The prepared spectrum on the grid: wavelength, rebinned flux, continuum and rectified flux. */
-export async function getPreparedSeries(user: User, spectrumId: number, q: { from?: number; to?: number; maxPoints: number }): Promise<PreparedSeries> {
+export async function getPreparedSeries(user: User, spectrumId: number, q: SeriesQuery): Promise<PreparedSeries> {
   await findVisibleSpectrum(user, spectrumId)
   const m = await Measurement.findOne({ where: { spectrumId, isCurrent: true } })
   if (!m) throw notFound('A measurement of this spectrum')

@@ -4,27 +4,15 @@ import { HttpError } from '../lib/http-error'
 import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
 import { OPEN_FOR_CALLS, namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView } from './review.service'
-import type { QueueSuggestion } from '../../shared/api/queue'
-import { findVisibleSpectrum } from './spectra.service'
-import type { QueueItem, QueueOrder, QueuePage } from '../../shared/api/queue'
+import { findVisibleSpectrum } from './visibility'
+import type { QueueItem, QueueOrder, QueuePage, QueueQuery, QueueSuggestion } from '../../shared/api/queue'
 
 export type { QueueItem, QueueOrder }
 
 /** How long a claim holds an item before it lapses by itself. */
 export const CLAIM_MINUTES = 10
 
-export interface QueueQuery {
-  campaign?: number
-  /** Items whose suggestion carries every one of these flags. */
-  flags?: string[]
-  /** Suggested type code range; blind-review items are left out when it is given, since it would reveal them. */
-  typeFrom?: number
-  typeTo?: number
-  snrMin?: number
-  snrMax?: number
-  order: QueueOrder
-  limit: number
-}
+export type { QueueQuery }
 
 /**
  * Writes what the queue orders and filters by for a spectrum's new current suggestion: the flag

@@ -7,7 +7,8 @@ import { HttpError, notFound } from '../lib/http-error'
 import { Campaign, Classification, LibraryVersion, Measurement, Release, ReleaseRow, ReviewCall, Spectrum, Suggestion, User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
 import { decisionUncertainty, estimatesFor, observerInputs } from './derived.service'
-import type { ReleaseDetail, ReleasePreview, ReleaseSummary } from '../../shared/api/releases'
+import type { Paging } from '../../shared/api/common'
+import type { ReleaseDetail, ReleaseInput, ReleasePreview, ReleaseSummary } from '../../shared/api/releases'
 
 export type { ReleaseDetail, ReleasePreview, ReleaseSummary }
 
@@ -236,15 +237,7 @@ async function summaries(releases: Release[]): Promise<ReleaseSummary[]> {
   })
 }
 
-export interface ReleaseInput {
-  campaignId: number
-  title: string
-  description: string
-  /** Who to cite, as it goes into the ReadMe and the file headers. */
-  authors?: string
-  /** Whether the release names who decided each row (off for privacy). @default true */
-  includeDecider?: boolean
-}
+export type { ReleaseInput }
 
 /** The catalogue's columns for a release: all of them, or all but the decider's name. */
 export function releaseColumns(includeDecider = true): ExportColumn[] {
@@ -349,7 +342,7 @@ export async function listReleases(user: User, query: { campaignId?: number }): 
   return summaries(rows)
 }
 
-export async function getRelease(user: User, id: number, paging: { page: number; pageSize: number }): Promise<ReleaseDetail> {
+export async function getRelease(user: User, id: number, paging: Paging): Promise<ReleaseDetail> {
   const release = await findVisibleRelease(user, id)
   const rows = await ReleaseRow.findAll({ where: { releaseId: id }, order: [['position', 'ASC']], offset: (paging.page - 1) * paging.pageSize, limit: paging.pageSize })
   return {

@@ -1,20 +1,19 @@
 import type { SuggestionDetails } from '../../shared/api/suggestions'
 import { Op, UniqueConstraintError, type Transaction } from 'sequelize'
-import { classCodeOf, formatMK, parseMK, type MKValue } from '../../shared/mk'
+import { parseMK } from '../../shared/mk'
 import type { SpectrumStatus } from '../../shared/status'
 import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
 import { Campaign, Classification, Dispute, ReviewCall, ReviewClaim, Spectrum, Suggestion, User, type Agreement, type ClassificationSource } from '../models'
+import { judgeByMajority, judgeCalls, parseCallType, parsedCallOf, type ParsedCall } from '../review/consensus'
 import { measurementsOf } from './measurements.service'
-import { findVisibleSpectrum } from './spectra.service'
+import { findVisibleSpectrum } from './visibility'
 import type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInput, RecordCallResult, ReviewCampaign, ReviewView, SuggestionView } from '../../shared/api/review'
 
 export type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInput, RecordCallResult, ReviewCampaign, ReviewView, SuggestionView }
 
 /** Statuses in which a spectrum takes calls. */
 export const OPEN_FOR_CALLS: readonly SpectrumStatus[] = ['suggested', 'under_review']
-
-const EPSILON = 1e-9
 
 const parseJson = <T>(text: string | null | undefined, fallback: T): T => {
   if (!text) return fallback
@@ -23,152 +22,6 @@ const parseJson = <T>(text: string | null | undefined, fallback: T): T => {
   } catch {
     return fallback
   }
-}
-
-// ---------------------------------------------------------------------------------------------
-// MK input
-// ---------------------------------------------------------------------------------------------
-
-export interface ParsedCall {
-  /** Canonical MK text, e.g. "A1 V n". */
-  spectralType: string
-  letter: string
-  subtype: number
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  peculiarities: string[]
-  uncertain: boolean
-}
-
-const invalid = (fields: Record<string, string>) => new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields })
-
-/**
- * Reads a call's type, class and peculiarity notes with shared/mk.ts. The call must sit on the MK
- * grid: a letter with a subtype (so it has a type code) and a luminosity class.
- */
-export function parseCallType(spectralType: string, luminosityClass: string, peculiarities = ''): ParsedCall {
-  const typeOnly = parseMK(spectralType)
-  if (!typeOnly.ok) throw invalid({ spectralType: `cannot be read: ${typeOnly.reason}` })
-  if (typeOnly.value.kind !== 'mk' || typeOnly.value.typeCode === undefined) {
-    throw invalid({ spectralType: 'must be an MK type with a subtype, e.g. B8 or K1.5' })
-  }
-  if (typeOnly.value.luminosityClass !== undefined) throw invalid({ spectralType: 'give the luminosity class in its own field' })
-  if (classCodeOf(luminosityClass) === undefined) throw invalid({ luminosityClass: 'is not a luminosity class (e.g. Ia, Iab, Ib, II, III, IV, V)' })
-  const full = parseMK(`${spectralType} ${luminosityClass} ${peculiarities}`.trim())
-  if (!full.ok) throw invalid({ [peculiarities ? 'peculiarities' : 'luminosityClass']: `cannot be read: ${full.reason}` })
-  const v = full.value
-  if (v.typeCode === undefined || v.classCode === undefined || v.luminosityClass === undefined) {
-    throw invalid({ [peculiarities ? 'peculiarities' : 'luminosityClass']: 'does not leave a type and a luminosity class' })
-  }
-  return fromValue(v)
-}
-
-function fromValue(v: MKValue): ParsedCall {
-  return {
-    spectralType: formatMK(v),
-    letter: v.letter,
-    subtype: v.subtype ?? 0,
-    typeCode: v.typeCode!,
-    luminosityClass: v.luminosityClass!,
-    classCode: v.classCode!,
-    peculiarities: v.peculiarities,
-    uncertain: v.uncertain.type || v.uncertain.class,
-  }
-}
-
-// ---------------------------------------------------------------------------------------------
-// Consensus
-// ---------------------------------------------------------------------------------------------
-
-export interface JudgedCall {
-  id: number
-  spectralType: string
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  acceptedSuggestion: boolean
-}
-
-export type Judgement =
-  | { outcome: 'agreed'; typeSpread: number; classSpread: number; agreement: Exclude<Agreement, 'settled'>; source: Exclude<ClassificationSource, 'settled'>; consensus: ParsedCall }
-  | { outcome: 'disputed'; typeSpread: number; classSpread: number }
-
-/**
- * The median of values given in call order. With an even count the two middle values tie: the one
- * equal to `preferred` (the suggestion's) wins, else the one that was called first.
- */
-export function medianOf(values: number[], preferred?: number): number {
-  if (values.length === 0) throw new RangeError('no values')
-  const sorted = [...values].sort((a, b) => a - b)
-  const mid = sorted.length >> 1
-  if (sorted.length % 2 === 1) return sorted[mid]!
-  const lo = sorted[mid - 1]!
-  const hi = sorted[mid]!
-  if (Math.abs(lo - hi) < EPSILON) return lo
-  if (preferred !== undefined && (Math.abs(preferred - lo) < EPSILON || Math.abs(preferred - hi) < EPSILON)) return preferred
-  return values.find((v) => Math.abs(v - lo) < EPSILON || Math.abs(v - hi) < EPSILON)!
-}
-
-/**
- * Judges the calls against the campaign's tolerance: they agree when every pair differs by at most
- * `typeTolerance` subtypes and `classTolerance` classes. The consensus takes the median type code and
- * the median class code, written as the earliest call that has that type (with its notes) and the
- * class text of the earliest call that has that class.
- */
-export function judgeCalls(calls: JudgedCall[], rules: { typeTolerance: number; classTolerance: number }, suggestion?: { typeCode: number; classCode: number } | null): Judgement {
-  if (calls.length === 0) throw new RangeError('no calls to judge')
-  const types = calls.map((c) => c.typeCode)
-  const classes = calls.map((c) => c.classCode)
-  const typeSpread = Math.max(...types) - Math.min(...types)
-  const classSpread = Math.max(...classes) - Math.min(...classes)
-  if (typeSpread > rules.typeTolerance + EPSILON || classSpread > rules.classTolerance + EPSILON) return { outcome: 'disputed', typeSpread, classSpread }
-  const typeCode = medianOf(types, suggestion?.typeCode)
-  const classCode = medianOf(classes, suggestion?.classCode)
-  const typeCall = calls.find((c) => Math.abs(c.typeCode - typeCode) < EPSILON)!
-  const classCall = calls.find((c) => Math.abs(c.classCode - classCode) < EPSILON)!
-  const both = calls.find((c) => Math.abs(c.typeCode - typeCode) < EPSILON && Math.abs(c.classCode - classCode) < EPSILON)
-  let consensus: ParsedCall
-  const parsed = parseMK((both ?? typeCall).spectralType)
-  if (!parsed.ok) throw new Error(`stored call ${typeCall.id} no longer parses: ${parsed.reason}`)
-  if (both) consensus = fromValue(parsed.value)
-  else {
-    const classText = parseMK(classCall.spectralType)
-    const v: MKValue = { ...parsed.value, luminosityClass: classCall.luminosityClass, classCode: classCall.classCode }
-    if (classText.ok) v.uncertain = { ...v.uncertain, class: classText.value.uncertain.class }
-    delete v.classRange
-    consensus = fromValue(v)
-  }
-  return {
-    outcome: 'agreed',
-    typeSpread,
-    classSpread,
-    agreement: typeSpread < EPSILON && classSpread < EPSILON ? 'exact' : 'within',
-    source: calls.every((c) => c.acceptedSuggestion) ? 'accepted-suggestion' : 'consensus',
-    // The codes are the medians themselves, whatever precision the text carries.
-    consensus: { ...consensus, typeCode, classCode },
-  }
-}
-
-/**
- * Judges calls after a lead asked for more than the campaign's number: the largest group of calls
- * that agree pairwise within the tolerance decides when it is a majority (more than half); the
- * consensus is that group's, as {@link judgeCalls} forms it. Otherwise the calls are disputed again.
- */
-export function judgeByMajority(calls: JudgedCall[], rules: { typeTolerance: number; classTolerance: number }, suggestion?: { typeCode: number; classCode: number } | null): Judgement {
-  const n = calls.length
-  if (n === 0) throw new RangeError('no calls to judge')
-  const fits = (a: JudgedCall, b: JudgedCall) => Math.abs(a.typeCode - b.typeCode) <= rules.typeTolerance + EPSILON && Math.abs(a.classCode - b.classCode) <= rules.classTolerance + EPSILON
-  let best: JudgedCall[] = []
-  // Few calls per spectrum (a handful at most): every subset is cheap to try.
-  for (let mask = 1; mask < 1 << Math.min(n, 12); mask++) {
-    const group = calls.filter((_, i) => (mask >> i) & 1)
-    if (group.length <= best.length) continue
-    if (group.every((a, i) => group.slice(i + 1).every((b) => fits(a, b)))) best = group
-  }
-  if (best.length * 2 > n) return judgeCalls(best, rules, suggestion)
-  const all = judgeCalls(calls, { typeTolerance: -1, classTolerance: -1 })
-  return { outcome: 'disputed', typeSpread: all.typeSpread, classSpread: all.classSpread }
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -287,7 +140,7 @@ export function standingCalls(rows: ReviewCall[]): ReviewCall[] {
 /** The suggestion read as a call, for a classifier who accepts it. */
 export function suggestionAsCall(s: Suggestion): ParsedCall {
   const full = parseMK(s.spectralType)
-  if (full.ok && full.value.typeCode !== undefined && full.value.classCode !== undefined && full.value.luminosityClass !== undefined) return fromValue(full.value)
+  if (full.ok && full.value.typeCode !== undefined && full.value.classCode !== undefined && full.value.luminosityClass !== undefined) return parsedCallOf(full.value)
   return parseCallType(`${s.letter}${s.subtype}`, s.luminosityClass)
 }
 
@@ -432,7 +285,7 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
         })
       }
     } else {
-      if (!input.spectralType || !input.luminosityClass) throw invalid({ spectralType: 'give a spectral type and a luminosity class, or accept the suggestion' })
+      if (!input.spectralType || !input.luminosityClass) throw new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields: { spectralType: 'give a spectral type and a luminosity class, or accept the suggestion' } })
       parsed = parseCallType(input.spectralType, input.luminosityClass, input.peculiarities ?? '')
     }
 
@@ -461,7 +314,7 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
           notes: input.notes ?? '',
           confidence: input.confidence,
           uncertain: (input.uncertain ?? false) || parsed.uncertain,
-          acceptedSuggestion: input.acceptedSuggestion,
+          acceptedSuggestion: input.acceptedSuggestion ?? false,
           suggestionId: suggestion?.id ?? null,
           suggestionShown: shown,
           secondsSpent: seconds,

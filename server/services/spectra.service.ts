@@ -14,14 +14,14 @@ import {
   Campaign, Classification, Instrument, LineMeasurementRow, Measurement, ProcessingJob, ReviewCall, ReviewClaim, Spectrum, SpectrumBlob,
   SpectrumEvent, Standard, Suggestion, User,
 } from '../models'
-import type { SpectrumCorrectionInput, SpectrumMetadataInput } from '../schemas/spectra.schemas'
 import { readSpectrum, unpackZip, type ReadMeta, type ReadOptions, type ReadSuccess } from '../spectra/io'
 import type { Config } from '../config'
 import { estimateSpectrumSnr } from '../spectra/prepare/snr'
-import { campaignForSubmission, campaignIdsOf } from './campaigns.service'
+import { campaignForSubmission } from './campaigns.service'
 import { instrumentForSpectrum } from './instruments.service'
+import { findVisibleSpectrum, visibilityWhere } from './visibility'
 import { finalClassificationsFor, type FinalClassification } from './review.service'
-import type { FileResult, ReadChoices, SpectrumDetail, SpectrumList, SpectrumListItem } from '../../shared/api/spectra'
+import type { FileResult, KnownFiles, KnownFilesInput, ReadChoices, SeriesQuery, SpectrumCorrectionInput, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumListQuery, SpectrumMetadataInput, SubmitFields } from '../../shared/api/spectra'
 
 export type { FileResult, SpectrumDetail, SpectrumListItem }
 
@@ -38,15 +38,8 @@ export function fitText(text: string, max: number): string {
   return clean.length <= max ? clean : `${clean.slice(0, max - 1).trimEnd()}…`
 }
 
-export interface SubmitOptions extends SpectrumMetadataInput {
-  campaignId: number
-  batchId?: string
-  wavelengthMedium: 'file' | 'air' | 'vacuum'
-  /** 'file': as the file says. */
-  wavelengthUnit?: 'file' | 'Angstrom' | 'nm' | 'um' | 'm'
-  hdu?: number
-  aperture?: number
-}
+/** The batch's fields as the upload sends them (the demo seed and tests may leave the defaults out). */
+export type SubmitOptions = Omit<SubmitFields, 'wavelengthUnit'> & Partial<Pick<SubmitFields, 'wavelengthUnit'>>
 
 /** The observer's reading choices from a form: 'file' and absent mean "as the file says". */
 function choicesOf(input: { wavelengthMedium?: string | undefined; wavelengthUnit?: string | undefined; hdu?: number | null | undefined; aperture?: number | null | undefined }, base: ReadChoices = {}): ReadChoices {
@@ -138,6 +131,14 @@ async function findDuplicate(user: User, campaignId: number, sha: string): Promi
   if (!existing) return null
   const visible = await Spectrum.count({ where: { [Op.and]: [{ id: existing.id }, await visibilityWhere(user)] } })
   return { id: visible ? existing.id : null }
+}
+
+/** Which of these files (by SHA-256) the campaign holds already; ids only of spectra the user may see. */
+export async function knownFiles(user: User, input: KnownFilesInput): Promise<KnownFiles> {
+  await campaignForSubmission(user, input.campaignId)
+  const rows = input.sha256.length ? await Spectrum.findAll({ where: { campaignId: input.campaignId, fileSha256: { [Op.in]: [...new Set(input.sha256)] } }, attributes: ['id', 'fileSha256', 'submittedBy', 'campaignId'] }) : []
+  const visible = rows.length ? new Set((await Spectrum.findAll({ where: { [Op.and]: [{ id: { [Op.in]: rows.map((r) => r.id) } }, await visibilityWhere(user)] }, attributes: ['id'] })).map((r) => r.id)) : new Set<number>()
+  return { known: rows.map((r) => ({ sha256: r.fileSha256, spectrumId: visible.has(r.id) ? r.id : null })) }
 }
 
 async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: UploadedFile, opts: SubmitOptions): Promise<FileResult> {
@@ -309,19 +310,6 @@ async function readHead(path: string): Promise<Buffer> {
   }
 }
 
-/** Which spectra a user may see: observers their own, classifiers their campaigns', leads all. */
-export async function visibilityWhere(user: User): Promise<WhereOptions<Spectrum>> {
-  if (user.role === 'observer') return { submittedBy: user.id }
-  const ids = await campaignIdsOf(user)
-  return ids === 'all' ? {} : { campaignId: { [Op.in]: ids } }
-}
-
-export async function findVisibleSpectrum(user: User, id: number): Promise<Spectrum> {
-  const spectrum = await Spectrum.findOne({ where: { [Op.and]: [{ id }, await visibilityWhere(user)] } })
-  if (!spectrum) throw notFound('The spectrum')
-  return spectrum
-}
-
 function toListItem(s: Spectrum & { campaign?: Campaign; submitter?: User }, classification: FinalClassification | null = null): SpectrumListItem {
   return {
     id: s.id,
@@ -343,20 +331,7 @@ function toListItem(s: Spectrum & { campaign?: Campaign; submitter?: User }, cla
   }
 }
 
-export interface ListQuery {
-  page: number
-  pageSize: number
-  status?: SpectrumStatus
-  campaign?: number
-  instrument?: number
-  q?: string
-  from?: string
-  to?: string
-  snrMin?: number
-  snrMax?: number
-  mine?: '1' | '0'
-  sort: string
-}
+export type ListQuery = SpectrumListQuery
 
 /** Words InnoDB's full-text index leaves out by default (its stopword list), so a search never requires one. */
 const FULLTEXT_STOPWORDS = new Set(['about', 'are', 'com', 'for', 'from', 'how', 'that', 'the', 'this', 'was', 'what', 'when', 'where', 'who', 'will', 'with', 'und', 'www'])
@@ -675,7 +650,7 @@ export interface SeriesPayload {
 }
 
 /** The observed arrays between from and to (Å), decimated to maxPoints, as float32 columns. */
-export async function getSpectrumSeries(user: User, id: number, q: { from?: number; to?: number; maxPoints: number }): Promise<SeriesPayload> {
+export async function getSpectrumSeries(user: User, id: number, q: SeriesQuery): Promise<SeriesPayload> {
   await findVisibleSpectrum(user, id)
   const blob = await SpectrumBlob.findByPk(id, { attributes: ['wavelength', 'flux', 'error', 'mask'] })
   if (!blob) throw notFound('The spectrum data')

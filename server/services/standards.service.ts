@@ -10,12 +10,10 @@ import { HttpError, notFound } from '../lib/http-error'
 import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, Suggestion, type User } from '../models'
 import { replaceModelsByObserved } from '../spectra/match'
 import { resolutionFwhm } from '../spectra/pipeline'
-import type { StandardProvenance, StandardSummary, StandardsLibrary, VersionChanges, VersionSummary } from '../../shared/api/standards'
+import type { AddStandardInput, PublishVersionInput, StandardProvenance, StandardSummary, StandardsLibrary, VersionChanges, VersionSummary } from '../../shared/api/standards'
 
 export type { StandardSummary, VersionSummary }
 
-/** Name of the version made from the shipped observed library: the default standards. */
-export const DEFAULT_VERSION_NAME = 'observed-v1'
 /** Name of the version made from the model library, the default before the observed library. */
 export const MODEL_VERSION_NAME = 'model-v1'
 
@@ -166,14 +164,7 @@ export function toStandardSummary(s: Standard, versionIds: number[]): StandardSu
   }
 }
 
-export interface AddStandardInput {
-  spectrumId: number
-  /** Spectral type, e.g. "A0" (a class written here must agree with `luminosityClass`). */
-  spectralType: string
-  luminosityClass: string
-  /** Where the classification comes from. */
-  note: string
-}
+export type { AddStandardInput }
 
 /**
  * Adds an observed standard: the spectrum's current rectified measurement is copied into the
@@ -235,7 +226,7 @@ export async function retireStandard(id: number): Promise<StandardSummary> {
  * Publishes a new version from the standards that are not retired (observed standards replace
  * model ones of the same type and class) and makes it the active one.
  */
-export async function publishVersion(sequelize: Sequelize, user: User, input: { name: string; description: string }): Promise<VersionSummary> {
+export async function publishVersion(sequelize: Sequelize, user: User, input: PublishVersionInput): Promise<VersionSummary> {
   if (await LibraryVersion.findOne({ where: { name: input.name } })) throw new HttpError(409, 'name_taken', `A version named "${input.name}" already exists.`)
   const live = await Standard.findAll({ where: { retiredAt: null }, attributes: ['id', 'source', 'typeCode', 'classCode'] })
   const kept = replaceModelsByObserved(live)

@@ -1,6 +1,6 @@
 import { Op } from 'sequelize'
 import { ProcessingJob, type User } from '../models'
-import { findVisibleSpectrum } from './spectra.service'
+import { findVisibleSpectrum } from './visibility'
 import type { SpectrumLiveStatus } from '../../shared/api/status'
 
 export type { SpectrumLiveStatus }

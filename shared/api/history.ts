@@ -1,23 +1,31 @@
-import type { PersonRef } from './review'
+import { z } from 'zod'
+import { PersonRef, idParams } from './common'
+import { endpoint } from './endpoint'
 
-export type HistoryKind = 'upload' | 'reread' | 'reprocess' | 'measurement' | 'suggestion' | 'call' | 'correction' | 'dispute' | 'agreed' | 'settled'
+export const HistoryKind = z.enum(['upload', 'reread', 'reprocess', 'measurement', 'suggestion', 'call', 'correction', 'dispute', 'agreed', 'settled'])
+export type HistoryKind = z.infer<typeof HistoryKind>
 
 /** One entry of a spectrum's history, oldest first. */
-export interface HistoryEvent {
-  at: string
-  kind: HistoryKind
-  /** Null for the pipeline. */
-  who: PersonRef | null
-  summary: string
-  /** For calls: whether the suggestion had been shown to the caller, and the time they spent. */
-  suggestionShown?: boolean
-  secondsSpent?: number | null
-  /** What each kind adds (the call, the decision, …). */
-  details: Record<string, unknown>
-}
+export const HistoryEvent = z
+  .object({
+    at: z.string(),
+    kind: HistoryKind,
+    /** Null for the pipeline. */
+    who: PersonRef.nullable(),
+    summary: z.string(),
+    /** For calls: whether the suggestion had been shown to the caller, and the time they spent. */
+    suggestionShown: z.boolean().optional(),
+    secondsSpent: z.number().nullable().optional(),
+    /** What each kind adds (the call, the decision, …). */
+    details: z.record(z.string(), z.unknown()),
+  })
+  .meta({ id: 'HistoryEvent' })
+export type HistoryEvent = z.infer<typeof HistoryEvent>
 
 /** The whole history; `hidden` when blind review keeps some of it back from the caller. */
-export interface SpectrumHistory {
-  events: HistoryEvent[]
-  hidden: boolean
+export const SpectrumHistory = z.object({ events: z.array(HistoryEvent), hidden: z.boolean() }).meta({ id: 'SpectrumHistory' })
+export type SpectrumHistory = z.infer<typeof SpectrumHistory>
+
+export const historyApi = {
+  get: endpoint({ method: 'get', path: '/spectra/:id/history', tag: 'Spectra', summary: "A spectrum's history, oldest first (blind review applied)", params: idParams, response: SpectrumHistory }),
 }

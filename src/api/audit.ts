@@ -1,15 +1,11 @@
-import type { AuditReport } from '@shared/api/audit'
-import { http } from './http'
+import { auditApi, type AuditQueryFields, type AuditReport } from '@shared/api/audit'
+import { campaignsApi } from '@shared/api/campaigns'
+import { call } from './http'
 
 export type { AccuracyFigures, AgreementFigures, AuditReport, InstrumentAccuracy, SuggestionAccuracy, VersionAccuracy, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, FourFigures, GroupFigures, MatrixCell, PairFigures, RaterRef } from '@shared/api/audit'
 
-export interface AuditQuery {
-  campaign: number
-  /** First day, YYYY-MM-DD (UTC). */
-  from?: string
-  /** Last day, YYYY-MM-DD (UTC), inclusive. */
-  to?: string
-}
+/** Campaign, first and last day (YYYY-MM-DD, UTC, inclusive). */
+export type AuditQuery = AuditQueryFields
 
 export interface CampaignChoice {
   id: number
@@ -23,12 +19,12 @@ export interface CampaignChoice {
 export const SMALL_SAMPLE = 10
 
 export async function listCampaignChoices(): Promise<CampaignChoice[]> {
-  const body = await http.get<{ campaigns: (CampaignChoice & { progress?: { calls?: number } })[] }>('/campaigns')
+  const body = await call(campaignsApi.list)
   return body.campaigns.map((c) => ({ id: c.id, code: c.code, name: c.name, calls: c.progress?.calls ?? 0 }))
 }
 
 export async function getAudit(query: AuditQuery): Promise<AuditReport> {
-  return (await http.get<{ audit: AuditReport }>('/audit', { query: { campaign: query.campaign, from: query.from, to: query.to } })).audit
+  return (await call(auditApi.report, { query })).audit
 }
 
 /** Monday 00:00 UTC of an ISO week "2026-W03", in Unix seconds (null when the key is not a week). */

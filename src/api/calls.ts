@@ -1,7 +1,7 @@
-import type { HistoryEvent } from '@shared/api/history'
 import type { LineRow, MeasurementSummary } from '@shared/api/measurements'
-import type { RecordCallInput, RecordCallResult, ReviewView } from '@shared/api/review'
-import { http } from './http'
+import { historyApi, type HistoryEvent } from '@shared/api/history'
+import { reviewApi, type RecordCallInput, type RecordCallResult, type ReviewView } from '@shared/api/review'
+import { call } from './http'
 
 export type { HistoryEvent, HistoryKind } from '@shared/api/history'
 export type { MeasurementSummary }
@@ -14,9 +14,8 @@ export type ReviewData = ReviewView
 export type CallInput = RecordCallInput
 export type CallResult = RecordCallResult
 
-export const getReview = (spectrumId: number): Promise<ReviewData> => http.get<ReviewData>(`/spectra/${spectrumId}/review`)
+export const getReview = (spectrumId: number): Promise<ReviewData> => call(reviewApi.view, { params: { id: spectrumId } })
 
-export const recordCall = (spectrumId: number, input: CallInput): Promise<CallResult> => http.post<CallResult>(`/spectra/${spectrumId}/calls`, input)
+export const recordCall = (spectrumId: number, input: CallInput): Promise<CallResult> => call(reviewApi.recordCall, { params: { id: spectrumId }, body: input })
 
-export const getHistory = async (spectrumId: number): Promise<HistoryEvent[]> =>
-  (await http.get<{ events: HistoryEvent[] }>(`/spectra/${spectrumId}/history`)).events
+export const getHistory = async (spectrumId: number): Promise<HistoryEvent[]> => (await call(historyApi.get, { params: { id: spectrumId } })).events

@@ -1,8 +1,6 @@
-import type { DerivedView } from '@shared/api/derived'
-import { http } from './http'
+import { derivedApi, type DerivedView } from '@shared/api/derived'
+import { call } from './http'
 
 export type { DerivedView }
 
-export async function getDerived(spectrumId: number): Promise<DerivedView> {
-  return (await http.get<{ derived: DerivedView }>(`/spectra/${spectrumId}/derived`)).derived
-}
+export const getDerived = async (spectrumId: number): Promise<DerivedView> => (await call(derivedApi.get, { params: { id: spectrumId } })).derived

@@ -1,4 +1,5 @@
 /** The one fetch wrapper: JSON in and out, same-origin cookies, CSRF token on every non-GET, typed errors. */
+import { ErrorBody, fillPath, type Endpoint, type RequestOf, type ResponseOf } from '@shared/api/endpoint'
 
 export interface ApiErrorDetails {
   fields?: Record<string, string>
@@ -67,7 +68,7 @@ export function currentCsrfToken(): Promise<string> {
 
 export interface RequestOptions {
   /** Query parameters; undefined values are left out. */
-  query?: Record<string, string | number | boolean | undefined>
+  query?: Record<string, unknown>
   /** Skip the uniform handling (redirect on 401, "not allowed" on 403, network message). */
   quiet?: boolean
   signal?: AbortSignal
@@ -79,7 +80,7 @@ function buildUrl(path: string, query?: RequestOptions['query']): string {
   let url = `/api${path}`
   if (query) {
     const params = new URLSearchParams()
-    for (const [key, value] of Object.entries(query)) if (value !== undefined) params.set(key, String(value))
+    for (const [key, value] of Object.entries(query)) if (value !== undefined && value !== null) params.set(key, String(value))
     const qs = params.toString()
     if (qs) url += `?${qs}`
   }
@@ -93,11 +94,10 @@ async function errorFrom(response: Response): Promise<ApiError> {
   } catch {
     // Not JSON (a proxy page, an empty body): fall back to the status line.
   }
-  const err = (body as { error?: { code?: unknown; message?: unknown; details?: unknown } } | null)?.error
-  if (err && typeof err.code === 'string') {
-    const message = typeof err.message === 'string' ? err.message : response.statusText
-    const details = err.details && typeof err.details === 'object' ? (err.details as ApiErrorDetails) : null
-    return new ApiError(response.status, err.code, message, details)
+  const parsed = ErrorBody.safeParse(body)
+  if (parsed.success) {
+    const { code, message, details } = parsed.data.error
+    return new ApiError(response.status, code, message || response.statusText, (details as ApiErrorDetails | null) ?? null)
   }
   return new ApiError(response.status, `http_${response.status}`, response.statusText || `The server answered ${response.status}.`)
 }
@@ -155,6 +155,16 @@ export const http = {
   patch: <T>(path: string, body: unknown, options?: RequestOptions) => request<T>('PATCH', path, body, options),
   put: <T>(path: string, body: unknown, options?: RequestOptions) => request<T>('PUT', path, body, options),
   delete: <T>(path: string, options?: RequestOptions) => request<T>('DELETE', path, undefined, options),
+}
+
+type CallArgs<E extends Endpoint> = {} extends RequestOf<E> ? [input?: RequestOf<E>, options?: CallOptions] : [input: RequestOf<E>, options?: CallOptions]
+export type CallOptions = Omit<RequestOptions, 'query'>
+
+/** Calls an endpoint declared in shared/api: the path, query and body are typed by its schemas, and so is the answer. */
+export function call<E extends Endpoint>(endpoint: E, ...[input, options = {}]: CallArgs<E>): Promise<ResponseOf<E>> {
+  const method = endpoint.method.toUpperCase() as Method
+  const body = input?.body ?? (method === 'POST' ? {} : undefined)
+  return request<ResponseOf<E>>(method, fillPath(endpoint.path, input?.params as Record<string, unknown> | undefined), body, { ...options, query: input?.query as RequestOptions['query'] })
 }
 
 /**

@@ -1,8 +1,7 @@
-import type { InstrumentCandidates, InstrumentSummary } from '@shared/api/instruments'
-import type { StandardSummary, VersionSummary } from '@shared/api/standards'
-import { http } from './http'
+import { instrumentsApi, type InstrumentSummary, type LibraryChange } from '@shared/api/instruments'
+import { call } from './http'
 
-export type { CoverageCell, DecisionRecord, InstrumentCandidate, InstrumentCandidates, InstrumentSummary } from '@shared/api/instruments'
+export type { CoverageCell, DecisionRecord, InstrumentCandidate, InstrumentCandidates, InstrumentSummary, LibraryChange } from '@shared/api/instruments'
 
 export interface InstrumentInput {
   name: string
@@ -14,28 +13,17 @@ export interface InstrumentInput {
 }
 
 /** The instruments of the campaigns the person belongs to, or of one campaign. */
-export async function listInstruments(campaignId?: number): Promise<InstrumentSummary[]> {
-  return (await http.get<{ instruments: InstrumentSummary[] }>('/instruments', { query: { campaign: campaignId } })).instruments
-}
+export const listInstruments = async (campaignId?: number): Promise<InstrumentSummary[]> => (await call(instrumentsApi.list, { query: { campaign: campaignId } })).instruments
 
-export async function createInstrument(campaignId: number, input: InstrumentInput): Promise<InstrumentSummary> {
-  return (await http.post<{ instrument: InstrumentSummary }>('/instruments', { campaignId, ...input })).instrument
-}
+export const createInstrument = async (campaignId: number, input: InstrumentInput): Promise<InstrumentSummary> => (await call(instrumentsApi.create, { body: { campaignId, ...input } })).instrument
 
-export async function updateInstrument(id: number, input: Partial<InstrumentInput>): Promise<InstrumentSummary> {
-  return (await http.patch<{ instrument: InstrumentSummary }>(`/instruments/${id}`, input)).instrument
-}
+export const updateInstrument = async (id: number, input: Partial<InstrumentInput>): Promise<InstrumentSummary> => (await call(instrumentsApi.update, { params: { id }, body: input })).instrument
 
 /** The instrument's candidate standards, its coverage in the active version and why other spectra are not proposed. */
-export const getInstrumentCandidates = (id: number) => http.get<InstrumentCandidates>(`/instruments/${id}/candidates`)
-
-export interface LibraryChange {
-  version: VersionSummary
-  standards: StandardSummary[]
-}
+export const getInstrumentCandidates = (id: number) => call(instrumentsApi.candidates, { params: { id } })
 
 /** Promotes candidates as the instrument's standards; publishes a new active version. */
-export const promoteCandidates = (id: number, spectrumIds: number[], note: string) => http.post<LibraryChange>(`/instruments/${id}/promote`, { spectrumIds, note })
+export const promoteCandidates = (id: number, spectrumIds: number[], note: string): Promise<LibraryChange> => call(instrumentsApi.promote, { params: { id }, body: { spectrumIds, note } })
 
 /** Demotes standards of the instrument; publishes a new active version without them. */
-export const demoteStandards = (id: number, standardIds: number[], note: string) => http.post<LibraryChange>(`/instruments/${id}/demote`, { standardIds, note })
+export const demoteStandards = (id: number, standardIds: number[], note: string): Promise<LibraryChange> => call(instrumentsApi.demote, { params: { id }, body: { standardIds, note } })

@@ -1,8 +1,8 @@
-import type { MailDetail, MailPage } from '@shared/api/outbox'
-import { http } from './http'
+import { outboxApi } from '@shared/api/outbox'
+import { call } from './http'
 
 export type { MailDetail, MailPage, MailSummary } from '@shared/api/outbox'
 
-export const listMail = (page: number, pageSize: number) => http.get<MailPage>('/outbox', { query: { page, pageSize } })
+export const listMail = (page: number, pageSize: number) => call(outboxApi.list, { query: { page, pageSize } })
 
-export const getMail = async (id: number): Promise<MailDetail> => (await http.get<{ mail: MailDetail }>(`/outbox/${id}`)).mail
+export const getMail = async (id: number) => (await call(outboxApi.get, { params: { id } })).mail

@@ -1,47 +1,25 @@
-import type { QueueItem, QueueOrder, QueuePage } from '@shared/api/queue'
+import { QUEUE_ORDERS, queueApi, type QueueItem, type QueueOrder, type QueuePage, type QueueQuery } from '@shared/api/queue'
 import type { ClaimView } from '@shared/api/review'
-import { http } from './http'
+import { call } from './http'
 
 export type { QueueItem, QueueOrder, QueuePage }
 export type { ClaimView }
+export { QUEUE_ORDERS }
 
-/** Priority orders the server offers for the queue. */
-export const QUEUE_ORDERS = ['oldest', 'snr', 'flagged'] as const satisfies readonly QueueOrder[]
+/** The queue's filters (server: QueueQuery); every one may be left out. */
+export type QueueFilters = Partial<Omit<QueueQuery, 'limit'>>
 
-export interface QueueFilters {
-  campaign?: number
-  /** Quality flags the item's suggestion must all carry. */
-  flags?: string[]
-  /** Suggested type-code range (O0 = 0 … M0 = 60); blind-review items drop out when it is set. */
-  typeFrom?: number
-  typeTo?: number
-  snrMin?: number
-  snrMax?: number
-  order?: QueueOrder
-}
+/** The filters as the query string carries them (flags comma-separated). */
+const queryOf = (f: QueueFilters) => ({ ...f, flags: f.flags && f.flags.length > 0 ? f.flags.join(',') : undefined })
 
-function queryOf(f: QueueFilters): Record<string, string | number | undefined> {
-  return {
-    campaign: f.campaign,
-    flags: f.flags && f.flags.length > 0 ? f.flags.join(',') : undefined,
-    typeFrom: f.typeFrom,
-    typeTo: f.typeTo,
-    snrMin: f.snrMin,
-    snrMax: f.snrMax,
-    order: f.order,
-  }
-}
-
-export const listQueue = (filters: QueueFilters = {}): Promise<QueuePage> => http.get<QueuePage>('/queue', { query: queryOf(filters) })
+export const listQueue = (filters: QueueFilters = {}): Promise<QueuePage> => call(queueApi.list, { query: queryOf(filters) })
 
 /** The item after `after` in the caller's queue with these filters, or null when the queue is done. */
-export const nextQueueItem = async (filters: QueueFilters, after?: number): Promise<QueueItem | null> =>
-  (await http.get<{ item: QueueItem | null }>('/queue/next', { query: { ...queryOf(filters), after } })).item
+export const nextQueueItem = async (filters: QueueFilters, after?: number): Promise<QueueItem | null> => (await call(queueApi.next, { query: { ...queryOf(filters), after } })).item
 
-export const claimQueueItem = async (spectrumId: number): Promise<ClaimView> =>
-  (await http.post<{ claim: ClaimView }>(`/queue/${spectrumId}/claim`)).claim
+export const claimQueueItem = async (spectrumId: number): Promise<ClaimView> => (await call(queueApi.claim, { params: { spectrumId } })).claim
 
 /** Gives the item back to the queue (releasing a claim one does not hold changes nothing). */
 export const releaseQueueItem = async (spectrumId: number): Promise<void> => {
-  await http.delete<void>(`/queue/${spectrumId}/claim`)
+  await call(queueApi.release, { params: { spectrumId } })
 }

@@ -1,5 +1,5 @@
-import type { CellValue, ExportColumn, ExportFormat, ExportRow, ReleaseDetail as ReleasePage, ReleasePreview, ReleaseSummary, TableParam } from '@shared/api/releases'
-import { http } from './http'
+import { releasesApi, type ExportColumn, type ExportFormat, type ExportRow, type ReleaseInput, type ReleaseDetail as ReleasePage, type ReleasePreview, type ReleaseSummary } from '@shared/api/releases'
+import { call } from './http'
 
 export type { ReleasePreview, ReleaseSummary }
 
@@ -14,43 +14,36 @@ export const DOWNLOAD_FORMATS = [
 export type DownloadFormat = ExportFormat
 
 export type ReleaseColumn = ExportColumn
-export type ReleaseParam = TableParam
-export type ReleaseCell = CellValue
 export type ReleaseRow = ExportRow
 
 /** A release with all its rows. */
 export type ReleaseDetail = Omit<ReleasePage, 'page' | 'pageSize'>
 
-export interface FreezeInput {
-  campaignId: number
-  title: string
-  description: string
-  authors?: string
-  /** Name who decided each row (off for privacy). */
-  includeDecider?: boolean
-}
+/** Authors and the decider column (off for privacy) may be left to their defaults. */
+export type FreezeInput = ReleaseInput
 
 /** What freezing the campaign now would give. */
 export const previewRelease = async (campaignId: number, includeDecider: boolean): Promise<ReleasePreview> =>
-  (await http.get<{ preview: ReleasePreview }>('/releases/preview', { query: { campaign: campaignId, includeDecider: String(includeDecider) } })).preview
+  (await call(releasesApi.preview, { query: { campaign: campaignId, includeDecider: includeDecider ? 'true' : 'false' } })).preview
 
 /** The server pages rows at most this many at a time. */
 const PAGE = 200
 
 export async function listReleases(): Promise<ReleaseSummary[]> {
-  return (await http.get<{ releases: ReleaseSummary[] }>('/releases')).releases
+  return (await call(releasesApi.list)).releases
 }
 
 /** A release with all its rows (fetched page by page; releases are a few thousand rows at most). */
 export async function getRelease(id: number): Promise<ReleaseDetail> {
-  const first = await http.get<ReleasePage>(`/releases/${id}`, { query: { page: 1, pageSize: PAGE } })
+  const page = (n: number): Promise<ReleasePage> => call(releasesApi.get, { params: { id }, query: { page: n, pageSize: PAGE } })
+  const first = await page(1)
   const pages = Math.ceil(first.total / PAGE)
-  const rest = await Promise.all(Array.from({ length: Math.max(0, pages - 1) }, (_, i) => http.get<ReleasePage>(`/releases/${id}`, { query: { page: i + 2, pageSize: PAGE } })))
+  const rest = await Promise.all(Array.from({ length: Math.max(0, pages - 1) }, (_, i) => page(i + 2)))
   return { release: first.release, columns: first.columns, params: first.params, notes: first.notes, total: first.total, rows: [...first.rows, ...rest.flatMap((p) => p.rows)] }
 }
 
 export async function freezeRelease(input: FreezeInput): Promise<ReleaseSummary> {
-  return (await http.post<{ release: ReleaseSummary }>('/releases', input)).release
+  return (await call(releasesApi.freeze, { body: input })).release
 }
 
 /** A plain link the browser follows; the server names the file. */

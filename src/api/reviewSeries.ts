@@ -1,5 +1,5 @@
-import type { StandardSummary } from '@shared/api/standards'
-import { http } from './http'
+import { standardsApi, type StandardSummary } from '@shared/api/standards'
+import { call } from './http'
 import { getSeries } from './series'
 
 /** A standard star, as far as choosing an overlay needs it. */
@@ -19,8 +19,6 @@ export const fetchStandardSeries = (standardId: number, maxPoints = LIBRARY_GRID
 
 /** Every standard still in use (any library version), for overlays. */
 export async function listOverlayStandards(): Promise<OverlayStandardSummary[]> {
-  const body = await http.get<{ standards?: Array<Partial<OverlayStandardSummary>> }>('/standards')
-  return (body.standards ?? [])
-    .filter((s): s is OverlayStandardSummary => typeof s.id === 'number' && typeof s.typeCode === 'number' && typeof s.classCode === 'number' && !s.retiredAt)
-    .map((s) => ({ id: s.id, spectralType: s.spectralType ?? '', typeCode: s.typeCode, luminosityClass: s.luminosityClass ?? '', classCode: s.classCode, source: s.source === 'observed' ? 'observed' : 'model', retiredAt: null }))
+  const { standards } = await call(standardsApi.library)
+  return standards.filter((s) => !s.retiredAt).map(({ id, spectralType, typeCode, luminosityClass, classCode, source, retiredAt }) => ({ id, spectralType, typeCode, luminosityClass, classCode, source, retiredAt }))
 }

@@ -1,18 +1,26 @@
-import type { HistoryEvent, SpectrumHistory } from '@shared/api/history'
+import { historyApi, type HistoryEvent, type SpectrumHistory } from '@shared/api/history'
 import type { LineRow } from '@shared/api/measurements'
-import type { ReadMeta, SpectrumDetail, SpectrumList, SpectrumPage, SubmitReply } from '@shared/api/spectra'
+import {
+  spectraApi,
+  type SpectrumCorrectionInput,
+  type SpectrumDetail,
+  type SpectrumList,
+  type SpectrumListQuery as ListQueryFields,
+  type SeriesQuery,
+  type SpectrumSort,
+  type SubmitFields as SubmitFieldsOf,
+  type SubmitReply,
+  type WavelengthUnitChoice,
+} from '@shared/api/spectra'
 import type { SuggestionSummary } from '@shared/api/suggestions'
-import type { SpectrumStatus } from '@shared/status'
-import { ApiError, NETWORK_ERROR, NETWORK_MESSAGE, currentCsrfToken, http, setCsrfToken, type ApiErrorDetails } from './http'
+import { ApiError, NETWORK_ERROR, NETWORK_MESSAGE, call, currentCsrfToken, setCsrfToken, type ApiErrorDetails } from './http'
 import { getSeries } from './series'
 
 export type { SpectrumHistory }
 export type { MeasurementSummary, SpectrumMeasurements } from '@shared/api/measurements'
-export type { FileResult, HeaderValue, ReadChoices, ReadDecisions, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumPage, SubmitReply } from '@shared/api/spectra'
+export type { FileResult, HeaderValue, ReadChoices, ReadDecisions, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumPage, SpectrumSort, SpectrumSortField, SubmitReply, WavelengthUnitChoice } from '@shared/api/spectra'
 export type { SpectrumSuggestions } from '@shared/api/suggestions'
 
-/** What the reader learned from the file. */
-export type ReadInfo = ReadMeta
 /** One classification line's measurement; unmeasured lines carry a reason and nulls, never zeros. */
 export type LineMeasurement = LineRow
 /** The pipeline's suggested classification; candidates and votes are read leniently (see composables/useSpectrumSuggestion.ts). */
@@ -34,32 +42,8 @@ export interface SuggestionCandidate {
   probability: number
 }
 
-/** One luminosity criterion and the class it prefers; `standards` holds its value at each class's standard. */
-export interface SuggestionVote {
-  criterion: string
-  name: string
-  value: number | null
-  vote: string | null
-  standards?: Record<string, number>
-  note?: string
-}
-
-export type SpectrumSortField = 'createdAt' | 'objectName' | 'snr' | 'status' | 'obsDate' | 'id'
-export type SpectrumSort = SpectrumSortField | `-${SpectrumSortField}`
-
-export interface SpectrumListQuery {
-  page: number
-  pageSize: number
-  sort?: SpectrumSort
-  status?: SpectrumStatus
-  campaign?: number
-  instrument?: number
-  q?: string
-  from?: string
-  to?: string
-  snrMin?: number
-  snrMax?: number
-}
+/** A list request as the screens build it (server: SpectrumListQuery); empty filters are left out when sent. */
+export type SpectrumListQuery = Pick<ListQueryFields, 'page' | 'pageSize'> & Partial<Omit<ListQueryFields, 'page' | 'pageSize' | 'mine' | 'sort'>> & { sort?: SpectrumSort }
 
 /** The query string values for a list request: empty filters are left out. */
 export function listQueryParams(query: SpectrumListQuery): Record<string, string | number> {
@@ -77,55 +61,27 @@ export function listQueryParams(query: SpectrumListQuery): Record<string, string
   return out
 }
 
-export const listSpectra = (query: SpectrumListQuery, signal?: AbortSignal) =>
-  http.get<SpectrumList>('/spectra', { query: listQueryParams(query), ...(signal ? { signal } : {}) })
+export const listSpectra = (query: SpectrumListQuery, signal?: AbortSignal): Promise<SpectrumList> => call(spectraApi.list, { query: listQueryParams(query) }, signal ? { signal } : {})
 
-export const getSpectrum = (id: number) => http.get<SpectrumPage>(`/spectra/${id}`)
+export const getSpectrum = (id: number) => call(spectraApi.get, { params: { id } })
 
 /** Metadata as the forms send it: text as typed (empty clears); numbers as numbers, null to clear, absent to leave. */
-export interface SpectrumMetadataInput {
-  objectName?: string
-  ra?: string
-  dec?: string
-  obsDate?: string
-  instrument?: string
-  /** The campaign's instrument record; null takes the spectrum off any. */
-  instrumentId?: number | null
-  resolutionFwhm?: number | null
-  resolvingPower?: number | null
-  vMag?: number | null
-  parallaxMas?: number | null
-  parallaxErrorMas?: number | null
-  ebv?: number | null
-  notes?: string
-}
-
-/** Wavelength units an observer can choose instead of the file's (server: WAVELENGTH_UNIT_CHOICES). */
-export type WavelengthUnitChoice = 'file' | 'Angstrom' | 'nm' | 'um' | 'm'
+export type SpectrumMetadataInput = Omit<SpectrumCorrectionInput, 'wavelengthMedium' | 'wavelengthUnit' | 'hdu' | 'aperture'>
 
 /** How to read the stored file again: 'file' and null mean "as the file says" / automatic. */
-export interface ReadingCorrection {
-  wavelengthMedium?: 'file' | 'air' | 'vacuum'
-  wavelengthUnit?: WavelengthUnitChoice
-  hdu?: number | null
-  aperture?: number | null
-}
+export type ReadingCorrection = Pick<SpectrumCorrectionInput, 'wavelengthMedium' | 'wavelengthUnit' | 'hdu' | 'aperture'>
 
-export const updateSpectrum = async (id: number, changes: SpectrumMetadataInput & ReadingCorrection): Promise<SpectrumDetail> =>
-  (await http.patch<{ spectrum: SpectrumDetail }>(`/spectra/${id}`, changes)).spectrum
+export const updateSpectrum = async (id: number, changes: SpectrumMetadataInput & ReadingCorrection): Promise<SpectrumDetail> => (await call(spectraApi.update, { params: { id }, body: changes })).spectrum
 
 /** Withdraws one's own spectrum before any call: the file and its results go. */
-export const withdrawSpectrum = (id: number) => http.delete<{ message: string }>(`/spectra/${id}`)
+export const withdrawSpectrum = (id: number) => call(spectraApi.withdraw, { params: { id } })
 
-export const getSpectrumHistory = (id: number) => http.get<SpectrumHistory>(`/spectra/${id}/history`)
+export const getSpectrumHistory = (id: number): Promise<SpectrumHistory> => call(historyApi.get, { params: { id } })
 
-export const processSpectrumAgain = (id: number) => http.post<{ message: string }>(`/spectra/${id}/process`)
+export const processSpectrumAgain = (id: number) => call(spectraApi.process, { params: { id } })
 
-export interface SeriesRange {
-  from?: number
-  to?: number
-  maxPoints?: number
-}
+/** A window of a series and the most points to send (server: SeriesQuery). */
+export type SeriesRange = Partial<SeriesQuery>
 
 function seriesQuery(range: SeriesRange): Record<string, string> {
   const query: Record<string, string> = {}
@@ -141,28 +97,8 @@ export const getSpectrumData = (id: number, range: SeriesRange = {}, signal?: Ab
 /** The prepared spectrum on the library grid: wavelength, flux, continuum, rectified. */
 export const getPreparedData = (id: number, range: SeriesRange = {}, signal?: AbortSignal) => getSeries(`/spectra/${id}/prepared`, { query: seriesQuery(range), signal })
 
-/** Batch metadata, as the multipart fields of POST /api/spectra (server: submitBody). */
-export interface SubmitFields {
-  campaignId: number
-  batchId: string
-  objectName?: string
-  ra?: string
-  dec?: string
-  obsDate?: string
-  instrument?: string
-  instrumentId?: number
-  resolutionFwhm?: number
-  resolvingPower?: number
-  vMag?: number
-  parallaxMas?: number
-  parallaxErrorMas?: number
-  ebv?: number
-  wavelengthMedium: 'file' | 'air' | 'vacuum'
-  wavelengthUnit?: WavelengthUnitChoice
-  hdu?: number
-  aperture?: number
-  notes?: string
-}
+/** Batch metadata, as the multipart fields of POST /api/spectra (server: SubmitFields); numbers only, no clearing. */
+export type SubmitFields = { [K in keyof SubmitFieldsOf]?: Exclude<SubmitFieldsOf[K], null> } & Pick<SubmitFieldsOf, 'campaignId' | 'wavelengthMedium'> & { batchId: string }
 
 /** The multipart body for one file: the batch fields (empty ones left out) and the file. */
 /** One file of an upload and the name the server sees. */

@@ -1,6 +1,6 @@
-import type { SpectrumLiveStatus } from '@shared/api/status'
-import { http } from './http'
+import { statusApi, type SpectrumLiveStatus } from '@shared/api/status'
+import { call } from './http'
 
 export type { SpectrumLiveStatus }
 
-export const getLiveStatus = (spectrumId: number): Promise<SpectrumLiveStatus> => http.get<SpectrumLiveStatus>(`/spectra/${spectrumId}/status`)
+export const getLiveStatus = (spectrumId: number): Promise<SpectrumLiveStatus> => call(statusApi.get, { params: { id: spectrumId } })

@@ -1,5 +1,2 @@
 export type { PublicUser } from '@shared/api/users'
-
-export interface MessageReply {
-  message: string
-}
+export type { MessageReply } from '@shared/api/endpoint'

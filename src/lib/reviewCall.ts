@@ -1,4 +1,5 @@
-import { LUMINOSITY_CLASSES, MK_LETTERS, classCodeOf, formatMK, parseMK, typeCodeOf } from '@shared/mk'
+import { formatTypeExpr, parseMK } from '@shared/mk'
+import { checkCallText } from '@shared/mkCall'
 
 /** What the classifier has typed into the call form. */
 export interface CallDraft {
@@ -41,7 +42,7 @@ export type CallField = 'type' | 'luminosityClass' | 'peculiarities' | 'confiden
 export interface ValidCall {
   /** Canonical MK text of the whole call, e.g. "B8: III n", for the screen. */
   display: string
-  /** Letter and subtype as the API takes them, e.g. "B8". */
+  /** The type as the API takes it, e.g. "B8" (or a range of adjacent types, "B8-9"). */
   spectralType: string
   letter: string
   subtype: number
@@ -58,71 +59,48 @@ export interface ValidCall {
 
 export type CallCheck = { ok: true; call: ValidCall } | { ok: false; errors: Partial<Record<CallField, string>> }
 
-const CALL_LETTERS = MK_LETTERS.filter((l) => l.code < 70).map((l) => l.letter)
+/** A field message of the shared rules as a sentence for the form. */
+const sentence = (message: string) => `${message[0]!.toUpperCase()}${message.slice(1)}.`
 
-/** Checks a draft with the shared MK parser: an O–M type with a subtype, a known class, readable notes. */
+/**
+ * Checks a draft with the rules the API applies (shared/mkCall.ts), plus what only the form asks: a
+ * confidence, and a class written after the type ("B8 III") filling an empty class field.
+ */
 export function checkCall(draft: CallDraft): CallCheck {
   const errors: Partial<Record<CallField, string>> = {}
-  const typeText = draft.type.trim()
+  let typeText = draft.type.trim()
   let classText = draft.luminosityClass.trim()
-  let letter = ''
-  let subtype = Number.NaN
-
-  if (typeText === '') errors.type = 'Write a spectral type, e.g. B8 or K1.5.'
-  else {
-    const parsed = parseMK(typeText)
-    if (!parsed.ok) errors.type = `Not a spectral type: ${parsed.reason}.`
-    else if (parsed.value.kind !== 'mk' || !CALL_LETTERS.includes(parsed.value.letter)) errors.type = `Use an MK letter ${CALL_LETTERS.join(' ')} with a subtype.`
-    else if (parsed.value.subtype === undefined) errors.type = `Add a subtype, e.g. ${parsed.value.letter}5.`
-    else if (parsed.value.type.points.length > 1) errors.type = 'Give one type, not a range.'
-    else if (parsed.value.subtype > 9.75) errors.type = 'The subtype runs from 0 to 9.5.'
-    else if (parsed.value.peculiarities.length > 0) errors.type = 'Write peculiarity notes in their own field.'
-    else {
-      letter = parsed.value.letter
-      subtype = parsed.value.subtype
-      if (parsed.value.luminosityClass) {
-        if (classText === '') classText = parsed.value.luminosityClass
-        else if (classText !== parsed.value.luminosityClass) errors.type = 'The type names a different class from the class field.'
-      }
-    }
+  const split = parseMK(typeText)
+  if (split.ok && split.value.kind === 'mk' && split.value.luminosityClass !== undefined && split.value.peculiarities.length === 0 && !split.value.composite) {
+    const typeOnly = formatTypeExpr(split.value.type)
+    if (classText === '' || classText === split.value.luminosityClass) {
+      classText = split.value.luminosityClass
+      typeText = typeOnly
+    } else errors.type = 'The type names a different class from the class field.'
   }
-
-  let classCode: number | undefined
-  if (classText === '') errors.luminosityClass = 'Choose a luminosity class, e.g. V or III.'
-  else {
-    classCode = classCodeOf(classText)
-    if (classCode === undefined) errors.luminosityClass = `Not a luminosity class; use ${LUMINOSITY_CLASSES.map((c) => c.text).join(', ')} (or IV-V, IIIb …).`
-  }
-
   const confidence = draft.confidence
   if (confidence === null || ![1, 2, 3].includes(confidence)) errors.confidence = 'Choose a confidence of 1, 2 or 3.'
-
-  let peculiarityList: string[] = []
-  let display = ''
-  if (!errors.type && !errors.luminosityClass) {
-    const full = `${letter}${subtype}${draft.uncertain ? ':' : ''} ${classText} ${draft.peculiarities.trim()}`.trim()
-    const parsed = parseMK(full)
-    if (!parsed.ok) errors.peculiarities = `Cannot read the notes: ${parsed.reason.replace(/ at character \d+$/, '')}.`
-    else if (parsed.value.composite) errors.peculiarities = 'A composite spectrum goes in the free note.'
-    else {
-      peculiarityList = parsed.value.peculiarities
-      display = formatMK(parsed.value)
-    }
+  const checked = checkCallText(typeText, classText, draft.peculiarities, draft.uncertain)
+  if (!checked.ok) {
+    if (checked.errors.spectralType) errors.type ??= sentence(checked.errors.spectralType)
+    if (checked.errors.luminosityClass) errors.luminosityClass = sentence(checked.errors.luminosityClass)
+    if (checked.errors.peculiarities) errors.peculiarities = sentence(checked.errors.peculiarities)
   }
-
-  if (Object.keys(errors).length > 0) return { ok: false, errors }
+  if (!checked.ok || Object.keys(errors).length > 0) return { ok: false, errors }
+  const c = checked.call
+  const typePart = typeText.replace(/:$/, '')
   return {
     ok: true,
     call: {
-      display,
-      spectralType: `${letter}${subtype}`,
-      letter,
-      subtype,
-      typeCode: typeCodeOf(letter, subtype)!,
+      display: c.spectralType,
+      spectralType: typePart,
+      letter: c.letter,
+      subtype: c.subtype,
+      typeCode: c.typeCode,
       luminosityClass: classText,
-      classCode: classCode!,
+      classCode: c.classCode,
       peculiarities: draft.peculiarities.trim(),
-      peculiarityList,
+      peculiarityList: c.peculiarities,
       uncertain: draft.uncertain,
       confidence: confidence!,
       note: draft.note.trim(),

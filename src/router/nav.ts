@@ -1,7 +1,7 @@
 import type { Role } from '@shared/roles'
 import { roleMayOpen, type AppRouteName } from './routes'
 
-export type NavIconName = 'people' | 'mail' | 'account' | 'upload' | 'spectra' | 'queue' | 'dispute' | 'campaign' | 'standards' | 'audit' | 'release'
+export type NavIconName = 'people' | 'mail' | 'account' | 'upload' | 'spectra' | 'queue' | 'dispute' | 'campaign' | 'standards' | 'audit' | 'release' | 'api'
 
 export interface NavEntry {
   route: AppRouteName
@@ -27,6 +27,7 @@ export const NAV_ENTRIES: readonly NavEntry[] = [
   { route: 'people', label: 'People', icon: 'people' },
   { route: 'outbox', label: 'Outbox', icon: 'mail' },
   { route: 'account', label: 'My account', icon: 'account' },
+  { route: 'apiReference', label: 'API reference', icon: 'api' },
 ]
 
 /** Where each role lands after signing in, and when it opens a screen it may not see. */

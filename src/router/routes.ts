@@ -15,7 +15,7 @@ declare module 'vue-router' {
 }
 
 /** Every screen's route name, so links and the nav table are checked by the compiler. */
-export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound' | 'submit' | 'spectra' | 'spectrum' | 'reviewQueue' | 'spectrumReview' | 'disputes' | 'campaigns' | 'standards' | 'audit' | 'releases' | 'release'
+export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound' | 'submit' | 'spectra' | 'spectrum' | 'reviewQueue' | 'spectrumReview' | 'disputes' | 'campaigns' | 'standards' | 'audit' | 'releases' | 'release' | 'apiReference'
 
 type AppRoute = RouteRecordRaw & { name: AppRouteName }
 
@@ -39,6 +39,7 @@ export const routes: AppRoute[] = [
   { path: '/audit', name: 'audit', component: () => import('@/views/AuditView.vue'), meta: { roles: ['lead'], title: 'Agreement audit' } },
   { path: '/releases', name: 'releases', component: () => import('@/views/ReleasesView.vue'), meta: { title: 'Catalogue releases' } },
   { path: '/releases/:id(\\d+)', name: 'release', component: () => import('@/views/ReleasesView.vue'), meta: { title: 'Catalogue release' } },
+  { path: '/api-reference', name: 'apiReference', component: () => import('@/views/ApiReferenceView.vue'), meta: { title: 'API reference' } },
   { path: '/:pathMatch(.*)*', name: 'notFound', component: () => import('@/views/NotFoundView.vue'), meta: { public: true, title: 'Not found' } },
 ]
 

@@ -4,7 +4,7 @@ import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'no
 import { unzipSync } from 'fflate'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest'
 import { Campaign, CampaignMember, Classification, LibraryVersion, Measurement, Release, ReleaseRow, ReviewCall, Spectrum, Suggestion, type User } from '../../server/models'
 import { DERIVED_CAUTION } from '../../server/services/derived.service'
 import { deriveParameters } from '../../shared/derived'
@@ -112,13 +112,32 @@ const download = (client: Client, id: number, format: string) =>
       res.on('end', () => cb(null, Buffer.concat(chunks)))
     })
 
+// The campaign's releases 1, 2 and 3, each made once by whichever test needs it first, so any test runs alone.
 let first: { id: number; version: number }
+let made1: Promise<{ id: number; version: number; [k: string]: unknown }> | null = null
+const firstRelease = () => (made1 ??= post(lead, '/api/releases', { campaignId: campaign.id, title: 'First look', description: 'Decided spectra of the first nights.' }).expect(201).then((r) => (first = r.body.release)))
+let made2: Promise<{ id: number; version: number; rows: number }> | null = null
+/** Later: a new decision on a released spectrum, new metadata, and one more spectrum agreed; then release 2. */
+const secondRelease = () =>
+  (made2 ??= (async () => {
+    await firstRelease()
+    await decide(spectra.consensus!, { source: 'settled', spectralType: 'B9 II', typeCode: 19, luminosityClass: 'II', classCode: 3, nCalls: 3, agreement: 'settled', decidedBy: leadUser.id })
+    await spectra.consensus!.update({ vMag: 12, objectName: 'Renamed star' })
+    await decide(spectra.waiting!, { source: 'consensus', spectralType: 'K0 III', typeCode: 50, luminosityClass: 'III', classCode: 4, nCalls: 1 })
+    await spectra.waiting!.update({ status: 'agreed' })
+    return (await post(lead, '/api/releases', { campaignId: campaign.id, title: 'Second look' }).expect(201)).body.release
+  })())
+let made3: Promise<{ id: number; version: number; rows: number; description: string }> | null = null
+const thirdRelease = () => (made3 ??= secondRelease().then(async (second) => (await post(lead, `/api/releases/${second.id}/supersede`, { title: 'Third look', description: 'with corrections' }).expect(201)).body.release))
+
+beforeEach(async () => {
+  await firstRelease()
+})
 
 describe('POST /api/releases', () => {
   it('freezes every agreed or settled spectrum of the campaign as release 1', async () => {
-    const res = await post(lead, '/api/releases', { campaignId: campaign.id, title: 'First look', description: 'Decided spectra of the first nights.' }).expect(201)
-    first = res.body.release
-    expect(res.body.release).toMatchObject({ version: 1, rows: 3, title: 'First look', supersededBy: null, campaign: { id: campaign.id }, createdBy: { name: 'Release Lead' } })
+    const release = await firstRelease()
+    expect(release).toMatchObject({ version: 1, rows: 3, title: 'First look', supersededBy: null, campaign: { id: campaign.id }, createdBy: { name: 'Release Lead' } })
     const rows = await ReleaseRow.findAll({ where: { releaseId: first.id }, order: [['position', 'ASC']] })
     expect(rows.map((r) => r.spectrumId)).toEqual([spectra.consensus!.id, spectra.settled!.id, spectra.accepted!.id])
   })
@@ -238,21 +257,11 @@ describe('a frozen release', () => {
     for (const f of ['csv', 'ecsv', 'votable', 'fits', 'mrt']) before[f] = (await download(lead, first.id, f).expect(200)).body as Buffer
     const detailBefore = (await lead.agent.get(`/api/releases/${first.id}`).expect(200)).body
 
-    // Later: a new decision on a released spectrum, new metadata, and one more spectrum agreed.
-    await decide(spectra.consensus!, { source: 'settled', spectralType: 'B9 II', typeCode: 19, luminosityClass: 'II', classCode: 3, nCalls: 3, agreement: 'settled', decidedBy: leadUser.id })
-    await spectra.consensus!.update({ vMag: 12, objectName: 'Renamed star' })
-    await decide(spectra.waiting!, { source: 'consensus', spectralType: 'K0 III', typeCode: 50, luminosityClass: 'III', classCode: 4, nCalls: 1 })
-    await spectra.waiting!.update({ status: 'agreed' })
-
-    for (const f of ['csv', 'ecsv', 'votable', 'fits', 'mrt']) expect(Buffer.compare((await download(lead, first.id, f).expect(200)).body as Buffer, before[f]!), f).toBe(0)
-    const detailAfter = (await lead.agent.get(`/api/releases/${first.id}`).expect(200)).body
-    expect(detailAfter.rows).toEqual(detailBefore.rows)
-
-    const second = await post(lead, '/api/releases', { campaignId: campaign.id, title: 'Second look' }).expect(201)
-    expect(second.body.release).toMatchObject({ version: 2, rows: 4 })
-    const rows = (await lead.agent.get(`/api/releases/${second.body.release.id}`).expect(200)).body.rows
+    const second = await secondRelease()
+    expect(second).toMatchObject({ version: 2, rows: 4 })
+    const rows = (await lead.agent.get(`/api/releases/${second.id}`).expect(200)).body.rows
     expect(rows[0]).toMatchObject({ Object: 'Renamed star', SpType: 'B9 II', Decision: 'settled by lead', Vmag: 12 })
-    expect((await Release.findByPk(first.id))!.supersededBy).toBe(second.body.release.id)
+    expect((await Release.findByPk(first.id))!.supersededBy).toBe(second.id)
     // Superseding sets one field; the rows and files stay as they were.
     for (const f of ['csv', 'ecsv', 'votable', 'fits', 'mrt']) expect(Buffer.compare((await download(lead, first.id, f).expect(200)).body as Buffer, before[f]!), f).toBe(0)
   })
@@ -273,17 +282,18 @@ describe('a frozen release', () => {
 
 describe('POST /api/releases/:id/supersede', () => {
   it('makes the next version from the latest release and refuses one that is already superseded', async () => {
+    const second = await secondRelease()
     const again = await post(lead, `/api/releases/${first.id}/supersede`, { title: 'Again' }).expect(409)
     expect(again.body.error.code).toBe('already_superseded')
-    const latest = await Release.findOne({ where: { campaignId: campaign.id }, order: [['version', 'DESC']] })
-    const res = await post(lead, `/api/releases/${latest!.id}/supersede`, { title: 'Third look', description: 'with corrections' }).expect(201)
-    expect(res.body.release).toMatchObject({ version: 3, rows: 4, description: 'with corrections' })
-    expect((await Release.findByPk(latest!.id))!.supersededBy).toBe(res.body.release.id)
+    const third = await thirdRelease()
+    expect(third).toMatchObject({ version: 3, rows: 4, description: 'with corrections' })
+    expect((await Release.findByPk(second.id))!.supersededBy).toBe(third.id)
   })
 })
 
 describe('GET /api/releases', () => {
   it('lists the releases of a campaign, newest first, with their row counts', async () => {
+    await thirdRelease()
     const res = await observer.agent.get(`/api/releases?campaign=${campaign.id}`).expect(200)
     expect(res.body.releases.map((r: { version: number; rows: number; supersededBy: number | null }) => [r.version, r.rows, r.supersededBy !== null])).toEqual([
       [3, 4, false],

@@ -19,8 +19,8 @@ describe('AppShellNav', () => {
   })
 
   it('shows observers and classifiers only the screens of their role', async () => {
-    expect(await navTestIds('observer')).toEqual(['nav-submit', 'nav-spectra', 'nav-releases', 'nav-account'])
-    expect(await navTestIds('classifier')).toEqual(['nav-spectra', 'nav-reviewQueue', 'nav-standards', 'nav-releases', 'nav-account'])
+    expect(await navTestIds('observer')).toEqual(['nav-submit', 'nav-spectra', 'nav-releases', 'nav-account', 'nav-apiReference'])
+    expect(await navTestIds('classifier')).toEqual(['nav-spectra', 'nav-reviewQueue', 'nav-standards', 'nav-releases', 'nav-account', 'nav-apiReference'])
   })
 
   it('links each entry to its route', async () => {

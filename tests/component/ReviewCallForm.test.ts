@@ -29,14 +29,20 @@ describe('checkCall', () => {
     if (!r.ok) expect(Object.keys(r.errors).sort()).toEqual(['confidence', 'luminosityClass', 'type'])
     const noSubtype = checkCall({ ...emptyDraft(), type: 'B', luminosityClass: 'V' })
     expect(!noSubtype.ok && noSubtype.errors.type).toBe('Add a subtype, e.g. B5.')
-    const range = checkCall({ ...emptyDraft(), type: 'G8/K0', luminosityClass: 'III' })
-    expect(!range.ok && range.errors.type).toBe('Give one type, not a range.')
+    const inType = checkCall({ ...emptyDraft(), type: 'A0 III', luminosityClass: 'V' })
+    expect(!inType.ok && inType.errors.type).toBe('The type names a different class from the class field.')
     const offGrid = checkCall({ ...emptyDraft(), type: 'DA3', luminosityClass: 'V' })
     expect(!offGrid.ok && offGrid.errors.type).toMatch(/MK letter/)
     const badClass = checkCall({ ...emptyDraft(), type: 'A0', luminosityClass: 'XI' })
     expect(!badClass.ok && badClass.errors.luminosityClass).toMatch(/Not a luminosity class/)
     const badNotes = checkCall({ ...emptyDraft(), type: 'A0', luminosityClass: 'V', peculiarities: 'xyz' })
     expect(!badNotes.ok && badNotes.errors.peculiarities).toBe('Cannot read the notes: cannot read "xyz".')
+  })
+
+  it('takes a range of adjacent types as the API does, at its middle (B8-9 is 18.5)', () => {
+    // The form and the API read calls with the same rules (shared/mkCall.ts); the code of a range is its middle (MK practice, from memory).
+    const r = checkCall({ ...emptyDraft(), type: 'B8-9', luminosityClass: 'V' })
+    expect(r.ok && [r.call.spectralType, r.call.typeCode, r.call.display]).toEqual(['B8-9', 18.5, 'B8-9 V'])
   })
 
   it('marks an uncertain type with a colon and sends the parts the API reads', () => {

@@ -13,6 +13,7 @@ import { createFileStore } from '../../server/storage'
 import { User } from '../../server/models'
 import { hashPassword } from '../../server/services/users.service'
 import type { Role } from '../../shared/roles'
+import type { Answer } from './openapi'
 
 export interface TestContext {
   ctx: AppContext
@@ -20,6 +21,11 @@ export interface TestContext {
   smtp: FakeSmtp
   close(): Promise<void>
 }
+
+/** The JSON answers of every app built here (tests/api/setup.ts checks them against the OpenAPI document). */
+export const seenAnswers: Answer[] = []
+let firstContext: AppContext | null = null
+export const seenContext = () => firstContext
 
 let shared: Sequelize | null = null
 /** One connection per test file: models are module-wide, so every app in the file shares it. */
@@ -38,7 +44,8 @@ export async function createTestContext(overrides: Partial<Config> = {}): Promis
   const smtp = await startFakeSmtp(0)
   const mailer = createMailer({ ...config, SMTP_PORT: smtp.port, MAIL_MODE: 'fake' })
   const ctx: AppContext = { config, sequelize, mailer, logger: createLogger('silent'), files: await createFileStore(config) }
-  const app = createApp(ctx)
+  firstContext ??= ctx
+  const app = createApp(ctx, { observeJson: (answer) => seenAnswers.push(answer) })
   return {
     ctx,
     app,

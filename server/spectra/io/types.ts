@@ -163,11 +163,6 @@ export interface RawSpectrum {
   coverageHint?: string
 }
 
-/** An empty {@link RawSpectrum} decision record, for readers to fill. */
-export function rawDecisions(source: string): Pick<RawSpectrum, 'medium' | 'notes' | 'masks' | 'ignored' | 'warnings' | 'source' | 'solution' | 'header'> {
-  return { medium: [], notes: [], masks: [], ignored: [], warnings: [], source, solution: '', header: {} }
-}
-
 /** A reader of one file format, registered in the registry of readers. */
 export interface FormatReader {
   readonly format: 'fits' | 'text'

@@ -50,5 +50,3 @@ export function vacuumFromText(text: string): boolean | undefined {
   return vac
 }
 
-/** Names of wavelength units accepted as an observer's choice, with what they mean. */
-export const UNIT_CHOICES = ['Angstrom', 'nm', 'um', 'm'] as const
