@@ -19,7 +19,8 @@ export async function suggestionDetails(r: MatchResult, resolution: PipelineReso
   const details: SuggestionDetails = { parameters: r.parameters, classShares: r.classShares, classNote: r.classNote, resolution, residual: r.residual, notes: [...notes] }
   if (used) {
     const instrument = used.instrumentId !== null ? await Instrument.findByPk(used.instrumentId, { attributes: ['id', 'name'] }) : null
-    details.standards = { ...used, instrument: instrument ? { id: instrument.id, name: instrument.name } : null }
+    const { instrumentId: _, ...rest } = used
+    details.standards = { ...rest, instrument: instrument ? { id: instrument.id, name: instrument.name } : null }
   }
   return details
 }
