@@ -1,10 +1,9 @@
-import { Op, QueryTypes } from 'sequelize'
+import { Op, QueryTypes, literal } from 'sequelize'
 import { agreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { Campaign, Classification, Instrument, LibraryVersion, LibraryVersionStandard, ReviewCall, Spectrum, Standard, Suggestion, User } from '../models'
 import type { AccuracyFigures, AgreementFigures, AuditFigures, AuditQuery, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, InstrumentAccuracy, MatrixCell, PairFigures, RaterRef, SuggestionAccuracy, VersionAccuracy } from '../../shared/api/audit'
-import type { SuggestionDetails } from '../../shared/api/suggestions'
 
 export type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef, SuggestionAccuracy }
 
@@ -413,7 +412,8 @@ async function accuracyItems(campaignId: number, range: { from?: Date | undefine
   if (range.to) when[Op.lt] = range.to
   const suggestions = await Suggestion.findAll({
     where: { spectrumId: { [Op.in]: [...decision.keys()] }, ...(range.from || range.to ? { createdAt: when } : {}) },
-    attributes: ['id', 'spectrumId', 'libraryVersionId', 'typeCode', 'classCode', 'details', 'createdAt'],
+    // Only the share is needed: reading it in SQL spares parsing every suggestion's details here.
+    attributes: ['id', 'spectrumId', 'libraryVersionId', 'typeCode', 'classCode', 'createdAt', [literal("JSON_VALUE(details, '$.standards.instrumentShare.type')"), 'ownShare']],
     order: [['id', 'ASC']],
   })
   const latest = new Map<string, Suggestion>()
@@ -436,7 +436,7 @@ async function accuracyItems(campaignId: number, range: { from?: Date | undefine
     const d = decision.get(s.spectrumId)!
     const v = versionOf.get(s.libraryVersionId)
     const instrumentId = instrumentOf.get(s.spectrumId) ?? null
-    const details = s.details ? (JSON.parse(s.details) as SuggestionDetails) : null
+    const share = s.get('ownShare') as string | number | null
     out.push({
       spectrumId: s.spectrumId,
       instrument: { id: instrumentId, name: instrumentId === null ? 'No instrument' : names.get(instrumentId) ?? `#${instrumentId}` },
@@ -444,7 +444,7 @@ async function accuracyItems(campaignId: number, range: { from?: Date | undefine
       madeAt: s.createdAt,
       suggestion: { typeCode: s.typeCode, classCode: s.classCode },
       decision: { typeCode: d.typeCode, classCode: d.classCode },
-      ownShare: details?.standards ? details.standards.instrumentShare.type : null,
+      ownShare: share === null || share === undefined ? null : Number(share),
     })
   }
   return out

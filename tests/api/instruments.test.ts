@@ -10,7 +10,7 @@ import { JobRunner } from '../../server/jobs/runner'
 import { DEFAULT_OBSERVED_DIR, observedLibraryAt } from '../../server/jobs/worker'
 import { float32ToBuffer } from '../../server/lib/binary'
 import { createLogger } from '../../server/lib/logger'
-import { Campaign, CampaignMember, Instrument, LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, Suggestion } from '../../server/models'
+import { Campaign, CampaignMember, Classification, Instrument, LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, Suggestion } from '../../server/models'
 import { ensureDefaultLibrary } from '../../server/services/standards.service'
 import { closeDatabase, createTestContext, type TestContext } from '../helpers/context'
 import { send, signedInPerson, type Person } from '../helpers/review'
@@ -283,10 +283,16 @@ describe('candidates, promotion and demotion', () => {
 
 describe('the agreement audit', () => {
   it('scores the instrument\'s suggestions against the decisions, per library version', async () => {
+    // One suggestion says a quarter of its type vote came from the instrument's own standards; the rest say nothing.
+    const ofInstrument = await Spectrum.findAll({ where: { instrumentId }, attributes: ['id'], order: [['id', 'ASC']] })
+    const decided = (await Classification.findOne({ where: { spectrumId: ofInstrument.map((x) => x.id) }, order: [['id', 'ASC']] }))!
+    const first = (await Suggestion.findOne({ where: { spectrumId: decided.spectrumId }, order: [['id', 'DESC']] }))!
+    await first.update({ details: JSON.stringify({ ...JSON.parse(first.details!), standards: { instrumentShare: { type: 0.25, class: 0.1 } } }) })
     const res = await lead.client.agent.get(`/api/audit?campaign=${campaign.id}`).expect(200)
-    const mine = (res.body.audit.suggestionAccuracy.instruments as { instrument: { id: number }; versions: { version: { name: string }; n: number }[] }[]).find((i) => i.instrument.id === instrumentId)!
+    const mine = (res.body.audit.suggestionAccuracy.instruments as { instrument: { id: number }; versions: { version: { name: string }; n: number; ownShare: { value: number | null; n: number } }[] }[]).find((i) => i.instrument.id === instrumentId)!
     // The six decided spectra were suggested by the shipped version; none of them is one of its standards.
     expect(mine.versions.map((v) => [v.version.name, v.n])).toEqual([['observed-v1', 6]])
+    expect(mine.versions[0]!.ownShare).toMatchObject({ value: 0.25, n: 1 })
   })
 })
 
