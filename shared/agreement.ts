@@ -1,3 +1,5 @@
+import { LUMINOSITY_CLASSES } from './mk'
+
 /**
  * Agreement between classifiers: Cohen's κ (plain and weighted), Fleiss' κ, exact and
  * within-±k agreement, and the mean signed offset. Pure functions on numeric ratings
@@ -164,6 +166,31 @@ export function agreementFraction(a: readonly number[], b: readonly number[], to
   let n = 0
   for (let i = 0; i < a.length; i++) if (Math.abs(a[i]! - b[i]!) <= limit) n++
   return n / a.length
+}
+
+/**
+ * Share of items whose luminosity-class codes agree as the MK system reads intermediate classes:
+ * equal, or one is an intermediate class (such as IV-V, code 5.5) and the other is one of its two
+ * ends (IV or V). Common practice; the accuracy benchmark scores classes the same way.
+ */
+export function classAgreementFraction(a: readonly number[], b: readonly number[]): number {
+  checkPair(a, b)
+  let n = 0
+  for (let i = 0; i < a.length; i++) if (classesAgree(a[i]!, b[i]!)) n++
+  return n / a.length
+}
+
+/** Whether two class codes agree: equal, or an intermediate class and one of its ends. */
+export function classesAgree(a: number, b: number): boolean {
+  if (Math.abs(a - b) < 1e-9) return true
+  const ends = (x: number): [number, number] | null => {
+    if (LUMINOSITY_CLASSES.some((c) => Math.abs(c.code - x) < 1e-9)) return null
+    const below = LUMINOSITY_CLASSES.filter((c) => c.code < x).at(-1)
+    const above = LUMINOSITY_CLASSES.find((c) => c.code > x)
+    return below && above ? [below.code, above.code] : null
+  }
+  const isEnd = (x: number, y: number) => ends(x)?.some((e) => Math.abs(e - y) < 1e-9) ?? false
+  return isEnd(a, b) || isEnd(b, a)
 }
 
 /** Mean signed offset of the first rater from the second, mean(a_i − b_i), in the units of the ratings. */

@@ -1,5 +1,5 @@
 import { Op, QueryTypes, literal } from 'sequelize'
-import { agreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa } from '../../shared/agreement'
+import { agreementFraction, classAgreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { Campaign, Classification, Instrument, LibraryVersion, LibraryVersionStandard, ReviewCall, Spectrum, Standard, Suggestion, User } from '../models'
@@ -153,7 +153,7 @@ function fractions(pairs: Array<{ a: { typeCode: number; classCode: number }; b:
   return {
     exactType: safe(n, () => agreementFraction(at, bt, 0)),
     withinOneSubtype: safe(n, () => agreementFraction(at, bt, 1)),
-    exactClass: safe(n, () => agreementFraction(ac, bc, 0)),
+    exactClass: safe(n, () => classAgreementFraction(ac, bc)),
     withinOneClass: safe(n, () => agreementFraction(ac, bc, 1)),
   }
 }
@@ -312,6 +312,7 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
       'The consensus is the decided classification, or the median of two or more calls when none is decided yet.',
       'Weighted κ uses the numeric type scale in half-subtype steps (Cohen 1968 weights by category rank).',
       'κ is null when both raters used a single category.',
+      'Exact class: the same class, or an intermediate class (such as IV-V) and one of its ends.',
     ],
   }
 }
@@ -391,6 +392,7 @@ export function suggestionAccuracy(items: readonly AccuracyItem[]): SuggestionAc
       'Each decided spectrum counts once per library version: its latest suggestion from that version, against its decided classification.',
       "A spectrum is left out of a version's figures when it is itself one of that version's standards (it would be matched against itself).",
       "Own share: the part of the type vote that came from the instrument's own standards (promoted from its agreed spectra).",
+      'Exact class: the same class, or an intermediate class (such as IV-V) and one of its ends.',
     ],
   }
 }

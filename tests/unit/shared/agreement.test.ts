@@ -3,6 +3,8 @@ import { fileURLToPath } from 'node:url'
 import { describe, expect, it } from 'vitest'
 import {
   agreementFraction,
+  classAgreementFraction,
+  classesAgree,
   cohenKappa,
   confusionMatrix,
   fleissKappa,
@@ -154,6 +156,26 @@ describe('agreementFraction', () => {
   })
   it('refuses a negative tolerance', () => {
     expect(() => agreementFraction(a, b, -1)).toThrow('tolerance must be ≥ 0, got -1')
+  })
+})
+
+describe('classAgreementFraction', () => {
+  // MK notation (common practice): IV-V lies between IV and V, so a call of IV or of V agrees
+  // exactly with it; Iab is a class of its own, not an intermediate of Ia and Ib. Codes: shared/mk.ts.
+  it('counts an intermediate class and either of its ends as the same class', () => {
+    expect(classesAgree(5.5, 5)).toBe(true)
+    expect(classesAgree(6, 5.5)).toBe(true)
+    expect(classesAgree(3.5, 4)).toBe(true)
+  })
+  it('does not stretch a class to its neighbours, nor one intermediate to another', () => {
+    expect(classesAgree(5, 6)).toBe(false)
+    expect(classesAgree(5.5, 4)).toBe(false)
+    expect(classesAgree(5.5, 4.5)).toBe(false)
+    expect(classesAgree(1.5, 1)).toBe(false)
+    expect(classesAgree(1.5, 2)).toBe(false)
+  })
+  it('gives the share of agreeing pairs', () => {
+    expect(classAgreementFraction([5.5, 4, 6, 3], [5, 4, 5, 3.5])).toBe(0.75)
   })
 })
 
