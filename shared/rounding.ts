@@ -23,3 +23,6 @@ export function formatWithUncertainty(value: number, err: number | null | undefi
   if (d === null) return value.toFixed(fallbackDecimals)
   return `${value.toFixed(d)} ± ${err!.toFixed(d)}`
 }
+
+/** `x` rounded to `digits` decimals; non-finite values pass through. */
+export const roundTo = (x: number, digits: number): number => (Number.isFinite(x) ? Math.round(x * 10 ** digits) / 10 ** digits : x)

@@ -1,143 +1,12 @@
 import { DEFAULT_CLASSIFICATION_REGION } from '../../../shared/grid'
 import { formatMK, formatTypeCode, parseMK, typeFromCode } from '../../../shared/mk'
-import type { LineMeasurement } from '../measure/types'
+import { roundTo as round } from '../../../shared/rounding'
 import { depthScaledChiSquareSelected, depthScaledPairChiSquare } from './chi2'
-import { CRITERIA, criterionNoise, criterionValue, lowerBound } from './criteria'
+import { lowerBound } from './criteria'
 import { balmerHalfDepthWidth, compositeEvidence, hasBalmerEmission, isBeyondDwarfs, typicalResidual } from './flags'
 import { levelFor, type LibraryLevel, type PreparedMatchLibrary } from './library'
-
-/** Quality flags a suggestion can carry. */
-export type SuggestionFlag = 'low-snr' | 'emission' | 'poor-fit' | 'outside-grid' | 'possible-composite' | 'not-mk' | 'not-star'
-
-/** What the matcher needs of a prepared spectrum (see analyseSpectrum's `prepared`). */
-export interface MatchInput {
-  /** Continuum-normalised flux on the library grid; NaN where masked. */
-  rectified: ArrayLike<number>
-  /** Its 1σ error, when known. */
-  rectifiedError?: ArrayLike<number>
-  /** 1 = pixel not usable. */
-  mask?: ArrayLike<number>
-  /** S/N per pixel, used for the weights when no errors are given. */
-  snr: number | null
-  /** Resolution the spectrum has been brought to, FWHM Å: it is matched at the library level for it. */
-  fwhm?: number
-  /** Line measurements (for the emission flag). */
-  lines?: readonly LineMeasurement[]
-}
-
-export interface MatchOptions {
-  /** Classification region, Å. @default DEFAULT_CLASSIFICATION_REGION (3850–5000) */
-  region?: readonly [number, number]
-  /**
-   * Fractional error added in quadrature to each pixel's noise, so that at high S/N the fit is not
-   * ruled by the standards' own imperfections. @default 0.01
-   */
-  modelError?: number
-  /** Standards that vote on type and class: the best this many by χ². @default 16 */
-  neighbours?: number
-  /**
-   * Width of the vote weights, w = exp(−(χ²/χ²_min − 1)/temperature): standards whose χ² is
-   * within a factor (1 + temperature) of the best still carry weight e⁻¹. A temperature tied to
-   * the best fit rather than to the photon noise, because among real stars the published types
-   * scatter by about a subtype around what their spectra show (see bench/accuracy.ts).
-   * @default 1.5
-   */
-  temperature?: number
-  /**
-   * Power of the correction for how many standards each class has at the level: each vote is
-   * divided by (standards of its class)^classBalance, so that a library rich in dwarfs does not
-   * pull rare giants and supergiants toward class V. @default 0.5
-   */
-  classBalance?: number
-  /** S/N below which 'low-snr' is set. @default 20 */
-  lowSnr?: number
-  /** Full χ² for every standard instead of screening on every `coarseStep`-th pixel first. @default false */
-  exhaustive?: boolean
-  /** Standards refined with the full χ² after screening (at least twice `neighbours`). @default 48 */
-  refineCount?: number
-  /** Ids of standards left out, e.g. every spectrum of the star being classified when measuring accuracy. @default none */
-  exclude?: ReadonlySet<number>
-}
-
-/** One of the standards nearest the spectrum. */
-export interface Candidate {
-  standardId: number
-  spectralType: string
-  typeCode: number
-  luminosityClass: string
-  source: 'model' | 'observed'
-  /** Star name of an observed standard. */
-  star: string | null
-  /** Library the spectrum comes from. */
-  origin: string | null
-  chi2: number
-  reducedChi2: number
-  /** Line-depth scale of the best fit. */
-  scale: number
-  /** Share of the type and class vote. */
-  probability: number
-}
-
-export interface Vote {
-  criterion: string
-  name: string
-  /** Value measured on the spectrum. */
-  value: number | null
-  /** Class this criterion prefers, or null when it does not apply or cannot be measured. */
-  vote: string | null
-  /** Value each class's standards have at the suggested type. */
-  standards?: Record<string, number>
-  note?: string
-}
-
-/** An estimate with its 1σ spread. */
-export interface Estimate {
-  value: number
-  error: number
-}
-
-/** Atmospheric parameters read off the voting standards' published values. */
-export interface ParameterEstimate {
-  teff: Estimate | null
-  logg: Estimate | null
-  feh: Estimate | null
-  /** Voting standards that had the parameter. */
-  standards: number
-}
-
-export interface MatchResult {
-  spectralType: string
-  letter: string
-  subtype: number
-  typeCode: number
-  luminosityClass: string
-  classCode: number
-  uncertainty: { subtypes: number; classes: number }
-  bestStandardId: number
-  candidates: Candidate[]
-  votes: Vote[]
-  flags: SuggestionFlag[]
-  /** Share of the vote of each (type, class) point (points below 1e-4 left out), summing to about 1. */
-  probabilities: { typeCode: number; classCode: number; luminosityClass: string; p: number }[]
-  /** Class shares of the vote, most likely first. */
-  classShares: { luminosityClass: string; classCode: number; p: number }[]
-  /** Why the class differs from the best candidate's, when it does. */
-  classNote: string | null
-  /** Teff, log g, [Fe/H] from the voting standards' published parameters (a spectroscopic estimate). */
-  parameters: ParameterEstimate
-  libraryVersion: { id: number; name: string }
-  /** Resolution level used, FWHM Å. */
-  levelFwhm: number
-  reducedChi2: number
-  /** Rms residual of the best fit in the region (continuum units), and what is usual for a normal star of this type. */
-  residual: { rms: number; typical: number | null }
-  /** The standards that voted, best fit first, with their shares of the type vote and of the class vote. */
-  voters: { standardId: number; typeShare: number; classShare: number }[]
-}
-
-/** Class codes and their text; half steps are the intermediate classes. */
-const CLASS_TEXT: Record<string, string> = { '1': 'Ia', '1.5': 'Iab', '2': 'Ib', '2.5': 'Ib-II', '3': 'II', '3.5': 'II-III', '4': 'III', '4.5': 'III-IV', '5': 'IV', '5.5': 'IV-V', '6': 'V' }
-export const classText = (code: number): string => CLASS_TEXT[String(code)] ?? String(code)
+import { classText, type Candidate, type MatchInput, type MatchOptions, type MatchResult, type SuggestionFlag } from './types'
+import { classCounts, criteriaVotes, describeClassChoice, parameterEstimate } from './vote'
 
 /** Scratch arrays reused across calls of the same library and level (one spectrum at a time per thread). */
 interface Scratch {
@@ -489,27 +358,6 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   }
 }
 
-const classCountCache = new WeakMap<LibraryLevel, Map<number, number>>()
-
-/** How many standards of each class code a level has (computed once per level). */
-function classCounts(library: PreparedMatchLibrary, level: LibraryLevel): Map<number, number> {
-  let counts = classCountCache.get(level)
-  if (!counts) {
-    counts = new Map()
-    for (const k of level.rows) {
-      const c = library.standards[k]!.classCode
-      counts.set(c, (counts.get(c) ?? 0) + 1)
-    }
-    classCountCache.set(level, counts)
-  }
-  return counts
-}
-
-/** Every class code of a level. */
-function levelClassCodes(library: PreparedMatchLibrary, level: LibraryLevel): number[] {
-  return [...new Set(Array.from(level.rows, (k) => library.standards[k]!.classCode))]
-}
-
 /**
  * Where the library is sparse in type (the best standard's nearest voting neighbour in type is 2 or
  * more subtypes away, as among the O stars), the vote can only land on one of them; the spectrum is
@@ -528,47 +376,6 @@ function interpolateSparseType(library: PreparedMatchLibrary, level: LibraryLeve
   const mix = depthScaledPairChiSquare(s.flux, s.weights, level.flux, library.pixels, best, partner, from, to)
   if (!(mix.chi2 < 0.9 * chi2[best]!) || mix.fraction <= 0.15 || mix.fraction >= 0.85) return voted
   return Math.round((t1 + mix.fraction * (t2 - t1)) * 2) / 2
-}
-
-/** Says why the suggested class is not the best standard's, or null when it contains it. */
-function describeClassChoice(classCode: number, bestClass: number, bestType: string, shares: { luminosityClass: string; p: number }[], voters: number): string | null {
-  if (Math.abs(bestClass - classCode) <= 0.5) return null
-  const listed = shares
-    .filter((s) => s.p >= 0.05)
-    .map((s) => `${s.luminosityClass} ${Math.round(100 * s.p)} %`)
-    .join(', ')
-  return `The class comes from the vote of the ${voters} nearest standards (${listed}), each weighted by its fit and by how many standards its class has; the single nearest standard, ${bestType}, is outvoted.`
-}
-
-/** Vote-weighted mean and spread of the voters' published parameters (Teff averaged in log). */
-function parameterEstimate(voters: readonly { teff: number | null; logg: number | null; feh: number | null }[], w: readonly number[]): ParameterEstimate {
-  const one = (get: (v: (typeof voters)[number]) => number | null, log: boolean): { e: Estimate; n: number } | null => {
-    let sw = 0
-    let sx = 0
-    let n = 0
-    voters.forEach((v, q) => {
-      const x = get(v)
-      if (x === null || !Number.isFinite(x) || (log && x <= 0)) return
-      sw += w[q]!
-      sx += w[q]! * (log ? Math.log10(x) : x)
-      n++
-    })
-    if (n === 0 || sw <= 0) return null
-    const mean = sx / sw
-    let sv = 0
-    voters.forEach((v, q) => {
-      const x = get(v)
-      if (x === null || !Number.isFinite(x) || (log && x <= 0)) return
-      sv += w[q]! * ((log ? Math.log10(x) : x) - mean) ** 2
-    })
-    const sd = Math.sqrt(sv / sw)
-    if (log) return { e: { value: Math.round(10 ** mean), error: Math.round(10 ** mean * Math.LN10 * Math.max(sd, 0.005)) }, n }
-    return { e: { value: round(mean, 2), error: round(Math.max(sd, 0.05), 2) }, n }
-  }
-  const teff = one((v) => v.teff, true)
-  const logg = one((v) => v.logg, false)
-  const feh = one((v) => v.feh, false)
-  return { teff: teff?.e ?? null, logg: logg?.e ?? null, feh: feh?.e ?? null, standards: Math.max(teff?.n ?? 0, logg?.n ?? 0, feh?.n ?? 0) }
 }
 
 /** Unweighted rms residual, in continuum units, of the best level-and-depth fit of row `row` over the region. */
@@ -593,79 +400,3 @@ function bestResidual(flux: Float64Array, weights: Float64Array, rows: Float32Ar
   return Math.sqrt(Math.max(0, (syy - (sy * sy) / m - (vx > 0 ? (cxy * cxy) / vx : 0)) / m))
 }
 
-/** The luminosity criteria of criteria.ts measured on the spectrum and read off each class's standards at the type, as evidence shown beside the vote. */
-function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel, spectrumSpan: Float64Array, typeCode: number, snr: number | null, centre: number): Vote[] {
-  const sigmaPix = snr !== null && snr > 0 ? 1 / snr : 0.02
-  const pixelsPerAngstrom = 1 / (centre * library.grid.step)
-  const classCodes = levelClassCodes(library, level).filter((c) => Number.isInteger(c) || c === 1.5).sort((a, b) => a - b)
-  return CRITERIA.map((c, ci) => {
-    const value = criterionValue(c, spectrumSpan, library.wavelength)
-    const vote: Vote = { criterion: c.id, name: c.name, value: Number.isFinite(value) ? round(value, 4) : null, vote: null }
-    if (typeCode < c.types[0] || typeCode > c.types[1]) {
-      vote.note = `not used for this type (applies to ${formatTypeCode(c.types[0])}–${formatTypeCode(Math.min(69, c.types[1]))})`
-      return vote
-    }
-    if (!Number.isFinite(value)) {
-      vote.note = 'not measurable on this spectrum'
-      return vote
-    }
-    const standards: Record<string, number> = {}
-    let bestClass = -1
-    let bestD = Infinity
-    const sigma = Math.hypot(criterionNoise(c, value, sigmaPix, pixelsPerAngstrom), c.scatter, 1e-3)
-    for (const cc of classCodes) {
-      const v = criterionAtType(library, level, ci, cc, typeCode)
-      if (v === null) continue
-      standards[classText(cc)] = round(v, 4)
-      const d = Math.abs(value - v) / sigma
-      if (d < bestD) {
-        bestD = d
-        bestClass = cc
-      }
-    }
-    if (Object.keys(standards).length < 2) {
-      vote.note = 'fewer than two classes of standards at this type'
-      return vote
-    }
-    vote.standards = standards
-    vote.vote = classText(bestClass)
-    return vote
-  })
-}
-
-const round = (x: number, digits: number) => (Number.isFinite(x) ? Math.round(x * 10 ** digits) / 10 ** digits : x)
-
-/**
- * A criterion's typical value for one class at a type code: the median over that class's
- * standards within ±2 subtypes (±4 where there are fewer than two); null when none.
- */
-export function criterionAtType(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number): number | null {
-  let memo = criterionMemo.get(level)
-  if (!memo) criterionMemo.set(level, (memo = new Map()))
-  const key = `${ci}|${classCode}|${typeCode}`
-  if (memo.has(key)) return memo.get(key)!
-  const value = criterionAtTypeUncached(library, level, ci, classCode, typeCode)
-  memo.set(key, value)
-  return value
-}
-
-const criterionMemo = new WeakMap<LibraryLevel, Map<string, number | null>>()
-
-function criterionAtTypeUncached(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number): number | null {
-  const n = level.rows.length
-  for (const width of [2, 4]) {
-    const values: number[] = []
-    level.rows.forEach((k, r) => {
-      const st = library.standards[k]!
-      if (st.classCode !== classCode || Math.abs(st.typeCode - typeCode) > width) return
-      const v = level.criteria[ci * n + r]!
-      if (Number.isFinite(v)) values.push(v)
-    })
-    if (values.length >= 2 || (width === 4 && values.length > 0)) {
-      values.sort((a, b) => a - b)
-      const m = values.length >> 1
-      return values.length % 2 ? values[m]! : (values[m - 1]! + values[m]!) / 2
-    }
-  }
-  return null
-}

@@ -15,7 +15,8 @@ export {
   type ObservedLibraryLike,
   type PreparedMatchLibrary,
 } from './library'
-export { classText, matchSpectrum, windowMode, type Candidate, type Estimate, type MatchInput, type MatchOptions, type MatchResult, type ParameterEstimate, type SuggestionFlag, type Vote } from './classify'
+export { matchSpectrum, windowMode } from './classify'
+export { classText, type Candidate, type Estimate, type MatchInput, type MatchOptions, type MatchResult, type ParameterEstimate, type SuggestionFlag, type Vote } from './types'
 export { hasBalmerEmission, notStarEvidence, type NotStarEvidence } from './flags'
 export { estimateResolution, type ResolutionEstimate } from './resolution'
 export { standardOnGrid } from './reference'

@@ -10,7 +10,7 @@
  * an option; bench/instrument.ts measures it (slightly worse on the reference stars).
  */
 import { CRITERIA, criterionValue } from './criteria'
-import type { MatchResult } from './classify'
+import type { MatchResult } from './types'
 import { balmerHalfDepthWidth } from './flags'
 import { fillNeighbourResiduals, type LibraryLevel, type MatchStandardInfo, type PreparedMatchLibrary } from './library'
 

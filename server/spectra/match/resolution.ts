@@ -1,6 +1,7 @@
 import { DEFAULT_CLASSIFICATION_REGION } from '../../../shared/grid'
 import { depthScaledChiSquareSelected, parabolaVertex } from './chi2'
-import { fitSpectrumAtLevel, type MatchInput } from './classify'
+import { fitSpectrumAtLevel } from './classify'
+import type { MatchInput } from './types'
 import type { PreparedMatchLibrary } from './library'
 
 export interface ResolutionEstimate {
