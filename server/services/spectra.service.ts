@@ -14,7 +14,7 @@ import {
   SpectrumEvent, Standard, Suggestion, User,
 } from '../models'
 import type { ReadMeta, ReadOptions } from '../spectra/io'
-import { readHere, type FileReading, type FileSource, type ReadBlob, type ReadRow } from '../jobs/reading'
+import { readHere, type FileReading, type FileSource, type ReadOutcome } from '../jobs/reading'
 import type { Config } from '../config'
 import { campaignForSubmission } from './campaigns.service'
 import { instrumentForSpectrum } from './instruments.service'
@@ -168,11 +168,7 @@ interface StoredFile {
 }
 
 /** What a successful read gives the spectrum row and its blob. */
-interface ReadColumns {
-  meta: ReadMeta
-  row: ReadRow
-  blob: ReadBlob
-}
+type ReadColumns = Extract<ReadOutcome, { ok: true }>
 
 async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, file: StoredFile, sha: string, columns: ReadColumns, opts: SubmitOptions, choices: ReadChoices): Promise<FileResult> {
   const { meta } = columns
