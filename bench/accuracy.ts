@@ -21,7 +21,7 @@
  */
 import { mkdirSync, writeFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
-import { defaultLibrary } from '../server/jobs/worker'
+import { defaultLibrary } from '../server/spectra/match/load'
 import { runPipeline } from '../server/spectra/pipeline'
 import { referenceStars, REFERENCE_DATA_DIR, type ReferenceStar } from './reference'
 import { classError, figures, groupTable, type Scored } from './score'

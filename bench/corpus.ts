@@ -88,7 +88,7 @@ async function main(): Promise<void> {
   for (const s of scored) counts.set(s.outcome, (counts.get(s.outcome) ?? 0) + 1)
   let rvLine = ''
   if (process.argv.includes('--rv')) {
-    const { defaultLibrary } = await import('../server/jobs/worker')
+    const { defaultLibrary } = await import('../server/spectra/match/load')
     const { runPipeline } = await import('../server/spectra/pipeline')
     const { toSpectrum1D } = await import('../server/spectra/io/types')
     const library = defaultLibrary()

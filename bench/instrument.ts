@@ -13,7 +13,7 @@
  */
 import { DEFAULT_GRID } from '../shared/grid'
 import type { Spectrum1D } from '../shared/spectrum'
-import { DEFAULT_OBSERVED_DIR, observedLibraryAt } from '../server/jobs/worker'
+import { DEFAULT_OBSERVED_DIR, observedLibraryAt } from '../server/spectra/match/load'
 import { classText, prepareMatchLibrary, type MatchStandardInput, type PreparedMatchLibrary } from '../server/spectra/match'
 import type { InstrumentMatchOptions } from '../server/spectra/match/instrument'
 import { runPipeline } from '../server/spectra/pipeline'

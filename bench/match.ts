@@ -7,7 +7,7 @@
  * Run directly (`npx tsx bench/match.ts`) or through `npm run bench`.
  */
 import { DEFAULT_GRID } from '../shared/grid'
-import { defaultLibrary, observedLibraryAt, DEFAULT_OBSERVED_DIR } from '../server/jobs/worker'
+import { defaultLibrary, observedLibraryAt, DEFAULT_OBSERVED_DIR } from '../server/spectra/match/load'
 import { analyseSpectrum } from '../server/spectra/analyse'
 import { matchSpectrum, prepareMatchLibrary } from '../server/spectra/match'
 import { runPipeline } from '../server/spectra/pipeline'

@@ -7,7 +7,7 @@ import { DEFAULT_GRID, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../shared/gri
 import { extinctionMagnitudes } from '../shared/extinction'
 import { seededRandom } from '../shared/random'
 import type { Spectrum1D } from '../shared/spectrum'
-import { DEFAULT_OBSERVED_DIR, observedLibraryAt } from '../server/jobs/worker'
+import { DEFAULT_OBSERVED_DIR, observedLibraryAt } from '../server/spectra/match/load'
 import type { PreparedMatchLibrary } from '../server/spectra/match'
 import { runPipeline } from '../server/spectra/pipeline'
 import { smoothSpectrumToFwhm } from '../server/spectra/prepare/smooth'

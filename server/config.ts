@@ -49,6 +49,8 @@ const schema = z.object({
   UPLOADS_TOTAL: int(8, 1),
   UPLOAD_BYTES_PER_MINUTE: int(1024 * 1024 * 1024, 1024),
   UPLOAD_FILES_PER_MINUTE: int(20_000, 1),
+  /** Threads that read uploaded files and unpack archives; 0 = one with two cores or fewer, else two. */
+  READ_THREADS: int(0, 0),
   STORAGE_DRIVER: z.enum(['local', 's3']).default('local'),
   STORAGE_DIR: z.string().default(resolve('.data', 'files')),
   /** S3-compatible object storage (STORAGE_DRIVER=s3); the endpoint is unset for AWS itself. */

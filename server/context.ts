@@ -2,6 +2,7 @@ import type { Logger } from 'pino'
 import type { Sequelize } from 'sequelize'
 import type { Config } from './config'
 import type { Mailer } from './mail/mailer'
+import type { FileReading } from './jobs/reading'
 import type { FileStore } from './storage'
 
 /** What services need from the outside world; built once by the server, or by a test. */
@@ -18,4 +19,6 @@ export interface AppContext {
   files: FileStore
   /** Absent in tests that do not process spectra. */
   jobs?: ProcessingQueue
+  /** Reads uploaded files off the request thread (the server's read pool); absent, they are read on the calling thread. */
+  reading?: FileReading
 }

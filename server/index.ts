@@ -7,6 +7,7 @@ import { createLogger } from './lib/logger'
 import { settleBackground } from './lib/background'
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp'
 import { createMailer } from './mail/mailer'
+import { ReadPool } from './jobs/reading'
 import { JobRunner } from './jobs/runner'
 import { RedisPublisher } from './jobs/redis'
 import { moveRawFilesToStore } from './services/spectra.service'
@@ -61,6 +62,8 @@ const mailer = createMailer({ ...config, SMTP_PORT: fakeSmtp?.port ?? config.SMT
 // Kept started, so the first audit does not wait for a thread to load the code and connect.
 const auditPool = new Piscina({ filename: new URL('./jobs/audit-worker.ts', import.meta.url).href, maxThreads: 1, minThreads: 1, idleTimeout: Number.POSITIVE_INFINITY })
 setAuditRunner((query, campaign) => auditPool.run({ campaign, campaignId: query.campaignId, from: query.from?.toISOString() ?? null, to: query.to?.toISOString() ?? null }))
+// Uploaded files are read and archives unpacked in threads of their own, not on the request thread.
+const reading = new ReadPool({ threads: config.READ_THREADS })
 // QUEUE=redis: this process only publishes; `npm run worker` processes run the pipeline.
 const jobs =
   config.QUEUE === 'redis'
@@ -68,7 +71,7 @@ const jobs =
     : new JobRunner({ sequelize, logger, threads: config.WORKERS, pollSeconds: config.JOB_POLL_SECONDS, leaseSeconds: config.JOB_LEASE_SECONDS })
 if (jobs instanceof JobRunner) await jobs.start()
 logger.info(config.QUEUE === 'redis' ? `processing jobs go to Redis at ${new URL(config.REDIS_URL).host}; run \`npm run worker\` to process them` : 'processing jobs run in this server')
-const app = createApp({ config, sequelize, mailer, logger, jobs, files }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
+const app = createApp({ config, sequelize, mailer, logger, jobs, files, reading }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
 const server = createServer(app)
 server.once('error', (error: NodeJS.ErrnoException) => {
   if (error.code === 'EADDRINUSE') fail(new StartupError(`PORT ${config.PORT} on ${config.HOST} is already in use; stop whatever holds it, or set PORT to a free port.`))
@@ -84,6 +87,7 @@ async function shutdown() {
   if (jobs instanceof JobRunner) await jobs.stop()
   else await jobs.close()
   await auditPool.destroy()
+  await reading.close()
   await settleBackground()
   await fakeSmtp?.close()
   mailer.close()

@@ -2,7 +2,7 @@
 // default model library and prints one JSON object per file per line (see USAGE in args.ts).
 import { openSync, readSync, closeSync, statSync } from 'node:fs'
 import { basename } from 'node:path'
-import { defaultLibrary } from '../jobs/worker'
+import { defaultLibrary } from '../spectra/match/load'
 import { DEFAULT_READ_OPTIONS, readSpectrum, toSpectrum1D, unpackZip, type ReadResult } from '../spectra/io'
 import type { PreparedMatchLibrary } from '../spectra/match'
 import { runPipeline } from '../spectra/pipeline'

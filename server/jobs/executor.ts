@@ -6,7 +6,8 @@ import { isDatabaseUnavailable } from '../lib/db-errors'
 import type { PipelineOutput } from '../spectra/pipeline'
 import { librarySpecFor } from '../services/standards.service'
 import { activeLibraryVersionId, loadInput, recordFailure, releaseJobs, renewLeases, returnLapsed, storeOutput, type ClaimedJob } from './process'
-import runTask, { type LibrarySpec } from './worker'
+import type { LibrarySpec } from '../spectra/match/load'
+import runTask from './worker'
 
 export interface ExecutorOptions {
   sequelize: Sequelize

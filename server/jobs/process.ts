@@ -1,19 +1,14 @@
 // The steps of processing one spectrum that every queue shares: claim a job row, load its input,
-// store the pipeline's output, record a failure. The database queue (runner.ts) and the Redis
-// worker (redis.ts) differ only in how they learn that there is work.
+// store the pipeline's output (the rows are the measurements service's), record a failure. The
+// database queue (runner.ts) and the Redis worker (redis.ts) differ only in how they learn that
+// there is work.
 import { Op, QueryTypes, Transaction, type Sequelize } from 'sequelize'
-import { bufferToFloat32, bufferToFloat64, float32ToBuffer } from '../lib/binary'
+import { bufferToFloat32, bufferToFloat64 } from '../lib/binary'
 import { isDatabaseUnavailable } from '../lib/db-errors'
-import { Campaign, Instrument, LibraryVersion, LineMeasurementRow, Measurement, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
+import { Campaign, Instrument, LibraryVersion, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
 import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
-import { indexSuggestionFlags } from '../services/queue.service'
-import { storeSuggestion, suggestionDetails } from '../services/suggestions.service'
+import { PRE_REVIEW, storePipelineOutput } from '../services/measurements.service'
 import type { WorkerTask } from './worker'
-
-/** Statuses a fresh measurement may move a spectrum on from; review states are never touched. */
-const PRE_REVIEW = ['received', 'failed', 'measured']
-/** Statuses a fresh suggestion may move a spectrum on from (to 'suggested'). */
-const PRE_REVIEW_SUGGESTED = [...PRE_REVIEW, 'suggested']
 
 /** MariaDB errors that a second try usually gets past: deadlock (1213) and lock wait timeout (1205). */
 export function isTransient(error: unknown): boolean {
@@ -128,74 +123,17 @@ export async function loadInput(spectrumId: number): Promise<WorkerTask> {
   return input
 }
 
-const finiteOrNull = (v: number | null | undefined) => (v !== null && v !== undefined && Number.isFinite(v) ? v : null)
-
 /**
- * Stores a pipeline output as the spectrum's current measurement (lines in one multi-row insert)
- * and suggestion, marks the job done and moves the spectrum on, all in one transaction. Earlier
- * rows are found first and updated by key, so concurrent writers for other spectra never lock
- * each other's index ranges; a deadlock or lost connection is retried with back-off.
+ * Stores a pipeline output (measurement, line rows, suggestion: `storePipelineOutput`), marks the
+ * job done and moves the spectrum on, all in one READ COMMITTED transaction: earlier rows are found
+ * first and updated by key, so concurrent writers for other spectra never lock each other's index
+ * ranges; a deadlock or lost connection is retried with back-off.
  */
 export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output: PipelineOutput, libraryVersionId: number | undefined): Promise<void> {
-  const { analysis } = output
-  const p = analysis.prepared
-  const lines = analysis.lines.map((l) =>
-    l.measured
-      ? {
-          lineId: l.id,
-          measured: true,
-          reason: l.voigt === null && l.voigtReason ? l.voigtReason.slice(0, 200) : null,
-          ew: finiteOrNull(l.equivalentWidth),
-          ewError: finiteOrNull(l.equivalentWidthError),
-          depth: finiteOrNull(l.depth),
-          fwhm: finiteOrNull(l.fwhm),
-          centroid: finiteOrNull(l.centroid),
-          snr: finiteOrNull(l.snr),
-          gaussianFwhm: finiteOrNull(l.voigt?.gaussianFwhm),
-          lorentzianFwhm: finiteOrNull(l.voigt?.lorentzianFwhm),
-          lorentzianError: l.voigt ? finiteOrNull(2 * l.voigt.errors.gamma) : null,
-        }
-      : { lineId: l.id, measured: false, reason: `${l.reason}: ${l.detail}`.slice(0, 200), ew: null, ewError: null, depth: null, fwhm: null, centroid: null, snr: null, gaussianFwhm: null, lorentzianFwhm: null, lorentzianError: null },
-  )
-  const measurement = {
-    spectrumId: job.spectrumId,
-    pipelineVersion: output.pipelineVersion,
-    isCurrent: true,
-    snr: finiteOrNull(analysis.snr),
-    rv: finiteOrNull(analysis.rv?.v),
-    rvError: finiteOrNull(analysis.rv?.error),
-    pseudoContinuum: analysis.pseudoContinuum,
-    warnings: JSON.stringify(analysis.warnings),
-    ratios: JSON.stringify(analysis.ratios),
-    gridStart: p.grid.start,
-    gridStep: p.grid.step,
-    gridLength: p.grid.length,
-    flux: float32ToBuffer(p.flux),
-    continuum: float32ToBuffer(p.continuum),
-    rectified: float32ToBuffer(p.rectified),
-    mask: Buffer.from(p.mask),
-    seconds: output.seconds,
-  }
-  const suggestion = output.suggestion && libraryVersionId !== undefined ? output.suggestion : null
-  const details = suggestion ? await suggestionDetails(suggestion, output.resolution, output.notes, output.standards) : null
-  const instrumentId = output.standards && output.standards.instrumentStandards > 0 ? output.standards.instrumentId : null
   await withRetry(() =>
     sequelize.transaction(READ_COMMITTED, async (transaction) => {
-      const earlier = await Measurement.findAll({ where: { spectrumId: job.spectrumId, isCurrent: true }, attributes: ['id'], transaction })
-      if (earlier.length > 0) await Measurement.update({ isCurrent: false }, { where: { id: { [Op.in]: earlier.map((m) => m.id) } }, transaction })
-      const m = await Measurement.create(measurement, { transaction })
-      await LineMeasurementRow.bulkCreate(lines.map((l) => ({ measurementId: m.id, ...l })), { transaction })
+      await storePipelineOutput(sequelize, job.spectrumId, output, libraryVersionId, transaction)
       await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date(), leaseExpiresAt: null }, { where: { id: job.id }, transaction })
-      if (suggestion && details && libraryVersionId !== undefined) {
-        await storeSuggestion(
-          { spectrumId: job.spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion, details, instrumentId },
-          transaction,
-        )
-        await indexSuggestionFlags(sequelize, job.spectrumId, suggestion.flags, transaction)
-        await Spectrum.update({ status: 'suggested', statusReason: null }, { where: { id: job.spectrumId, status: { [Op.in]: PRE_REVIEW_SUGGESTED } }, transaction })
-        return
-      }
-      await Spectrum.update({ status: 'measured', statusReason: null }, { where: { id: job.spectrumId, status: { [Op.in]: PRE_REVIEW } }, transaction })
     }),
   )
 }

@@ -1,5 +1,6 @@
 import { parseMK, type MKValue } from '../../shared/mk'
 import { checkCallText, parsedCallOf, type ParsedCall } from '../../shared/mkCall'
+import type { SpectrumStatus } from '../../shared/status'
 import { HttpError } from '../lib/http-error'
 import type { Agreement, ClassificationSource } from '../models'
 
@@ -12,6 +13,14 @@ export type { ParsedCall }
 export { parsedCallOf }
 
 const EPSILON = 1e-9
+
+/** Statuses in which a spectrum takes calls. */
+export const OPEN_FOR_CALLS: readonly SpectrumStatus[] = ['suggested', 'under_review']
+
+/** Whether the suggestion and the others' calls are hidden from this user: blind review, still open, no call of theirs yet. */
+export function isBlindFor(campaign: { blindReview: boolean }, spectrum: { status: SpectrumStatus }, hasCalled: boolean): boolean {
+  return campaign.blindReview && OPEN_FOR_CALLS.includes(spectrum.status) && !hasCalled
+}
 
 // ---------------------------------------------------------------------------------------------
 // MK input

@@ -1,5 +1,6 @@
 import { Campaign, Classification, Dispute, Measurement, ReviewCall, SpectrumEvent, Suggestion, type User } from '../models'
-import { isBlindFor, namesOf, toCallView, toFinalClassification, type PersonRef } from './review.service'
+import { isBlindFor } from '../review/consensus'
+import { namesOf, toCallView, toFinalClassification, type PersonRef } from './review.service'
 import { findVisibleSpectrum } from './visibility'
 import type { HistoryEvent, HistoryKind, SpectrumHistory } from '../../shared/api/history'
 

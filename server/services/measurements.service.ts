@@ -1,10 +1,13 @@
+import { Op, type Sequelize, type Transaction } from 'sequelize'
 import { CLASSIFICATION_LINES } from '../../shared/lines'
 import { gridWavelength } from '../../shared/grid'
-import { bufferToFloat32 } from '../lib/binary'
+import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
 import { decimateMinMax } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, type User } from '../models'
 import type { AppContext } from '../context'
+import type { PipelineOutput } from '../spectra/pipeline'
+import { indexSuggestionFlags, storeSuggestion, suggestionDetails } from './suggestions.service'
 import { findVisibleSpectrum } from './visibility'
 import type { LineRow, MeasurementSummary, SpectrumMeasurements } from '../../shared/api/measurements'
 import type { SeriesQuery } from '../../shared/api/spectra'
@@ -104,6 +107,75 @@ export async function getPreparedSeries(user: User, spectrumId: number, q: Serie
     layout: { points: keep.length, total: to - from, decimated: keep.length < to - from, columns, measurementId: m.id },
     body: Buffer.from(out.buffer, out.byteOffset, out.byteLength),
   }
+}
+
+const finiteOrNull = (v: number | null | undefined) => (v !== null && v !== undefined && Number.isFinite(v) ? v : null)
+
+/** Statuses a fresh measurement may move a spectrum on from; review states are never touched. */
+export const PRE_REVIEW = ['received', 'failed', 'measured']
+/** Statuses a fresh suggestion may move a spectrum on from (to 'suggested'). */
+const PRE_REVIEW_SUGGESTED = [...PRE_REVIEW, 'suggested']
+
+/**
+ * Writes a pipeline output in the caller's transaction: the spectrum's new current measurement
+ * (its lines in one multi-row insert), its suggestion when a library version was matched (with the
+ * flags the queue filters by), and the spectrum's status. Earlier current rows are found first and
+ * updated by key, so writers for other spectra never lock each other's index ranges.
+ */
+export async function storePipelineOutput(sequelize: Sequelize, spectrumId: number, output: PipelineOutput, libraryVersionId: number | undefined, transaction: Transaction): Promise<void> {
+  const { analysis } = output
+  const p = analysis.prepared
+  const lines = analysis.lines.map((l) =>
+    l.measured
+      ? {
+          lineId: l.id,
+          measured: true,
+          reason: l.voigt === null && l.voigtReason ? l.voigtReason.slice(0, 200) : null,
+          ew: finiteOrNull(l.equivalentWidth),
+          ewError: finiteOrNull(l.equivalentWidthError),
+          depth: finiteOrNull(l.depth),
+          fwhm: finiteOrNull(l.fwhm),
+          centroid: finiteOrNull(l.centroid),
+          snr: finiteOrNull(l.snr),
+          gaussianFwhm: finiteOrNull(l.voigt?.gaussianFwhm),
+          lorentzianFwhm: finiteOrNull(l.voigt?.lorentzianFwhm),
+          lorentzianError: l.voigt ? finiteOrNull(2 * l.voigt.errors.gamma) : null,
+        }
+      : { lineId: l.id, measured: false, reason: `${l.reason}: ${l.detail}`.slice(0, 200), ew: null, ewError: null, depth: null, fwhm: null, centroid: null, snr: null, gaussianFwhm: null, lorentzianFwhm: null, lorentzianError: null },
+  )
+  const measurement = {
+    spectrumId,
+    pipelineVersion: output.pipelineVersion,
+    isCurrent: true,
+    snr: finiteOrNull(analysis.snr),
+    rv: finiteOrNull(analysis.rv?.v),
+    rvError: finiteOrNull(analysis.rv?.error),
+    pseudoContinuum: analysis.pseudoContinuum,
+    warnings: JSON.stringify(analysis.warnings),
+    ratios: JSON.stringify(analysis.ratios),
+    gridStart: p.grid.start,
+    gridStep: p.grid.step,
+    gridLength: p.grid.length,
+    flux: float32ToBuffer(p.flux),
+    continuum: float32ToBuffer(p.continuum),
+    rectified: float32ToBuffer(p.rectified),
+    mask: Buffer.from(p.mask),
+    seconds: output.seconds,
+  }
+  const suggestion = output.suggestion && libraryVersionId !== undefined ? output.suggestion : null
+  const details = suggestion ? await suggestionDetails(suggestion, output.resolution, output.notes, output.standards, transaction) : null
+  const instrumentId = output.standards && output.standards.instrumentStandards > 0 ? output.standards.instrumentId : null
+  const earlier = await Measurement.findAll({ where: { spectrumId, isCurrent: true }, attributes: ['id'], transaction })
+  if (earlier.length > 0) await Measurement.update({ isCurrent: false }, { where: { id: { [Op.in]: earlier.map((m) => m.id) } }, transaction })
+  const m = await Measurement.create(measurement, { transaction })
+  await LineMeasurementRow.bulkCreate(lines.map((l) => ({ measurementId: m.id, ...l })), { transaction })
+  if (suggestion && details && libraryVersionId !== undefined) {
+    await storeSuggestion({ spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion, details, instrumentId }, transaction)
+    await indexSuggestionFlags(sequelize, spectrumId, suggestion.flags, transaction)
+    await Spectrum.update({ status: 'suggested', statusReason: null }, { where: { id: spectrumId, status: { [Op.in]: PRE_REVIEW_SUGGESTED } }, transaction })
+    return
+  }
+  await Spectrum.update({ status: 'measured', statusReason: null }, { where: { id: spectrumId, status: { [Op.in]: PRE_REVIEW } }, transaction })
 }
 
 /** Puts a spectrum back in the queue: after a failure, or to re-measure with a newer pipeline. */

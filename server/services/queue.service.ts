@@ -1,9 +1,10 @@
-import { Op, QueryTypes, UniqueConstraintError, type Sequelize, type Transaction } from 'sequelize'
+import { Op, QueryTypes, UniqueConstraintError } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
 import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
-import { OPEN_FOR_CALLS, namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView } from './review.service'
+import { OPEN_FOR_CALLS } from '../review/consensus'
+import { namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView } from './review.service'
 import { findVisibleSpectrum } from './visibility'
 import type { QueueItem, QueueOrder, QueuePage, QueueQuery, QueueSuggestion } from '../../shared/api/queue'
 
@@ -13,23 +14,6 @@ export type { QueueItem, QueueOrder }
 export const CLAIM_MINUTES = 10
 
 export type { QueueQuery }
-
-/**
- * Writes what the queue orders and filters by for a spectrum's new current suggestion: the flag
- * count on the spectrum and one spectrum_flags row per flag. Called in the transaction that stores
- * the suggestion.
- */
-export async function indexSuggestionFlags(sequelize: Sequelize, spectrumId: number, flags: readonly string[], transaction?: Transaction): Promise<void> {
-  const unique = [...new Set(flags)]
-  await sequelize.query('UPDATE spectra SET flag_count = :n WHERE id = :id', { replacements: { n: Math.min(255, unique.length), id: spectrumId }, transaction })
-  await sequelize.query('DELETE FROM spectrum_flags WHERE spectrum_id = :id', { replacements: { id: spectrumId }, transaction })
-  if (unique.length > 0) {
-    await sequelize.query(`INSERT INTO spectrum_flags (spectrum_id, flag) VALUES ${unique.map(() => '(?, ?)').join(', ')}`, {
-      replacements: unique.flatMap((f) => [spectrumId, f.slice(0, 40)]),
-      transaction,
-    })
-  }
-}
 
 /** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
 const sqlTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ')

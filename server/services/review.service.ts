@@ -1,19 +1,15 @@
 import type { SuggestionDetails } from '../../shared/api/suggestions'
 import { Op, UniqueConstraintError, type Transaction } from 'sequelize'
 import { parseMK } from '../../shared/mk'
-import type { SpectrumStatus } from '../../shared/status'
 import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
 import { Campaign, Classification, Dispute, ReviewCall, ReviewClaim, Spectrum, Suggestion, User, type Agreement, type ClassificationSource } from '../models'
-import { judgeByMajority, judgeCalls, parseCallType, parsedCallOf, type ParsedCall } from '../review/consensus'
+import { OPEN_FOR_CALLS, isBlindFor, judgeByMajority, judgeCalls, parseCallType, parsedCallOf, type ParsedCall } from '../review/consensus'
 import { measurementsOf } from './measurements.service'
 import { findVisibleSpectrum } from './visibility'
 import type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInput, RecordCallResult, ReviewCampaign, ReviewView, SuggestionView } from '../../shared/api/review'
 
 export type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInput, RecordCallResult, ReviewCampaign, ReviewView, SuggestionView }
-
-/** Statuses in which a spectrum takes calls. */
-export const OPEN_FOR_CALLS: readonly SpectrumStatus[] = ['suggested', 'under_review']
 
 const parseJson = <T>(text: string | null | undefined, fallback: T): T => {
   if (!text) return fallback
@@ -142,11 +138,6 @@ export function suggestionAsCall(s: Suggestion): ParsedCall {
   const full = parseMK(s.spectralType)
   if (full.ok && full.value.typeCode !== undefined && full.value.classCode !== undefined && full.value.luminosityClass !== undefined) return parsedCallOf(full.value)
   return parseCallType(`${s.letter}${s.subtype}`, s.luminosityClass)
-}
-
-/** Whether the suggestion and the others' calls are hidden from this user: blind review, still open, no call of theirs yet. */
-export function isBlindFor(campaign: Campaign, spectrum: Spectrum, hasCalled: boolean): boolean {
-  return campaign.blindReview && OPEN_FOR_CALLS.includes(spectrum.status) && !hasCalled
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -1,11 +1,10 @@
-import { open, readFile } from 'node:fs/promises'
+import { open } from 'node:fs/promises'
 import type { Readable } from 'node:stream'
 import { ConnectionError, Op, QueryTypes, UniqueConstraintError, Utils, literal, type Order, type WhereOptions } from 'sequelize'
-import { DEFAULT_CLASSIFICATION_REGION } from '../../shared/grid'
 import { parseDeclination, parseRightAscension } from '../../shared/coords'
 import type { SpectrumStatus } from '../../shared/status'
 import type { AppContext } from '../context'
-import { bufferToFloat32, bufferToFloat64, float32ToBuffer, float64ToBuffer } from '../lib/binary'
+import { bufferToFloat32, bufferToFloat64 } from '../lib/binary'
 import { decimateMinMax, lowerBound } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { sha256Hex } from '../lib/tokens'
@@ -14,9 +13,9 @@ import {
   Campaign, Classification, Instrument, LineMeasurementRow, Measurement, ProcessingJob, ReviewCall, ReviewClaim, Spectrum, SpectrumBlob,
   SpectrumEvent, Standard, Suggestion, User,
 } from '../models'
-import { readSpectrum, unpackZip, type ReadMeta, type ReadOptions, type ReadSuccess } from '../spectra/io'
+import type { ReadMeta, ReadOptions } from '../spectra/io'
+import { readHere, type FileReading, type FileSource, type ReadOutcome } from '../jobs/reading'
 import type { Config } from '../config'
-import { estimateSpectrumSnr } from '../spectra/prepare/snr'
 import { campaignForSubmission } from './campaigns.service'
 import { instrumentForSpectrum } from './instruments.service'
 import { findVisibleSpectrum, visibilityWhere } from './visibility'
@@ -26,9 +25,11 @@ import type { FileResult, KnownFiles, KnownFilesInput, ReadChoices, SeriesQuery,
 export type { FileResult, SpectrumDetail, SpectrumListItem }
 
 /** One uploaded file: in memory (zip entries, the demo) or where the upload parser wrote it. */
-export type UploadedFile = { name: string; bytes: Buffer } | { name: string; path: string }
+export type UploadedFile = { name: string; bytes: Uint8Array } | { name: string; path: string }
 
-const bytesOf = (file: UploadedFile): Promise<Buffer> => ('bytes' in file ? Promise.resolve(file.bytes) : readFile(file.path))
+const sourceOf = (file: UploadedFile): FileSource => ('bytes' in file ? { bytes: file.bytes } : { path: file.path })
+/** Reading runs in the server's read pool; without one (tests, the demo seed), here. */
+const readingOf = (ctx: AppContext): FileReading => ctx.reading ?? readHere
 
 /** Characters a stored name never holds: control characters (they break exports, logs and screens). */
 const CONTROL = /[\u0000-\u001f\u007f]+/g
@@ -77,14 +78,6 @@ function readOptionsFor(config: Config, choices: ReadChoices): ReadOptions {
 
 const ZIP_MAGIC = [0x50, 0x4b, 0x03, 0x04]
 const isZip = (b: Uint8Array) => ZIP_MAGIC.every((v, i) => b[i] === v)
-
-/** Median Å per pixel. */
-function medianDispersion(wl: Float64Array): number {
-  const d = new Float64Array(wl.length - 1)
-  for (let i = 1; i < wl.length; i++) d[i - 1] = wl[i]! - wl[i - 1]!
-  d.sort()
-  return d[d.length >> 1] ?? 0
-}
 
 const headerString = (h: Record<string, unknown>, ...keys: string[]) => {
   for (const k of keys) if (h[k] !== undefined && h[k] !== '') return String(h[k]).trim()
@@ -142,8 +135,9 @@ export async function knownFiles(user: User, input: KnownFilesInput): Promise<Kn
 }
 
 async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: UploadedFile, opts: SubmitOptions): Promise<FileResult> {
-  const bytes = await bytesOf(file)
-  const sha = sha256Hex(bytes)
+  const choices = choicesOf(opts)
+  const answer = await readingOf(ctx).read(file.name, sourceOf(file), readOptionsFor(ctx.config, choices))
+  const sha = answer.sha256
   const duplicate = (id: number | null): FileResult => ({
     file: file.name,
     outcome: 'duplicate',
@@ -153,16 +147,15 @@ async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: U
   const existing = await findDuplicate(user, campaign.id, sha)
   if (existing) return duplicate(existing.id)
 
-  const choices = choicesOf(opts)
-  const read = readSpectrum(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.length), file.name, readOptionsFor(ctx.config, choices))
+  const read = answer.read
   if (!read.ok) return { file: file.name, outcome: 'refused', code: read.code, message: read.message }
   // The file is stored before its row: a crash in between leaves an unreferenced file, never a row without its file.
   const key = rawFileKey(sha)
   if (!(await ctx.files.exists(key))) {
     if ('path' in file) await ctx.files.putFile(key, file.path)
-    else await ctx.files.put(key, bytes)
+    else await ctx.files.put(key, Buffer.from(answer.bytes!.buffer, answer.bytes!.byteOffset, answer.bytes!.byteLength))
   }
-  return insertSpectrum(ctx, user, campaign, { name: file.name, size: bytes.length, key }, sha, read, opts, choices).catch(async (error: unknown) => {
+  return insertSpectrum(ctx, user, campaign, { name: file.name, size: answer.size, key }, sha, read, opts, choices).catch(async (error: unknown) => {
     if (error instanceof UniqueConstraintError) return duplicate((await findDuplicate(user, campaign.id, sha))?.id ?? null)
     throw error
   })
@@ -174,35 +167,11 @@ interface StoredFile {
   key: string
 }
 
-/** The columns and arrays a read gives a spectrum row and its blob. */
-function readColumns(read: ReadSuccess) {
-  const { spectrum: s, meta } = read
-  const wl = s.wavelengthAir
-  const snr = estimateSpectrumSnr({ wavelength: wl, flux: s.flux, ...(s.mask ? { mask: s.mask } : {}) }, { region: DEFAULT_CLASSIFICATION_REGION })
-  return {
-    row: {
-      format: meta.format,
-      hdu: meta.hdu ?? null,
-      pixels: wl.length,
-      wlMin: wl[0]!,
-      wlMax: wl[wl.length - 1]!,
-      dispersion: medianDispersion(wl),
-      snr: snr !== null && Number.isFinite(snr) ? snr : null,
-      vacuumConverted: meta.vacuumConverted,
-      readInfo: JSON.stringify(meta),
-    },
-    blob: {
-      wavelength: float64ToBuffer(wl),
-      flux: float32ToBuffer(s.flux),
-      error: s.error ? float32ToBuffer(s.error) : null,
-      mask: s.mask ? Buffer.from(s.mask) : null,
-    },
-  }
-}
+/** What a successful read gives the spectrum row and its blob. */
+type ReadColumns = Extract<ReadOutcome, { ok: true }>
 
-async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, file: StoredFile, sha: string, read: ReadSuccess, opts: SubmitOptions, choices: ReadChoices): Promise<FileResult> {
-  const { meta } = read
-  const columns = readColumns(read)
+async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, file: StoredFile, sha: string, columns: ReadColumns, opts: SubmitOptions, choices: ReadChoices): Promise<FileResult> {
+  const { meta } = columns
   const metadata = resolveMetadata(opts, meta, file.name)
   const row = await ctx.sequelize.transaction(async (transaction) => {
     const instrument = await instrumentForSpectrum(campaign.id, opts.instrumentId, metadata.instrument, transaction)
@@ -275,14 +244,14 @@ export async function submitFiles(ctx: AppContext, user: User, files: UploadedFi
   for (const file of files) {
     const head = 'bytes' in file ? file.bytes.subarray(0, 4) : await readHead(file.path)
     if (isZip(head)) {
-      const unzipped = unpackZip(new Uint8Array(await bytesOf(file)), { maxEntries: budget, maxTotalBytes: ctx.config.UPLOAD_MAX_BYTES * 4, maxEntryBytes: ctx.config.UPLOAD_MAX_BYTES })
+      const unzipped = await readingOf(ctx).unzip(sourceOf(file), { maxEntries: budget, maxTotalBytes: ctx.config.UPLOAD_MAX_BYTES * 4, maxEntryBytes: ctx.config.UPLOAD_MAX_BYTES })
       if (!unzipped.ok) {
         results.push({ file: file.name, outcome: 'refused', code: unzipped.code, message: unzipped.message })
         continue
       }
       for (const entry of unzipped.entries) {
         budget--
-        results.push(await storeSafely(ctx, user, campaign, { name: `${file.name}/${entry.name}`, bytes: Buffer.from(entry.bytes) }, opts))
+        results.push(await storeSafely(ctx, user, campaign, { name: `${file.name}/${entry.name}`, bytes: entry.bytes }, opts))
       }
       for (const name of unzipped.skipped) {
         const line = skippedEntry(file.name, name)
@@ -538,17 +507,15 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
   if (calls > 0 && user.role !== 'lead') {
     throw new HttpError(409, 'has_calls', 'Classifiers have already called this spectrum, so how it is read and processed can only be changed by a lead. Ask a lead, or correct only the descriptive details.')
   }
-  let columns: ReturnType<typeof readColumns> | undefined
-  let read: ReadSuccess | undefined
+  let read: ReadColumns | undefined
   const oldMeta = JSON.parse(s.readInfo) as ReadMeta
   if (reread) {
     const raw = await storedRawBytes(ctx, id)
-    const result = readSpectrum(new Uint8Array(raw.buffer, raw.byteOffset, raw.length), s.fileName, readOptionsFor(ctx.config, choices))
+    const { read: result } = await readingOf(ctx).read(s.fileName, { bytes: raw }, readOptionsFor(ctx.config, choices))
     if (!result.ok) {
       throw new HttpError(422, 'read_refused', `With these choices the file cannot be read: ${result.message}. Nothing was changed.`, { code: result.code })
     }
     read = result
-    columns = readColumns(result)
   }
   const fwhmText = (fwhm: number | null, power: number | null) => (fwhm != null ? `${fwhm} Å FWHM` : power != null ? `R = ${power}` : 'none given')
   const resolutionText = `resolution ${fwhmText(changes.resolutionFwhm !== undefined ? changes.resolutionFwhm : s.resolutionFwhm, changes.resolvingPower !== undefined ? changes.resolvingPower : s.resolvingPower)} (was ${fwhmText(s.resolutionFwhm, s.resolvingPower)})`
@@ -556,7 +523,7 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
   if (reread) {
     const m = read!.meta
     const d = m.decisions!
-    summary = `Read again as ${m.vacuumConverted ? 'vacuum' : 'air'}, unit ${m.wavelengthUnit}${m.hdu !== undefined ? `, HDU ${m.hdu}` : ''}${d.aperture ? `, aperture ${d.aperture.number}` : ''}: ${columns!.row.wlMin.toFixed(1)}–${columns!.row.wlMax.toFixed(1)} Å, ${columns!.row.pixels} pixels (was ${s.wlMin.toFixed(1)}–${s.wlMax.toFixed(1)} Å, ${s.pixels} pixels)${resolutionChanged ? `; ${resolutionText}` : ''}${instrumentText ? `; ${instrumentText}` : ''}`
+    summary = `Read again as ${m.vacuumConverted ? 'vacuum' : 'air'}, unit ${m.wavelengthUnit}${m.hdu !== undefined ? `, HDU ${m.hdu}` : ''}${d.aperture ? `, aperture ${d.aperture.number}` : ''}: ${read!.row.wlMin.toFixed(1)}–${read!.row.wlMax.toFixed(1)} Å, ${read!.row.pixels} pixels (was ${s.wlMin.toFixed(1)}–${s.wlMax.toFixed(1)} Å, ${s.pixels} pixels)${resolutionChanged ? `; ${resolutionText}` : ''}${instrumentText ? `; ${instrumentText}` : ''}`
   } else summary = `Processed again with ${[resolutionChanged ? resolutionText : null, instrumentText].filter((x) => x !== null).join(' and ')}`
   const [currentMeasurement, currentSuggestion] = await Promise.all([
     Measurement.findOne({ where: { spectrumId: id, isCurrent: true }, attributes: ['id'] }),
@@ -572,7 +539,7 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
         summary,
         details: JSON.stringify({
           before: { ...describeRead(s, oldMeta), resolutionFwhm: s.resolutionFwhm, resolvingPower: s.resolvingPower, instrumentId: s.instrumentId, measurementId: currentMeasurement?.id ?? null, suggestionId: currentSuggestion?.id ?? null, suggestion: currentSuggestion?.spectralType ?? null },
-          after: { choices, resolutionFwhm: changes.resolutionFwhm ?? s.resolutionFwhm, resolvingPower: changes.resolvingPower ?? s.resolvingPower, instrumentId: changes.instrumentId !== undefined ? changes.instrumentId : s.instrumentId, ...(read ? { wavelengthRange: [columns!.row.wlMin, columns!.row.wlMax], pixels: columns!.row.pixels, vacuumConverted: read.meta.vacuumConverted, vacuumSource: read.meta.vacuumSource, unit: read.meta.wavelengthUnit, hdu: read.meta.hdu ?? null, aperture: read.meta.decisions?.aperture?.number ?? null } : {}) },
+          after: { choices, resolutionFwhm: changes.resolutionFwhm ?? s.resolutionFwhm, resolvingPower: changes.resolvingPower ?? s.resolvingPower, instrumentId: changes.instrumentId !== undefined ? changes.instrumentId : s.instrumentId, ...(read ? { wavelengthRange: [read!.row.wlMin, read!.row.wlMax], pixels: read!.row.pixels, vacuumConverted: read.meta.vacuumConverted, vacuumSource: read.meta.vacuumSource, unit: read.meta.wavelengthUnit, hdu: read.meta.hdu ?? null, aperture: read.meta.decisions?.aperture?.number ?? null } : {}) },
         }),
       },
       { transaction },
@@ -581,8 +548,8 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
       // The old measurement and suggestion described other arrays: they stay as history, no longer current.
       await Measurement.update({ isCurrent: false }, { where: { spectrumId: id, isCurrent: true }, transaction })
       await Suggestion.update({ isCurrent: false }, { where: { spectrumId: id, isCurrent: true }, transaction })
-      await SpectrumBlob.update(columns!.blob, { where: { spectrumId: id }, transaction })
-      Object.assign(changes, columns!.row, { readChoices: JSON.stringify(choices) })
+      await SpectrumBlob.update(read!.blob, { where: { spectrumId: id }, transaction })
+      Object.assign(changes, read!.row, { readChoices: JSON.stringify(choices) })
       if (BEFORE_REVIEW.has(s.status)) Object.assign(changes, { status: 'received', statusReason: null })
     } else if (s.status === 'failed') Object.assign(changes, { status: 'received', statusReason: null })
     await s.update(changes, { transaction })

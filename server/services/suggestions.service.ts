@@ -1,8 +1,8 @@
-import { Op, type Transaction } from 'sequelize'
+import { Op, type Sequelize, type Transaction } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError, notFound } from '../lib/http-error'
 import { Campaign, Instrument, ProcessingJob, ReviewCall, Spectrum, Suggestion, type User } from '../models'
-import { isBlindFor } from './review.service'
+import { isBlindFor } from '../review/consensus'
 import type { MatchResult } from '../spectra/match'
 import { activeVersionId } from './standards.service'
 import type { SpectrumSuggestions, SuggestionDetails, SuggestionSummary } from '../../shared/api/suggestions'
@@ -15,11 +15,12 @@ export type { SuggestionSummary }
  * What a suggestion keeps beyond type and class: the matcher's result, how the pipeline reached it,
  * and which standards decided it (the instrument's own or the general library's).
  */
-export async function suggestionDetails(r: MatchResult, resolution: PipelineResolution, notes: readonly string[], used: StandardsUsed | null): Promise<SuggestionDetails> {
+export async function suggestionDetails(r: MatchResult, resolution: PipelineResolution, notes: readonly string[], used: StandardsUsed | null, transaction?: Transaction): Promise<SuggestionDetails> {
   const details: SuggestionDetails = { parameters: r.parameters, classShares: r.classShares, classNote: r.classNote, resolution, residual: r.residual, notes: [...notes] }
   if (used) {
-    const instrument = used.instrumentId !== null ? await Instrument.findByPk(used.instrumentId, { attributes: ['id', 'name'] }) : null
-    const { instrumentId: _, ...rest } = used
+    const instrument = used.instrumentId !== null ? await Instrument.findByPk(used.instrumentId, { attributes: ['id', 'name'], transaction }) : null
+    // The instrument is told by id and name; the bare id is not part of the answer's shape.
+    const { instrumentId: _id, ...rest } = used
     details.standards = { ...rest, instrument: instrument ? { id: instrument.id, name: instrument.name } : null }
   }
   return details
@@ -57,6 +58,23 @@ export async function storeSuggestion(
     },
     { transaction },
   )
+}
+
+/**
+ * Writes what the queue orders and filters by for a spectrum's new current suggestion: the flag
+ * count on the spectrum and one spectrum_flags row per flag. Called in the transaction that stores
+ * the suggestion.
+ */
+export async function indexSuggestionFlags(sequelize: Sequelize, spectrumId: number, flags: readonly string[], transaction?: Transaction): Promise<void> {
+  const unique = [...new Set(flags)]
+  await sequelize.query('UPDATE spectra SET flag_count = :n WHERE id = :id', { replacements: { n: Math.min(255, unique.length), id: spectrumId }, transaction })
+  await sequelize.query('DELETE FROM spectrum_flags WHERE spectrum_id = :id', { replacements: { id: spectrumId }, transaction })
+  if (unique.length > 0) {
+    await sequelize.query(`INSERT INTO spectrum_flags (spectrum_id, flag) VALUES ${unique.map(() => '(?, ?)').join(', ')}`, {
+      replacements: unique.flatMap((f) => [spectrumId, f.slice(0, 40)]),
+      transaction,
+    })
+  }
 }
 
 export function toSuggestionSummary(s: Suggestion): SuggestionSummary {

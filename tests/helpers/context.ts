@@ -10,6 +10,7 @@ import { createLogger } from '../../server/lib/logger'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp'
 import { createMailer } from '../../server/mail/mailer'
 import { createFileStore } from '../../server/storage'
+import { ReadPool } from '../../server/jobs/reading'
 import { User } from '../../server/models'
 import { hashPassword } from '../../server/services/users.service'
 import type { Role } from '../../shared/roles'
@@ -43,7 +44,9 @@ export async function createTestContext(overrides: Partial<Config> = {}): Promis
   const sequelize = database(config)
   const smtp = await startFakeSmtp(0)
   const mailer = createMailer({ ...config, SMTP_PORT: smtp.port, MAIL_MODE: 'fake' })
-  const ctx: AppContext = { config, sequelize, mailer, logger: createLogger('silent'), files: await createFileStore(config) }
+  // Uploads are read in a thread of the read pool, as in the server (vitest does not run under tsx, so the thread loads it).
+  const reading = new ReadPool({ threads: 1, keepStarted: false, execArgv: ['--import', 'tsx'] })
+  const ctx: AppContext = { config, sequelize, mailer, logger: createLogger('silent'), files: await createFileStore(config), reading }
   firstContext ??= ctx
   const app = createApp(ctx, { observeJson: (answer) => seenAnswers.push(answer) })
   return {
@@ -51,6 +54,7 @@ export async function createTestContext(overrides: Partial<Config> = {}): Promis
     app,
     smtp,
     async close() {
+      await reading.close()
       mailer.close()
       await smtp.close()
     },

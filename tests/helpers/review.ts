@@ -1,7 +1,7 @@
 import { randomBytes } from 'node:crypto'
 import type { Express } from 'express'
 import { Measurement, Spectrum, Suggestion, type User } from '../../server/models'
-import { indexSuggestionFlags } from '../../server/services/queue.service'
+import { indexSuggestionFlags } from '../../server/services/suggestions.service'
 import { makeUser, signedInAgent } from './context'
 
 export type Client = Awaited<ReturnType<typeof signedInAgent>>

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { gridWavelengths } from '../../../shared/grid'
 import { analyseSpectrum, type MeasuredLine } from '../../../server/spectra/analyse'
-import { DEFAULT_OBSERVED_DIR, observedLibraryAt } from '../../../server/jobs/worker'
+import { DEFAULT_OBSERVED_DIR, observedLibraryAt } from '../../../server/spectra/match/load'
 
 // Real stars of the shipped observed library (MILES v9.1, Sánchez-Blázquez et al. 2006, 2.5 Å FWHM;
 // types as published with the library), measured by the same code that measures uploads.

@@ -5,7 +5,7 @@
 // than GATE_MARGIN points below them.
 import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
-import { defaultLibrary } from '../../../../server/jobs/worker'
+import { defaultLibrary } from '../../../../server/spectra/match/load'
 import { GATE_MARGIN, gateFigures, type GateFigures } from '../../../../bench/gate'
 
 const baseline = JSON.parse(readFileSync(new URL('../../../../bench/results/accuracy-gate.json', import.meta.url), 'utf8')) as GateFigures

@@ -4,7 +4,7 @@
 // as the libraries give them (templates/observed-v1/manifest.json).
 import { describe, expect, it } from 'vitest'
 import { DEFAULT_GRID, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../../../shared/grid'
-import { DEFAULT_OBSERVED_DIR, defaultLibrary, observedLibraryAt } from '../../../../server/jobs/worker'
+import { DEFAULT_OBSERVED_DIR, defaultLibrary, observedLibraryAt } from '../../../../server/spectra/match/load'
 import { analyseSpectrum } from '../../../../server/spectra/analyse'
 import { standardOnGrid } from '../../../../server/spectra/match'
 import { fitSpectrumAtLevel } from '../../../../server/spectra/match/classify'

@@ -2,7 +2,7 @@
 // (tests/fixtures/real/alpha_lyr_stis_010.fits, from python3-pysynphot; see its PROVENANCE note).
 // Its type and class, A0 V, are common practice. Resolution ≈ 5.5 Å FWHM (tests/fixtures/real).
 import { describe, expect, it } from 'vitest'
-import { defaultLibrary } from '../../../../server/jobs/worker'
+import { defaultLibrary } from '../../../../server/spectra/match/load'
 import { readSpectrum } from '../../../../server/spectra/io'
 import { toSpectrum1D } from '../../../../server/spectra/io/types'
 import { runPipeline } from '../../../../server/spectra/pipeline'

@@ -91,7 +91,7 @@ describe('fitSpectrumContinuum', () => {
 describe('fitSpectrumContinuum in ln F', () => {
   it('rectifies a real K giant and the same star reddened by E(B−V) = 1 more alike than a fit in F does (CCM89 law, checked against python3-extinction)', async () => {
     const { loadObservedLibrary } = await import('../../../../templates/observed/library')
-    const { DEFAULT_OBSERVED_DIR } = await import('../../../../server/jobs/worker')
+    const { DEFAULT_OBSERVED_DIR } = await import('../../../../server/spectra/match/load')
     const { extinctionMagnitudes } = await import('../../../../shared/extinction')
     const { gridWavelengths } = await import('../../../../shared/grid')
     // HD 207130, K0 III (MILES v9.1): a line-crowded blue, where a fit in F rides differently once the slope changes.
