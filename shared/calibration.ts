@@ -90,6 +90,7 @@ const G = 40
 const K = 50
 const M = 60
 
+// prettier-ignore
 const TEFF_DWARFS: CalibrationTable = {
   source: 'Pecaut & Mamajek (2013), dwarf sequence (from memory)',
   points: [
@@ -109,6 +110,7 @@ const TEFF_DWARFS: CalibrationTable = {
   ],
 }
 
+// prettier-ignore
 const TEFF_SUBGIANTS: CalibrationTable = {
   source: 'after Straižys & Kuriliene (1981), between the V and III scales (from memory)',
   points: [
@@ -118,6 +120,7 @@ const TEFF_SUBGIANTS: CalibrationTable = {
   ],
 }
 
+// prettier-ignore
 const TEFF_GIANTS: CalibrationTable = {
   source: 'Martins et al. (2005) for O; Schmidt-Kaler (1982) for B–M (from memory)',
   points: [
@@ -131,6 +134,7 @@ const TEFF_GIANTS: CalibrationTable = {
   ],
 }
 
+// prettier-ignore
 const TEFF_SUPERGIANTS: CalibrationTable = {
   source:
     'Martins et al. (2005) for O; Schmidt-Kaler (1982) for B–K; Levesque et al. (2005) for M (from memory)',
@@ -168,6 +172,7 @@ const TEFF: ClassTables = {
 }
 
 const LOGG_SOURCE = 'Straižys & Kuriliene (1981); Martins et al. (2005) for O stars (from memory)'
+// prettier-ignore
 const LOGG: ClassTables = {
   Ia: {
     source: LOGG_SOURCE,
@@ -202,6 +207,7 @@ const LOGG: ClassTables = {
 }
 
 const MV_SOURCE = 'Schmidt-Kaler (1982), Landolt–Börnstein VI/2b (from memory, rounded)'
+// prettier-ignore
 const ABSOLUTE_MAGNITUDE_V: ClassTables = {
   Ia: {
     source: MV_SOURCE,

@@ -55,6 +55,7 @@ const LICK_A = 'Lick HγA/HδA bands (Worthey & Ottaviani 1997), from memory'
 const CHOSEN = 'chosen here for R ≈ 1000–3000 classification spectra'
 
 /** Every classification line and band, ordered by wavelength within each family. */
+// prettier-ignore
 export const CLASSIFICATION_LINES: readonly ClassificationLine[] = [
   // Balmer series. Wide profile windows hold the wings of A-type dwarfs (tens of Å).
   {

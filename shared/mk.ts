@@ -188,11 +188,13 @@ function formatNumber(x: number): string {
 // ---------------------------------------------------------------------------------------------
 
 /** Notes that are words of their own, longest first so that "shell" wins over "s". */
+// prettier-ignore
 const WORD_NOTES = [
   'shell', 'comp', 'var', 'pec', 'nne', 'nn', 'wk', 'wl', 'lB', 'Am', 'Ap', 'ha', 'f*', 'f+', 'fc',
   'lambdaBoo', 'metalweak', 'Ksn', 'Nstr', '...', 'n', 'e', 'p', 's', 'k', 'w', 'm', 'v', 'f', 'h', 'z', 'q', 'd', 'b', 'o', 'c', 'J', 'S',
 ]
 /** Elements and molecules that appear as abundance or peculiarity notes, optionally with a signed strength. */
+// prettier-ignore
 const ABUNDANCE_NOTES = [
   'Hdel', 'CaII', 'CaI', 'HK', 'HI', 'CN', 'CH', 'C2', 'He', 'Si', 'Sr', 'Cr', 'Eu', 'Hg', 'Mn', 'Ca', 'Ti', 'Ba', 'Fe', 'Tc', 'Mg', 'Ho', 'Gd', 'Ce', 'Nd', 'Zr', 'Ga', 'Pt', 'Am', 'MS',
 ]

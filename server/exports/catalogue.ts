@@ -7,6 +7,7 @@ const E = (width: number, decimals: number) => ({ notation: 'E' as const, width,
  * The columns of a catalogue release, in file order. Every writer reads this table; a release
  * stores a copy of it beside its rows, so a later change here never alters a frozen release.
  */
+// prettier-ignore
 export const CATALOGUE_COLUMNS: readonly ExportColumn[] = [
   { name: 'SpId', description: 'Lineweight spectrum identifier', unit: '', ucd: 'meta.id;meta.main', type: 'int', width: 7, nullable: false },
   { name: 'Object', description: 'Object name as submitted', unit: '', ucd: 'meta.id', type: 'string', width: 6, nullable: false },

@@ -18,11 +18,13 @@ export function neutraliseFormula(text: string): string {
  * (ζ Oph → zet Oph), from memory of the Bright Star Catalogue / CDS convention (two-letter names
  * end in a dot: μ → mu.).
  */
+// prettier-ignore
 const GREEK: Record<string, string> = {
   α: 'alf', β: 'bet', γ: 'gam', δ: 'del', ε: 'eps', ϵ: 'eps', ζ: 'zet', η: 'eta', θ: 'tet', ϑ: 'tet', ι: 'iot', κ: 'kap', λ: 'lam', μ: 'mu.',
   ν: 'nu.', ξ: 'ksi', ο: 'omi', π: 'pi.', ρ: 'rho', σ: 'sig', ς: 'sig', τ: 'tau', υ: 'ups', φ: 'phi', ϕ: 'phi', χ: 'chi', ψ: 'psi', ω: 'ome',
 }
 /** Letters that carry no combining accent, so Unicode decomposition alone would lose them. */
+// prettier-ignore
 const LETTERS: Record<string, string> = {
   Ø: 'O', ø: 'o', Æ: 'AE', æ: 'ae', Œ: 'OE', œ: 'oe', ß: 'ss', Ł: 'L', ł: 'l', Đ: 'D', đ: 'd', Ð: 'D', ð: 'd', Þ: 'Th', þ: 'th', ı: 'i', Ħ: 'H', ħ: 'h',
 }

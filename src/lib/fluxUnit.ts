@@ -8,6 +8,7 @@ const SUPER: Record<string, string> = { '-': '⁻', '0': '⁰', '1': '¹', '2': 
 const sup = (n: number) => String(n).split('').map((c) => SUPER[c] ?? c).join('')
 
 /** Unit words as written in FITS headers and text files → the symbol shown. */
+// prettier-ignore
 const SYMBOL: Record<string, string> = {
   erg: 'erg', ergs: 'erg', j: 'J', w: 'W', watt: 'W', watts: 'W',
   s: 's', sec: 's', second: 's',

@@ -30,6 +30,7 @@ export interface Element {
 }
 
 /** Elements by symbol. Hydrogen's partition function is its ground term, g = 2 (levels n ≥ 2 add < 1 % below 12000 K). */
+// prettier-ignore
 export const ELEMENTS = {
   H: { symbol: 'H', logAbundance: 12, mass: 1.008, ionisation: [13.598], partition: [[2, 2], [1, 1]] },
   He: { symbol: 'He', logAbundance: 10.93, mass: 4.003, ionisation: [24.587, 54.418], partition: [[1, 1], [2, 2], [1, 1]] },

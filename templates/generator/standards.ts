@@ -13,6 +13,7 @@ import {
 } from '../../shared/calibration'
 
 /** Spectral types of the grid: about one subtype apart, O5–M5. */
+// prettier-ignore
 export const MODEL_TYPES: readonly string[] = [
   'O5', 'O7', 'O9', 'B0', 'B1', 'B2', 'B3', 'B5', 'B7', 'B8', 'B9', 'A0', 'A1', 'A2', 'A3', 'A5', 'A7',
   'F0', 'F2', 'F5', 'F8', 'G0', 'G2', 'G5', 'G8', 'K0', 'K1', 'K2', 'K3', 'K4', 'K5',

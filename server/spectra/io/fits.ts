@@ -252,6 +252,7 @@ export function readImagePixels(bytes: Uint8Array, hdu: FitsHdu, first: number, 
 }
 
 /** Observation and resolution keywords passed on to the caller, as the file writes them. */
+// prettier-ignore
 const KEPT_KEYWORDS = [
   'OBJECT', 'RA', 'DEC', 'RA_OBJ', 'DEC_OBJ', 'EQUINOX', 'RADESYS', 'DATE-OBS', 'MJD-OBS', 'EXPTIME',
   'INSTRUME', 'TELESCOP', 'OBSERVER', 'AIRMASS', 'EXTNAME',

@@ -123,6 +123,7 @@ const KEYWORD_LINE = /^\\?([A-Za-z][A-Za-z0-9_ .-]{0,39}?)\s*(=|:)\s*(.*)$/
 const TYPE_WORDS = /^(double|real|float|int|integer|long|char|date|r|i|d|c|f)$/i
 
 /** Observation keywords a preamble may give, by the names text writers use (common practice). */
+// prettier-ignore
 const KEPT: Record<string, string> = {
   OBJECT: 'OBJECT', OBJNAME: 'OBJECT', TARGET: 'OBJECT', STAR: 'OBJECT', RA: 'RA', DEC: 'DEC', 'DATE-OBS': 'DATE-OBS',
   DATE: 'DATE-OBS', 'DATE_OBS': 'DATE-OBS', EXPTIME: 'EXPTIME', EXPOSURE: 'EXPTIME', INSTRUME: 'INSTRUME',

@@ -29,6 +29,7 @@ export type RefusalCode =
   | 'APERTURE_NOT_FOUND'
 
 /** Every refusal code, for tests and for clients that list them. */
+// prettier-ignore
 export const REFUSAL_CODES: readonly RefusalCode[] = [
   'EMPTY_FILE', 'FILE_TOO_LARGE', 'UNKNOWN_FORMAT', 'FITS_MALFORMED', 'FITS_TRUNCATED',
   'FITS_UNSUPPORTED', 'HDU_NOT_FOUND', 'NOT_A_SPECTRUM', 'NO_WAVELENGTH_SCALE', 'UNKNOWN_UNIT',

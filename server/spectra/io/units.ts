@@ -3,6 +3,7 @@
  */
 
 /** Å per unit, keyed by normalised spelling (lower case, no spaces, µ/μ → u). */
+// prettier-ignore
 const ANGSTROM_PER_UNIT: Record<string, number> = {
   angstrom: 1, angstroms: 1, angstroem: 1, angstrem: 1, ang: 1, angs: 1, a: 1, aa: 1, 'å': 1, 'Å': 1,
   '0.1nm': 1, '1e-10m': 1, '10**-10m': 1,

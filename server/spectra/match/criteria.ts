@@ -28,6 +28,7 @@ export interface Criterion {
 }
 
 /** The criteria; line wavelengths are the air values of shared/lines.ts (NIST ASD, from memory). */
+// prettier-ignore
 export const CRITERIA: readonly Criterion[] = [
   {
     // Pressure (Stark) broadening makes the Balmer wings of B–A dwarfs much wider than those of giants and supergiants.

@@ -18,6 +18,7 @@ const UNKNOWN = 'a note or symbol the notation does not define'
 const TYPO = 'a typing error in the catalogue string'
 
 /** The strings that do not parse, each with why. */
+// prettier-ignore
 const UNREAD: Record<string, string> = {
   'F5.5Ib-G5Ib:': FULL_RANGE, 'F5e-G2I-II': FULL_RANGE, 'F8V+M2V-M3V': FULL_RANGE, 'G0V+M3V-M6V': FULL_RANGE,
   'G5V+M2V-M4V': FULL_RANGE, 'K7V/M0V': FULL_RANGE, 'M2.5V/M3V': FULL_RANGE, 'M3Iab-M5I': FULL_RANGE,
