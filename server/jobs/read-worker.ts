@@ -13,7 +13,10 @@ export default async function run(task: ReadTask) {
     const result = await unzipUpload(task.source, task.limits)
     if (!result.ok) return result
     const entries = result.entries.map((e) => ({ name: e.name, bytes: ownView(e.bytes) }))
-    return movable({ ...result, entries }, entries.map((e) => e.bytes))
+    return movable(
+      { ...result, entries },
+      entries.map((e) => e.bytes),
+    )
   }
   const answer = await readUpload(task.name, task.source, task.options)
   if (answer.bytes) answer.bytes = ownView(answer.bytes)

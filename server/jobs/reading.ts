@@ -109,9 +109,7 @@ export async function unzipUpload(source: FileSource, limits: ZipLimits): Promis
 /** Reading on the calling thread. */
 export const readHere: FileReading = { read: readUpload, unzip: unzipUpload }
 
-export type ReadTask =
-  | { kind: 'read'; name: string; source: FileSource; options: ReadOptions }
-  | { kind: 'unzip'; source: FileSource; limits: ZipLimits }
+export type ReadTask = { kind: 'read'; name: string; source: FileSource; options: ReadOptions } | { kind: 'unzip'; source: FileSource; limits: ZipLimits }
 
 /**
  * A view whose memory can be moved to another thread: itself when it alone covers its

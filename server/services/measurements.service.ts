@@ -141,7 +141,20 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
           lorentzianFwhm: finiteOrNull(l.voigt?.lorentzianFwhm),
           lorentzianError: l.voigt ? finiteOrNull(2 * l.voigt.errors.gamma) : null,
         }
-      : { lineId: l.id, measured: false, reason: `${l.reason}: ${l.detail}`.slice(0, 200), ew: null, ewError: null, depth: null, fwhm: null, centroid: null, snr: null, gaussianFwhm: null, lorentzianFwhm: null, lorentzianError: null },
+      : {
+          lineId: l.id,
+          measured: false,
+          reason: `${l.reason}: ${l.detail}`.slice(0, 200),
+          ew: null,
+          ewError: null,
+          depth: null,
+          fwhm: null,
+          centroid: null,
+          snr: null,
+          gaussianFwhm: null,
+          lorentzianFwhm: null,
+          lorentzianError: null,
+        },
   )
   const measurement = {
     spectrumId,
@@ -168,7 +181,10 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
   const earlier = await Measurement.findAll({ where: { spectrumId, isCurrent: true }, attributes: ['id'], transaction })
   if (earlier.length > 0) await Measurement.update({ isCurrent: false }, { where: { id: { [Op.in]: earlier.map((m) => m.id) } }, transaction })
   const m = await Measurement.create(measurement, { transaction })
-  await LineMeasurementRow.bulkCreate(lines.map((l) => ({ measurementId: m.id, ...l })), { transaction })
+  await LineMeasurementRow.bulkCreate(
+    lines.map((l) => ({ measurementId: m.id, ...l })),
+    { transaction },
+  )
   if (suggestion && details && libraryVersionId !== undefined) {
     await storeSuggestion({ spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion, details, instrumentId }, transaction)
     await indexSuggestionFlags(sequelize, spectrumId, suggestion.flags, transaction)

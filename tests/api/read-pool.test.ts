@@ -40,10 +40,15 @@ describe('reading uploads in the read pool', () => {
     const loop = monitorEventLoopDelay({ resolution: 10 })
     loop.enable()
     let finished = false
-    const upload = observer.agent.post('/api/spectra').set('x-csrf-token', observer.csrf).field('campaignId', String(campaign.id)).attach('files', zip, 'night.zip').then((res) => {
-      finished = true
-      return res
-    })
+    const upload = observer.agent
+      .post('/api/spectra')
+      .set('x-csrf-token', observer.csrf)
+      .field('campaignId', String(campaign.id))
+      .attach('files', zip, 'night.zip')
+      .then((res) => {
+        finished = true
+        return res
+      })
     const health: number[] = []
     while (!finished) {
       const asked = performance.now()
@@ -55,7 +60,9 @@ describe('reading uploads in the read pool', () => {
     const res = await upload
     loop.disable()
     const loopMaxMs = loop.max / 1e6
-    console.log(`one read on the calling thread: ${oneReadMs.toFixed(0)} ms; during the upload: ${health.length} health answers, slowest ${Math.max(...health).toFixed(0)} ms, longest event-loop stall ${loopMaxMs.toFixed(0)} ms; pool tasks ${pool.completed - tasksBefore}`)
+    console.log(
+      `one read on the calling thread: ${oneReadMs.toFixed(0)} ms; during the upload: ${health.length} health answers, slowest ${Math.max(...health).toFixed(0)} ms, longest event-loop stall ${loopMaxMs.toFixed(0)} ms; pool tasks ${pool.completed - tasksBefore}`,
+    )
 
     expect(res.status).toBe(200)
     const results = res.body.results as Array<{ file: string; outcome: string; spectrumId: number; pixels: number }>

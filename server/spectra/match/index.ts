@@ -1,4 +1,15 @@
-export { scaledChiSquare, depthScaledChiSquareRows, depthScaledChiSquareSelected, depthScaledPairChiSquare, smoothPairChiSquare, type PairChiSquare, type SmoothPairChiSquare, DEPTH_SCALE_BOUNDS, parabolaVertex, type ScaledChiSquare } from './chi2'
+export {
+  scaledChiSquare,
+  depthScaledChiSquareRows,
+  depthScaledChiSquareSelected,
+  depthScaledPairChiSquare,
+  smoothPairChiSquare,
+  type PairChiSquare,
+  type SmoothPairChiSquare,
+  DEPTH_SCALE_BOUNDS,
+  parabolaVertex,
+  type ScaledChiSquare,
+} from './chi2'
 export { CRITERIA, criterionValue, criterionNoise, type Criterion } from './criteria'
 export {
   prepareMatchLibrary,

@@ -72,7 +72,9 @@ export function parameterEstimate(voters: readonly { teff: number | null; logg: 
 export function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel, spectrumSpan: Float64Array, typeCode: number, snr: number | null, centre: number): Vote[] {
   const sigmaPix = snr !== null && snr > 0 ? 1 / snr : 0.02
   const pixelsPerAngstrom = 1 / (centre * library.grid.step)
-  const classCodes = levelClassCodes(library, level).filter((c) => Number.isInteger(c) || c === 1.5).sort((a, b) => a - b)
+  const classCodes = levelClassCodes(library, level)
+    .filter((c) => Number.isInteger(c) || c === 1.5)
+    .sort((a, b) => a - b)
   return CRITERIA.map((c, ci) => {
     const value = criterionValue(c, spectrumSpan, library.wavelength)
     const vote: Vote = { criterion: c.id, name: c.name, value: Number.isFinite(value) ? round(value, 4) : null, vote: null }
