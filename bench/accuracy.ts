@@ -93,7 +93,9 @@ function instrumentSection(stars: ReturnType<typeof referenceStars>): string[] {
   log('## The instrument experiment: accuracy against the number of promoted instrument standards')
   instrumentReport(stars, { log })
   const gate = instrumentGateFigures(referenceStars(undefined, { fromFiles: false }))
-  log(`## The npm test instrument gate (every ${INSTRUMENT_GATE_EVERY}th instrument star, the library's copies, 0 and ${INSTRUMENT_GATE_PROMOTED} promoted): n ${gate.n}, ±1 sub ${gate.none.within1} → ${gate.promoted.within1} %, exact class ${gate.none.exactClass} → ${gate.promoted.exactClass} %`)
+  log(
+    `## The npm test instrument gate (every ${INSTRUMENT_GATE_EVERY}th instrument star, the library's copies, 0 and ${INSTRUMENT_GATE_PROMOTED} promoted): n ${gate.n}, ±1 sub ${gate.none.within1} → ${gate.promoted.within1} %, exact class ${gate.none.exactClass} → ${gate.promoted.exactClass} %`,
+  )
   if (EVERY === 1) {
     const dir = fileURLToPath(new URL('./results/', import.meta.url))
     mkdirSync(dir, { recursive: true })
@@ -115,7 +117,9 @@ function main() {
   const fromFiles = stars.filter((s) => s.readFrom === 'file').length
   log(`Lineweight accuracy benchmark — ${new Date().toISOString().slice(0, 10)}`)
   log(`library ${library.versionName}: ${library.standards.length} standards; levels ${library.resolutions.join(', ')} Å`)
-  log(`reference stars: ${stars.length} (${stars.filter((s) => s.source === 'miles').length} MILES, ${stars.filter((s) => s.source === 'jhc').length} JHC), ${fromFiles} read from their source files in ${REFERENCE_DATA_DIR}, ${stars.length - fromFiles} from the library's copy`)
+  log(
+    `reference stars: ${stars.length} (${stars.filter((s) => s.source === 'miles').length} MILES, ${stars.filter((s) => s.source === 'jhc').length} JHC), ${fromFiles} read from their source files in ${REFERENCE_DATA_DIR}, ${stars.length - fromFiles} from the library's copy`,
+  )
   log('Leave one star out: no star is matched against any spectrum of itself. Within ±1/±2 subtypes: |Δ type code| ≤ 1/2 (K7 → M0 is 3).')
   log('Exact class: the suggested class, or an end of a suggested intermediate class, is the published one (or an end of it).')
   log('mean Δcl: suggested − published class, classes (negative = more luminous). in ±1σ: published type inside the quoted uncertainty.')
@@ -141,11 +145,16 @@ function main() {
 
   // The settings were chosen on odd-numbered MILES stars: show the other half apart.
   const miles = native.filter((r) => r.star.source === 'miles')
-  const milesIds = referenceStars().filter((s) => s.source === 'miles').map((s) => s.id)
+  const milesIds = referenceStars()
+    .filter((s) => s.source === 'miles')
+    .map((s) => s.id)
   const half = (parity: number) => miles.filter((r) => milesIds.indexOf(r.star.id) % 2 === parity)
   log('')
   log('## MILES, native: tuning half (odd-numbered stars) and held-out half (even-numbered)')
-  for (const [name, rows] of [['tuning half', half(1)], ['held-out half', half(0)]] as const) {
+  for (const [name, rows] of [
+    ['tuning half', half(1)],
+    ['held-out half', half(0)],
+  ] as const) {
     const f = figures(rows)
     log(`  ${name.padEnd(14)} n ${f.n}, ±1 sub ${f.within1} %, exact class ${f.exactClass} %, ±1 class ${f.within1Class} %, mean Δcl ${f.meanClassError}`)
   }
@@ -160,7 +169,7 @@ function main() {
   }
 
   log('')
-  log('## Self-consistency (made from the library\'s own standards; robustness, not accuracy)')
+  log("## Self-consistency (made from the library's own standards; robustness, not accuracy)")
   const self = selfConsistency(library)
   for (const line of self.lines) log(line)
   summary['self-consistency'] = self.figures

@@ -44,7 +44,17 @@ export function loadCorpus(): Corpus {
 
 /** The shape of readSpectrum's answer that every version of the readers gives. */
 export type AnyRead =
-  | { ok: true; spectrum: { wavelengthAir: Float64Array; flux: Float64Array; error?: Float64Array; mask?: Uint8Array }; meta: { pixels: number; vacuumConverted: boolean; maskedPixels: number; hdu?: number; decisions?: { warnings: string[]; medium: { conflict?: string }; aperture?: { number: number | 'merged' } } } }
+  | {
+      ok: true
+      spectrum: { wavelengthAir: Float64Array; flux: Float64Array; error?: Float64Array; mask?: Uint8Array }
+      meta: {
+        pixels: number
+        vacuumConverted: boolean
+        maskedPixels: number
+        hdu?: number
+        decisions?: { warnings: string[]; medium: { conflict?: string }; aperture?: { number: number | 'merged' } }
+      }
+    }
   | { ok: false; code: string; message: string }
 export type Reader = (bytes: Uint8Array, name: string, options: Record<string, unknown>) => AnyRead
 
@@ -100,7 +110,10 @@ async function main(): Promise<void> {
       rvs.push(v)
       if (!(Math.abs(v) < 5)) s.problems.push(`radial velocity ${v.toFixed(1)} km/s`)
     }
-    const abs = rvs.filter(Number.isFinite).map(Math.abs).sort((a, b) => a - b)
+    const abs = rvs
+      .filter(Number.isFinite)
+      .map(Math.abs)
+      .sort((a, b) => a - b)
     rvLine = `radial velocity of the files read: median |v| ${abs[abs.length >> 1]?.toFixed(2)} km/s, largest ${abs[abs.length - 1]?.toFixed(2)} km/s, ${rvs.length - abs.length} not measured`
   }
   for (const s of scored) {

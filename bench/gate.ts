@@ -24,7 +24,16 @@ export function gateFigures(library: PreparedMatchLibrary): GateFigures {
   const stars = referenceStars(undefined, { fromFiles: false }).filter((_, i) => i % GATE_EVERY === 0)
   const rows: Scored[] = stars.map((s) => {
     const r = runPipeline({ spectrum: s.spectrum, inputFwhm: s.fwhm, exclude: s.exclude }, library).suggestion!
-    return { truthType: s.typeCode, truthClass: s.classCode, truthClassRange: s.classRange, type: r.typeCode, classCode: r.classCode, sigmaType: r.uncertainty.subtypes, sigmaClass: r.uncertainty.classes, flags: r.flags }
+    return {
+      truthType: s.typeCode,
+      truthClass: s.classCode,
+      truthClassRange: s.classRange,
+      type: r.typeCode,
+      classCode: r.classCode,
+      sigmaType: r.uncertainty.subtypes,
+      sigmaClass: r.uncertainty.classes,
+      flags: r.flags,
+    }
   })
   const f = figures(rows)
   return { n: f.n, within1: f.within1, exactClass: f.exactClass }

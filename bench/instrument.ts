@@ -107,7 +107,10 @@ export function instrumentStars(stars: readonly ReferenceStar[]): ReferenceStar[
  */
 export function promotionOrder(stars: readonly ReferenceStar[], seed = 0x1457): ReferenceStar[] {
   const random = seededRandom(seed)
-  const shuffled = stars.map((s) => ({ s, r: random() })).sort((a, b) => a.r - b.r).map((x) => x.s)
+  const shuffled = stars
+    .map((s) => ({ s, r: random() }))
+    .sort((a, b) => a.r - b.r)
+    .map((x) => x.s)
   const cells = new Set<string>()
   const first: ReferenceStar[] = []
   const rest: ReferenceStar[] = []
@@ -188,34 +191,43 @@ export interface ExperimentFigures extends Figures {
  * promoted stars beyond `count`; for each star the spares it does not need, and every spectrum of
  * itself, are left out, so that exactly `count` promoted standards take part.
  */
-export function runExperiment(observed: readonly InstrumentObservation[], order: readonly ReferenceStar[], shipped: readonly MatchStandardInput[], count: number, options: Omit<InstrumentMatchOptions, 'exclude'> = {}, classify?: ReadonlySet<string>): { rows: ExperimentRow[]; figures: ExperimentFigures } {
+export function runExperiment(
+  observed: readonly InstrumentObservation[],
+  order: readonly ReferenceStar[],
+  shipped: readonly MatchStandardInput[],
+  count: number,
+  options: Omit<InstrumentMatchOptions, 'exclude'> = {},
+  classify?: ReadonlySet<string>,
+): { rows: ExperimentRow[]; figures: ExperimentFigures } {
   const byStar = new Map(observed.map((o) => [o.star.id, o]))
   const pool = order.slice(0, Math.min(order.length, count + 3)).map((s) => byStar.get(s.id))
   if (pool.some((o) => o === undefined)) throw new Error(`the first ${count + 3} stars of the promotion order must be observed`)
   const library = prepareMatchLibrary([...shipped, ...(count > 0 ? pool.map((o) => o!.standard) : [])], { versionId: 1000 + count, versionName: `instrument-${count}`, grid: DEFAULT_GRID })
-  const rows = observed.filter((o) => !classify || classify.has(o.star.id)).map((o) => {
-    const key = starKey(o.star.star)
-    const exclude = new Set(o.star.exclude)
-    let used = 0
-    for (const p of pool) {
-      if (starKey(p!.star.star) === key || used >= count) exclude.add(p!.standard.id)
-      else used++
-    }
-    const out = runPipeline({ spectrum: o.spectrum, inputFwhm: SIMULATED_INSTRUMENT.fwhm, exclude, instrumentId: EXPERIMENT_INSTRUMENT_ID, instrumentOptions: options }, library)
-    const s = out.suggestion!
-    return {
-      star: o.star,
-      truthType: o.star.typeCode,
-      truthClass: o.star.classCode,
-      truthClassRange: o.star.classRange,
-      type: s.typeCode,
-      classCode: s.classCode,
-      sigmaType: s.uncertainty.subtypes,
-      sigmaClass: s.uncertainty.classes,
-      flags: s.flags,
-      instrumentShare: out.standards?.instrumentShare.type ?? 0,
-    }
-  })
+  const rows = observed
+    .filter((o) => !classify || classify.has(o.star.id))
+    .map((o) => {
+      const key = starKey(o.star.star)
+      const exclude = new Set(o.star.exclude)
+      let used = 0
+      for (const p of pool) {
+        if (starKey(p!.star.star) === key || used >= count) exclude.add(p!.standard.id)
+        else used++
+      }
+      const out = runPipeline({ spectrum: o.spectrum, inputFwhm: SIMULATED_INSTRUMENT.fwhm, exclude, instrumentId: EXPERIMENT_INSTRUMENT_ID, instrumentOptions: options }, library)
+      const s = out.suggestion!
+      return {
+        star: o.star,
+        truthType: o.star.typeCode,
+        truthClass: o.star.classCode,
+        truthClassRange: o.star.classRange,
+        type: s.typeCode,
+        classCode: s.classCode,
+        sigmaType: s.uncertainty.subtypes,
+        sigmaClass: s.uncertainty.classes,
+        flags: s.flags,
+        instrumentShare: out.standards?.instrumentShare.type ?? 0,
+      }
+    })
   const share = rows.length ? rows.reduce((a, r) => a + r.instrumentShare, 0) / rows.length : 0
   return { rows, figures: { ...figures(rows), promoted: count, instrumentShare: Math.round(1000 * share) / 10 } }
 }
@@ -234,7 +246,10 @@ export function experimentLine(f: ExperimentFigures, base: ExperimentFigures | n
 export const EXPERIMENT_HEADER = 'promoted    n    ±1 sub (gain)   ±2 sub   exact cl (gain)    ±1 cl   own share %'
 
 /** The experiment's report: the accuracy-against-promoted table, and variants of how the two sets are combined at `variantsAt` promoted. */
-export function instrumentReport(stars: readonly ReferenceStar[], options: { counts?: readonly number[]; variantsAt?: number | null; log?: (line: string) => void } = {}): { lines: string[]; table: ExperimentFigures[] } {
+export function instrumentReport(
+  stars: readonly ReferenceStar[],
+  options: { counts?: readonly number[]; variantsAt?: number | null; log?: (line: string) => void } = {},
+): { lines: string[]; table: ExperimentFigures[] } {
   const { counts = PROMOTED_COUNTS, variantsAt = 50 } = options
   const lines: string[] = []
   const say = (line = '') => {
@@ -248,7 +263,9 @@ export function instrumentReport(stars: readonly ReferenceStar[], options: { cou
   const observed = observeStars(used, base)
   const order = promotionOrder(used)
   const inst = SIMULATED_INSTRUMENT
-  say(`${used.length} stars through a simulated instrument: ${inst.fwhm} Å FWHM, ${inst.step} Å pixels ${inst.start}–${inst.end} Å, response ${inst.response(3800).toFixed(2)} at 3800 Å to ${inst.response(5600).toFixed(2)} at 5600 Å, wavelength error ${inst.calibrationError(4700).toFixed(2)} to +${inst.calibrationError(3800).toFixed(2)} Å, S/N ${inst.snr}; observed in ${((performance.now() - t0) / 1000).toFixed(0)} s`)
+  say(
+    `${used.length} stars through a simulated instrument: ${inst.fwhm} Å FWHM, ${inst.step} Å pixels ${inst.start}–${inst.end} Å, response ${inst.response(3800).toFixed(2)} at 3800 Å to ${inst.response(5600).toFixed(2)} at 5600 Å, wavelength error ${inst.calibrationError(4700).toFixed(2)} to +${inst.calibrationError(3800).toFixed(2)} Å, S/N ${inst.snr}; observed in ${((performance.now() - t0) / 1000).toFixed(0)} s`,
+  )
   say('Each star is classified as a spectrum of the instrument with N promoted standards of other stars (leave one star out).')
   say(EXPERIMENT_HEADER)
   const table: ExperimentFigures[] = []
@@ -276,7 +293,10 @@ export function instrumentReport(stars: readonly ReferenceStar[], options: { cou
 if (import.meta.url === `file://${process.argv[1]}`) {
   const { referenceStars } = await import('./reference')
   const every = Number(process.env.ACCURACY_EVERY ?? 1)
-  instrumentReport(referenceStars().filter((_, i) => i % every === 0), { log: (l) => console.log(l) })
+  instrumentReport(
+    referenceStars().filter((_, i) => i % every === 0),
+    { log: (l) => console.log(l) },
+  )
 }
 
 /** The experiment's gate in `npm test`: every GATE_EVERY-th star, from the library's copies, with none and with GATE_PROMOTED promoted. */

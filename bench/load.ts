@@ -23,7 +23,10 @@ import { Campaign, CampaignMember, User } from '../server/models'
 import { ensureDefaultLibrary } from '../server/services/standards.service'
 import { hashPassword } from '../server/services/users.service'
 
-const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000').split(',').map(Number).filter((n) => n > 0)
+const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000')
+  .split(',')
+  .map(Number)
+  .filter((n) => n > 0)
 const INGEST_FILES = Number(process.env.BENCH_INGEST_FILES ?? 2000)
 const FILES_PER_REQUEST = 50
 const PASSWORD = 'bench-password-2026'
@@ -207,10 +210,10 @@ async function ingest(label: string, serverEnv: NodeJS.ProcessEnv, workerProcess
     await sleep(100)
   }
   const seconds = (performance.now() - started) / 1000
-  const [failed] = await sequelize.query<{ n: number }>(
-    "SELECT COUNT(*) AS n FROM processing_jobs j JOIN spectra s ON s.id = j.spectrum_id WHERE s.campaign_id = :c AND j.status = 'failed'",
-    { replacements: { c: campaign.id }, type: QueryTypes.SELECT },
-  )
+  const [failed] = await sequelize.query<{ n: number }>("SELECT COUNT(*) AS n FROM processing_jobs j JOIN spectra s ON s.id = j.spectrum_id WHERE s.campaign_id = :c AND j.status = 'failed'", {
+    replacements: { c: campaign.id },
+    type: QueryTypes.SELECT,
+  })
   await Promise.all([stopProcess(server.child), ...workers.map(stopProcess)])
   const result = { label, files: files.length, seconds, perSecond: files.length / seconds, failed: Number(failed!.n), refused }
   say(`ingest ${label}: ${files.length} files in ${seconds.toFixed(1)} s = ${result.perSecond.toFixed(1)}/s, ${result.failed} failed, ${refused} refused`)
@@ -243,7 +246,9 @@ async function columnsOf(table: string, leaveOut: string[]): Promise<string[]> {
   )
   return rows.map((r) => r.COLUMN_NAME).filter((c) => !leaveOut.includes(c))
 }
-const originals = (await sequelize.query<{ id: number }>("SELECT id FROM spectra WHERE campaign_id = :c AND status = 'suggested' ORDER BY id", { replacements: { c: campaign.id }, type: QueryTypes.SELECT })).map((r) => Number(r.id))
+const originals = (
+  await sequelize.query<{ id: number }>("SELECT id FROM spectra WHERE campaign_id = :c AND status = 'suggested' ORDER BY id", { replacements: { c: campaign.id }, type: QueryTypes.SELECT })
+).map((r) => Number(r.id))
 if (originals.length === 0) throw new Error('no original spectrum was suggested; nothing to copy')
 const spectraColumns = await columnsOf('spectra', ['id'])
 const suggestionColumns = await columnsOf('suggestions', ['id', 'spectrum_id'])
@@ -273,11 +278,10 @@ async function growTo(size: number): Promise<void> {
   }
   while (missing > 0) {
     const take = Math.min(missing, originals.length, 5000)
-    const first = Number(((await sequelize.query<{ m: number }>('SELECT COALESCE(MAX(id), 0) AS m FROM spectra', { type: QueryTypes.SELECT }))[0]!).m)
-    await sequelize.query(
-      `INSERT INTO spectra (${spectraColumns.join(', ')}) SELECT ${spectraColumns.map(set).join(', ')} FROM spectra s WHERE s.id IN (:ids)`,
-      { replacements: { ids: originals.slice(0, take), n: copies * 7919, observer: observer.id } },
-    )
+    const first = Number((await sequelize.query<{ m: number }>('SELECT COALESCE(MAX(id), 0) AS m FROM spectra', { type: QueryTypes.SELECT }))[0]!.m)
+    await sequelize.query(`INSERT INTO spectra (${spectraColumns.join(', ')}) SELECT ${spectraColumns.map(set).join(', ')} FROM spectra s WHERE s.id IN (:ids)`, {
+      replacements: { ids: originals.slice(0, take), n: copies * 7919, observer: observer.id },
+    })
     await sequelize.query(
       `INSERT INTO suggestions (spectrum_id, ${suggestionColumns.join(', ')})
        SELECT c.id, ${suggestionColumns.map((x) => `g.${x}`).join(', ')}
@@ -291,7 +295,10 @@ async function growTo(size: number): Promise<void> {
   // Calls on 62 % of the spectra: two classifiers each, the second sometimes a subtype off; agreed decisions follow.
   const uncalled = `FROM spectra sp JOIN suggestions g ON g.spectrum_id = sp.id AND g.is_current = 1
     WHERE sp.campaign_id = :c AND sp.status = 'suggested' AND MOD(sp.id * 7, 100) < 62`
-  for (const [who, offset] of [[classifierA.id, '0'], [classifierB.id, "IF(MOD(sp.id, 5) = 0, 1, 0)"]] as const) {
+  for (const [who, offset] of [
+    [classifierA.id, '0'],
+    [classifierB.id, 'IF(MOD(sp.id, 5) = 0, 1, 0)'],
+  ] as const) {
     await sequelize.query(
       `INSERT INTO review_calls (spectrum_id, user_id, kind, first_call, corrects_call_id, spectral_type, letter, subtype, type_code, luminosity_class, class_code,
          peculiarities, notes, confidence, uncertain, accepted_suggestion, suggestion_id, suggestion_shown, seconds_spent, created_at)
@@ -416,8 +423,16 @@ const f = (v: number) => (v >= 100 ? v.toFixed(0) : v.toFixed(1))
 const lines: string[] = []
 lines.push(`# Load benchmark (${new Date().toISOString().slice(0, 10)})`, '')
 lines.push(`Machine: ${availableParallelism()} cores, Node ${process.version}. Made by \`npm run bench:load\` (bench/load.ts); every request over HTTP on loopback to the real server.`, '')
-lines.push(`Load average (1 min) when the run started: ${loadAtStart.toFixed(1)}; when it ended: ${loadavg()[0]!.toFixed(1)}. Anything above the benchmark's own share is other work on the machine, and slows every figure here.`, '')
-lines.push('## Ingest through the API', '', `${INGEST_FILES} real upload files (FITS and text), ${FILES_PER_REQUEST} per request, two requests at a time; from the first byte sent until every job is done.`, '')
+lines.push(
+  `Load average (1 min) when the run started: ${loadAtStart.toFixed(1)}; when it ended: ${loadavg()[0]!.toFixed(1)}. Anything above the benchmark's own share is other work on the machine, and slows every figure here.`,
+  '',
+)
+lines.push(
+  '## Ingest through the API',
+  '',
+  `${INGEST_FILES} real upload files (FITS and text), ${FILES_PER_REQUEST} per request, two requests at a time; from the first byte sent until every job is done.`,
+  '',
+)
 lines.push('| processing | files | seconds | spectra/s | failed jobs | refused files |', '| --- | ---: | ---: | ---: | ---: | ---: |')
 for (const r of ingests) lines.push(`| ${r.label} | ${r.files} | ${r.seconds.toFixed(1)} | ${r.perSecond.toFixed(1)} | ${r.failed} | ${r.refused} |`)
 lines.push('', '## Latency, ms (p50 / p95), concurrency 1 and 8', '')
@@ -425,12 +440,18 @@ lines.push(`| endpoint | ${SIZES.map((s) => `${s.toLocaleString('en')}: c1`).joi
 lines.push(`| --- | ${SIZES.map(() => '---:').join(' | ')} | ${SIZES.map(() => '---:').join(' | ')} |`)
 for (const name of [...new Set(rows.map((r) => r.endpoint))]) {
   const of = (s: number) => rows.find((r) => r.endpoint === name && r.size === s)
-  lines.push(`| ${name} | ${SIZES.map((s) => (of(s) ? `${f(of(s)!.c1.p50)} / ${f(of(s)!.c1.p95)}` : '')).join(' | ')} | ${SIZES.map((s) => (of(s) ? `${f(of(s)!.c8.p50)} / ${f(of(s)!.c8.p95)}` : '')).join(' | ')} |`)
+  lines.push(
+    `| ${name} | ${SIZES.map((s) => (of(s) ? `${f(of(s)!.c1.p50)} / ${f(of(s)!.c1.p95)}` : '')).join(' | ')} | ${SIZES.map((s) => (of(s) ? `${f(of(s)!.c8.p50)} / ${f(of(s)!.c8.p95)}` : '')).join(' | ')} |`,
+  )
 }
 lines.push('', '## Agreement audit from cold, with /api/health asked every 20 ms meanwhile', '')
 lines.push('| spectra | audit, cold (ms) | audit, cached p50 (ms) | health p95 (ms) | health max (ms) | health requests |', '| ---: | ---: | ---: | ---: | ---: | ---: |')
 for (const a of auditRows) lines.push(`| ${a.size.toLocaleString('en')} | ${a.coldMs.toFixed(0)} | ${f(a.warmMs)} | ${f(a.healthP95)} | ${f(a.healthMax)} | ${a.healthCount} |`)
-lines.push('', 'Seeding: the first ingest run\'s spectra are the originals; larger sizes copy their spectrum and current-suggestion rows by SQL with new identities (arrays and measurements are not copied). Calls: two classifiers on 62 % of the spectra, made by SQL from each suggestion, with the agreed decisions that follow.', '')
+lines.push(
+  '',
+  "Seeding: the first ingest run's spectra are the originals; larger sizes copy their spectrum and current-suggestion rows by SQL with new identities (arrays and measurements are not copied). Calls: two classifiers on 62 % of the spectra, made by SQL from each suggestion, with the agreed decisions that follow.",
+  '',
+)
 
 const out = join('bench', 'results')
 mkdirSync(out, { recursive: true })

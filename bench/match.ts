@@ -78,7 +78,8 @@ export async function runMatchBench(): Promise<Record<string, number>> {
     ),
     [`match.matchPerSecond(${n} standards)`]: Math.round(perSecond((k) => matchSpectrum(library, pick(prepared, k)))),
     [`match.matchPerSecond(${doubled.standards.length} standards)`]: Math.round(perSecond((k) => matchSpectrum(doubled, pick(prepared, k)))),
-    'pipeline.spectraPerSecond(resolution given: velocity, lines, Voigt fits, match)': Math.round(10 * perSecond((k) => runPipeline({ spectrum: pick(spectra, k), inputFwhm: 2.5 }, library), 3000)) / 10,
+    'pipeline.spectraPerSecond(resolution given: velocity, lines, Voigt fits, match)':
+      Math.round(10 * perSecond((k) => runPipeline({ spectrum: pick(spectra, k), inputFwhm: 2.5 }, library), 3000)) / 10,
     'pipeline.spectraPerSecond(resolution estimated)': Math.round(10 * perSecond((k) => runPipeline({ spectrum: pick(spectra, k) }, library), 3000)) / 10,
   }
 }

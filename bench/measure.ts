@@ -82,14 +82,9 @@ export async function runMeasureBench(): Promise<Record<string, number>> {
     'continuum (spectra/s)': perSecond((k) => fitSpectrumContinuum(pick(smoothed, k))),
     'rv (spectra/s)': perSecond((k) => measureSpectrumRadialVelocity(pick(rectified, k), reference, { grid, region: [3850, 5000] })),
     'lines without Voigt (spectra/s)': perSecond((k) => measureSpectrumLines(pick(rectified, k), { snr: 150, voigtLineIds: [] })),
-    'measurement: lines + Voigt + ratios (spectra/s)': perSecond((k) =>
-      measureLineRatios(measureSpectrumLines(pick(rectified, k), { snr: 150, noiseCorrelation: 2, instrumentalFwhm: 3 })),
-    ),
+    'measurement: lines + Voigt + ratios (spectra/s)': perSecond((k) => measureLineRatios(measureSpectrumLines(pick(rectified, k), { snr: 150, noiseCorrelation: 2, instrumentalFwhm: 3 }))),
   }
-  const prepareSeconds = ['mask', 'snr', 'rebin', 'smooth', 'continuum', 'rv'].reduce(
-    (s, key) => s + 1 / results[`${key} (spectra/s)`]!,
-    0,
-  )
+  const prepareSeconds = ['mask', 'snr', 'rebin', 'smooth', 'continuum', 'rv'].reduce((s, key) => s + 1 / results[`${key} (spectra/s)`]!, 0)
   results['preparation total (spectra/s)'] = 1 / prepareSeconds
   results['preparation + measurement (spectra/s)'] = 1 / (prepareSeconds + 1 / results['measurement: lines + Voigt + ratios (spectra/s)']!)
   return results

@@ -48,7 +48,10 @@ export const REFERENCE_DATA_DIR = resolve(process.env.REFERENCE_DATA_DIR ?? file
 
 /** Reads a JHC copy: two columns, wavelength in nm as its comment line says. */
 function readJhcText(bytes: Uint8Array): Spectrum1D {
-  const rows = Buffer.from(bytes).toString('utf8').split(/\r?\n/).filter((l) => l.trim() !== '' && !l.startsWith('#'))
+  const rows = Buffer.from(bytes)
+    .toString('utf8')
+    .split(/\r?\n/)
+    .filter((l) => l.trim() !== '' && !l.startsWith('#'))
   const wavelength = new Float64Array(rows.length)
   const flux = new Float64Array(rows.length)
   rows.forEach((l, i) => {

@@ -101,7 +101,9 @@ export function groupTable(rows: readonly Scored[]): string {
   const lines = ['group            n   ±1 sub   ±2 sub   exact cl   ±1 cl   mean Δcl   in ±1σ']
   const line = (name: string, sel: readonly Scored[]) => {
     const f = figures(sel)
-    lines.push(`${name.padEnd(13)}${String(f.n).padStart(4)}${cell(f.within1, 9)}${cell(f.within2, 9)}${cell(f.exactClass, 11)}${cell(f.within1Class, 8)}${cell(f.meanClassError, 11, 2)}${cell(f.typeInSigma, 9)}`)
+    lines.push(
+      `${name.padEnd(13)}${String(f.n).padStart(4)}${cell(f.within1, 9)}${cell(f.within2, 9)}${cell(f.exactClass, 11)}${cell(f.within1Class, 8)}${cell(f.meanClassError, 11, 2)}${cell(f.typeInSigma, 9)}`,
+    )
   }
   for (const tg of TYPE_GROUPS) {
     for (const cg of CLASS_GROUPS) {

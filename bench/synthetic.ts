@@ -158,7 +158,16 @@ export function selfConsistency(library: PreparedMatchLibrary, observedDir = DEF
     const spectrum = observe(rest, p, random)
     const s = runPipeline({ spectrum }, library).suggestion!
     const truthClass = a.entry.classCode
-    const row: Scored = { truthType: a.entry.typeCode + t * (b.entry.typeCode - a.entry.typeCode), truthClass, truthClassRange: classSpan(truthClass), type: s.typeCode, classCode: s.classCode, sigmaType: s.uncertainty.subtypes, sigmaClass: s.uncertainty.classes, flags: s.flags }
+    const row: Scored = {
+      truthType: a.entry.typeCode + t * (b.entry.typeCode - a.entry.typeCode),
+      truthClass,
+      truthClassRange: classSpan(truthClass),
+      type: s.typeCode,
+      classCode: s.classCode,
+      sigmaType: s.uncertainty.subtypes,
+      sigmaClass: s.uncertainty.classes,
+      flags: s.flags,
+    }
     rows.push(row)
     if (p.vsini > 0) rotated.push(row)
   }

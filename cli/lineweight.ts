@@ -186,7 +186,9 @@ async function submit(client: LineweightClient, argv: string[], out: NodeJS.Writ
   for (const text of held) out.write(text)
 
   const count = (k: Outcome['outcome']) => outcomes.filter((o) => o.outcome === k).length
-  err.write(`\nCampaign ${campaignId}: ${count('accepted')} accepted, ${count('skipped')} already on the server, ${count('duplicate')} duplicates, ${count('refused')} refused, ${count('failed')} not sent.\n`)
+  err.write(
+    `\nCampaign ${campaignId}: ${count('accepted')} accepted, ${count('skipped')} already on the server, ${count('duplicate')} duplicates, ${count('refused')} refused, ${count('failed')} not sent.\n`,
+  )
   const bad = outcomes.filter((o) => o.outcome === 'refused' || o.outcome === 'failed')
   for (const o of bad) err.write(`  ${o.outcome}: ${o.file}: ${o.message}\n`)
   return bad.length > 0 ? SOME_FAILED : OK

@@ -7,7 +7,10 @@ import { appEnv, ensureDebianPackages, log, startMariaDB } from './lib/setup.mjs
 
 const { env, dataDir, manageDb } = appEnv()
 ensureDebianPackages({ 'mariadb-dump': 'mariadb-client' })
-const stamp = new Date().toISOString().replace(/:/g, '-').replace(/\.\d+Z$/, 'Z')
+const stamp = new Date()
+  .toISOString()
+  .replace(/:/g, '-')
+  .replace(/\.\d+Z$/, 'Z')
 const folder = resolve(process.argv[2] ?? join(env.BACKUP_DIR ?? join(dataDir, 'backups'), `lineweight-${stamp}`))
 if (existsSync(folder) && readdirSync(folder).length > 0) {
   console.error(`[lineweight] ${folder} is not empty; choose another folder.`)
@@ -23,9 +26,25 @@ try {
   const dumpFile = join(folder, 'database.sql')
   await new Promise((resolvePromise, reject) => {
     const out = createWriteStream(dumpFile)
-    const dump = spawn('mariadb-dump', ['--no-defaults', `--host=${env.DB_HOST}`, `--port=${env.DB_PORT}`, `--user=${env.DB_USER}`, '--protocol=tcp',
-      '--single-transaction', '--quick', '--routines', '--triggers', '--hex-blob', '--default-character-set=utf8mb4', '--skip-lock-tables', env.DB_NAME],
-    { env: { ...process.env, MYSQL_PWD: env.DB_PASSWORD }, stdio: ['ignore', 'pipe', 'pipe'] })
+    const dump = spawn(
+      'mariadb-dump',
+      [
+        '--no-defaults',
+        `--host=${env.DB_HOST}`,
+        `--port=${env.DB_PORT}`,
+        `--user=${env.DB_USER}`,
+        '--protocol=tcp',
+        '--single-transaction',
+        '--quick',
+        '--routines',
+        '--triggers',
+        '--hex-blob',
+        '--default-character-set=utf8mb4',
+        '--skip-lock-tables',
+        env.DB_NAME,
+      ],
+      { env: { ...process.env, MYSQL_PWD: env.DB_PASSWORD }, stdio: ['ignore', 'pipe', 'pipe'] },
+    )
     let err = ''
     dump.stderr.on('data', (d) => (err += d))
     dump.stdout.pipe(out)

@@ -19,7 +19,9 @@ const fail = (message) => {
 if (!existsSync(join(folder, 'manifest.json')) || !existsSync(join(folder, 'database.sql'))) fail(`${folder} is not a Lineweight backup (no manifest.json or database.sql).`)
 const manifest = JSON.parse(readFileSync(join(folder, 'manifest.json'), 'utf8'))
 if (manifest.format !== 'lineweight-backup-1') fail(`unknown backup format ${manifest.format}.`)
-const sha = createHash('sha256').update(readFileSync(join(folder, 'database.sql'))).digest('hex')
+const sha = createHash('sha256')
+  .update(readFileSync(join(folder, 'database.sql')))
+  .digest('hex')
 if (sha !== manifest.databaseSql.sha256) fail('database.sql does not match its manifest (damaged or changed).')
 // Replacing the data under a running server would mix two states.
 if (await portInUse(env.PORT, env.HOST)) fail(`something listens on PORT=${env.PORT}; stop Lineweight first.`)
@@ -36,7 +38,10 @@ try {
   log(`emptying database ${env.DB_NAME}`)
   const tables = client(['--batch', '--skip-column-names', '-e', 'SHOW FULL TABLES'])
   if (tables.status !== 0) throw new Error(tables.stderr.trim())
-  const names = tables.stdout.split('\n').filter(Boolean).map((l) => l.split('\t'))
+  const names = tables.stdout
+    .split('\n')
+    .filter(Boolean)
+    .map((l) => l.split('\t'))
   const drop = names.map(([name, type]) => `DROP ${type === 'VIEW' ? 'VIEW' : 'TABLE'} IF EXISTS \`${name.replace(/`/g, '``')}\`;`)
   const dropped = client([], ['SET FOREIGN_KEY_CHECKS=0;', ...drop, 'SET FOREIGN_KEY_CHECKS=1;'].join('\n'))
   if (dropped.status !== 0) throw new Error(dropped.stderr.trim())

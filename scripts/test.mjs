@@ -33,11 +33,20 @@ const cleanup = async () => {
   if (db) await db.stop()
   rmSync(dir, { recursive: true, force: true })
 }
-process.on('SIGINT', () => { void cleanup().then(() => process.exit(130)) })
+process.on('SIGINT', () => {
+  void cleanup().then(() => process.exit(130))
+})
 
 // Processing, upload and re-reading tests run a second time on Redis (BullMQ) and an S3-compatible store, with
 // two worker processes sharing a batch; the first pass leaves that test out (it needs QUEUE=redis).
-const BOTH_MODES = ['tests/api/processing.test.ts', 'tests/api/spectra.test.ts', 'tests/api/upload-memory.test.ts', 'tests/api/upload-budget.test.ts', 'tests/api/input-hardening.test.ts', 'tests/api/reading.test.ts']
+const BOTH_MODES = [
+  'tests/api/processing.test.ts',
+  'tests/api/spectra.test.ts',
+  'tests/api/upload-memory.test.ts',
+  'tests/api/upload-budget.test.ts',
+  'tests/api/input-hardening.test.ts',
+  'tests/api/reading.test.ts',
+]
 const REDIS_ONLY = 'tests/api/redis-workers.test.ts'
 const redisEnv = () => ({
   ...env,

@@ -139,8 +139,20 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
       },
     })
   // Browsers are counted by address; each token has its own budget, so one pipeline cannot starve the office.
-  api.use(limited(config.API_RATE_PER_MINUTE, (req) => ipKeyGenerator(req.ip ?? ''), (req) => req.apiToken !== undefined))
-  api.use(limited(config.API_TOKEN_RATE_PER_MINUTE, (req) => `token:${req.apiToken?.id}`, (req) => req.apiToken === undefined))
+  api.use(
+    limited(
+      config.API_RATE_PER_MINUTE,
+      (req) => ipKeyGenerator(req.ip ?? ''),
+      (req) => req.apiToken !== undefined,
+    ),
+  )
+  api.use(
+    limited(
+      config.API_TOKEN_RATE_PER_MINUTE,
+      (req) => `token:${req.apiToken?.id}`,
+      (req) => req.apiToken === undefined,
+    ),
+  )
   api.use(unlessBearer(csrfProtection))
   for (const route of apiRoutes(ctx)) api[route.method](route.path, requireAccess(route.access), ...route.before, route.handler)
   api.use(apiNotFound)

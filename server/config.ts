@@ -12,7 +12,10 @@ const schema = z.object({
   PUBLIC_URL: z.string().url().optional(),
   DB_HOST: z.string().default('127.0.0.1'),
   DB_PORT: int(3407, 1),
-  DB_NAME: z.string().regex(/^[A-Za-z0-9_]+$/, 'letters, digits and _ only').default('lineweight'),
+  DB_NAME: z
+    .string()
+    .regex(/^[A-Za-z0-9_]+$/, 'letters, digits and _ only')
+    .default('lineweight'),
   DB_USER: z.string().default('lineweight'),
   DB_PASSWORD: z.string().default('lineweight-local'),
   DB_POOL_MAX: int(10, 1),
@@ -55,7 +58,10 @@ const schema = z.object({
   S3_ENDPOINT: z.string().url().optional(),
   S3_REGION: z.string().default('us-east-1'),
   S3_BUCKET: z.string().min(3).default('lineweight'),
-  S3_PREFIX: z.string().regex(/^([a-z0-9][a-z0-9_.-]*\/)*$/, 'lower-case path ending in /, or empty').default(''),
+  S3_PREFIX: z
+    .string()
+    .regex(/^([a-z0-9][a-z0-9_.-]*\/)*$/, 'lower-case path ending in /, or empty')
+    .default(''),
   S3_ACCESS_KEY_ID: z.string().optional(),
   S3_SECRET_ACCESS_KEY: z.string().optional(),
   /** Path-style URLs (endpoint/bucket/key), which local S3 servers need. */

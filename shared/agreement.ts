@@ -40,11 +40,7 @@ function categoriesOf(a: readonly number[], b: readonly number[], given?: readon
  * @returns `{ categories, counts }` with `counts[i][j]` the number of items rated `categories[i]` by
  *   the first rater and `categories[j]` by the second.
  */
-export function confusionMatrix(
-  a: readonly number[],
-  b: readonly number[],
-  options: KappaOptions = {},
-): { categories: number[]; counts: number[][] } {
+export function confusionMatrix(a: readonly number[], b: readonly number[], options: KappaOptions = {}): { categories: number[]; counts: number[][] } {
   checkPair(a, b)
   const categories = categoriesOf(a, b, options.categories)
   const index = new Map(categories.map((c, i) => [c, i]))
@@ -103,12 +99,7 @@ export function cohenKappa(a: readonly number[], b: readonly number[], options: 
  * @default options.categories the sorted distinct values of both rating lists
  * @returns κ_w (dimensionless, ≤ 1), or NaN when both raters use a single category.
  */
-export function weightedKappa(
-  a: readonly number[],
-  b: readonly number[],
-  weights: KappaWeights,
-  options: KappaOptions = {},
-): number {
+export function weightedKappa(a: readonly number[], b: readonly number[], weights: KappaWeights, options: KappaOptions = {}): number {
   const { counts } = confusionMatrix(a, b, options)
   return kappaWithWeights(counts, weights === 'linear' ? (i, j) => Math.abs(i - j) : (i, j) => (i - j) * (i - j))
 }

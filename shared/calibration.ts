@@ -153,9 +153,7 @@ const TEFF_SUPERGIANTS: CalibrationTable = {
 function meanTable(a: CalibrationTable, b: CalibrationTable, source: string): CalibrationTable {
   const lo = Math.max(a.points[0]![0], b.points[0]![0])
   const hi = Math.min(a.points[a.points.length - 1]![0], b.points[b.points.length - 1]![0])
-  const codes = [...new Set([...a.points, ...b.points].map(([c]) => c))]
-    .filter((c) => c >= lo && c <= hi)
-    .sort((x, y) => x - y)
+  const codes = [...new Set([...a.points, ...b.points].map(([c]) => c))].filter((c) => c >= lo && c <= hi).sort((x, y) => x - y)
   return {
     source,
     points: codes.map((c) => [c, Math.round((interpolate(a, c) + interpolate(b, c)) / 2)] as const),
@@ -248,9 +246,7 @@ const ABSOLUTE_MAGNITUDE_V: ClassTables = {
 }
 
 /** Names the published calibration behind each quantity, per class. */
-export const CALIBRATION_SOURCES: Readonly<
-  Record<'teff' | 'logg' | 'absoluteMagnitudeV', Record<LuminosityClass, string>> & { bolometricCorrectionV: string }
-> = {
+export const CALIBRATION_SOURCES: Readonly<Record<'teff' | 'logg' | 'absoluteMagnitudeV', Record<LuminosityClass, string>> & { bolometricCorrectionV: string }> = {
   teff: mapClasses(TEFF),
   logg: mapClasses(LOGG),
   absoluteMagnitudeV: mapClasses(ABSOLUTE_MAGNITUDE_V),
@@ -281,9 +277,7 @@ function lookUp(tables: ClassTables, quantity: string, code: number, luminosityC
   const [lo, hi] = rangeOf(table)
   if (!(code >= lo && code <= hi)) {
     const label = Number.isFinite(code) && code >= 0 && code < 70 ? spectralTypeLabel(code) : String(code)
-    throw new RangeError(
-      `no ${quantity} calibration for ${label} ${luminosityClass} (defined ${spectralTypeLabel(lo)}–${spectralTypeLabel(hi)})`,
-    )
+    throw new RangeError(`no ${quantity} calibration for ${label} ${luminosityClass} (defined ${spectralTypeLabel(lo)}–${spectralTypeLabel(hi)})`)
   }
   return interpolate(table, code)
 }
@@ -330,13 +324,11 @@ const BC_COEFFICIENTS: ReadonlyArray<{ below: number; c: readonly number[] }> = 
   { below: 3.7, c: [-0.190537291496456e5, 0.155144866764412e5, -0.421278819301717e4, 0.381476328422343e3] },
   {
     below: 3.9,
-    c: [-0.370510203809015e5, 0.385672629965804e5, -0.150651486316025e5, 0.261724637119416e4,
-      -0.170623810323864e3],
+    c: [-0.370510203809015e5, 0.385672629965804e5, -0.150651486316025e5, 0.261724637119416e4, -0.170623810323864e3],
   },
   {
     below: Infinity,
-    c: [-0.118115450538963e6, 0.137145973583929e6, -0.636233812100225e5, 0.147412923562646e5,
-      -0.170587278406872e4, 0.788731721804990e2],
+    c: [-0.118115450538963e6, 0.137145973583929e6, -0.636233812100225e5, 0.147412923562646e5, -0.170587278406872e4, 0.78873172180499e2],
   },
 ]
 
@@ -394,4 +386,3 @@ export function stellarParameters(code: number, luminosityClass: LuminosityClass
     luminositySolar: 10 ** ((SOLAR_BOLOMETRIC_MAGNITUDE - mbol) / 2.5),
   }
 }
-

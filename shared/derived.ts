@@ -9,14 +9,7 @@
  * Teff☉ = 5772 K), IAU 2015 Resolution B2 absolute bolometric magnitude of the Sun
  * (M_bol☉ = 4.74), CODATA 2018 Stefan–Boltzmann constant.
  */
-import {
-  absoluteMagnitudeV,
-  bolometricCorrectionV,
-  calibratedRange,
-  CALIBRATION_SOURCES,
-  effectiveTemperature,
-  type LuminosityClass,
-} from './calibration'
+import { absoluteMagnitudeV, bolometricCorrectionV, calibratedRange, CALIBRATION_SOURCES, effectiveTemperature, type LuminosityClass } from './calibration'
 import { DEFAULT_RV } from './extinction'
 import type { MKValue } from './mk'
 
@@ -213,8 +206,7 @@ export function deriveParameters(value: MKValue, input: DerivedInput = {}): Deri
   const q0 = quantities(centre)
   const qt = [quantities(at(code - dt, classCode)), quantities(at(code + dt, classCode))] as const
   const qc = [quantities(at(code, clampClass(classCode - dc))), quantities(at(code, clampClass(classCode + dc)))] as const
-  const spread = (key: keyof Quantities) =>
-    Math.hypot(((qt[1][key] ?? 0) - (qt[0][key] ?? 0)) / 2, ((qc[1][key] ?? 0) - (qc[0][key] ?? 0)) / 2)
+  const spread = (key: keyof Quantities) => Math.hypot(((qt[1][key] ?? 0) - (qt[0][key] ?? 0)) / 2, ((qc[1][key] ?? 0) - (qc[0][key] ?? 0)) / 2)
 
   // Calibration scatter, first order: σ_T = 3 % T; σ_BC from the BC scale plus its slope in Teff;
   // σ_Mbol² = σ_MV² + σ_BC²; σ_L/L = 0.4 ln10 σ_Mbol; σ_R/R = ½ σ_L/L + 2 σ_T/T.

@@ -385,11 +385,7 @@ class Parser {
       const between = this.pendingUncertain
       value.uncertain.type = this.takeUncertainMark() || between || this.inParens(from, this.pos)
     } else if (this.lineTypeAt(this.pos) === undefined) {
-      throw new Failure(
-        this.pos >= this.s.length
-          ? 'no spectral type'
-          : `no spectral type at "${this.s.slice(this.pos)}"` + (first ? '' : ' after "+"'),
-      )
+      throw new Failure(this.pos >= this.s.length ? 'no spectral type' : `no spectral type at "${this.s.slice(this.pos)}"` + (first ? '' : ' after "+"'))
     }
     // Luminosity class, line types and notes, in any order.
     for (;;) {
@@ -540,7 +536,7 @@ class Parser {
       const after = this.pos + 1
       const prev = expr.points[expr.points.length - 1]!
       // S-star abundance index after '/': "S4/2", "S3+/1-".
-      if (sep === '/' && (first.kind === 's-type') && expr.index === undefined && /[0-9]/.test(this.s[after] ?? '')) {
+      if (sep === '/' && first.kind === 's-type' && expr.index === undefined && /[0-9]/.test(this.s[after] ?? '')) {
         this.pos = after
         expr.index = this.readIndex()
         expr.indexSeparator = '/'

@@ -36,7 +36,9 @@ export function ensureNodeModules() {
 let aptUpdated = false
 /** Installs Debian packages whose commands are missing: { command: package }. */
 export function ensureDebianPackages(wanted) {
-  const missing = Object.entries(wanted).filter(([command]) => !commandExists(command)).map(([, pkg]) => pkg)
+  const missing = Object.entries(wanted)
+    .filter(([command]) => !commandExists(command))
+    .map(([, pkg]) => pkg)
   if (missing.length === 0) return
   if (!commandExists('apt-get')) throw new Error(`missing ${missing.join(', ')} and no apt-get to install them`)
   const sudo = process.getuid?.() === 0 ? [] : ['sudo']
@@ -77,8 +79,9 @@ export async function startMariaDB({ dir, port }) {
   const asRoot = process.getuid?.() === 0 ? ['--user=root'] : []
   if (!existsSync(join(dataDir, 'mysql'))) {
     log(`initialising MariaDB data directory ${dataDir}`)
-    const init = spawnSync('mariadb-install-db', ['--no-defaults', `--datadir=${dataDir}`, ...asRoot,
-      '--auth-root-authentication-method=normal', '--skip-test-db', '--skip-name-resolve'], { encoding: 'utf8' })
+    const init = spawnSync('mariadb-install-db', ['--no-defaults', `--datadir=${dataDir}`, ...asRoot, '--auth-root-authentication-method=normal', '--skip-test-db', '--skip-name-resolve'], {
+      encoding: 'utf8',
+    })
     if (init.status !== 0) throw new Error(`mariadb-install-db failed:\n${init.stdout}\n${init.stderr}`)
   }
   const admin = (...args) => spawnSync('mariadb-admin', ['--no-defaults', '--protocol=socket', `--socket=${socket}`, '-uroot', ...args], { encoding: 'utf8' })
@@ -86,12 +89,29 @@ export async function startMariaDB({ dir, port }) {
     log(`MariaDB already running on ${socket}`)
     return { socket, stop: async () => {} }
   }
-  const child = spawn('mariadbd', ['--no-defaults', `--datadir=${dataDir}`, ...asRoot, '--bind-address=127.0.0.1',
-    `--port=${port}`, `--socket=${socket}`, `--pid-file=${join(dir, 'mysqld.pid')}`, `--log-error=${join(dir, 'error.log')}`,
-    '--skip-name-resolve', '--character-set-server=utf8mb4', '--collation-server=utf8mb4_unicode_ci',
-    '--max-allowed-packet=256M', '--innodb-log-file-size=256M'], { detached: true, stdio: 'ignore' })
+  const child = spawn(
+    'mariadbd',
+    [
+      '--no-defaults',
+      `--datadir=${dataDir}`,
+      ...asRoot,
+      '--bind-address=127.0.0.1',
+      `--port=${port}`,
+      `--socket=${socket}`,
+      `--pid-file=${join(dir, 'mysqld.pid')}`,
+      `--log-error=${join(dir, 'error.log')}`,
+      '--skip-name-resolve',
+      '--character-set-server=utf8mb4',
+      '--collation-server=utf8mb4_unicode_ci',
+      '--max-allowed-packet=256M',
+      '--innodb-log-file-size=256M',
+    ],
+    { detached: true, stdio: 'ignore' },
+  )
   let exited = null
-  child.on('exit', (code) => { exited = code ?? -1 })
+  child.on('exit', (code) => {
+    exited = code ?? -1
+  })
   child.unref()
   for (let i = 0; i < 300; i++) {
     if (exited !== null) {
@@ -186,7 +206,9 @@ export async function ensurePortsFree(ports) {
   for (const p of ports) if (await portInUse(p.port, p.host)) busy.push(p)
   if (busy.length === 0) return
   const list = busy.map((p) => `${p.name}=${p.port}`).join(', ')
-  throw new Error(`Port${busy.length > 1 ? 's' : ''} already in use: ${list}. Is Lineweight already running? Stop it, or choose free port${busy.length > 1 ? 's' : ''}: ${busy.map((p) => `${p.name}=…`).join(' ')} npm start`)
+  throw new Error(
+    `Port${busy.length > 1 ? 's' : ''} already in use: ${list}. Is Lineweight already running? Stop it, or choose free port${busy.length > 1 ? 's' : ''}: ${busy.map((p) => `${p.name}=…`).join(' ')} npm start`,
+  )
 }
 
 /**

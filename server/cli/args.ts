@@ -92,7 +92,10 @@ function walk(dir: string, out: string[]): void {
 }
 
 /** One input that matched nothing. */
-export interface MissingInput { input: string; message: string }
+export interface MissingInput {
+  input: string
+  message: string
+}
 
 /**
  * The files the inputs stand for, in order and without repeats: a file as given, a directory's
@@ -104,11 +107,18 @@ export function expandInputs(inputs: string[]): { files: string[]; missing: Miss
   const missing: MissingInput[] = []
   const seen = new Set<string>()
   const add = (f: string) => {
-    if (!seen.has(f)) { seen.add(f); files.push(f) }
+    if (!seen.has(f)) {
+      seen.add(f)
+      files.push(f)
+    }
   }
   for (const input of inputs) {
     let stat: ReturnType<typeof statSync> | undefined
-    try { stat = statSync(input) } catch { stat = undefined }
+    try {
+      stat = statSync(input)
+    } catch {
+      stat = undefined
+    }
     if (stat?.isDirectory()) {
       const found: string[] = []
       walk(input, found)

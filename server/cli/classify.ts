@@ -25,11 +25,19 @@ function medianStep(wl: Float64Array): number {
 /** Reads a file with the readers' size limit checked before anything is loaded. */
 function loadFile(path: string, maxBytes: number): { bytes: Uint8Array } | { code: string; message: string } {
   let size: number
-  try { size = statSync(path).size } catch (e) { return { code: 'FILE_NOT_FOUND', message: `${path}: ${(e as Error).message}` } }
+  try {
+    size = statSync(path).size
+  } catch (e) {
+    return { code: 'FILE_NOT_FOUND', message: `${path}: ${(e as Error).message}` }
+  }
   if (size > maxBytes) return { code: 'FILE_TOO_LARGE', message: `${basename(path)} is ${size} bytes; the limit is ${maxBytes}` }
   const bytes = new Uint8Array(size)
   const fd = openSync(path, 'r')
-  try { readSync(fd, bytes, 0, size, 0) } finally { closeSync(fd) }
+  try {
+    readSync(fd, bytes, 0, size, 0)
+  } finally {
+    closeSync(fd)
+  }
   return { bytes }
 }
 
@@ -57,7 +65,14 @@ function classified(file: string, read: Extract<ReadResult, { ok: true }>, optio
     rv: out.analysis.rv ? { v: r3(out.analysis.rv.v), error: r3(out.analysis.rv.error) } : null,
     lines: out.analysis.lines.map((l) =>
       l.measured
-        ? { id: l.id, ew: r3(l.equivalentWidth), ewError: r3(l.equivalentWidthError), fwhm: r3(l.fwhm), depth: r3(l.depth), ...(l.family === 'balmer' ? { lorentzianWidth: r3(l.voigt?.lorentzianFwhm) } : {}) }
+        ? {
+            id: l.id,
+            ew: r3(l.equivalentWidth),
+            ewError: r3(l.equivalentWidthError),
+            fwhm: r3(l.fwhm),
+            depth: r3(l.depth),
+            ...(l.family === 'balmer' ? { lorentzianWidth: r3(l.voigt?.lorentzianFwhm) } : {}),
+          }
         : { id: l.id, ew: null, ewError: null, fwhm: null, depth: null, reason: l.reason },
     ),
     spectralType: s.spectralType,
@@ -104,7 +119,10 @@ function main(): number {
     const failed = [...failures.values()].reduce((a, b) => a + b, 0)
     const line = `classify: ${done}/${total} files, ${failed} failed — ${basename(file)}`
     if (tty) process.stderr.write(`\r${line.slice(0, 100).padEnd(100)}`)
-    else if (done === total || now - lastProgress > 2000) { process.stderr.write(`${line}\n`); lastProgress = now }
+    else if (done === total || now - lastProgress > 2000) {
+      process.stderr.write(`${line}\n`)
+      lastProgress = now
+    }
   }
   const fail = (file: string, code: string, message: string) => {
     failures.set(code, (failures.get(code) ?? 0) + 1)
@@ -135,7 +153,10 @@ function main(): number {
   }
   if (tty && !options.quiet && total > PROGRESS_FROM) process.stderr.write('\n')
   const failed = [...failures.values()].reduce((a, b) => a + b, 0)
-  const codes = [...failures.entries()].sort((a, b) => b[1] - a[1]).map(([c, n]) => `${c} ${n}`).join(', ')
+  const codes = [...failures.entries()]
+    .sort((a, b) => b[1] - a[1])
+    .map(([c, n]) => `${c} ${n}`)
+    .join(', ')
   process.stderr.write(`classify: ${ok} classified, ${failed} failed${codes ? ` (${codes})` : ''} in ${((performance.now() - started) / 1000).toFixed(1)} s\n`)
   return failed > 0 ? 1 : ok > 0 ? 0 : 2
 }

@@ -20,7 +20,6 @@ export interface DemoTarget {
   parallaxMas?: number
 }
 
-
 function gaussian(rand: () => number): number {
   const u = Math.max(rand(), 1e-12)
   return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rand())

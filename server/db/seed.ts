@@ -60,10 +60,7 @@ export async function seedDemo(sequelize: Sequelize, config: Config): Promise<bo
     )
     const made: Record<string, User> = {}
     for (const p of DEMO_PEOPLE) {
-      const user = await User.create(
-        { email: p.email, name: p.name, role: p.role, passwordHash: await hashPassword(p.password, config.BCRYPT_ROUNDS), lastLoginAt: null },
-        { transaction },
-      )
+      const user = await User.create({ email: p.email, name: p.name, role: p.role, passwordHash: await hashPassword(p.password, config.BCRYPT_ROUNDS), lastLoginAt: null }, { transaction })
       made[p.email] = user
       for (const c of [survey, quick]) await CampaignMember.create({ campaignId: c.id, userId: user.id }, { transaction })
     }
@@ -197,9 +194,10 @@ async function walkToStates(ctx: AppContext, people: SeedPeople, ids: Map<DemoEn
         if (entry.fate === 'settled') {
           const dispute = await Dispute.findOne({ where: { spectrumId: id } })
           if (dispute) {
-            const note = truth.spectralType.startsWith('K') || truth.spectralType.startsWith('M')
-              ? 'Compared the TiO band depths and Ca I 4226 with the standards; the first call stands.'
-              : 'Checked He I 4471 against Mg II 4481 and the Balmer wings with the standards; the first call stands.'
+            const note =
+              truth.spectralType.startsWith('K') || truth.spectralType.startsWith('M')
+                ? 'Compared the TiO band depths and Ca I 4226 with the standards; the first call stands.'
+                : 'Checked He I 4471 against Mg II 4481 and the Balmer wings with the standards; the first call stands.'
             await settleDispute(ctx, lead, dispute.id, { ...truth, note }, at(entry, 30))
           }
         }

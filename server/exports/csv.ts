@@ -52,7 +52,7 @@ export function writeCsv(table: ExportTable): Buffer {
  */
 export function writeEcsv(table: ExportTable): Buffer {
   checkColumns(table.columns)
-  const out: string[] = ['# %ECSV 1.0', '# ---', '# delimiter: \',\'', '# datatype:']
+  const out: string[] = ['# %ECSV 1.0', '# ---', "# delimiter: ','", '# datatype:']
   for (const c of table.columns) {
     const parts = [`name: ${y(c.name)}`]
     if (c.unit) parts.push(`unit: ${y(c.unit)}`)

@@ -83,7 +83,7 @@ export function commentCards(text: string, key: 'COMMENT' | 'HISTORY' = 'COMMENT
   const lines: string[] = []
   let line = ''
   for (const w of words) {
-    for (let word = w; word.length > 0; ) {
+    for (let word = w; word.length > 0;) {
       const room = 72 - (line ? line.length + 1 : 0)
       if (word.length <= room) {
         line = line ? `${line} ${word}` : word

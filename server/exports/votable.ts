@@ -5,13 +5,7 @@ const XML_INVALID = /[\u{0}-\u{8}\u{b}\u{c}\u{e}-\u{1f}\u{d800}-\u{dfff}\u{fffe}
 
 /** Text escaped for an XML 1.0 element or attribute value; characters XML cannot carry are dropped. */
 export function xmlEscape(text: string): string {
-  return text
-    .replace(XML_INVALID, '')
-    .replace(/&/g, '&amp;')
-    .replace(/</g, '&lt;')
-    .replace(/>/g, '&gt;')
-    .replace(/"/g, '&quot;')
-    .replace(/'/g, '&apos;')
+  return text.replace(XML_INVALID, '').replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&apos;')
 }
 
 const isAscii = (s: string) => /^[\x20-\x7e]*$/.test(s)
@@ -19,7 +13,7 @@ const isAscii = (s: string) => /^[\x20-\x7e]*$/.test(s)
 function attrs(pairs: Array<[string, string | number | undefined]>): string {
   return pairs
     .filter(([, v]) => v !== undefined && v !== '')
-    .map(([k, v]) => ` ${k}="${xmlEscape(String(v)).replace(/\r\n?|\n/g, "&#10;")}"`)
+    .map(([k, v]) => ` ${k}="${xmlEscape(String(v)).replace(/\r\n?|\n/g, '&#10;')}"`)
     .join('')
 }
 
@@ -86,12 +80,34 @@ export function writeVotable(table: ExportTable): Buffer {
   out.push(`  <DESCRIPTION>${xmlEscape(table.title)}</DESCRIPTION>`)
   out.push(`  <RESOURCE type="results"${attrs([['name', table.name]])}>`)
   out.push(`    <DESCRIPTION>${xmlEscape(table.description)}</DESCRIPTION>`)
-  out.push(`    <INFO${attrs([['name', 'title'], ['value', table.title]])}/>`)
-  out.push(`    <INFO${attrs([['name', 'date'], ['value', table.date]])}/>`)
-  table.notes.forEach((n, i) => out.push(`    <INFO${attrs([['name', `note${i + 1}`], ['value', n]])}/>`))
+  out.push(
+    `    <INFO${attrs([
+      ['name', 'title'],
+      ['value', table.title],
+    ])}/>`,
+  )
+  out.push(
+    `    <INFO${attrs([
+      ['name', 'date'],
+      ['value', table.date],
+    ])}/>`,
+  )
+  table.notes.forEach((n, i) =>
+    out.push(
+      `    <INFO${attrs([
+        ['name', `note${i + 1}`],
+        ['value', n],
+      ])}/>`,
+    ),
+  )
   out.push('    <COOSYS ID="icrs" system="ICRS"/>')
   for (const p of table.params) out.push(param(p))
-  out.push(`    <TABLE${attrs([['name', table.name], ['nrows', table.rows.length]])}>`)
+  out.push(
+    `    <TABLE${attrs([
+      ['name', table.name],
+      ['nrows', table.rows.length],
+    ])}>`,
+  )
   out.push(`      <DESCRIPTION>${xmlEscape(table.title)}</DESCRIPTION>`)
   for (const c of table.columns) {
     const t = fieldType(c, table)

@@ -155,7 +155,20 @@ export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output:
           lorentzianFwhm: finiteOrNull(l.voigt?.lorentzianFwhm),
           lorentzianError: l.voigt ? finiteOrNull(2 * l.voigt.errors.gamma) : null,
         }
-      : { lineId: l.id, measured: false, reason: `${l.reason}: ${l.detail}`.slice(0, 200), ew: null, ewError: null, depth: null, fwhm: null, centroid: null, snr: null, gaussianFwhm: null, lorentzianFwhm: null, lorentzianError: null },
+      : {
+          lineId: l.id,
+          measured: false,
+          reason: `${l.reason}: ${l.detail}`.slice(0, 200),
+          ew: null,
+          ewError: null,
+          depth: null,
+          fwhm: null,
+          centroid: null,
+          snr: null,
+          gaussianFwhm: null,
+          lorentzianFwhm: null,
+          lorentzianError: null,
+        },
   )
   const measurement = {
     spectrumId: job.spectrumId,
@@ -184,13 +197,13 @@ export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output:
       const earlier = await Measurement.findAll({ where: { spectrumId: job.spectrumId, isCurrent: true }, attributes: ['id'], transaction })
       if (earlier.length > 0) await Measurement.update({ isCurrent: false }, { where: { id: { [Op.in]: earlier.map((m) => m.id) } }, transaction })
       const m = await Measurement.create(measurement, { transaction })
-      await LineMeasurementRow.bulkCreate(lines.map((l) => ({ measurementId: m.id, ...l })), { transaction })
+      await LineMeasurementRow.bulkCreate(
+        lines.map((l) => ({ measurementId: m.id, ...l })),
+        { transaction },
+      )
       await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date(), leaseExpiresAt: null }, { where: { id: job.id }, transaction })
       if (suggestion && details && libraryVersionId !== undefined) {
-        await storeSuggestion(
-          { spectrumId: job.spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion, details, instrumentId },
-          transaction,
-        )
+        await storeSuggestion({ spectrumId: job.spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion, details, instrumentId }, transaction)
         await indexSuggestionFlags(sequelize, job.spectrumId, suggestion.flags, transaction)
         await Spectrum.update({ status: 'suggested', statusReason: null }, { where: { id: job.spectrumId, status: { [Op.in]: PRE_REVIEW_SUGGESTED } }, transaction })
         return

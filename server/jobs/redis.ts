@@ -35,7 +35,10 @@ const message = (spectrumId: number) => ({ name: 'process', data: { spectrumId }
 export class RedisPublisher implements ProcessingQueue {
   readonly queue: Queue
 
-  constructor(url: string, private readonly logger: Logger) {
+  constructor(
+    url: string,
+    private readonly logger: Logger,
+  ) {
     this.queue = new Queue(QUEUE_NAME, { connection: redisConnection(url) })
     this.queue.on('error', (error) => logger.warn({ err: error.message }, 'Redis queue error'))
   }

@@ -92,7 +92,25 @@ export function preparedLibrary(spec: LibrarySpec): PreparedMatchLibrary {
     }
   }
   for (const o of spec.observed) {
-    inputs.push({ id: o.standardId, modelId: null, templateId: null, source: 'observed', star: o.star, instrumentId: o.instrumentId, snr: o.snr, origin: o.origin, spectralType: o.spectralType, typeCode: o.typeCode, luminosityClass: o.luminosityClass, classCode: o.classCode, teff: o.teff, logg: o.logg, feh: o.feh, rectified: o.rectified, resolutionFwhm: o.resolutionFwhm })
+    inputs.push({
+      id: o.standardId,
+      modelId: null,
+      templateId: null,
+      source: 'observed',
+      star: o.star,
+      instrumentId: o.instrumentId,
+      snr: o.snr,
+      origin: o.origin,
+      spectralType: o.spectralType,
+      typeCode: o.typeCode,
+      luminosityClass: o.luminosityClass,
+      classCode: o.classCode,
+      teff: o.teff,
+      logg: o.logg,
+      feh: o.feh,
+      rectified: o.rectified,
+      resolutionFwhm: o.resolutionFwhm,
+    })
   }
   const lib = prepareMatchLibrary(inputs, { versionId: spec.versionId, versionName: spec.name, grid: DEFAULT_GRID })
   // Versions are immutable once published, so old entries only cost memory: keep the two latest.

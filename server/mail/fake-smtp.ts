@@ -31,20 +31,30 @@ export async function startFakeSmtp(port: number, host = '127.0.0.1'): Promise<F
           .then((parsed) =>
             MailMessage.create({
               fromAddress: parsed.from?.text ?? '',
-              toAddresses: [parsed.to ?? []].flat().map((a) => a.text).join(', '),
+              toAddresses: [parsed.to ?? []]
+                .flat()
+                .map((a) => a.text)
+                .join(', '),
               subject: parsed.subject ?? '(no subject)',
               text: parsed.text ?? '',
               html: typeof parsed.html === 'string' ? parsed.html : null,
               raw: raw.toString('utf8'),
             }),
           )
-          .then(() => callback(), (error: Error) => callback(error))
+          .then(
+            () => callback(),
+            (error: Error) => callback(error),
+          )
       })
     },
   })
   await new Promise<void>((resolve, reject) => {
     server.once('error', (error: NodeJS.ErrnoException) =>
-      reject(error.code === 'EADDRINUSE' ? new Error(`the mail catcher cannot listen on SMTP_PORT ${port}: the port is already in use. Leave SMTP_PORT unset to take any free port, or choose another.`) : error),
+      reject(
+        error.code === 'EADDRINUSE'
+          ? new Error(`the mail catcher cannot listen on SMTP_PORT ${port}: the port is already in use. Leave SMTP_PORT unset to take any free port, or choose another.`)
+          : error,
+      ),
     )
     server.listen(port, host, () => resolve())
   })

@@ -41,7 +41,10 @@ export function uploadSlots(perUser: number, total: number): RequestHandler {
 class Bucket {
   private level: number
   private at: number
-  constructor(private readonly perMinute: number, now: number) {
+  constructor(
+    private readonly perMinute: number,
+    now: number,
+  ) {
     this.level = perMinute
     this.at = now
   }
@@ -91,9 +94,14 @@ export function uploadBudget(bytesPerMinute: number, filesPerMinute: number): { 
     const wait = Math.max(b.bytes.secondsUntil(bytes), b.files.secondsUntil(1))
     if (wait > 0) {
       res.set('retry-after', String(wait))
-      throw new HttpError(429, 'upload_allowance_used', `You have uploaded as much as the server takes in a minute (${bytesPerMinute} bytes and ${filesPerMinute} files per person); send the rest in ${wait} s.`, {
-        retryAfterSeconds: wait,
-      })
+      throw new HttpError(
+        429,
+        'upload_allowance_used',
+        `You have uploaded as much as the server takes in a minute (${bytesPerMinute} bytes and ${filesPerMinute} files per person); send the rest in ${wait} s.`,
+        {
+          retryAfterSeconds: wait,
+        },
+      )
     }
     b.bytes.take(bytes)
     next()

@@ -32,9 +32,7 @@ const SPECTRA_INDEXES: Array<{ name: string; fields: Array<string | { name: stri
  */
 export async function up({ context: q }: { context: QueryInterface }): Promise<void> {
   await q.addColumn('spectra', 'flag_count', { type: DataTypes.TINYINT.UNSIGNED, allowNull: false, defaultValue: 0 })
-  await q.sequelize.query(
-    "ALTER TABLE spectra ADD COLUMN open_for_calls TINYINT(1) AS (status IN ('suggested', 'under_review')) PERSISTENT",
-  )
+  await q.sequelize.query("ALTER TABLE spectra ADD COLUMN open_for_calls TINYINT(1) AS (status IN ('suggested', 'under_review')) PERSISTENT")
   await q.sequelize.query(
     `UPDATE spectra sp JOIN suggestions sg ON sg.spectrum_id = sp.id AND sg.is_current = 1
      SET sp.flag_count = LEAST(255, COALESCE(JSON_LENGTH(sg.flags), 0))`,

@@ -161,7 +161,10 @@ export class SpectrumEvent extends Model<InferAttributes<SpectrumEvent>, InferCr
         tableName: 'spectrum_events',
         updatedAt: false,
         hooks: {
-          beforeUpdate: refuseChange, beforeBulkUpdate: refuseChange, beforeDestroy: refuseChange, beforeBulkDestroy: refuseChange,
+          beforeUpdate: refuseChange,
+          beforeBulkUpdate: refuseChange,
+          beforeDestroy: refuseChange,
+          beforeBulkDestroy: refuseChange,
         },
       },
     )

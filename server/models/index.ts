@@ -23,7 +23,34 @@ export type { TokenPurpose } from './UserToken'
 
 /** Registers every model and association on one connection. */
 export function initModels(sequelize: Sequelize): void {
-  for (const model of [User, UserToken, ApiToken, Session, MailMessage, Campaign, CampaignMember, Instrument, Spectrum, SpectrumBlob, SpectrumEvent, ProcessingJob, Measurement, LineMeasurementRow, LibraryVersion, Standard, LibraryVersionStandard, Suggestion, ReviewClaim, ReviewCall, Dispute, DisputeAction, Classification, Release, ReleaseRow]) model.initModel(sequelize)
+  for (const model of [
+    User,
+    UserToken,
+    ApiToken,
+    Session,
+    MailMessage,
+    Campaign,
+    CampaignMember,
+    Instrument,
+    Spectrum,
+    SpectrumBlob,
+    SpectrumEvent,
+    ProcessingJob,
+    Measurement,
+    LineMeasurementRow,
+    LibraryVersion,
+    Standard,
+    LibraryVersionStandard,
+    Suggestion,
+    ReviewClaim,
+    ReviewCall,
+    Dispute,
+    DisputeAction,
+    Classification,
+    Release,
+    ReleaseRow,
+  ])
+    model.initModel(sequelize)
   UserToken.belongsTo(User, { foreignKey: 'userId', as: 'user' })
   ApiToken.belongsTo(User, { foreignKey: 'userId', as: 'owner' })
   Campaign.belongsToMany(User, { through: CampaignMember, foreignKey: 'campaignId', otherKey: 'userId', as: 'members' })

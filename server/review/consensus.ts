@@ -119,4 +119,3 @@ export function judgeByMajority(calls: JudgedCall[], rules: { typeTolerance: num
   const all = judgeCalls(calls, { typeTolerance: -1, classTolerance: -1 })
   return { outcome: 'disputed', typeSpread: all.typeSpread, classSpread: all.classSpread }
 }
-

@@ -30,10 +30,7 @@ function loginLimiter(config: Config) {
       },
     })
   const address = (req: Request) => ipKeyGenerator(req.ip ?? '')
-  return [
-    limiter(config.LOGIN_MAX_ATTEMPTS * 10, address),
-    limiter(config.LOGIN_MAX_ATTEMPTS, (req) => `${address(req)}|${emailKey(req)}`),
-  ]
+  return [limiter(config.LOGIN_MAX_ATTEMPTS * 10, address), limiter(config.LOGIN_MAX_ATTEMPTS, (req) => `${address(req)}|${emailKey(req)}`)]
 }
 
 /**

@@ -16,7 +16,21 @@ import { userRoutes } from './users.routes'
 
 /** Every API route in one table: the app mounts it and the role-matrix test walks it. */
 export function apiRoutes(ctx: AppContext): RouteDef[] {
-  const table: RouteDef[] = [...healthRoutes(ctx), ...authRoutes(ctx), ...userRoutes(ctx), ...tokenRoutes(), ...outboxRoutes(), ...campaignRoutes(ctx), ...spectraRoutes(ctx), ...reviewRoutes(ctx), ...standardsRoutes(ctx), ...instrumentRoutes(ctx), ...auditRoutes(), ...releaseRoutes(), ...derivedRoutes()]
+  const table: RouteDef[] = [
+    ...healthRoutes(ctx),
+    ...authRoutes(ctx),
+    ...userRoutes(ctx),
+    ...tokenRoutes(),
+    ...outboxRoutes(),
+    ...campaignRoutes(ctx),
+    ...spectraRoutes(ctx),
+    ...reviewRoutes(ctx),
+    ...standardsRoutes(ctx),
+    ...instrumentRoutes(ctx),
+    ...auditRoutes(),
+    ...releaseRoutes(),
+    ...derivedRoutes(),
+  ]
   table.push(...docsRoutes(() => table))
   return table
 }

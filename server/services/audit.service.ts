@@ -3,7 +3,24 @@ import { agreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa }
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { Campaign, Classification, Instrument, LibraryVersion, LibraryVersionStandard, ReviewCall, Spectrum, Standard, Suggestion, User } from '../models'
-import type { AccuracyFigures, AgreementFigures, AuditFigures, AuditQuery, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, InstrumentAccuracy, MatrixCell, PairFigures, RaterRef, SuggestionAccuracy, VersionAccuracy } from '../../shared/api/audit'
+import type {
+  AccuracyFigures,
+  AgreementFigures,
+  AuditFigures,
+  AuditQuery,
+  AuditReport,
+  BlindFigures,
+  ClassifierFigures,
+  ConfusionMatrix,
+  Figure,
+  GroupFigures,
+  InstrumentAccuracy,
+  MatrixCell,
+  PairFigures,
+  RaterRef,
+  SuggestionAccuracy,
+  VersionAccuracy,
+} from '../../shared/api/audit'
 import type { SuggestionDetails } from '../../shared/api/suggestions'
 
 export type { AgreementFigures, AuditFigures, AuditReport, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, GroupFigures, MatrixCell, PairFigures, RaterRef, SuggestionAccuracy }
@@ -138,8 +155,18 @@ const CLASS_ORDER = LUMINOSITY_CLASSES.map((c) => c.text)
 
 function typeAndClassMatrices(pairs: Array<{ a: { typeCode: number; classCode: number }; b: { typeCode: number; classCode: number }; spectrumId: number }>, rowsAre: string, columnsAre: string) {
   return {
-    type: labelledMatrix(pairs.map((p) => ({ row: letterOf(p.a.typeCode), column: letterOf(p.b.typeCode), spectrumId: p.spectrumId })), LETTER_ORDER, `${rowsAre} (type letter)`, `${columnsAre} (type letter)`),
-    class: labelledMatrix(pairs.map((p) => ({ row: classLabel(p.a.classCode), column: classLabel(p.b.classCode), spectrumId: p.spectrumId })), CLASS_ORDER, `${rowsAre} (luminosity class)`, `${columnsAre} (luminosity class)`),
+    type: labelledMatrix(
+      pairs.map((p) => ({ row: letterOf(p.a.typeCode), column: letterOf(p.b.typeCode), spectrumId: p.spectrumId })),
+      LETTER_ORDER,
+      `${rowsAre} (type letter)`,
+      `${columnsAre} (type letter)`,
+    ),
+    class: labelledMatrix(
+      pairs.map((p) => ({ row: classLabel(p.a.classCode), column: classLabel(p.b.classCode), spectrumId: p.spectrumId })),
+      CLASS_ORDER,
+      `${rowsAre} (luminosity class)`,
+      `${columnsAre} (luminosity class)`,
+    ),
   }
 }
 
@@ -245,16 +272,24 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
       id,
       name: people.get(id)!,
       calls: mine.length,
-      typeOffset: safe(judged.length, () => meanOffset(judged.map((c) => c.typeCode), ref.map((r) => r.typeCode))),
-      classOffset: safe(judged.length, () => meanOffset(judged.map((c) => c.classCode), ref.map((r) => r.classCode))),
+      typeOffset: safe(judged.length, () =>
+        meanOffset(
+          judged.map((c) => c.typeCode),
+          ref.map((r) => r.typeCode),
+        ),
+      ),
+      classOffset: safe(judged.length, () =>
+        meanOffset(
+          judged.map((c) => c.classCode),
+          ref.map((r) => r.classCode),
+        ),
+      ),
       medianSecondsPerCall: safe(seconds.length, () => median(seconds)),
     }
   })
 
   const callConsensusPairs = calls.filter((c) => consensus.has(c.spectrumId)).map((c) => ({ a: c, b: consensus.get(c.spectrumId)!, spectrumId: c.spectrumId }))
-  const suggestionConsensusPairs = [...consensus.entries()]
-    .filter(([id]) => info.get(id)?.suggestion)
-    .map(([id, c]) => ({ a: info.get(id)!.suggestion!, b: c, spectrumId: id }))
+  const suggestionConsensusPairs = [...consensus.entries()].filter(([id]) => info.get(id)?.suggestion).map(([id, c]) => ({ a: info.get(id)!.suggestion!, b: c, spectrumId: id }))
 
   const groupFigures = (keyOf: (c: AuditCall) => string | null): GroupFigures[] => {
     const groups = new Map<string, AuditCall[]>()
@@ -304,7 +339,12 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
     byWeek: groupFigures((c) => isoWeek(c.at)),
     byLibraryVersion: groupFigures((c) => info.get(c.spectrumId)?.suggestion?.libraryVersion ?? null),
     blind: {
-      shown: { calls: shown.length, acceptedSuggestion: share(shown, (c) => c.acceptedSuggestion), agreeWithSuggestion: share(shown, sameAsSuggestion), exactTypeVsConsensus: share(shown, exactVsConsensus) },
+      shown: {
+        calls: shown.length,
+        acceptedSuggestion: share(shown, (c) => c.acceptedSuggestion),
+        agreeWithSuggestion: share(shown, sameAsSuggestion),
+        exactTypeVsConsensus: share(shown, exactVsConsensus),
+      },
       blind: { calls: blind.length, agreeWithSuggestion: share(blind, sameAsSuggestion), exactTypeVsConsensus: share(blind, exactVsConsensus) },
     },
     notes: [
@@ -369,7 +409,11 @@ export function suggestionAccuracy(items: readonly AccuracyItem[]): SuggestionAc
         const f = accuracyFigures(group)
         const v = group[0]!.version
         const delta = (a: Figure, b: Figure | undefined) => (a.value === null || !b || b.value === null ? null : Math.round(1000 * (a.value - b.value)) / 10)
-        const out: VersionAccuracy = { ...f, version: { id: v.id, name: v.name, publishedAt: v.publishedAt?.toISOString() ?? null }, change: { withinOneSubtype: delta(f.withinOneSubtype, previous?.withinOneSubtype), exactClass: delta(f.exactClass, previous?.exactClass) } }
+        const out: VersionAccuracy = {
+          ...f,
+          version: { id: v.id, name: v.name, publishedAt: v.publishedAt?.toISOString() ?? null },
+          change: { withinOneSubtype: delta(f.withinOneSubtype, previous?.withinOneSubtype), exactClass: delta(f.exactClass, previous?.exactClass) },
+        }
         previous = f
         return out
       })
@@ -439,7 +483,7 @@ async function accuracyItems(campaignId: number, range: { from?: Date | undefine
     const details = s.details ? (JSON.parse(s.details) as SuggestionDetails) : null
     out.push({
       spectrumId: s.spectrumId,
-      instrument: { id: instrumentId, name: instrumentId === null ? 'No instrument' : names.get(instrumentId) ?? `#${instrumentId}` },
+      instrument: { id: instrumentId, name: instrumentId === null ? 'No instrument' : (names.get(instrumentId) ?? `#${instrumentId}`) },
       version: { id: s.libraryVersionId, name: v?.name ?? `#${s.libraryVersionId}`, publishedAt: v?.publishedAt ?? null },
       madeAt: s.createdAt,
       suggestion: { typeCode: s.typeCode, classCode: s.classCode },

@@ -36,7 +36,16 @@ export async function progressOf(campaignIds: number[]): Promise<Map<number, Cam
     const p = out.get(Number(c.campaignId))
     if (p) p.calls = Number(c.n)
   }
-  const KEY: Record<string, keyof Omit<CampaignProgress, 'calls' | 'total'>> = { received: 'processing', measured: 'processing', suggested: 'waiting', under_review: 'underReview', agreed: 'agreed', disputed: 'disputed', settled: 'settled', failed: 'failed' }
+  const KEY: Record<string, keyof Omit<CampaignProgress, 'calls' | 'total'>> = {
+    received: 'processing',
+    measured: 'processing',
+    suggested: 'waiting',
+    under_review: 'underReview',
+    agreed: 'agreed',
+    disputed: 'disputed',
+    settled: 'settled',
+    failed: 'failed',
+  }
   for (const r of rows) {
     const p = out.get(Number(r.campaignId))
     const k = KEY[r.status]
@@ -74,7 +83,13 @@ export async function campaignForSubmission(user: User, campaignId: number): Pro
 async function membersOf(campaignId: number, viewer: User): Promise<CampaignMemberSummary[]> {
   const rows = await CampaignMember.findAll({ where: { campaignId }, attributes: ['userId'] })
   if (rows.length === 0) return []
-  const users = await User.findAll({ where: { id: { [Op.in]: rows.map((r) => r.userId) } }, order: [['name', 'ASC'], ['id', 'ASC']] })
+  const users = await User.findAll({
+    where: { id: { [Op.in]: rows.map((r) => r.userId) } },
+    order: [
+      ['name', 'ASC'],
+      ['id', 'ASC'],
+    ],
+  })
   return users.map((u) => ({ id: u.id, name: u.name, role: u.role, active: u.active, ...(viewer.role === 'lead' ? { email: u.email } : {}) }))
 }
 
@@ -144,7 +159,11 @@ export async function setCampaignMembers(ctx: Pick<AppContext, 'sequelize'>, lea
     await CampaignMember.destroy({ where, transaction })
     const existing = new Set((await CampaignMember.findAll({ where: { campaignId: id }, attributes: ['userId'], transaction })).map((m) => m.userId))
     const added = wanted.filter((u) => !existing.has(u))
-    if (added.length > 0) await CampaignMember.bulkCreate(added.map((userId) => ({ campaignId: id, userId })), { transaction })
+    if (added.length > 0)
+      await CampaignMember.bulkCreate(
+        added.map((userId) => ({ campaignId: id, userId })),
+        { transaction },
+      )
   })
   return getCampaign(lead, id)
 }

@@ -60,7 +60,12 @@ export async function basisFor(spectrumId: number, options: { suggestion?: boole
   if (options.suggestion === false) return null
   const s = await Suggestion.findOne({ where: { spectrumId, isCurrent: true }, order: [['id', 'DESC']], attributes: ['id', 'spectralType', 'uncertaintySubtypes', 'uncertaintyClasses'] })
   if (!s) return null
-  return { source: 'suggestion', spectralType: s.spectralType, typeUncertainty: Math.max(MIN_TYPE_UNCERTAINTY, s.uncertaintySubtypes), classUncertainty: Math.max(MIN_CLASS_UNCERTAINTY, s.uncertaintyClasses) }
+  return {
+    source: 'suggestion',
+    spectralType: s.spectralType,
+    typeUncertainty: Math.max(MIN_TYPE_UNCERTAINTY, s.uncertaintySubtypes),
+    classUncertainty: Math.max(MIN_CLASS_UNCERTAINTY, s.uncertaintyClasses),
+  }
 }
 
 export const observerInputs = (s: Pick<Spectrum, 'vMag' | 'ebv' | 'parallaxMas' | 'parallaxErrorMas'>): ObserverInputs => ({

@@ -25,7 +25,12 @@ export async function historyOf(user: User, spectrumId: number): Promise<Spectru
   const hasCalled = calls.some((c) => c.userId === user.id)
   const blind = user.role !== 'observer' && isBlindFor(campaign, spectrum, hasCalled)
   const visibleCalls = blind ? calls.filter((c) => c.userId === user.id) : calls
-  const names = await namesOf([spectrum.submittedBy, ...visibleCalls.map((c) => c.userId), ...classifications.map((c) => c.decidedBy), ...spectrumEvents.flatMap((e) => (e.userId === null ? [] : [e.userId]))])
+  const names = await namesOf([
+    spectrum.submittedBy,
+    ...visibleCalls.map((c) => c.userId),
+    ...classifications.map((c) => c.decidedBy),
+    ...spectrumEvents.flatMap((e) => (e.userId === null ? [] : [e.userId])),
+  ])
   const person = (id: number | null): PersonRef | null => (id === null ? null : { id, name: names.get(id) ?? '' })
 
   const events: HistoryEvent[] = [
@@ -65,7 +70,14 @@ export async function historyOf(user: User, spectrumId: number): Promise<Spectru
         kind: 'suggestion',
         who: null,
         summary: `Suggested ${s.spectralType} (±${s.uncertaintySubtypes} subtypes, ±${s.uncertaintyClasses} classes)`,
-        details: { suggestionId: s.id, spectralType: s.spectralType, libraryVersionId: s.libraryVersionId, pipelineVersion: s.pipelineVersion, isCurrent: s.isCurrent, flags: JSON.parse(s.flags) as unknown },
+        details: {
+          suggestionId: s.id,
+          spectralType: s.spectralType,
+          libraryVersionId: s.libraryVersionId,
+          pipelineVersion: s.pipelineVersion,
+          isCurrent: s.isCurrent,
+          flags: JSON.parse(s.flags) as unknown,
+        },
       })
     }
   }
@@ -103,4 +115,3 @@ export async function historyOf(user: User, spectrumId: number): Promise<Spectru
   events.sort((a, b) => a.at.localeCompare(b.at) || KIND_ORDER.indexOf(a.kind) - KIND_ORDER.indexOf(b.kind))
   return { events, hidden: blind && (suggestions.length > 0 || visibleCalls.length < calls.length) }
 }
-

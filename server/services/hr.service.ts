@@ -23,7 +23,13 @@ export async function hrDiagram(campaignId: number): Promise<HrDiagram> {
   const ids = spectra.map((s) => s.id)
   const latest = new Map<number, Classification>()
   if (ids.length) for (const c of await Classification.findAll({ where: { spectrumId: { [Op.in]: ids } }, order: [['id', 'ASC']] })) latest.set(c.spectrumId, c)
-  const suggestions = ids.length ? await Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: ['id', 'spectrumId', 'spectralType', 'uncertaintySubtypes', 'uncertaintyClasses'], order: [['id', 'ASC']] }) : []
+  const suggestions = ids.length
+    ? await Suggestion.findAll({
+        where: { spectrumId: { [Op.in]: ids }, isCurrent: true },
+        attributes: ['id', 'spectrumId', 'spectralType', 'uncertaintySubtypes', 'uncertaintyClasses'],
+        order: [['id', 'ASC']],
+      })
+    : []
   const suggestionOf = new Map(suggestions.map((s) => [s.spectrumId, s]))
   const byId = new Map(suggestions.map((s) => [s.id, s]))
 
@@ -37,7 +43,12 @@ export async function hrDiagram(campaignId: number): Promise<HrDiagram> {
       const u = decisionUncertainty(decided, decided.suggestionId ? (byId.get(decided.suggestionId) ?? null) : null)
       basis = { source: 'classification', spectralType: decided.spectralType, typeUncertainty: u.type, classUncertainty: u.class }
     } else if (sug) {
-      basis = { source: 'suggestion', spectralType: sug.spectralType, typeUncertainty: Math.max(MIN_TYPE_UNCERTAINTY, sug.uncertaintySubtypes), classUncertainty: Math.max(MIN_CLASS_UNCERTAINTY, sug.uncertaintyClasses) }
+      basis = {
+        source: 'suggestion',
+        spectralType: sug.spectralType,
+        typeUncertainty: Math.max(MIN_TYPE_UNCERTAINTY, sug.uncertaintySubtypes),
+        classUncertainty: Math.max(MIN_CLASS_UNCERTAINTY, sug.uncertaintyClasses),
+      }
     }
     const d = basis ? estimatesFor(basis, observerInputs(s)) : null
     if (!basis || !d || !d.ok) {

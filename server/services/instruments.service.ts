@@ -12,7 +12,13 @@ export async function listInstruments(user: User, campaignId?: number): Promise<
   const ids = await campaignIdsOf(user)
   if (campaignId !== undefined && ids !== 'all' && !ids.includes(campaignId)) throw notFound('The campaign')
   const where = campaignId !== undefined ? { campaignId } : ids === 'all' ? {} : { campaignId: { [Op.in]: ids } }
-  const instruments = await Instrument.findAll({ where, order: [['name', 'ASC'], ['id', 'ASC']] })
+  const instruments = await Instrument.findAll({
+    where,
+    order: [
+      ['name', 'ASC'],
+      ['id', 'ASC'],
+    ],
+  })
   return summaries(instruments)
 }
 
@@ -56,7 +62,8 @@ export async function summaries(instruments: Instrument[]): Promise<InstrumentSu
 }
 
 function checkRange(min: number | null, max: number | null): void {
-  if ((min === null) !== (max === null)) throw new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields: { [min === null ? 'wavelengthMin' : 'wavelengthMax']: 'give both ends of the coverage, or neither' } })
+  if ((min === null) !== (max === null))
+    throw new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields: { [min === null ? 'wavelengthMin' : 'wavelengthMax']: 'give both ends of the coverage, or neither' } })
   if (min !== null && max !== null && min >= max) throw new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields: { wavelengthMax: 'the coverage must start below where it ends' } })
 }
 

@@ -12,9 +12,7 @@ import { namesOf } from './review.service'
 import { toStandardSummary, toVersionSummary } from './standards.service'
 
 /** What one spectrum of an instrument is, as a possible standard of it. */
-type Assessment =
-  | { ok: true; candidate: InstrumentCandidate; canonical: string; level: number | null; measurementId: number }
-  | { ok: false; reason: string }
+type Assessment = { ok: true; candidate: InstrumentCandidate; canonical: string; level: number | null; measurementId: number } | { ok: false; reason: string }
 
 interface InstrumentState {
   instrument: Instrument
@@ -40,7 +38,16 @@ const listNames = (names: string[]) => (names.length <= 1 ? names.join('') : `${
 async function assess(instrument: Instrument): Promise<InstrumentState> {
   const active = await LibraryVersion.findOne({ where: { isActive: true } })
   const members = active ? (await LibraryVersionStandard.findAll({ where: { versionId: active.id }, attributes: ['standardId'] })).map((l) => l.standardId) : []
-  const own = members.length ? await Standard.findAll({ where: { id: { [Op.in]: members }, instrumentId: instrument.id }, attributes: { exclude: ['rectified'] }, order: [['typeCode', 'ASC'], ['classCode', 'ASC']] }) : []
+  const own = members.length
+    ? await Standard.findAll({
+        where: { id: { [Op.in]: members }, instrumentId: instrument.id },
+        attributes: { exclude: ['rectified'] },
+        order: [
+          ['typeCode', 'ASC'],
+          ['classCode', 'ASC'],
+        ],
+      })
+    : []
   const covered = new Map<string, CoverageCell>()
   for (const s of own) {
     const cell = coverageCell(s.typeCode, s.classCode)
@@ -127,7 +134,15 @@ async function assess(instrument: Instrument): Promise<InstrumentState> {
     const details = s.details ? (JSON.parse(s.details) as { resolution?: { level?: number | null } }) : null
     assessed.set(sp.id, {
       ok: true,
-      candidate: { spectrumId: sp.id, objectName: sp.objectName, snr: Math.round(snr * 10) / 10, decision: record, suggestion: { id: s.id, spectralType: s.spectralType, libraryVersionId: s.libraryVersionId }, cell, firstInCell: false },
+      candidate: {
+        spectrumId: sp.id,
+        objectName: sp.objectName,
+        snr: Math.round(snr * 10) / 10,
+        decision: record,
+        suggestion: { id: s.id, spectralType: s.spectralType, libraryVersionId: s.libraryVersionId },
+        cell,
+        firstInCell: false,
+      },
       canonical: formatMK({ ...v, peculiarities: [], lineTypes: [], uncertain: { prefix: false, type: false, class: false } }),
       level: details?.resolution?.level ?? null,
       measurementId: m.id,
@@ -192,7 +207,12 @@ function decisionText(d: DecisionRecord): string {
  * change it), takes the decided type and class, and keeps its provenance; the version records
  * what it added and why. Refused unless every spectrum is a candidate now, and two for one cell.
  */
-export async function promoteCandidates(sequelize: Sequelize, lead: User, id: number, input: { spectrumIds: number[]; note: string; name?: string | undefined }): Promise<{ version: VersionSummary; standards: StandardSummary[] }> {
+export async function promoteCandidates(
+  sequelize: Sequelize,
+  lead: User,
+  id: number,
+  input: { spectrumIds: number[]; note: string; name?: string | undefined },
+): Promise<{ version: VersionSummary; standards: StandardSummary[] }> {
   const instrument = await instrumentOrThrow(id)
   const state = await assess(instrument)
   if (!state.active) throw new HttpError(409, 'no_active_library', 'No standards library version is active.')
@@ -207,7 +227,10 @@ export async function promoteCandidates(sequelize: Sequelize, lead: User, id: nu
   const cells = new Map<string, number>()
   for (const a of picked) {
     const other = cells.get(cellKey(a.candidate.cell))
-    if (other !== undefined) throw new HttpError(409, 'same_gap', `Spectra #${other} and #${a.candidate.spectrumId} fill the same gap (${a.candidate.cell.label}); promote one of them.`, { spectrumIds: [other, a.candidate.spectrumId] })
+    if (other !== undefined)
+      throw new HttpError(409, 'same_gap', `Spectra #${other} and #${a.candidate.spectrumId} fill the same gap (${a.candidate.cell.label}); promote one of them.`, {
+        spectrumIds: [other, a.candidate.spectrumId],
+      })
     cells.set(cellKey(a.candidate.cell), a.candidate.spectrumId)
   }
   const name = await versionName(instrument, input.name)
@@ -222,7 +245,16 @@ export async function promoteCandidates(sequelize: Sequelize, lead: User, id: nu
       const m = measurements.get(a.measurementId)!
       const rectified = bufferToFloat32(m.rectified)
       for (let i = 0; i < rectified.length; i++) if (m.mask[i] === 1) rectified[i] = Number.NaN
-      const provenance: StandardProvenance = { instrument: instrumentRef, spectrumId: c.spectrumId, objectName: c.objectName, snr: c.snr, decision: c.decision, gap: c.cell.label, promotedBy: leadRef, promotedAt: now.toISOString() }
+      const provenance: StandardProvenance = {
+        instrument: instrumentRef,
+        spectrumId: c.spectrumId,
+        objectName: c.objectName,
+        snr: c.snr,
+        decision: c.decision,
+        gap: c.cell.label,
+        promotedBy: leadRef,
+        promotedAt: now.toISOString(),
+      }
       made.push(
         await Standard.create(
           {
@@ -253,7 +285,12 @@ export async function promoteCandidates(sequelize: Sequelize, lead: User, id: nu
       action: 'promote',
       instrument: instrumentRef,
       note: input.note,
-      standards: made.map((s, k) => ({ standardId: s.id, spectrumId: s.spectrumId, spectralType: s.spectralType, reason: `${decisionText(picked[k]!.candidate.decision)}; S/N ${picked[k]!.candidate.snr}; fills ${picked[k]!.candidate.cell.label}` })),
+      standards: made.map((s, k) => ({
+        standardId: s.id,
+        spectrumId: s.spectrumId,
+        spectralType: s.spectralType,
+        reason: `${decisionText(picked[k]!.candidate.decision)}; S/N ${picked[k]!.candidate.snr}; fills ${picked[k]!.candidate.cell.label}`,
+      })),
     }
     const description = `${made.length} agreed ${made.length === 1 ? 'spectrum' : 'spectra'} of ${instrument.name} promoted as its standards on top of ${state.active!.name}: ${picked.map((a) => `#${a.candidate.spectrumId} ${a.candidate.objectName} (${a.canonical})`).join(', ')}.${input.note ? ` ${input.note}` : ''}`
     const v = await publish(state, lead, { name, description, changes, members: [...state.members, ...made.map((s) => s.id)] }, transaction)
@@ -267,14 +304,20 @@ export async function promoteCandidates(sequelize: Sequelize, lead: User, id: nu
  * without them (earlier versions keep them, so their suggestions still make sense); the version
  * records what it took out and the lead's reason.
  */
-export async function demoteStandards(sequelize: Sequelize, lead: User, id: number, input: { standardIds: number[]; note: string; name?: string | undefined }): Promise<{ version: VersionSummary; standards: StandardSummary[] }> {
+export async function demoteStandards(
+  sequelize: Sequelize,
+  lead: User,
+  id: number,
+  input: { standardIds: number[]; note: string; name?: string | undefined },
+): Promise<{ version: VersionSummary; standards: StandardSummary[] }> {
   const instrument = await instrumentOrThrow(id)
   const state = await assess(instrument)
   if (!state.active) throw new HttpError(409, 'no_active_library', 'No standards library version is active.')
   const chosen = [...new Set(input.standardIds)]
   const own = new Map(state.own.map((s) => [s.id, s]))
   for (const standardId of chosen) {
-    if (!own.has(standardId)) throw new HttpError(409, 'not_a_standard', `Standard #${standardId} is not one of ${instrument.name}'s standards in the active version ${state.active.name}.`, { standardId })
+    if (!own.has(standardId))
+      throw new HttpError(409, 'not_a_standard', `Standard #${standardId} is not one of ${instrument.name}'s standards in the active version ${state.active.name}.`, { standardId })
   }
   const name = await versionName(instrument, input.name)
   const gone = new Set(chosen)
@@ -297,7 +340,12 @@ export async function demoteStandards(sequelize: Sequelize, lead: User, id: numb
   const links = await LibraryVersionStandard.findAll({ where: { standardId: { [Op.in]: chosen } } })
   return {
     version: toVersionSummary(version, state.members.length - chosen.length),
-    standards: demoted.map((s) => toStandardSummary(s, links.filter((l) => l.standardId === s.id).map((l) => l.versionId))),
+    standards: demoted.map((s) =>
+      toStandardSummary(
+        s,
+        links.filter((l) => l.standardId === s.id).map((l) => l.versionId),
+      ),
+    ),
   }
 }
 
@@ -318,6 +366,9 @@ async function publish(state: InstrumentState, lead: User, v: { name: string; de
     },
     { transaction },
   )
-  await LibraryVersionStandard.bulkCreate(v.members.map((standardId) => ({ versionId: version.id, standardId })), { transaction })
+  await LibraryVersionStandard.bulkCreate(
+    v.members.map((standardId) => ({ versionId: version.id, standardId })),
+    { transaction },
+  )
   return version
 }

@@ -173,12 +173,13 @@ async function gatherRows(campaignId: number, transaction: Transaction): Promise
   })
   const versions = new Map((await LibraryVersion.findAll({ attributes: ['id', 'name'], transaction })).map((v) => [v.id, v.name]))
   const measurements = new Map(
-    (await Measurement.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: ['id', 'spectrumId', 'snr', 'rv', 'rvError', 'pipelineVersion'], transaction })).map((m) => [m.spectrumId, m]),
+    (await Measurement.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: ['id', 'spectrumId', 'snr', 'rv', 'rvError', 'pipelineVersion'], transaction })).map((m) => [
+      m.spectrumId,
+      m,
+    ]),
   )
   const callIds = classifications.flatMap((c) => JSON.parse(c.callIds || '[]') as number[])
-  const callers = new Map(
-    (callIds.length ? await ReviewCall.findAll({ where: { id: { [Op.in]: callIds } }, attributes: ['id', 'userId'], transaction }) : []).map((r) => [r.id, r.userId]),
-  )
+  const callers = new Map((callIds.length ? await ReviewCall.findAll({ where: { id: { [Op.in]: callIds } }, attributes: ['id', 'userId'], transaction }) : []).map((r) => [r.id, r.userId]))
   const userIds = new Set<number>([...callers.values(), ...classifications.map((c) => c.decidedBy ?? 0)])
   const names = new Map((await User.findAll({ where: { id: { [Op.in]: [...userIds] } }, attributes: ['id', 'name'], transaction })).map((u) => [u.id, u.name]))
 
@@ -338,7 +339,13 @@ async function findVisibleRelease(user: User, id: number): Promise<Release> {
 export async function listReleases(user: User, query: { campaignId?: number }): Promise<ReleaseSummary[]> {
   const where: WhereOptions<Release>[] = [await visibleCampaigns(user)]
   if (query.campaignId) where.push({ campaignId: query.campaignId })
-  const rows = await Release.findAll({ where: { [Op.and]: where }, order: [['campaignId', 'ASC'], ['version', 'DESC']] })
+  const rows = await Release.findAll({
+    where: { [Op.and]: where },
+    order: [
+      ['campaignId', 'ASC'],
+      ['version', 'DESC'],
+    ],
+  })
   return summaries(rows)
 }
 

@@ -204,7 +204,9 @@ export async function getReviewView(user: User, spectrumId: number, now = new Da
   const othersClaim = claim && claim.userId !== user.id && claim.expiresAt > now ? claim : null
   const refusal =
     callRefusal(user, spectrum, hasCalled) ??
-    (othersClaim ? { code: 'claimed', reason: `${names.get(othersClaim.userId) ?? 'Someone'} is working on this spectrum until ${othersClaim.expiresAt.toISOString()}; it is read-only for you until then.` } : null)
+    (othersClaim
+      ? { code: 'claimed', reason: `${names.get(othersClaim.userId) ?? 'Someone'} is working on this spectrum until ${othersClaim.expiresAt.toISOString()}; it is read-only for you until then.` }
+      : null)
   const settled = dispute ? (await Classification.count({ where: { disputeId: dispute.id } })) > 0 : false
   const showClaim = claim && (claim.userId === user.id || claim.expiresAt > now)
   return {
@@ -251,7 +253,13 @@ const conflict = (code: string, message: string) => new HttpError(409, code, mes
  * Records one classifier's call and, once the campaign's required number of people have called,
  * decides the spectrum: agreed with the consensus, or disputed. Rows are only ever added.
  */
-export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 'config' | 'logger'>, user: User, spectrumId: number, input: RecordCallInput, now = new Date()): Promise<RecordCallResult> {
+export async function recordCall(
+  ctx: Pick<AppContext, 'sequelize' | 'mailer' | 'config' | 'logger'>,
+  user: User,
+  spectrumId: number,
+  input: RecordCallInput,
+  now = new Date(),
+): Promise<RecordCallResult> {
   await findVisibleSpectrum(user, spectrumId)
   const result = await ctx.sequelize.transaction(async (transaction) => {
     // The row lock serialises calls on one spectrum, so the N-th call is judged exactly once.
@@ -278,14 +286,17 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
       if (!shown) throw new HttpError(422, 'suggestion_not_shown', 'Blind review: record your own call before the suggestion is shown.')
       const explicit = input.spectralType !== undefined && input.luminosityClass !== undefined
       // Without values of their own the call is the suggestion, codes included.
-      parsed = explicit ? parseCallType(input.spectralType!, input.luminosityClass!, input.peculiarities ?? '') : { ...suggestionAsCall(suggestion), typeCode: suggestion.typeCode, classCode: suggestion.classCode }
+      parsed = explicit
+        ? parseCallType(input.spectralType!, input.luminosityClass!, input.peculiarities ?? '')
+        : { ...suggestionAsCall(suggestion), typeCode: suggestion.typeCode, classCode: suggestion.classCode }
       if (explicit && (Math.abs(parsed.typeCode - suggestion.typeCode) > 0.01 || Math.abs(parsed.classCode - suggestion.classCode) > 0.01)) {
         throw new HttpError(422, 'not_the_suggestion', `The suggestion is ${suggestion.spectralType}; record your own call if you see something else.`, {
           fields: { spectralType: `differs from the suggestion ${suggestion.spectralType}` },
         })
       }
     } else {
-      if (!input.spectralType || !input.luminosityClass) throw new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields: { spectralType: 'give a spectral type and a luminosity class, or accept the suggestion' } })
+      if (!input.spectralType || !input.luminosityClass)
+        throw new HttpError(422, 'invalid_input', 'Some fields are not valid.', { fields: { spectralType: 'give a spectral type and a luminosity class, or accept the suggestion' } })
       parsed = parseCallType(input.spectralType, input.luminosityClass, input.peculiarities ?? '')
     }
 
@@ -380,10 +391,7 @@ export async function recordCall(ctx: Pick<AppContext, 'sequelize' | 'mailer' | 
           },
           { transaction },
         )
-        await spectrum.update(
-          { status: 'disputed', statusReason: `The calls differ by ${judged.typeSpread} subtypes and ${judged.classSpread} classes; a lead settles it.` },
-          { transaction },
-        )
+        await spectrum.update({ status: 'disputed', statusReason: `The calls differ by ${judged.typeSpread} subtypes and ${judged.classSpread} classes; a lead settles it.` }, { transaction })
       }
     }
     return { spectrum, call, outcome, classification, dispute, callsSoFar: standing.length, callsRequired: required }

@@ -11,8 +11,20 @@ import { HttpError, notFound } from '../lib/http-error'
 import { sha256Hex } from '../lib/tokens'
 import { rawFileKey } from '../storage'
 import {
-  Campaign, Classification, Instrument, LineMeasurementRow, Measurement, ProcessingJob, ReviewCall, ReviewClaim, Spectrum, SpectrumBlob,
-  SpectrumEvent, Standard, Suggestion, User,
+  Campaign,
+  Classification,
+  Instrument,
+  LineMeasurementRow,
+  Measurement,
+  ProcessingJob,
+  ReviewCall,
+  ReviewClaim,
+  Spectrum,
+  SpectrumBlob,
+  SpectrumEvent,
+  Standard,
+  Suggestion,
+  User,
 } from '../models'
 import { readSpectrum, unpackZip, type ReadMeta, type ReadOptions, type ReadSuccess } from '../spectra/io'
 import type { Config } from '../config'
@@ -21,7 +33,20 @@ import { campaignForSubmission } from './campaigns.service'
 import { instrumentForSpectrum } from './instruments.service'
 import { findVisibleSpectrum, visibilityWhere } from './visibility'
 import { finalClassificationsFor, type FinalClassification } from './review.service'
-import type { FileResult, KnownFiles, KnownFilesInput, ReadChoices, SeriesQuery, SpectrumCorrectionInput, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumListQuery, SpectrumMetadataInput, SubmitFields } from '../../shared/api/spectra'
+import type {
+  FileResult,
+  KnownFiles,
+  KnownFilesInput,
+  ReadChoices,
+  SeriesQuery,
+  SpectrumCorrectionInput,
+  SpectrumDetail,
+  SpectrumList,
+  SpectrumListItem,
+  SpectrumListQuery,
+  SpectrumMetadataInput,
+  SubmitFields,
+} from '../../shared/api/spectra'
 
 export type { FileResult, SpectrumDetail, SpectrumListItem }
 
@@ -42,7 +67,10 @@ export function fitText(text: string, max: number): string {
 export type SubmitOptions = Omit<SubmitFields, 'wavelengthUnit'> & Partial<Pick<SubmitFields, 'wavelengthUnit'>>
 
 /** The observer's reading choices from a form: 'file' and absent mean "as the file says". */
-function choicesOf(input: { wavelengthMedium?: string | undefined; wavelengthUnit?: string | undefined; hdu?: number | null | undefined; aperture?: number | null | undefined }, base: ReadChoices = {}): ReadChoices {
+function choicesOf(
+  input: { wavelengthMedium?: string | undefined; wavelengthUnit?: string | undefined; hdu?: number | null | undefined; aperture?: number | null | undefined },
+  base: ReadChoices = {},
+): ReadChoices {
   const out: ReadChoices = { ...base }
   if (input.wavelengthMedium !== undefined) {
     if (input.wavelengthMedium === 'file') delete out.medium
@@ -136,8 +164,12 @@ async function findDuplicate(user: User, campaignId: number, sha: string): Promi
 /** Which of these files (by SHA-256) the campaign holds already; ids only of spectra the user may see. */
 export async function knownFiles(user: User, input: KnownFilesInput): Promise<KnownFiles> {
   await campaignForSubmission(user, input.campaignId)
-  const rows = input.sha256.length ? await Spectrum.findAll({ where: { campaignId: input.campaignId, fileSha256: { [Op.in]: [...new Set(input.sha256)] } }, attributes: ['id', 'fileSha256', 'submittedBy', 'campaignId'] }) : []
-  const visible = rows.length ? new Set((await Spectrum.findAll({ where: { [Op.and]: [{ id: { [Op.in]: rows.map((r) => r.id) } }, await visibilityWhere(user)] }, attributes: ['id'] })).map((r) => r.id)) : new Set<number>()
+  const rows = input.sha256.length
+    ? await Spectrum.findAll({ where: { campaignId: input.campaignId, fileSha256: { [Op.in]: [...new Set(input.sha256)] } }, attributes: ['id', 'fileSha256', 'submittedBy', 'campaignId'] })
+    : []
+  const visible = rows.length
+    ? new Set((await Spectrum.findAll({ where: { [Op.and]: [{ id: { [Op.in]: rows.map((r) => r.id) } }, await visibilityWhere(user)] }, attributes: ['id'] })).map((r) => r.id))
+    : new Set<number>()
   return { known: rows.map((r) => ({ sha256: r.fileSha256, spectrumId: visible.has(r.id) ? r.id : null })) }
 }
 
@@ -369,7 +401,18 @@ export async function nameSearchWhere(q: string): Promise<WhereOptions<Spectrum>
     { type: QueryTypes.SELECT },
   )
   if (rows.length > SEARCH_CANDIDATES && match) {
-    return { [Op.and]: [{ [Op.or]: [literal(match.replace('(object_name, file_name)', '(`Spectrum`.`object_name`, `Spectrum`.`file_name`)')), { objectName: { [Op.like]: `${like(q)}%` } }, { fileName: { [Op.like]: `${like(q)}%` } }] }, contains] } as WhereOptions<Spectrum>
+    return {
+      [Op.and]: [
+        {
+          [Op.or]: [
+            literal(match.replace('(object_name, file_name)', '(`Spectrum`.`object_name`, `Spectrum`.`file_name`)')),
+            { objectName: { [Op.like]: `${like(q)}%` } },
+            { fileName: { [Op.like]: `${like(q)}%` } },
+          ],
+        },
+        contains,
+      ],
+    } as WhereOptions<Spectrum>
   }
   return { [Op.and]: [{ id: { [Op.in]: [0, ...rows.map((r) => Number(r.id))] } }, contains] }
 }
@@ -414,7 +457,10 @@ export async function listSpectra(user: User, query: ListQuery): Promise<Spectru
   if (query.snrMax !== undefined) and.push({ snr: { [Op.lte]: query.snrMax } })
   const desc = query.sort.startsWith('-')
   const field = query.sort.replace(/^-/, '')
-  const order: Order = [[field, desc ? 'DESC' : 'ASC'], ['id', desc ? 'DESC' : 'ASC']]
+  const order: Order = [
+    [field, desc ? 'DESC' : 'ASC'],
+    ['id', desc ? 'DESC' : 'ASC'],
+  ]
   const where = { [Op.and]: and }
   const { page: _page, pageSize: _size, sort: _sort, ...filters } = query
   const countKey = JSON.stringify([user.id, filters])
@@ -520,8 +566,8 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
   const before = JSON.parse(s.readChoices) as ReadChoices
   const choices = choicesOf(input, before)
   const reread = !sameChoices(before, choices)
-  const resolutionChanged = (changes.resolutionFwhm !== undefined && changes.resolutionFwhm !== s.resolutionFwhm)
-    || (changes.resolvingPower !== undefined && changes.resolvingPower !== s.resolvingPower)
+  const resolutionChanged =
+    (changes.resolutionFwhm !== undefined && changes.resolutionFwhm !== s.resolutionFwhm) || (changes.resolvingPower !== undefined && changes.resolvingPower !== s.resolvingPower)
   // Another instrument means other standards to match against: processed again, like a new resolution.
   let instrumentText: string | null = null
   if (input.instrumentId !== undefined && input.instrumentId !== s.instrumentId) {
@@ -536,7 +582,11 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
   }
   const calls = await ReviewCall.count({ where: { spectrumId: id } })
   if (calls > 0 && user.role !== 'lead') {
-    throw new HttpError(409, 'has_calls', 'Classifiers have already called this spectrum, so how it is read and processed can only be changed by a lead. Ask a lead, or correct only the descriptive details.')
+    throw new HttpError(
+      409,
+      'has_calls',
+      'Classifiers have already called this spectrum, so how it is read and processed can only be changed by a lead. Ask a lead, or correct only the descriptive details.',
+    )
   }
   let columns: ReturnType<typeof readColumns> | undefined
   let read: ReadSuccess | undefined
@@ -571,8 +621,32 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
         userId: user.id,
         summary,
         details: JSON.stringify({
-          before: { ...describeRead(s, oldMeta), resolutionFwhm: s.resolutionFwhm, resolvingPower: s.resolvingPower, instrumentId: s.instrumentId, measurementId: currentMeasurement?.id ?? null, suggestionId: currentSuggestion?.id ?? null, suggestion: currentSuggestion?.spectralType ?? null },
-          after: { choices, resolutionFwhm: changes.resolutionFwhm ?? s.resolutionFwhm, resolvingPower: changes.resolvingPower ?? s.resolvingPower, instrumentId: changes.instrumentId !== undefined ? changes.instrumentId : s.instrumentId, ...(read ? { wavelengthRange: [columns!.row.wlMin, columns!.row.wlMax], pixels: columns!.row.pixels, vacuumConverted: read.meta.vacuumConverted, vacuumSource: read.meta.vacuumSource, unit: read.meta.wavelengthUnit, hdu: read.meta.hdu ?? null, aperture: read.meta.decisions?.aperture?.number ?? null } : {}) },
+          before: {
+            ...describeRead(s, oldMeta),
+            resolutionFwhm: s.resolutionFwhm,
+            resolvingPower: s.resolvingPower,
+            instrumentId: s.instrumentId,
+            measurementId: currentMeasurement?.id ?? null,
+            suggestionId: currentSuggestion?.id ?? null,
+            suggestion: currentSuggestion?.spectralType ?? null,
+          },
+          after: {
+            choices,
+            resolutionFwhm: changes.resolutionFwhm ?? s.resolutionFwhm,
+            resolvingPower: changes.resolvingPower ?? s.resolvingPower,
+            instrumentId: changes.instrumentId !== undefined ? changes.instrumentId : s.instrumentId,
+            ...(read
+              ? {
+                  wavelengthRange: [columns!.row.wlMin, columns!.row.wlMax],
+                  pixels: columns!.row.pixels,
+                  vacuumConverted: read.meta.vacuumConverted,
+                  vacuumSource: read.meta.vacuumSource,
+                  unit: read.meta.wavelengthUnit,
+                  hdu: read.meta.hdu ?? null,
+                  aperture: read.meta.decisions?.aperture?.number ?? null,
+                }
+              : {}),
+          },
         }),
       },
       { transaction },
@@ -625,7 +699,16 @@ export async function withdrawSpectrum(ctx: AppContext, user: User, id: number):
         kind: 'withdrawn',
         userId: user.id,
         summary: `${user.name || user.email} withdrew ${s.fileName} (${s.objectName}) before any call`,
-        details: JSON.stringify({ fileName: s.fileName, fileSha256: s.fileSha256, fileSize: s.fileSize, objectName: s.objectName, status: s.status, submittedAt: s.createdAt.toISOString(), wavelengthRange: [s.wlMin, s.wlMax], pixels: s.pixels }),
+        details: JSON.stringify({
+          fileName: s.fileName,
+          fileSha256: s.fileSha256,
+          fileSize: s.fileSize,
+          objectName: s.objectName,
+          status: s.status,
+          submittedAt: s.createdAt.toISOString(),
+          wavelengthRange: [s.wlMin, s.wlMax],
+          pixels: s.pixels,
+        }),
       },
       { transaction },
     )

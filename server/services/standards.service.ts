@@ -84,7 +84,10 @@ export async function ensureDefaultLibrary(sequelize: Sequelize, observedDir = D
       },
       { transaction },
     )
-    await LibraryVersionStandard.bulkCreate(rows.map((s) => ({ versionId: version.id, standardId: s.id })), { transaction })
+    await LibraryVersionStandard.bulkCreate(
+      rows.map((s) => ({ versionId: version.id, standardId: s.id })),
+      { transaction },
+    )
     return version
   })
 }
@@ -105,7 +108,14 @@ const SHARPEST_SHIPPED_FWHM = 2.5
 export async function listLibrary(): Promise<StandardsLibrary> {
   const [versions, standards, links] = await Promise.all([
     LibraryVersion.findAll({ order: [['id', 'ASC']] }),
-    Standard.findAll({ attributes: SUMMARY_ATTRIBUTES, order: [['typeCode', 'ASC'], ['classCode', 'DESC'], ['id', 'ASC']] }),
+    Standard.findAll({
+      attributes: SUMMARY_ATTRIBUTES,
+      order: [
+        ['typeCode', 'ASC'],
+        ['classCode', 'DESC'],
+        ['id', 'ASC'],
+      ],
+    }),
     LibraryVersionStandard.findAll(),
   ])
   const byStandard = new Map<number, number[]>()
@@ -187,7 +197,7 @@ export async function addObservedStandard(user: User, input: AddStandardInput): 
   }
   // Measured at the library level for its resolution (pipeline.ts): that is the standard's resolution.
   const suggestion = await Suggestion.findOne({ where: { spectrumId: input.spectrumId, isCurrent: true }, attributes: ['details'] })
-  const level = suggestion?.details ? (JSON.parse(suggestion.details) as { resolution?: { level?: number | null } }).resolution?.level ?? null : null
+  const level = suggestion?.details ? ((JSON.parse(suggestion.details) as { resolution?: { level?: number | null } }).resolution?.level ?? null) : null
   const rectified = bufferToFloat32(m.rectified)
   const mask = m.mask
   for (let i = 0; i < rectified.length; i++) if (mask[i] === 1) rectified[i] = Number.NaN
@@ -219,7 +229,10 @@ export async function retireStandard(id: number): Promise<StandardSummary> {
   if (s.retiredAt) throw new HttpError(409, 'already_retired', 'This standard is already retired.')
   await s.update({ retiredAt: new Date() })
   const links = await LibraryVersionStandard.findAll({ where: { standardId: id } })
-  return toStandardSummary(s, links.map((l) => l.versionId))
+  return toStandardSummary(
+    s,
+    links.map((l) => l.versionId),
+  )
 }
 
 /**
@@ -233,18 +246,22 @@ export async function publishVersion(sequelize: Sequelize, user: User, input: Pu
   if (kept.length === 0) throw new HttpError(409, 'empty_library', 'Every standard is retired: a version needs at least one.')
   const version = await sequelize.transaction(async (transaction) => {
     await LibraryVersion.update({ isActive: false }, { where: { isActive: true }, transaction })
-    const v = await LibraryVersion.create(
-      { name: input.name, description: input.description, status: 'published', isActive: true, publishedAt: new Date(), publishedBy: user.id },
+    const v = await LibraryVersion.create({ name: input.name, description: input.description, status: 'published', isActive: true, publishedAt: new Date(), publishedBy: user.id }, { transaction })
+    await LibraryVersionStandard.bulkCreate(
+      kept.map((s) => ({ versionId: v.id, standardId: s.id })),
       { transaction },
     )
-    await LibraryVersionStandard.bulkCreate(kept.map((s) => ({ versionId: v.id, standardId: s.id })), { transaction })
     return v
   })
   return toVersionSummary(version, kept.length)
 }
 
 /** A standard's rectified flux as float32 columns [wavelength, rectified] over its covered pixels. */
-export async function standardSeries(id: number, modelDir = DEFAULT_MODEL_DIR, observedDir = DEFAULT_OBSERVED_DIR): Promise<{ layout: { points: number; columns: string[]; standardId: number; spectralType: string; source: string }; body: Buffer }> {
+export async function standardSeries(
+  id: number,
+  modelDir = DEFAULT_MODEL_DIR,
+  observedDir = DEFAULT_OBSERVED_DIR,
+): Promise<{ layout: { points: number; columns: string[]; standardId: number; spectralType: string; source: string }; body: Buffer }> {
   const s = await Standard.findByPk(id)
   if (!s) throw notFound('The standard')
   let values: ArrayLike<number>
@@ -310,7 +327,12 @@ export async function librarySpecFor(versionId: number, modelDir = DEFAULT_MODEL
         teff: s.teff,
         logg: s.logg,
         feh: s.feh ?? null,
-        origin: s.instrumentId !== null && s.instrumentId !== undefined ? `${s.origin ?? 'instrument'}, spectrum ${s.spectrumId}` : s.spectrumId !== null ? `uploaded spectrum ${s.spectrumId}` : 'uploaded spectrum',
+        origin:
+          s.instrumentId !== null && s.instrumentId !== undefined
+            ? `${s.origin ?? 'instrument'}, spectrum ${s.spectrumId}`
+            : s.spectrumId !== null
+              ? `uploaded spectrum ${s.spectrumId}`
+              : 'uploaded spectrum',
         instrumentId: s.instrumentId ?? null,
         star: s.star ?? null,
         snr: s.provenance ? (JSON.parse(s.provenance) as StandardProvenance).snr : null,

@@ -118,9 +118,7 @@ export async function resuggestCampaign(ctx: AppContext, user: User, campaignId:
   if (versionId === null) throw new HttpError(409, 'no_active_library', 'No standards library version is active.')
   const spectra = await Spectrum.findAll({ where: { campaignId }, attributes: ['id'] })
   const ids = spectra.map((s) => s.id)
-  const pending = new Set(
-    (await ProcessingJob.findAll({ where: { spectrumId: { [Op.in]: ids }, status: { [Op.in]: ['queued', 'running'] } }, attributes: ['spectrumId'] })).map((j) => j.spectrumId),
-  )
+  const pending = new Set((await ProcessingJob.findAll({ where: { spectrumId: { [Op.in]: ids }, status: { [Op.in]: ['queued', 'running'] } }, attributes: ['spectrumId'] })).map((j) => j.spectrumId))
   const todo = ids.filter((id) => !pending.has(id))
   if (todo.length > 0) {
     await ProcessingJob.bulkCreate(todo.map((spectrumId) => ({ spectrumId, error: null, requestedBy: user.id, startedAt: null, finishedAt: null })))

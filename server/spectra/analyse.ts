@@ -43,7 +43,6 @@ export interface AnalyseOptions {
   flagged?: ArrayLike<number>
   /** Options for the continuum fit. @default {} */
   continuum?: ContinuumOptions
-
 }
 
 export interface PreparedSpectrum {
@@ -133,11 +132,7 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
   let prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions)
   let rv: AnalysisResult['rv'] = null
   if (rvReference) {
-    const result = measureSpectrumRadialVelocity(
-      { wavelength: prepared.wavelength, flux: prepared.rectified, mask: prepared.mask },
-      rvReference,
-      { grid, maxVelocity, region: rvRegion },
-    )
+    const result = measureSpectrumRadialVelocity({ wavelength: prepared.wavelength, flux: prepared.rectified, mask: prepared.mask }, rvReference, { grid, maxVelocity, region: rvRegion })
     if (result.found) {
       rv = { v: result.velocity, error: result.error }
       rest = shiftSpectrumToRest(masked, { velocity: result.velocity })
@@ -203,13 +198,7 @@ interface GridPreparation {
   pseudoContinuum: boolean
 }
 
-function prepareOnGrid(
-  spectrum: Spectrum1D,
-  grid: LogGrid,
-  targetFwhm: number | undefined,
-  inputFwhm: number | undefined,
-  continuumOptions: ContinuumOptions,
-): GridPreparation {
+function prepareOnGrid(spectrum: Spectrum1D, grid: LogGrid, targetFwhm: number | undefined, inputFwhm: number | undefined, continuumOptions: ContinuumOptions): GridPreparation {
   const rebinned = rebinSpectrumToLogGrid(spectrum, { grid })
   const mask = rebinned.mask!
   let covered = 0
@@ -217,15 +206,9 @@ function prepareOnGrid(
   if (covered < 5) {
     const lo = spectrum.wavelength[0]!
     const hi = spectrum.wavelength[spectrum.wavelength.length - 1]!
-    throw new Error(
-      `spectrum covers ${lo.toFixed(1)}–${hi.toFixed(1)} Å, which does not overlap the grid's ` +
-        `${grid.start.toFixed(1)}–${gridWavelength(grid, grid.length - 1).toFixed(1)} Å`,
-    )
+    throw new Error(`spectrum covers ${lo.toFixed(1)}–${hi.toFixed(1)} Å, which does not overlap the grid's ` + `${grid.start.toFixed(1)}–${gridWavelength(grid, grid.length - 1).toFixed(1)} Å`)
   }
-  const smoothed =
-    targetFwhm !== undefined && inputFwhm !== undefined && inputFwhm < targetFwhm
-      ? smoothSpectrumToFwhm(rebinned, { grid, targetFwhm, inputFwhm })
-      : rebinned
+  const smoothed = targetFwhm !== undefined && inputFwhm !== undefined && inputFwhm < targetFwhm ? smoothSpectrumToFwhm(rebinned, { grid, targetFwhm, inputFwhm }) : rebinned
   const fit = fitSpectrumContinuum(smoothed, { space: 'log', ...continuumOptions })
   let rectifiedError: Float64Array | undefined
   if (rebinned.error) {

@@ -140,7 +140,10 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     let nearest = 0
     for (let r = 1; r < sharp.fit.chi2.length; r++) if (sharp.fit.chi2[r]! < sharp.fit.chi2[nearest]!) nearest = r
     const p0 = unsmoothed.prepared
-    const velocity = measureSpectrumRadialVelocity({ wavelength: gridWavelengths(p0.grid), flux: p0.rectified, mask: p0.mask }, standardOnGrid(library, sharp.level, nearest), { grid: p0.grid, region })
+    const velocity = measureSpectrumRadialVelocity({ wavelength: gridWavelengths(p0.grid), flux: p0.rectified, mask: p0.mask }, standardOnGrid(library, sharp.level, nearest), {
+      grid: p0.grid,
+      region,
+    })
     const atRest = velocity.found && Math.abs(velocity.velocity) > 15 ? analyseSpectrum(shiftSpectrumToRest(input.spectrum, { velocity: velocity.velocity }), quick) : unsmoothed
     const estimate = estimateResolution(library, matchInput(atRest, undefined), { region, ...exclude })
     fwhm = estimate.fwhm
@@ -185,9 +188,14 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   const notStar = notStarReason(library, analysis, resolution.level!, suggestion)
   if (notStar) {
     notes.push(`Not a star: ${notStar}.`)
-    suggestion = { ...suggestion, flags: [...suggestion.flags, 'not-star'], uncertainty: { subtypes: Math.max(suggestion.uncertainty.subtypes, 10), classes: Math.max(suggestion.uncertainty.classes, 2) } }
+    suggestion = {
+      ...suggestion,
+      flags: [...suggestion.flags, 'not-star'],
+      uncertainty: { subtypes: Math.max(suggestion.uncertainty.subtypes, 10), classes: Math.max(suggestion.uncertainty.classes, 2) },
+    }
   }
-  if (suggestion.flags.includes('not-mk')) suggestion = { ...suggestion, uncertainty: { subtypes: Math.max(suggestion.uncertainty.subtypes, 10), classes: Math.max(suggestion.uncertainty.classes, 2) } }
+  if (suggestion.flags.includes('not-mk'))
+    suggestion = { ...suggestion, uncertainty: { subtypes: Math.max(suggestion.uncertainty.subtypes, 10), classes: Math.max(suggestion.uncertainty.classes, 2) } }
   steps.matchRest = (performance.now() - t) / 1000
   return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion, standards: standardsUsed(library, suggestion), resolution, notes, seconds: (performance.now() - started) / 1000, steps }
 }
@@ -204,7 +212,11 @@ export function residualSnr(library: PreparedMatchLibrary, level: LibraryLevel, 
   const { offset, pixels, wavelength } = library
   const template = level.flux.subarray(row * pixels, (row + 1) * pixels)
   const used: number[] = []
-  let m = 0, sx = 0, sy = 0, sxx = 0, sxy = 0
+  let m = 0,
+    sx = 0,
+    sy = 0,
+    sxx = 0,
+    sxy = 0
   for (let i = 0; i < pixels; i++) {
     const x = template[i]!
     const y = p.rectified[i + offset]!
@@ -259,7 +271,9 @@ function classificationRegion(library: PreparedMatchLibrary, wanted: readonly [n
   const lo = Math.max(wanted[0], library.wavelength[0]!)
   const hi = Math.min(wanted[1], library.wavelength[library.pixels - 1]!)
   if (hi - lo < MIN_REGION) {
-    notes.push(`The campaign's region ${wanted[0]}–${wanted[1]} Å lies outside the standards (${Math.round(library.wavelength[0]!)}–${Math.round(library.wavelength[library.pixels - 1]!)} Å); classified over ${DEFAULT_CLASSIFICATION_REGION[0]}–${DEFAULT_CLASSIFICATION_REGION[1]} Å.`)
+    notes.push(
+      `The campaign's region ${wanted[0]}–${wanted[1]} Å lies outside the standards (${Math.round(library.wavelength[0]!)}–${Math.round(library.wavelength[library.pixels - 1]!)} Å); classified over ${DEFAULT_CLASSIFICATION_REGION[0]}–${DEFAULT_CLASSIFICATION_REGION[1]} Å.`,
+    )
     return DEFAULT_CLASSIFICATION_REGION
   }
   if (lo > wanted[0] || hi < wanted[1]) notes.push(`Classified over ${Math.round(lo)}–${Math.round(hi)} Å, the part of the campaign's region ${wanted[0]}–${wanted[1]} Å the standards cover.`)
@@ -297,7 +311,11 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
   const sigma = analysis.snr !== null && analysis.snr > 0 ? 1 / analysis.snr : 0.02
   const { offset, pixels } = library
   const template = levelData.flux.subarray(row * pixels, (row + 1) * pixels)
-  let m = 0, sx = 0, sy = 0, sxx = 0, sxy = 0
+  let m = 0,
+    sx = 0,
+    sy = 0,
+    sxx = 0,
+    sxy = 0
   for (let i = 0; i < pixels; i++) {
     const x = template[i]!
     const y = p.rectified[i + offset]!
@@ -322,7 +340,14 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
       residual[i] = used ? y - (a + b * x) : Number.NaN
       own[i] = used ? y - 1 : Number.NaN
     }
-    const emission = notStarEvidence(library.wavelength, Float64Array.from(own, (v) => 1 + v), subtractRunningMedian(residual, library.wavelength, 150), sigma, level, suggestion.typeCode)
+    const emission = notStarEvidence(
+      library.wavelength,
+      Float64Array.from(own, (v) => 1 + v),
+      subtractRunningMedian(residual, library.wavelength, 150),
+      sigma,
+      level,
+      suggestion.typeCode,
+    )
     if (emission) return emission.reason
   }
   // Beyond the standards' span only the rectified spectrum speaks: strong emission there (Hβ and

@@ -6,7 +6,8 @@ import type { FileStore } from './types'
 export type { FileStore } from './types'
 export { rawFileKey } from './types'
 
-type StoreSettings = Pick<Config, 'STORAGE_DRIVER' | 'STORAGE_DIR'> & Partial<Pick<Config, 'S3_ENDPOINT' | 'S3_REGION' | 'S3_BUCKET' | 'S3_PREFIX' | 'S3_ACCESS_KEY_ID' | 'S3_SECRET_ACCESS_KEY' | 'S3_FORCE_PATH_STYLE'>>
+type StoreSettings = Pick<Config, 'STORAGE_DRIVER' | 'STORAGE_DIR'> &
+  Partial<Pick<Config, 'S3_ENDPOINT' | 'S3_REGION' | 'S3_BUCKET' | 'S3_PREFIX' | 'S3_ACCESS_KEY_ID' | 'S3_SECRET_ACCESS_KEY' | 'S3_FORCE_PATH_STYLE'>>
 
 /** The configured file store: `local` disk (the default) or an `s3`-compatible bucket. */
 export async function createFileStore(config: StoreSettings): Promise<FileStore> {

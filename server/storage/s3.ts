@@ -40,9 +40,7 @@ export class S3Store implements FileStore {
       requestChecksumCalculation: 'WHEN_REQUIRED',
       responseChecksumValidation: 'WHEN_REQUIRED',
       ...(settings.S3_ENDPOINT ? { endpoint: settings.S3_ENDPOINT } : {}),
-      ...(settings.S3_ACCESS_KEY_ID && settings.S3_SECRET_ACCESS_KEY
-        ? { credentials: { accessKeyId: settings.S3_ACCESS_KEY_ID, secretAccessKey: settings.S3_SECRET_ACCESS_KEY } }
-        : {}),
+      ...(settings.S3_ACCESS_KEY_ID && settings.S3_SECRET_ACCESS_KEY ? { credentials: { accessKeyId: settings.S3_ACCESS_KEY_ID, secretAccessKey: settings.S3_SECRET_ACCESS_KEY } } : {}),
     })
   }
 

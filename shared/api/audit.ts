@@ -125,7 +125,9 @@ export type InstrumentAccuracy = z.infer<typeof InstrumentAccuracy>
 export const SuggestionAccuracy = z.object({ instruments: z.array(InstrumentAccuracy), notes: z.array(z.string()) }).meta({ id: 'SuggestionAccuracy' })
 export type SuggestionAccuracy = z.infer<typeof SuggestionAccuracy>
 
-export const AuditReport = z.object({ ...auditFields, suggestionAccuracy: SuggestionAccuracy, campaign: CampaignRef, from: z.string().nullable(), to: z.string().nullable() }).meta({ id: 'AuditReport' })
+export const AuditReport = z
+  .object({ ...auditFields, suggestionAccuracy: SuggestionAccuracy, campaign: CampaignRef, from: z.string().nullable(), to: z.string().nullable() })
+  .meta({ id: 'AuditReport' })
 export type AuditReport = z.infer<typeof AuditReport>
 
 const DATE_ONLY = /^\d{4}-\d\d-\d\d$/
@@ -139,23 +141,29 @@ const when = z
 
 /** The audit's query string as sent; `to` is inclusive: a bare date covers that whole day. */
 export const AuditQueryFields = z.object({
-    campaign: z.coerce.number({ message: 'choose a campaign' }).int().positive({ message: 'choose a campaign' }),
-    /** First day (UTC), YYYY-MM-DD or a date-time. */
-    from: when.optional(),
-    /** Last day (UTC), inclusive. */
-    to: when.optional(),
+  campaign: z.coerce.number({ message: 'choose a campaign' }).int().positive({ message: 'choose a campaign' }),
+  /** First day (UTC), YYYY-MM-DD or a date-time. */
+  from: when.optional(),
+  /** Last day (UTC), inclusive. */
+  to: when.optional(),
 })
 export type AuditQueryFields = z.infer<typeof AuditQueryFields>
 
 /** The query read into a campaign id and a half-open range of instants. */
 export const AuditQuery = AuditQueryFields.transform((q) => ({
-    campaignId: q.campaign,
-    from: q.from ? new Date(DATE_ONLY.test(q.from) ? `${q.from}T00:00:00Z` : q.from) : undefined,
-    to: q.to ? (DATE_ONLY.test(q.to) ? new Date(Date.parse(`${q.to}T00:00:00Z`) + 86_400_000) : new Date(q.to)) : undefined,
-  }))
-  .refine((q) => !q.from || !q.to || q.from < q.to, { message: 'must be after from', path: ['to'] })
+  campaignId: q.campaign,
+  from: q.from ? new Date(DATE_ONLY.test(q.from) ? `${q.from}T00:00:00Z` : q.from) : undefined,
+  to: q.to ? (DATE_ONLY.test(q.to) ? new Date(Date.parse(`${q.to}T00:00:00Z`) + 86_400_000) : new Date(q.to)) : undefined,
+})).refine((q) => !q.from || !q.to || q.from < q.to, { message: 'must be after from', path: ['to'] })
 export type AuditQuery = z.infer<typeof AuditQuery>
 
 export const auditApi = {
-  report: endpoint({ method: 'get', path: '/audit', tag: 'Audit', summary: "Agreement figures of one campaign's calls over a date range", query: AuditQuery, response: z.object({ audit: AuditReport }) }),
+  report: endpoint({
+    method: 'get',
+    path: '/audit',
+    tag: 'Audit',
+    summary: "Agreement figures of one campaign's calls over a date range",
+    query: AuditQuery,
+    response: z.object({ audit: AuditReport }),
+  }),
 }

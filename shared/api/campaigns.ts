@@ -83,10 +83,7 @@ export type CampaignMemberSummary = z.infer<typeof CampaignMemberSummary>
 export const CampaignDetail = CampaignSummary.extend({ members: z.array(CampaignMemberSummary), createdAt: z.string(), updatedAt: z.string() }).meta({ id: 'CampaignDetail' })
 export type CampaignDetail = z.infer<typeof CampaignDetail>
 
-const regionEdge = z
-  .number()
-  .min(CAMPAIGN_REGION_LIMITS[0], `must be at least ${CAMPAIGN_REGION_LIMITS[0]} Å`)
-  .max(CAMPAIGN_REGION_LIMITS[1], `must be at most ${CAMPAIGN_REGION_LIMITS[1]} Å`)
+const regionEdge = z.number().min(CAMPAIGN_REGION_LIMITS[0], `must be at least ${CAMPAIGN_REGION_LIMITS[0]} Å`).max(CAMPAIGN_REGION_LIMITS[1], `must be at most ${CAMPAIGN_REGION_LIMITS[1]} Å`)
 
 const rules = {
   name: singleLine(160).pipe(z.string().min(1, 'is required')),
@@ -149,12 +146,41 @@ export type UpdateCampaignInput = z.infer<typeof UpdateCampaignInput>
 const campaignReply = z.object({ campaign: CampaignDetail })
 
 export const campaignsApi = {
-  list: endpoint({ method: 'get', path: '/campaigns', tag: 'Campaigns', summary: 'The campaigns the caller takes part in (leads: all), with their progress', response: z.object({ campaigns: z.array(CampaignSummary) }) }),
+  list: endpoint({
+    method: 'get',
+    path: '/campaigns',
+    tag: 'Campaigns',
+    summary: 'The campaigns the caller takes part in (leads: all), with their progress',
+    response: z.object({ campaigns: z.array(CampaignSummary) }),
+  }),
   create: endpoint({ method: 'post', path: '/campaigns', tag: 'Campaigns', summary: 'Create a campaign', body: CreateCampaignInput, status: 201, response: campaignReply }),
   get: endpoint({ method: 'get', path: '/campaigns/:id', tag: 'Campaigns', summary: 'One campaign with its people', params: idParams, response: campaignReply }),
   hr: endpoint({ method: 'get', path: '/campaigns/:id/hr', tag: 'Campaigns', summary: "The campaign's HR diagram from derived parameters", params: idParams, response: z.object({ hr: HrDiagram }) }),
   update: endpoint({ method: 'patch', path: '/campaigns/:id', tag: 'Campaigns', summary: "Change a campaign's settings", params: idParams, body: UpdateCampaignInput, response: campaignReply }),
-  setMembers: endpoint({ method: 'put', path: '/campaigns/:id/members', tag: 'Campaigns', summary: "Replace the campaign's people with exactly these", params: idParams, body: z.object({ userIds: z.array(z.number().int().positive()).max(1000) }), response: campaignReply }),
-  addMember: endpoint({ method: 'post', path: '/campaigns/:id/members', tag: 'Campaigns', summary: 'Add one person to the campaign', params: idParams, body: z.object({ userId: z.number().int().positive() }), response: campaignReply }),
-  removeMember: endpoint({ method: 'delete', path: '/campaigns/:id/members/:userId', tag: 'Campaigns', summary: 'Remove one person from the campaign', params: z.object({ id, userId: id }), response: campaignReply }),
+  setMembers: endpoint({
+    method: 'put',
+    path: '/campaigns/:id/members',
+    tag: 'Campaigns',
+    summary: "Replace the campaign's people with exactly these",
+    params: idParams,
+    body: z.object({ userIds: z.array(z.number().int().positive()).max(1000) }),
+    response: campaignReply,
+  }),
+  addMember: endpoint({
+    method: 'post',
+    path: '/campaigns/:id/members',
+    tag: 'Campaigns',
+    summary: 'Add one person to the campaign',
+    params: idParams,
+    body: z.object({ userId: z.number().int().positive() }),
+    response: campaignReply,
+  }),
+  removeMember: endpoint({
+    method: 'delete',
+    path: '/campaigns/:id/members/:userId',
+    tag: 'Campaigns',
+    summary: 'Remove one person from the campaign',
+    params: z.object({ id, userId: id }),
+    response: campaignReply,
+  }),
 }

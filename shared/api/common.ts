@@ -60,4 +60,3 @@ export type PersonRef = z.infer<typeof PersonRef>
 /** A campaign named in another resource. */
 export const CampaignRef = z.object({ id: z.number().int(), code: z.string(), name: z.string() }).meta({ id: 'CampaignRef' })
 export type CampaignRef = z.infer<typeof CampaignRef>
-

@@ -75,5 +75,12 @@ export const DerivedView = z
 export type DerivedView = z.infer<typeof DerivedView>
 
 export const derivedApi = {
-  get: endpoint({ method: 'get', path: '/spectra/:id/derived', tag: 'Spectra', summary: 'Physical parameters derived from the classification (estimates from published calibrations)', params: idParams, response: z.object({ derived: DerivedView }) }),
+  get: endpoint({
+    method: 'get',
+    path: '/spectra/:id/derived',
+    tag: 'Spectra',
+    summary: 'Physical parameters derived from the classification (estimates from published calibrations)',
+    params: idParams,
+    response: z.object({ derived: DerivedView }),
+  }),
 }

@@ -62,6 +62,22 @@ const disputeReply = z.object({ dispute: DisputeView })
 export const disputesApi = {
   list: endpoint({ method: 'get', path: '/disputes', tag: 'Disputes', summary: 'Disputes, open ones first', query: DisputeQuery, response: z.object({ disputes: z.array(DisputeView) }) }),
   get: endpoint({ method: 'get', path: '/disputes/:id', tag: 'Disputes', summary: 'One dispute with its calls', params: idParams, response: disputeReply }),
-  settle: endpoint({ method: 'post', path: '/disputes/:id/settle', tag: 'Disputes', summary: 'Settle a dispute with a final classification', params: idParams, body: SettleInput, response: disputeReply }),
-  answer: endpoint({ method: 'post', path: '/disputes/:id/answer', tag: 'Disputes', summary: 'Ask for another call, or reopen the calls', params: idParams, body: DisputeActionInput, response: disputeReply }),
+  settle: endpoint({
+    method: 'post',
+    path: '/disputes/:id/settle',
+    tag: 'Disputes',
+    summary: 'Settle a dispute with a final classification',
+    params: idParams,
+    body: SettleInput,
+    response: disputeReply,
+  }),
+  answer: endpoint({
+    method: 'post',
+    path: '/disputes/:id/answer',
+    tag: 'Disputes',
+    summary: 'Ask for another call, or reopen the calls',
+    params: idParams,
+    body: DisputeActionInput,
+    response: disputeReply,
+  }),
 }

@@ -70,7 +70,21 @@ export function endpoint<
   Q extends z.ZodType | undefined = undefined,
   B extends z.ZodType | undefined = undefined,
   Par extends z.ZodType | undefined = undefined,
->(spec: { method: M; path: P; summary: string; description?: string; tag: string; query?: Q; body?: B; multipart?: boolean; status?: 200 | 201 | 202 | 204; response: R; otherResponses?: Record<number, { description: string; schema: z.ZodType }> } & ParamsPart<P> & { params?: Par }): Endpoint<M, P, Q, B, R, Par> {
+>(
+  spec: {
+    method: M
+    path: P
+    summary: string
+    description?: string
+    tag: string
+    query?: Q
+    body?: B
+    multipart?: boolean
+    status?: 200 | 201 | 202 | 204
+    response: R
+    otherResponses?: Record<number, { description: string; schema: z.ZodType }>
+  } & ParamsPart<P> & { params?: Par },
+): Endpoint<M, P, Q, B, R, Par> {
   return spec as Endpoint<M, P, Q, B, R, Par>
 }
 

@@ -131,10 +131,33 @@ export type DemoteInput = z.infer<typeof DemoteInput>
 const instrumentReply = z.object({ instrument: InstrumentSummary })
 
 export const instrumentsApi = {
-  list: endpoint({ method: 'get', path: '/instruments', tag: 'Instruments', summary: "The instruments of the caller's campaigns, or of one campaign", query: InstrumentListQuery, response: z.object({ instruments: z.array(InstrumentSummary) }) }),
-  create: endpoint({ method: 'post', path: '/instruments', tag: 'Instruments', summary: 'Add an instrument to a campaign (leads)', body: CreateInstrumentInput, status: 201, response: instrumentReply }),
+  list: endpoint({
+    method: 'get',
+    path: '/instruments',
+    tag: 'Instruments',
+    summary: "The instruments of the caller's campaigns, or of one campaign",
+    query: InstrumentListQuery,
+    response: z.object({ instruments: z.array(InstrumentSummary) }),
+  }),
+  create: endpoint({
+    method: 'post',
+    path: '/instruments',
+    tag: 'Instruments',
+    summary: 'Add an instrument to a campaign (leads)',
+    body: CreateInstrumentInput,
+    status: 201,
+    response: instrumentReply,
+  }),
   get: endpoint({ method: 'get', path: '/instruments/:id', tag: 'Instruments', summary: 'One instrument', params: idParams, response: instrumentReply }),
-  update: endpoint({ method: 'patch', path: '/instruments/:id', tag: 'Instruments', summary: "Change an instrument's name, resolution, coverage or candidate S/N (leads)", params: idParams, body: UpdateInstrumentInput, response: instrumentReply }),
+  update: endpoint({
+    method: 'patch',
+    path: '/instruments/:id',
+    tag: 'Instruments',
+    summary: "Change an instrument's name, resolution, coverage or candidate S/N (leads)",
+    params: idParams,
+    body: UpdateInstrumentInput,
+    response: instrumentReply,
+  }),
   candidates: endpoint({
     method: 'get',
     path: '/instruments/:id/candidates',
@@ -157,7 +180,7 @@ export const instrumentsApi = {
     method: 'post',
     path: '/instruments/:id/demote',
     tag: 'Instruments',
-    summary: "Demote standards of the instrument; publishes a new active library version without them (leads)",
+    summary: 'Demote standards of the instrument; publishes a new active library version without them (leads)',
     params: idParams,
     body: DemoteInput,
     status: 201,

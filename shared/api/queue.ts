@@ -81,7 +81,29 @@ const spectrumIdParams = z.object({ spectrumId: id })
 
 export const queueApi = {
   list: endpoint({ method: 'get', path: '/queue', tag: 'Review', summary: "The caller's review queue", query: QueueQuery, response: QueuePage }),
-  next: endpoint({ method: 'get', path: '/queue/next', tag: 'Review', summary: 'The item after `after` in the caller’s queue with these filters (null when the queue is done)', query: NextQuery, response: z.object({ item: QueueItem.nullable() }) }),
-  claim: endpoint({ method: 'post', path: '/queue/:spectrumId/claim', tag: 'Review', summary: 'Claim a spectrum for a while so nobody else opens it', params: spectrumIdParams, response: z.object({ claim: ClaimView }) }),
-  release: endpoint({ method: 'delete', path: '/queue/:spectrumId/claim', tag: 'Review', summary: 'Give a claimed spectrum back to the queue', params: spectrumIdParams, status: 204, response: noBody }),
+  next: endpoint({
+    method: 'get',
+    path: '/queue/next',
+    tag: 'Review',
+    summary: 'The item after `after` in the caller’s queue with these filters (null when the queue is done)',
+    query: NextQuery,
+    response: z.object({ item: QueueItem.nullable() }),
+  }),
+  claim: endpoint({
+    method: 'post',
+    path: '/queue/:spectrumId/claim',
+    tag: 'Review',
+    summary: 'Claim a spectrum for a while so nobody else opens it',
+    params: spectrumIdParams,
+    response: z.object({ claim: ClaimView }),
+  }),
+  release: endpoint({
+    method: 'delete',
+    path: '/queue/:spectrumId/claim',
+    tag: 'Review',
+    summary: 'Give a claimed spectrum back to the queue',
+    params: spectrumIdParams,
+    status: 204,
+    response: noBody,
+  }),
 }

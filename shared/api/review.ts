@@ -93,9 +93,7 @@ export const FinalClassification = z
   .meta({ id: 'FinalClassification' })
 export type FinalClassification = z.infer<typeof FinalClassification>
 
-export const ClaimView = z
-  .object({ spectrumId: z.number().int(), mine: z.boolean(), by: PersonRef, claimedAt: z.string(), expiresAt: z.string(), live: z.boolean() })
-  .meta({ id: 'ClaimView' })
+export const ClaimView = z.object({ spectrumId: z.number().int(), mine: z.boolean(), by: PersonRef, claimedAt: z.string(), expiresAt: z.string(), live: z.boolean() }).meta({ id: 'ClaimView' })
 export type ClaimView = z.infer<typeof ClaimView>
 
 /** The campaign settings a classifier works under. */
@@ -193,7 +191,14 @@ export const RecordCallResult = z
 export type RecordCallResult = z.infer<typeof RecordCallResult>
 
 export const reviewApi = {
-  view: endpoint({ method: 'get', path: '/spectra/:id/review', tag: 'Review', summary: 'Everything the review screen needs, with blind review applied for the caller', params: idParams, response: ReviewView }),
+  view: endpoint({
+    method: 'get',
+    path: '/spectra/:id/review',
+    tag: 'Review',
+    summary: 'Everything the review screen needs, with blind review applied for the caller',
+    params: idParams,
+    response: ReviewView,
+  }),
   recordCall: endpoint({
     method: 'post',
     path: '/spectra/:id/calls',

@@ -16,5 +16,12 @@ export const SpectrumLiveStatus = z
 export type SpectrumLiveStatus = z.infer<typeof SpectrumLiveStatus>
 
 export const statusApi = {
-  get: endpoint({ method: 'get', path: '/spectra/:id/status', tag: 'Spectra', summary: 'Where a spectrum stands now (its processing job and place in line)', params: idParams, response: SpectrumLiveStatus }),
+  get: endpoint({
+    method: 'get',
+    path: '/spectra/:id/status',
+    tag: 'Spectra',
+    summary: 'Where a spectrum stands now (its processing job and place in line)',
+    params: idParams,
+    response: SpectrumLiveStatus,
+  }),
 }

@@ -55,7 +55,14 @@ export const tokensApi = {
     status: 201,
     response: CreatedToken,
   }),
-  revokeMine: endpoint({ method: 'delete', path: '/me/tokens/:id', tag: 'API tokens', summary: 'Revoke one of the caller’s tokens; it is refused from the next request on', params: idParams, response: tokenReply }),
+  revokeMine: endpoint({
+    method: 'delete',
+    path: '/me/tokens/:id',
+    tag: 'API tokens',
+    summary: 'Revoke one of the caller’s tokens; it is refused from the next request on',
+    params: idParams,
+    response: tokenReply,
+  }),
   all: endpoint({ method: 'get', path: '/tokens', tag: 'API tokens', summary: "Everyone's tokens (leads)", query: z.object({ user: id.optional() }), response: tokenList }),
   revoke: endpoint({ method: 'delete', path: '/tokens/:id', tag: 'API tokens', summary: "Revoke anyone's token (leads)", params: idParams, response: tokenReply }),
 }

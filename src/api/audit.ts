@@ -2,7 +2,23 @@ import { auditApi, type AuditQueryFields, type AuditReport } from '@shared/api/a
 import { campaignsApi } from '@shared/api/campaigns'
 import { call } from './http'
 
-export type { AccuracyFigures, AgreementFigures, AuditReport, InstrumentAccuracy, SuggestionAccuracy, VersionAccuracy, BlindFigures, ClassifierFigures, ConfusionMatrix, Figure, FourFigures, GroupFigures, MatrixCell, PairFigures, RaterRef } from '@shared/api/audit'
+export type {
+  AccuracyFigures,
+  AgreementFigures,
+  AuditReport,
+  InstrumentAccuracy,
+  SuggestionAccuracy,
+  VersionAccuracy,
+  BlindFigures,
+  ClassifierFigures,
+  ConfusionMatrix,
+  Figure,
+  FourFigures,
+  GroupFigures,
+  MatrixCell,
+  PairFigures,
+  RaterRef,
+} from '@shared/api/audit'
 
 /** Campaign, first and last day (YYYY-MM-DD, UTC, inclusive). */
 export type AuditQuery = AuditQueryFields

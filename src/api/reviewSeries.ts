@@ -20,5 +20,7 @@ export const fetchStandardSeries = (standardId: number, maxPoints = LIBRARY_GRID
 /** Every standard still in use (any library version), for overlays. */
 export async function listOverlayStandards(): Promise<OverlayStandardSummary[]> {
   const { standards } = await call(standardsApi.library)
-  return standards.filter((s) => !s.retiredAt).map(({ id, spectralType, typeCode, luminosityClass, classCode, source, retiredAt }) => ({ id, spectralType, typeCode, luminosityClass, classCode, source, retiredAt }))
+  return standards
+    .filter((s) => !s.retiredAt)
+    .map(({ id, spectralType, typeCode, luminosityClass, classCode, source, retiredAt }) => ({ id, spectralType, typeCode, luminosityClass, classCode, source, retiredAt }))
 }

@@ -18,7 +18,20 @@ import { getSeries } from './series'
 
 export type { SpectrumHistory }
 export type { MeasurementSummary, SpectrumMeasurements } from '@shared/api/measurements'
-export type { FileResult, HeaderValue, ReadChoices, ReadDecisions, SpectrumDetail, SpectrumList, SpectrumListItem, SpectrumPage, SpectrumSort, SpectrumSortField, SubmitReply, WavelengthUnitChoice } from '@shared/api/spectra'
+export type {
+  FileResult,
+  HeaderValue,
+  ReadChoices,
+  ReadDecisions,
+  SpectrumDetail,
+  SpectrumList,
+  SpectrumListItem,
+  SpectrumPage,
+  SpectrumSort,
+  SpectrumSortField,
+  SubmitReply,
+  WavelengthUnitChoice,
+} from '@shared/api/spectra'
 export type { SpectrumSuggestions } from '@shared/api/suggestions'
 
 /** One classification line's measurement; unmeasured lines carry a reason and nulls, never zeros. */
@@ -71,7 +84,8 @@ export type SpectrumMetadataInput = Omit<SpectrumCorrectionInput, 'wavelengthMed
 /** How to read the stored file again: 'file' and null mean "as the file says" / automatic. */
 export type ReadingCorrection = Pick<SpectrumCorrectionInput, 'wavelengthMedium' | 'wavelengthUnit' | 'hdu' | 'aperture'>
 
-export const updateSpectrum = async (id: number, changes: SpectrumMetadataInput & ReadingCorrection): Promise<SpectrumDetail> => (await call(spectraApi.update, { params: { id }, body: changes })).spectrum
+export const updateSpectrum = async (id: number, changes: SpectrumMetadataInput & ReadingCorrection): Promise<SpectrumDetail> =>
+  (await call(spectraApi.update, { params: { id }, body: changes })).spectrum
 
 /** Withdraws one's own spectrum before any call: the file and its results go. */
 export const withdrawSpectrum = (id: number) => call(spectraApi.withdraw, { params: { id } })

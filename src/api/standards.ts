@@ -40,7 +40,13 @@ export interface SpectrumChoice {
 export async function findSpectra(q: string): Promise<SpectrumChoice[]> {
   const text = q.trim()
   const asId = /^#?\d+$/.test(text) ? Number(text.replace('#', '')) : null
-  const choice = (s: { id: number; objectName: string; status: string; campaign: { code: string }; snr: number | null }): SpectrumChoice => ({ id: s.id, objectName: s.objectName, status: s.status, campaignCode: s.campaign.code, snr: s.snr })
+  const choice = (s: { id: number; objectName: string; status: string; campaign: { code: string }; snr: number | null }): SpectrumChoice => ({
+    id: s.id,
+    objectName: s.objectName,
+    status: s.status,
+    campaignCode: s.campaign.code,
+    snr: s.snr,
+  })
   const body = await call(spectraApi.list, { query: { q: asId === null && text ? text : undefined, pageSize: 20, sort: '-createdAt' } })
   const items = body.items.map(choice)
   if (asId === null) return items

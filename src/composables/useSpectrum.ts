@@ -1,6 +1,16 @@
 import { computed, onBeforeUnmount, ref, shallowRef, toValue, watch, type MaybeRefOrGetter } from 'vue'
 import { ApiError } from '@/api/http'
-import { getPreparedData, getSpectrum, getSpectrumData, processSpectrumAgain, updateSpectrum, withdrawSpectrum, type ReadingCorrection, type SpectrumMetadataInput, type SpectrumPage } from '@/api/spectra'
+import {
+  getPreparedData,
+  getSpectrum,
+  getSpectrumData,
+  processSpectrumAgain,
+  updateSpectrum,
+  withdrawSpectrum,
+  type ReadingCorrection,
+  type SpectrumMetadataInput,
+  type SpectrumPage,
+} from '@/api/spectra'
 import type { DecodedSeries } from '@/lib/series'
 import type { WavelengthRegion } from '@/lib/spectrumPlot'
 import { useAsync } from './useAsync'
@@ -42,10 +52,7 @@ export function useSpectrum(spectrumId: MaybeRefOrGetter<number>) {
     zoomState.value = 'loading'
     try {
       const range = { from: r[0], to: r[1], maxPoints: ZOOM_POINTS }
-      const [o, p] = await Promise.all([
-        getSpectrumData(id, range, mine.signal),
-        preparedOverview.data.value ? getPreparedData(id, range, mine.signal).catch(() => null) : Promise.resolve(null),
-      ])
+      const [o, p] = await Promise.all([getSpectrumData(id, range, mine.signal), preparedOverview.data.value ? getPreparedData(id, range, mine.signal).catch(() => null) : Promise.resolve(null)])
       if (mine.signal.aborted) return
       zoomed.value = { observed: o, prepared: p }
       zoomState.value = 'idle'

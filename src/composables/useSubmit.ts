@@ -198,9 +198,7 @@ export function takeBatch<T extends { file: File }>(line: T[], maxFiles: number,
  * stops the others; an error about the form itself (a 422 with field messages, a campaign one may
  * not submit to) stops the batch and is shown on the form.
  */
-export function useSubmit(
-  options: { parallel?: number; busyRetryMs?: number; batchFiles?: number; batchBytes?: number; onRefused?: (entries: RefusedEntry[]) => void } = {},
-) {
+export function useSubmit(options: { parallel?: number; busyRetryMs?: number; batchFiles?: number; batchBytes?: number; onRefused?: (entries: RefusedEntry[]) => void } = {}) {
   // The server takes two uploads of one person at a time (UPLOADS_PER_USER); more wait their turn.
   const parallel = options.parallel ?? 2
   const busyRetryMs = options.busyRetryMs ?? 2000
@@ -275,7 +273,9 @@ export function useSubmit(
             item.progress = 1
             item.status = 'done'
           }
-          const refused = reply.results.flatMap((r) => (r.outcome === 'refused' ? [{ at: new Date().toISOString(), file: r.file, kind: 'refused' as const, code: r.code, message: r.message, campaignId: fields.campaignId ?? null }] : []))
+          const refused = reply.results.flatMap((r) =>
+            r.outcome === 'refused' ? [{ at: new Date().toISOString(), file: r.file, kind: 'refused' as const, code: r.code, message: r.message, campaignId: fields.campaignId ?? null }] : [],
+          )
           if (refused.length > 0) options.onRefused?.(refused)
         } catch (e) {
           const err = e instanceof ApiError ? e : new ApiError(0, 'client_error', messageOf(e))
@@ -300,7 +300,9 @@ export function useSubmit(
               item.status = 'failed'
               item.error = { status: err.status, code, message: err.message }
             }
-            options.onRefused?.(batch.map((item) => ({ at: new Date().toISOString(), file: item.file.name, kind: 'not sent' as const, code, message: err.message, campaignId: fields.campaignId ?? null })))
+            options.onRefused?.(
+              batch.map((item) => ({ at: new Date().toISOString(), file: item.file.name, kind: 'not sent' as const, code, message: err.message, campaignId: fields.campaignId ?? null })),
+            )
           }
         } finally {
           handles.value.delete(key)

@@ -5,7 +5,11 @@
  */
 
 const SUPER: Record<string, string> = { '-': '⁻', '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹' }
-const sup = (n: number) => String(n).split('').map((c) => SUPER[c] ?? c).join('')
+const sup = (n: number) =>
+  String(n)
+    .split('')
+    .map((c) => SUPER[c] ?? c)
+    .join('')
 
 /** Unit words as written in FITS headers and text files → the symbol shown. */
 // prettier-ignore

@@ -24,7 +24,7 @@ export function coverageOf(standards: readonly StandardSummary[]): { cells: Cove
     const cell = coverageCell(s.typeCode, s.classCode)
     const key = cellKey(cell)
     cells.set(key, cell)
-    const who = s.provenance ? `${s.provenance.objectName} (#${s.provenance.spectrumId})` : s.star ?? `standard #${s.id}`
+    const who = s.provenance ? `${s.provenance.objectName} (#${s.provenance.spectrumId})` : (s.star ?? `standard #${s.id}`)
     titles[key] = titles[key] ? `${titles[key]}; ${who}` : `${cell.label}: ${who}`
   }
   return { cells: [...cells.values()], titles }

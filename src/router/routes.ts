@@ -15,7 +15,26 @@ declare module 'vue-router' {
 }
 
 /** Every screen's route name, so links and the nav table are checked by the compiler. */
-export type AppRouteName = 'home' | 'signIn' | 'setPassword' | 'account' | 'people' | 'outbox' | 'notFound' | 'submit' | 'spectra' | 'spectrum' | 'reviewQueue' | 'spectrumReview' | 'disputes' | 'campaigns' | 'standards' | 'audit' | 'releases' | 'release' | 'apiReference'
+export type AppRouteName =
+  | 'home'
+  | 'signIn'
+  | 'setPassword'
+  | 'account'
+  | 'people'
+  | 'outbox'
+  | 'notFound'
+  | 'submit'
+  | 'spectra'
+  | 'spectrum'
+  | 'reviewQueue'
+  | 'spectrumReview'
+  | 'disputes'
+  | 'campaigns'
+  | 'standards'
+  | 'audit'
+  | 'releases'
+  | 'release'
+  | 'apiReference'
 
 type AppRoute = RouteRecordRaw & { name: AppRouteName }
 

@@ -81,8 +81,7 @@ export interface AtomicLine {
 
 const NIST = 'NIST ASD (from memory)'
 const NIST_SUM = 'NIST ASD, multiplet components summed (from memory)'
-const vdw = (logStarkPerElectron?: number): Broadening =>
-  logStarkPerElectron === undefined ? { kind: 'van-der-waals' } : { kind: 'van-der-waals', logStarkPerElectron }
+const vdw = (logStarkPerElectron?: number): Broadening => (logStarkPerElectron === undefined ? { kind: 'van-der-waals' } : { kind: 'van-der-waals', logStarkPerElectron })
 
 /**
  * Balmer lines Hα … H16 (lower level n = 2, g = 8). Wavelengths: NIST ASD air values for
@@ -91,13 +90,30 @@ const vdw = (logStarkPerElectron?: number): Broadening =>
  * Absorption oscillator strengths f(2 → n): Wiese et al., NIST ASD (from memory).
  */
 export const BALMER_OSCILLATOR_STRENGTHS: ReadonlyArray<readonly [number, number]> = [
-  [3, 0.6407], [4, 0.1193], [5, 0.04467], [6, 0.02209], [7, 0.0127], [8, 0.008036], [9, 0.005429],
-  [10, 0.003851], [11, 0.002835], [12, 0.002151], [13, 0.001672], [14, 0.001326], [15, 0.00107],
+  [3, 0.6407],
+  [4, 0.1193],
+  [5, 0.04467],
+  [6, 0.02209],
+  [7, 0.0127],
+  [8, 0.008036],
+  [9, 0.005429],
+  [10, 0.003851],
+  [11, 0.002835],
+  [12, 0.002151],
+  [13, 0.001672],
+  [14, 0.001326],
+  [15, 0.00107],
   [16, 0.000877],
 ]
 
 const BALMER_AIR: Readonly<Record<number, number>> = {
-  3: 6562.8, 4: 4861.33, 5: 4340.47, 6: 4101.74, 7: 3970.07, 8: 3889.05, 9: 3835.38,
+  3: 6562.8,
+  4: 4861.33,
+  5: 4340.47,
+  6: 4101.74,
+  7: 3970.07,
+  8: 3889.05,
+  9: 3835.38,
 }
 
 /**
@@ -276,7 +292,13 @@ const HE_II: ReadonlyArray<readonly [number, number, number, number]> = [
 /** Every non-Balmer atomic line, in wavelength order within groups (order is fixed for reproducibility). */
 export const ATOMIC_LINES: readonly AtomicLine[] = [
   ...ROWS.map(([wavelength, element, stage, lowerEnergy, logGf, logStark, source]) => ({
-    wavelength, element, stage, lowerEnergy, logGf, broadening: vdw(logStark), source,
+    wavelength,
+    element,
+    stage,
+    lowerEnergy,
+    logGf,
+    broadening: vdw(logStark),
+    source,
   })),
   ...HE_II.map(([wavelength, lowerN, upperN, f]) => ({
     wavelength,

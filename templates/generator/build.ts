@@ -63,7 +63,11 @@ export function buildLibrary(outDir: string, options: { only?: readonly string[]
     resolutionFwhm: RESOLUTION_FWHM,
     rectified: { path: 'rectified.f32', dtype: 'float32le', rows: planned.length, columns: grid.length, sha256: sha256(rectifiedBytes) },
     continuum: {
-      path: 'continuum.f32', dtype: 'float32le', rows: planned.length, columns: cgrid.length, sha256: sha256(continuumBytes),
+      path: 'continuum.f32',
+      dtype: 'float32le',
+      rows: planned.length,
+      columns: cgrid.length,
+      sha256: sha256(continuumBytes),
       unit: 'erg s-1 cm-2 A-1 (surface flux)',
     },
     standards: entries,

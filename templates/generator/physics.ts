@@ -227,7 +227,7 @@ export function continuousOpacityPerHydrogen(wavelength: number, state: OpacityS
   for (let n = 2; n <= 12; n++) {
     if (wavelength > hydrogenEdge(n)) continue
     const population = (neutral * 2 * n * n * Math.exp(-(13.598 * (1 - 1 / (n * n))) / (BOLTZMANN_EV * t))) / u
-    hbf += population * 1.0449e-26 * wavelength ** 3 / n ** 5
+    hbf += (population * 1.0449e-26 * wavelength ** 3) / n ** 5
   }
   // H⁻ bound-free and free-free, both per neutral H atom.
   const hmbf = 4.158e-10 * hydrogenMinusBoundFreeCrossSection(wavelength) * state.electronPressure * theta ** 2.5 * 10 ** (0.754 * theta)
@@ -392,7 +392,7 @@ export function vanDerWaalsDamping(wavelength: number, ionisation: number, lower
  */
 export function linearStarkDamping(lowerN: number, upperN: number, charge: number, electronDensity: number): number {
   const field = 2.61 * ELECTRON_CHARGE * electronDensity ** (2 / 3)
-  const shift = ((3 * ELECTRON_CHARGE * BOHR_RADIUS) / (2 * PLANCK * LIGHT_SPEED)) * field * (upperN * upperN - lowerN * lowerN) / charge
+  const shift = (((3 * ELECTRON_CHARGE * BOHR_RADIUS) / (2 * PLANCK * LIGHT_SPEED)) * field * (upperN * upperN - lowerN * lowerN)) / charge
   return 4 * Math.PI * LIGHT_SPEED * shift
 }
 
@@ -417,7 +417,7 @@ export function lineToContinuumScale(
   const lcm = wavelength * 1e-8
   const boltzmann = Math.exp(-lowerEnergy / (BOLTZMANN_EV * temperature)) / partition
   const stimulated = 1 - Math.exp(-HC_OVER_K / (wavelength * temperature))
-  const kappa = (CLASSICAL_CROSS_SECTION * (lcm * lcm) / LIGHT_SPEED) * 10 ** logGf * stageFraction * boltzmann * stimulated / (Math.sqrt(Math.PI) * doppler * 1e-8)
+  const kappa = (((CLASSICAL_CROSS_SECTION * (lcm * lcm)) / LIGHT_SPEED) * 10 ** logGf * stageFraction * boltzmann * stimulated) / (Math.sqrt(Math.PI) * doppler * 1e-8)
   return kappa / continuum
 }
 
@@ -450,14 +450,7 @@ export function maximumLineDepth(wavelength: number, teff: number): number {
  * @param reducedMass μ, u
  * @param dissociationEnergy D₀, eV
  */
-export function moleculesPerHydrogen(
-  neutralA: number,
-  neutralB: number,
-  reducedMass: number,
-  dissociationEnergy: number,
-  temperature: number,
-  hydrogenDensity: number,
-): number {
+export function moleculesPerHydrogen(neutralA: number, neutralB: number, reducedMass: number, dissociationEnergy: number, temperature: number, hydrogenDensity: number): number {
   const kT = BOLTZMANN * temperature
   const logK = 1.5 * Math.log((2 * Math.PI * reducedMass * ATOMIC_MASS_UNIT * kT) / (PLANCK * PLANCK)) - dissociationEnergy / (BOLTZMANN_EV * temperature)
   const n = neutralA * neutralB * hydrogenDensity * Math.exp(-logK)

@@ -1,16 +1,7 @@
 /**
  * Which standards the default model library holds, and the microturbulence of each class.
  */
-import {
-  LUMINOSITY_CLASSES,
-  effectiveTemperature,
-  isCalibrated,
-  spectralTypeFromCode,
-  surfaceGravity,
-  typeCode,
-  type LuminosityClass,
-  type SpectralLetter,
-} from '../../shared/calibration'
+import { LUMINOSITY_CLASSES, effectiveTemperature, isCalibrated, spectralTypeFromCode, surfaceGravity, typeCode, type LuminosityClass, type SpectralLetter } from '../../shared/calibration'
 
 /** Spectral types of the grid: about one subtype apart, O5–M5. */
 // prettier-ignore
@@ -25,7 +16,12 @@ export const MODEL_TYPES: readonly string[] = [
  * supergiants (Gray 2005, ch. 17; common practice).
  */
 export const MICROTURBULENCE: Readonly<Record<LuminosityClass, number>> = {
-  V: 2, IV: 2, III: 2.5, II: 3.5, Ib: 5, Ia: 8,
+  V: 2,
+  IV: 2,
+  III: 2.5,
+  II: 3.5,
+  Ib: 5,
+  Ia: 8,
 }
 
 /** One planned standard. */

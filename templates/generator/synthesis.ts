@@ -4,17 +4,7 @@
  */
 import { vacuumToAir } from '../../shared/airvac'
 import { gridWavelength, type LogGrid } from '../../shared/grid'
-import {
-  ATOMIC_LINES,
-  BALMER_OSCILLATOR_STRENGTHS,
-  ELEMENTS,
-  HYDROGEN_N2_ENERGY,
-  MOLECULAR_BANDS,
-  MOLECULES,
-  balmerAirWavelength,
-  type AtomicLine,
-  type Molecule,
-} from './atomic'
+import { ATOMIC_LINES, BALMER_OSCILLATOR_STRENGTHS, ELEMENTS, HYDROGEN_N2_ENERGY, MOLECULAR_BANDS, MOLECULES, balmerAirWavelength, type AtomicLine, type Molecule } from './atomic'
 import {
   abundanceRelativeToHydrogen as abundanceFor,
   balmerJump,
@@ -199,7 +189,7 @@ function prepareAtomicLine(line: AtomicLine, input: StandardInput, layer: Layer,
 
 /** Lorentz half width in Å of a damping constant γ: Δλ = λ² γ / (4π c). */
 function starkHalfWidth(gamma: number, wavelength: number): number {
-  return ((wavelength * 1e-8) ** 2 * gamma) / (4 * Math.PI * 2.99792458e10) * 1e8
+  return (((wavelength * 1e-8) ** 2 * gamma) / (4 * Math.PI * 2.99792458e10)) * 1e8
 }
 
 /** a = γ / (4π Δν_D) with Δν_D = c Δλ_D / λ². */

@@ -66,7 +66,10 @@ function readSourceSpectrum(source: string, path: string, file: string): Spectru
   const bytes = readFileSync(path)
   if (source === 'jhc') {
     // "# Wavelength [nm]    Normalized Amplitude": two columns, nm.
-    const rows = bytes.toString('utf8').split(/\r?\n/).filter((l) => l.trim() !== '' && !l.startsWith('#'))
+    const rows = bytes
+      .toString('utf8')
+      .split(/\r?\n/)
+      .filter((l) => l.trim() !== '' && !l.startsWith('#'))
     const wavelength = new Float64Array(rows.length)
     const flux = new Float64Array(rows.length)
     rows.forEach((l, i) => {
@@ -187,7 +190,10 @@ export function buildObservedLibrary(dataDir: string, outDir: string): ObservedL
     })
     kept.forEach((k, i) => {
       // Typical distance between stars of nearby type: spectra change fastest among M types.
-      const local = kept.map((o, j) => (j !== i && Math.abs(o.entry.typeCode! - k.entry.typeCode!) <= 3 ? nearest[j]! : Number.NaN)).filter(Number.isFinite).sort((a, b) => a - b)
+      const local = kept
+        .map((o, j) => (j !== i && Math.abs(o.entry.typeCode! - k.entry.typeCode!) <= 3 ? nearest[j]! : Number.NaN))
+        .filter(Number.isFinite)
+        .sort((a, b) => a - b)
       const median = local[local.length >> 1]
       if (local.length >= 3 && nearest[i]! > OUTLIER_FACTOR * median!) {
         k.entry.excludedBecause = `spectrum unlike any other of its library (nearest residual ${(nearest[i]! / median!).toFixed(0)}× the median of stars within three subtypes): taken as damaged or unusual`

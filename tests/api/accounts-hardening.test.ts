@@ -31,7 +31,10 @@ describe('password reset', () => {
       const times: Record<'known' | 'unknown', number[]> = { known: [], unknown: [] }
       const bodies = new Set<string>()
       for (let i = 0; i < 25; i++) {
-        for (const [kind, email] of [['known', user.email], ['unknown', unknown]] as const) {
+        for (const [kind, email] of [
+          ['known', user.email],
+          ['unknown', unknown],
+        ] as const) {
           const started = process.hrtime.bigint()
           const res = await send(anon, 'post', '/api/auth/forgot', { email })
           times[kind].push(Number(process.hrtime.bigint() - started) / 1e6)
@@ -88,7 +91,11 @@ describe('X-Forwarded-For', () => {
     const anon = await agentFor(app)
     const statuses: number[] = []
     for (let i = 0; i < 6; i++) {
-      const res = await anon.agent.post('/api/auth/login').set('x-csrf-token', anon.csrf).set('x-forwarded-for', `203.0.113.${i + 1}`).send({ email, password: 'wrong password' })
+      const res = await anon.agent
+        .post('/api/auth/login')
+        .set('x-csrf-token', anon.csrf)
+        .set('x-forwarded-for', `203.0.113.${i + 1}`)
+        .send({ email, password: 'wrong password' })
       statuses.push(res.status)
     }
     return statuses
@@ -134,10 +141,7 @@ describe('the last active lead', () => {
     try {
       const a = await signedInPerson(t.app, 'lead', 'Lead Ada')
       const b = await signedInPerson(t.app, 'lead', 'Lead Ben')
-      const [ab, ba] = await Promise.all([
-        send(a.client, 'patch', `/api/users/${b.user.id}`, { role: 'classifier' }),
-        send(b.client, 'patch', `/api/users/${a.user.id}`, { role: 'classifier' }),
-      ])
+      const [ab, ba] = await Promise.all([send(a.client, 'patch', `/api/users/${b.user.id}`, { role: 'classifier' }), send(b.client, 'patch', `/api/users/${a.user.id}`, { role: 'classifier' })])
       expect([ab.status, ba.status].sort()).toEqual([200, 409])
       const refused = ab.status === 409 ? ab : ba
       expect(refused.body.error.code).toBe('last_lead')

@@ -78,7 +78,10 @@ describe('POST /api/auth/login', () => {
       const client = await agentFor(limited.app)
       const codes: number[] = []
       for (let i = 0; i < 5; i++) {
-        const res = await client.agent.post('/api/auth/login').set('x-csrf-token', client.csrf).send({ email: user.email, password: `wrong-${i}-xxxx` })
+        const res = await client.agent
+          .post('/api/auth/login')
+          .set('x-csrf-token', client.csrf)
+          .send({ email: user.email, password: `wrong-${i}-xxxx` })
         codes.push(res.status)
       }
       expect(codes).toEqual([401, 401, 401, 429, 429])
@@ -96,7 +99,10 @@ describe('sign-in rate limit per address', () => {
       const codes: number[] = []
       // Ten accounts, one wrong password each: the per-account rule alone would allow them all.
       for (let i = 0; i < 11; i++) {
-        const res = await client.agent.post('/api/auth/login').set('x-csrf-token', client.csrf).send({ email: `nobody-${i}@test.example`, password: 'wrong-password' })
+        const res = await client.agent
+          .post('/api/auth/login')
+          .set('x-csrf-token', client.csrf)
+          .send({ email: `nobody-${i}@test.example`, password: 'wrong-password' })
         codes.push(res.status)
       }
       expect(codes.slice(0, 10).every((c) => c === 401)).toBe(true)
@@ -179,7 +185,11 @@ describe('bad requests', () => {
 
   it('answers an oversize body with 413', async () => {
     const client = await agentFor(t.app)
-    const res = await client.agent.post('/api/auth/login').set('x-csrf-token', client.csrf).send({ email: 'x'.repeat(2_000_000), password: 'x' }).expect(413)
+    const res = await client.agent
+      .post('/api/auth/login')
+      .set('x-csrf-token', client.csrf)
+      .send({ email: 'x'.repeat(2_000_000), password: 'x' })
+      .expect(413)
     expect(res.body.error.code).toBe('payload_too_large')
   })
 

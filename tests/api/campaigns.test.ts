@@ -32,8 +32,29 @@ afterAll(async () => {
 describe('POST /api/campaigns', () => {
   it('lets a lead create a campaign with its review rules', async () => {
     const c = code()
-    const res = await send(lead, 'post', '/api/campaigns', { code: c, name: 'Open cluster survey', observatory: 'Hill station 1.2 m', regionMin: 3800, regionMax: 5200, callsRequired: 2, blindReview: true, typeTolerance: 1, classTolerance: 0.5 }).expect(201)
-    expect(res.body.campaign).toMatchObject({ code: c, name: 'Open cluster survey', observatory: 'Hill station 1.2 m', regionMin: 3800, regionMax: 5200, callsRequired: 2, blindReview: true, typeTolerance: 1, classTolerance: 0.5, members: [] })
+    const res = await send(lead, 'post', '/api/campaigns', {
+      code: c,
+      name: 'Open cluster survey',
+      observatory: 'Hill station 1.2 m',
+      regionMin: 3800,
+      regionMax: 5200,
+      callsRequired: 2,
+      blindReview: true,
+      typeTolerance: 1,
+      classTolerance: 0.5,
+    }).expect(201)
+    expect(res.body.campaign).toMatchObject({
+      code: c,
+      name: 'Open cluster survey',
+      observatory: 'Hill station 1.2 m',
+      regionMin: 3800,
+      regionMax: 5200,
+      callsRequired: 2,
+      blindReview: true,
+      typeTolerance: 1,
+      classTolerance: 0.5,
+      members: [],
+    })
     const row = await Campaign.findByPk(res.body.campaign.id)
     expect(row).toMatchObject({ code: c, callsRequired: 2, blindReview: true })
   })

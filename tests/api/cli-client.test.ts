@@ -96,7 +96,12 @@ describe('npm run lineweight', () => {
     expect(csv.code).toBe(0)
     const rows = csv.stdout.trim().split('\n')
     expect(rows[0]).toBe('id,file,object,status,statusReason,snr,spectralType,typeCode,luminosityClass,classCode,decision,decidedAt,submittedAt')
-    expect(rows.slice(1).map((r) => r.split(',')[1]).sort()).toEqual(Array.from({ length: GOOD }, (_, i) => `star-${i}.txt`))
+    expect(
+      rows
+        .slice(1)
+        .map((r) => r.split(',')[1])
+        .sort(),
+    ).toEqual(Array.from({ length: GOOD }, (_, i) => `star-${i}.txt`))
 
     const json = await lineweight(['results', '--campaign', String(campaign.id), '--format', 'json'])
     expect((JSON.parse(json.stdout) as unknown[]).length).toBe(GOOD)
@@ -106,7 +111,10 @@ describe('npm run lineweight', () => {
     const usage = await lineweight(['results', '--format', 'xml', '--campaign', '1'])
     expect(usage.code).toBe(2)
     expect(usage.stderr).toContain('--format must be csv or json')
-    const child = spawn('node_modules/.bin/tsx', ['cli/lineweight.ts', 'status'], { env: { ...process.env, LINEWEIGHT_URL: server.url, LINEWEIGHT_TOKEN: 'lw_not-a-token' }, stdio: ['ignore', 'pipe', 'pipe'] })
+    const child = spawn('node_modules/.bin/tsx', ['cli/lineweight.ts', 'status'], {
+      env: { ...process.env, LINEWEIGHT_URL: server.url, LINEWEIGHT_TOKEN: 'lw_not-a-token' },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    })
     let stderr = ''
     child.stderr.on('data', (d: Buffer) => (stderr += d.toString()))
     const code = await new Promise((resolve) => child.on('close', resolve))

@@ -83,9 +83,24 @@ describe('POST /api/disputes/:id/settle', () => {
     expect(badType.body.error.details.fields.luminosityClass).toBeDefined()
     expect((await Spectrum.findByPk(spectrum.id))!.status).toBe('disputed')
 
-    const res = await send(lead.client, 'post', `/api/disputes/${disputeId}/settle`, { spectralType: 'B9.5', luminosityClass: 'III', peculiarities: 'n', note: 'He I 4471 and Mg II 4481 about equal; broad lines' }).expect(200)
+    const res = await send(lead.client, 'post', `/api/disputes/${disputeId}/settle`, {
+      spectralType: 'B9.5',
+      luminosityClass: 'III',
+      peculiarities: 'n',
+      note: 'He I 4471 and Mg II 4481 about equal; broad lines',
+    }).expect(200)
     expect(res.body.dispute).toMatchObject({ state: 'settled', spectrum: { status: 'settled' } })
-    expect(res.body.dispute.settlement).toMatchObject({ source: 'settled', spectralType: 'B9.5 III n', typeCode: 19.5, classCode: 4, agreement: 'settled', nCalls: 2, decidedBy: { name: 'Lena Lead' }, note: 'He I 4471 and Mg II 4481 about equal; broad lines', disputeId })
+    expect(res.body.dispute.settlement).toMatchObject({
+      source: 'settled',
+      spectralType: 'B9.5 III n',
+      typeCode: 19.5,
+      classCode: 4,
+      agreement: 'settled',
+      nCalls: 2,
+      decidedBy: { name: 'Lena Lead' },
+      note: 'He I 4471 and Mg II 4481 about equal; broad lines',
+      disputeId,
+    })
     expect((await Spectrum.findByPk(spectrum.id))!.status).toBe('settled')
     expect((await finalClassificationsFor([spectrum.id])).get(spectrum.id)).toMatchObject({ source: 'settled', spectralType: 'B9.5 III n' })
 

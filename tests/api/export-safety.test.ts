@@ -5,7 +5,10 @@ import { signedInPerson, type Person } from '../helpers/review'
 import { frozenRelease, makeCampaign } from '../helpers/world'
 
 /** The fixed-width table comes as a zip of the data file and its ReadMe: both, as ASCII text. */
-const unzippedText = (zip: Buffer) => Object.values(unzipSync(new Uint8Array(zip))).map((b) => Buffer.from(b).toString('ascii')).join('\n')
+const unzippedText = (zip: Buffer) =>
+  Object.values(unzipSync(new Uint8Array(zip)))
+    .map((b) => Buffer.from(b).toString('ascii'))
+    .join('\n')
 
 let t: TestContext
 let lead: Person
@@ -27,11 +30,18 @@ afterAll(async () => {
   await closeDatabase()
 })
 
-const download = async (format: string) => (await lead.client.agent.get(`/api/releases/${releaseId}/download?format=${format}`).buffer(true).parse((res, cb) => {
-  const chunks: Buffer[] = []
-  res.on('data', (c: Buffer) => chunks.push(c))
-  res.on('end', () => cb(null, Buffer.concat(chunks)))
-}).expect(200)).body as Buffer
+const download = async (format: string) =>
+  (
+    await lead.client.agent
+      .get(`/api/releases/${releaseId}/download?format=${format}`)
+      .buffer(true)
+      .parse((res, cb) => {
+        const chunks: Buffer[] = []
+        res.on('data', (c: Buffer) => chunks.push(c))
+        res.on('end', () => cb(null, Buffer.concat(chunks)))
+      })
+      .expect(200)
+  ).body as Buffer
 
 describe('release downloads', () => {
   it('never hand a spreadsheet a formula, in any text format', async () => {

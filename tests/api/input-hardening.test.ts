@@ -42,8 +42,7 @@ describe('a batch with a bad file name', () => {
 })
 
 describe('malformed uploads and bodies', () => {
-  const raw = (contentType: string, body: string | Buffer) =>
-    observer.client.agent.post('/api/spectra').set('x-csrf-token', observer.client.csrf).set('content-type', contentType).send(body)
+  const raw = (contentType: string, body: string | Buffer) => observer.client.agent.post('/api/spectra').set('x-csrf-token', observer.client.csrf).set('content-type', contentType).send(body)
   const part = (boundary: string, name: string, value: string, filename?: string) =>
     `--${boundary}\r\nContent-Disposition: form-data; name="${name}"${filename !== undefined ? `; filename="${filename}"` : ''}\r\n${filename !== undefined ? 'Content-Type: text/plain\r\n' : ''}\r\n${value}\r\n`
 

@@ -42,24 +42,79 @@ const templateOf = (id: string) => {
 async function measured(templateId: string, o: { snr?: number; flags?: string[]; objectName?: string } = {}): Promise<Spectrum> {
   const star = templateOf(templateId)
   const spectrum = await Spectrum.create({
-    campaignId: campaign.id, submittedBy: observer.user.id, batchId: null, status: 'suggested', statusReason: null,
-    objectName: o.objectName ?? `${star.star} ${randomBytes(2).toString('hex')}`, raDeg: null, decDeg: null, obsDate: null, exposureS: null,
-    instrument: 'test spectrograph', instrumentId, resolutionFwhm: 2.5, resolvingPower: null, vMag: null, parallaxMas: null, parallaxErrorMas: null, ebv: null,
-    notes: '', fileName: 'star.txt', fileSha256: randomBytes(32).toString('hex'), fileSize: 100, format: 'text', hdu: null, pixels: 4000,
-    wlMin: 3750, wlMax: 5600, dispersion: 0.5, snr: o.snr ?? 120, vacuumConverted: false, readInfo: '{}',
+    campaignId: campaign.id,
+    submittedBy: observer.user.id,
+    batchId: null,
+    status: 'suggested',
+    statusReason: null,
+    objectName: o.objectName ?? `${star.star} ${randomBytes(2).toString('hex')}`,
+    raDeg: null,
+    decDeg: null,
+    obsDate: null,
+    exposureS: null,
+    instrument: 'test spectrograph',
+    instrumentId,
+    resolutionFwhm: 2.5,
+    resolvingPower: null,
+    vMag: null,
+    parallaxMas: null,
+    parallaxErrorMas: null,
+    ebv: null,
+    notes: '',
+    fileName: 'star.txt',
+    fileSha256: randomBytes(32).toString('hex'),
+    fileSize: 100,
+    format: 'text',
+    hdu: null,
+    pixels: 4000,
+    wlMin: 3750,
+    wlMax: 5600,
+    dispersion: 0.5,
+    snr: o.snr ?? 120,
+    vacuumConverted: false,
+    readInfo: '{}',
   })
   const rectified = Float32Array.from(star.rectified, (v) => (Number.isFinite(v) ? v : 0))
   const mask = Buffer.from(Uint8Array.from(star.rectified, (v) => (Number.isFinite(v) ? 0 : 1)))
   const m = await Measurement.create({
-    spectrumId: spectrum.id, pipelineVersion: 'test', isCurrent: true, snr: o.snr ?? 120, rv: 0, rvError: 1, pseudoContinuum: false, warnings: '[]', ratios: '[]',
-    gridStart: DEFAULT_GRID.start, gridStep: DEFAULT_GRID.step, gridLength: DEFAULT_GRID.length,
-    flux: float32ToBuffer(rectified), continuum: float32ToBuffer(new Float32Array(DEFAULT_GRID.length).fill(1)), rectified: float32ToBuffer(rectified), mask, seconds: 1,
+    spectrumId: spectrum.id,
+    pipelineVersion: 'test',
+    isCurrent: true,
+    snr: o.snr ?? 120,
+    rv: 0,
+    rvError: 1,
+    pseudoContinuum: false,
+    warnings: '[]',
+    ratios: '[]',
+    gridStart: DEFAULT_GRID.start,
+    gridStep: DEFAULT_GRID.step,
+    gridLength: DEFAULT_GRID.length,
+    flux: float32ToBuffer(rectified),
+    continuum: float32ToBuffer(new Float32Array(DEFAULT_GRID.length).fill(1)),
+    rectified: float32ToBuffer(rectified),
+    mask,
+    seconds: 1,
   })
   const active = (await LibraryVersion.findOne({ where: { isActive: true } }))!
   await Suggestion.create({
-    spectrumId: spectrum.id, measurementId: m.id, libraryVersionId: active.id, pipelineVersion: 'test', isCurrent: true,
-    spectralType: star.spectralType, letter: star.spectralType[0]!, subtype: star.typeCode % 10, typeCode: star.typeCode, luminosityClass: star.luminosityClass, classCode: star.classCode,
-    uncertaintySubtypes: 1, uncertaintyClasses: 0.5, bestStandardId: null, candidates: '[]', votes: '[]', flags: JSON.stringify(o.flags ?? []), probabilities: '[]',
+    spectrumId: spectrum.id,
+    measurementId: m.id,
+    libraryVersionId: active.id,
+    pipelineVersion: 'test',
+    isCurrent: true,
+    spectralType: star.spectralType,
+    letter: star.spectralType[0]!,
+    subtype: star.typeCode % 10,
+    typeCode: star.typeCode,
+    luminosityClass: star.luminosityClass,
+    classCode: star.classCode,
+    uncertaintySubtypes: 1,
+    uncertaintyClasses: 0.5,
+    bestStandardId: null,
+    candidates: '[]',
+    votes: '[]',
+    flags: JSON.stringify(o.flags ?? []),
+    probabilities: '[]',
     details: JSON.stringify({ resolution: { fwhm: 2.5, source: 'given', bound: null, level: 2.5 } }),
   })
   return spectrum
@@ -83,10 +138,11 @@ function starFile(templateId: string, snr: number, seed: number): Buffer {
   const rows = ['# wavelength (Angstrom, air) flux']
   let level = 0
   let n = 0
-  for (let i = 0; i < wl.length; i++) if (Number.isFinite(s.flux[i]!) && wl[i]! > 4000 && wl[i]! < 5500) {
-    level += s.flux[i]!
-    n++
-  }
+  for (let i = 0; i < wl.length; i++)
+    if (Number.isFinite(s.flux[i]!) && wl[i]! > 4000 && wl[i]! < 5500) {
+      level += s.flux[i]!
+      n++
+    }
   const sigma = level / n / snr
   for (let i = 0; i < wl.length; i++) {
     const f = s.flux[i]!
@@ -125,8 +181,23 @@ afterAll(async () => {
 
 describe('instruments of a campaign', () => {
   it('are created and changed by a lead, with a name unique in the campaign', async () => {
-    const res = await send(lead.client, 'post', '/api/instruments', { campaignId: campaign.id, name: 'Test LRS, 600 l/mm', resolutionFwhm: 2.5, wavelengthMin: 3700, wavelengthMax: 5700, candidateMinSnr: 50 }).expect(201)
-    expect(res.body.instrument).toMatchObject({ name: 'Test LRS, 600 l/mm', resolutionFwhm: 2.5, wavelengthRange: [3700, 5700], candidateMinSnr: 50, spectra: 0, standards: 0, campaign: { id: campaign.id } })
+    const res = await send(lead.client, 'post', '/api/instruments', {
+      campaignId: campaign.id,
+      name: 'Test LRS, 600 l/mm',
+      resolutionFwhm: 2.5,
+      wavelengthMin: 3700,
+      wavelengthMax: 5700,
+      candidateMinSnr: 50,
+    }).expect(201)
+    expect(res.body.instrument).toMatchObject({
+      name: 'Test LRS, 600 l/mm',
+      resolutionFwhm: 2.5,
+      wavelengthRange: [3700, 5700],
+      candidateMinSnr: 50,
+      spectra: 0,
+      standards: 0,
+      campaign: { id: campaign.id },
+    })
     instrumentId = res.body.instrument.id
     const again = await send(lead.client, 'post', '/api/instruments', { campaignId: campaign.id, name: 'Test LRS, 600 l/mm' }).expect(409)
     expect(again.body.error.details.fields.name).toMatch(/taken/)
@@ -268,7 +339,12 @@ describe('candidates, promotion and demotion', () => {
     await send(alice.client, 'post', `/api/instruments/${instrumentId}/demote`, { standardIds: [k0std.id], note: 'x' }).expect(403)
     await send(lead.client, 'post', `/api/instruments/${instrumentId}/demote`, { standardIds: [k0std.id] }).expect(422)
     const res = await send(lead.client, 'post', `/api/instruments/${instrumentId}/demote`, { standardIds: [k0std.id], note: 'a companion shows in the red' }).expect(201)
-    expect(res.body.version).toMatchObject({ isActive: true, instrumentId, basedOnId: promotedVersion.id, changes: { action: 'demote', note: 'a companion shows in the red', standards: [{ standardId: k0std.id, spectrumId: k0.id, reason: 'a companion shows in the red' }] } })
+    expect(res.body.version).toMatchObject({
+      isActive: true,
+      instrumentId,
+      basedOnId: promotedVersion.id,
+      changes: { action: 'demote', note: 'a companion shows in the red', standards: [{ standardId: k0std.id, spectrumId: k0.id, reason: 'a companion shows in the red' }] },
+    })
     const members = (await LibraryVersionStandard.findAll({ where: { versionId: res.body.version.id } })).map((l) => l.standardId)
     expect(members).not.toContain(k0std.id)
     expect((await LibraryVersionStandard.findAll({ where: { versionId: promotedVersion.id } })).map((l) => l.standardId)).toContain(k0std.id)
@@ -282,9 +358,11 @@ describe('candidates, promotion and demotion', () => {
 })
 
 describe('the agreement audit', () => {
-  it('scores the instrument\'s suggestions against the decisions, per library version', async () => {
+  it("scores the instrument's suggestions against the decisions, per library version", async () => {
     const res = await lead.client.agent.get(`/api/audit?campaign=${campaign.id}`).expect(200)
-    const mine = (res.body.audit.suggestionAccuracy.instruments as { instrument: { id: number }; versions: { version: { name: string }; n: number }[] }[]).find((i) => i.instrument.id === instrumentId)!
+    const mine = (res.body.audit.suggestionAccuracy.instruments as { instrument: { id: number }; versions: { version: { name: string }; n: number }[] }[]).find(
+      (i) => i.instrument.id === instrumentId,
+    )!
     // The six decided spectra were suggested by the shipped version; none of them is one of its standards.
     expect(mine.versions.map((v) => [v.version.name, v.n])).toEqual([['observed-v1', 6]])
   })
@@ -293,7 +371,14 @@ describe('the agreement audit', () => {
 describe('suggestions for spectra of an instrument with its own standards', () => {
   it('record the instrument set they were matched against and which standards decided them', async () => {
     // The promoted A0 V is still in the active version: a spectrum of the same star through the instrument finds it.
-    const res = await observer.client.agent.post('/api/spectra').set('x-csrf-token', observer.client.csrf).field('campaignId', String(campaign.id)).field('instrumentId', String(instrumentId)).field('resolutionFwhm', '2.5').attach('files', starFile(STAR.a0v, 100, 11), `a0v-${Date.now()}.txt`).expect(200)
+    const res = await observer.client.agent
+      .post('/api/spectra')
+      .set('x-csrf-token', observer.client.csrf)
+      .field('campaignId', String(campaign.id))
+      .field('instrumentId', String(instrumentId))
+      .field('resolutionFwhm', '2.5')
+      .attach('files', starFile(STAR.a0v, 100, 11), `a0v-${Date.now()}.txt`)
+      .expect(200)
     const id = res.body.results[0].spectrumId as number
     await runner.idle()
     const s = (await Suggestion.findOne({ where: { spectrumId: id, isCurrent: true } }))!
@@ -311,7 +396,13 @@ describe('suggestions for spectra of an instrument with its own standards', () =
   }, 120_000)
 
   it('of no instrument, use the library alone and say so', async () => {
-    const res = await observer.client.agent.post('/api/spectra').set('x-csrf-token', observer.client.csrf).field('campaignId', String(campaign.id)).field('resolutionFwhm', '2.5').attach('files', starFile(STAR.a0v, 100, 12), `a0v-none-${Date.now()}.txt`).expect(200)
+    const res = await observer.client.agent
+      .post('/api/spectra')
+      .set('x-csrf-token', observer.client.csrf)
+      .field('campaignId', String(campaign.id))
+      .field('resolutionFwhm', '2.5')
+      .attach('files', starFile(STAR.a0v, 100, 12), `a0v-none-${Date.now()}.txt`)
+      .expect(200)
     const id = res.body.results[0].spectrumId as number
     await runner.idle()
     const s = (await Suggestion.findOne({ where: { spectrumId: id, isCurrent: true } }))!

@@ -27,7 +27,10 @@ const upload = (client: Awaited<ReturnType<typeof httpClient>>, seed: number) =>
 }
 
 async function statusOf(spectrumId: number) {
-  const [[row]] = (await db.sql.query('SELECT sp.status AS spectrum, (SELECT status FROM processing_jobs j WHERE j.spectrum_id = sp.id ORDER BY j.id DESC LIMIT 1) AS job FROM spectra sp WHERE sp.id = ?', { replacements: [spectrumId] })) as [Array<{ spectrum: string; job: string }>, unknown]
+  const [[row]] = (await db.sql.query(
+    'SELECT sp.status AS spectrum, (SELECT status FROM processing_jobs j WHERE j.spectrum_id = sp.id ORDER BY j.id DESC LIMIT 1) AS job FROM spectra sp WHERE sp.id = ?',
+    { replacements: [spectrumId] },
+  )) as [Array<{ spectrum: string; job: string }>, unknown]
   return row!
 }
 
@@ -58,7 +61,12 @@ describe('a MariaDB outage', () => {
     await db.sql.close().catch(() => undefined)
     await db.stop()
 
-    for (const [method, path] of [['GET', '/api/spectra'], ['GET', '/api/me'], ['GET', `/api/spectra/${firstId}`], ['POST', '/api/auth/login']] as const) {
+    for (const [method, path] of [
+      ['GET', '/api/spectra'],
+      ['GET', '/api/me'],
+      ['GET', `/api/spectra/${firstId}`],
+      ['POST', '/api/auth/login'],
+    ] as const) {
       const res = await observer.call(method, path, method === 'POST' ? { email: 'observer@outage.example', password: 'observer password' } : undefined)
       expect(`${method} ${path} ${res.status}`).toBe(`${method} ${path} 503`)
       expect(res.headers.get('retry-after')).toBe('4')
@@ -78,7 +86,12 @@ describe('a MariaDB outage', () => {
     await waitFor('the API answering again', 30, async () => ((await observer.call('GET', '/api/spectra')).status === 200 ? true : null))
     const apiSeconds = (Date.now() - back) / 1000
     // No new upload: the timer finds the lapsed job and runs it.
-    db.sql = new (db.sql.constructor as typeof import('sequelize').Sequelize)(db.env.DB_NAME!, db.env.DB_USER!, db.env.DB_PASSWORD!, { host: '127.0.0.1', port: db.port, dialect: 'mariadb', logging: false })
+    db.sql = new (db.sql.constructor as typeof import('sequelize').Sequelize)(db.env.DB_NAME!, db.env.DB_USER!, db.env.DB_PASSWORD!, {
+      host: '127.0.0.1',
+      port: db.port,
+      dialect: 'mariadb',
+      logging: false,
+    })
     await waitFor('processing of the stalled spectrum', 60, async () => {
       const s = await statusOf(secondId)
       return s.job === 'done' && s.spectrum !== 'received' ? true : null

@@ -105,20 +105,39 @@ describe('withRetry', () => {
 
   it('tries again after a deadlock and returns the result', async () => {
     let calls = 0
-    const out = await withRetry(async () => {
-      if (++calls < 3) throw deadlock()
-      return 'stored'
-    }, { baseMs: 1 })
+    const out = await withRetry(
+      async () => {
+        if (++calls < 3) throw deadlock()
+        return 'stored'
+      },
+      { baseMs: 1 },
+    )
     expect(out).toBe('stored')
     expect(calls).toBe(3)
   })
 
   it('gives up after the last try, and at once on an error that is not transient', async () => {
     let calls = 0
-    await expect(withRetry(async () => { calls++; throw deadlock() }, { tries: 3, baseMs: 1 })).rejects.toThrow('Deadlock')
+    await expect(
+      withRetry(
+        async () => {
+          calls++
+          throw deadlock()
+        },
+        { tries: 3, baseMs: 1 },
+      ),
+    ).rejects.toThrow('Deadlock')
     expect(calls).toBe(3)
     calls = 0
-    await expect(withRetry(async () => { calls++; throw new Error('bad row') }, { baseMs: 1 })).rejects.toThrow('bad row')
+    await expect(
+      withRetry(
+        async () => {
+          calls++
+          throw new Error('bad row')
+        },
+        { baseMs: 1 },
+      ),
+    ).rejects.toThrow('bad row')
     expect(calls).toBe(1)
   })
 })

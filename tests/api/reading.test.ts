@@ -4,9 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { loadCorpus } from '../../bench/corpus'
 import { JobRunner } from '../../server/jobs/runner'
 import { createLogger } from '../../server/lib/logger'
-import {
-  Campaign, CampaignMember, Measurement, ProcessingJob, ReviewCall, Spectrum, SpectrumBlob, SpectrumEvent, Suggestion,
-} from '../../server/models'
+import { Campaign, CampaignMember, Measurement, ProcessingJob, ReviewCall, Spectrum, SpectrumBlob, SpectrumEvent, Suggestion } from '../../server/models'
 import { ensureDefaultLibrary } from '../../server/services/standards.service'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
 
@@ -90,8 +88,13 @@ describe('POST /api/spectra with reading choices', () => {
     expect(JSON.parse(s!.readChoices)).toEqual({ unit: 'nm' })
   })
   it('refuses an unknown unit choice before reading anything', async () => {
-    const res = await observer.agent.post('/api/spectra').set('x-csrf-token', observer.csrf).field('campaignId', String(campaign.id)).field('wavelengthUnit', 'furlong')
-      .attach('files', unique(readFileSync(join(CORPUS, 'txt-plain.txt'))), 'x.txt').expect(422)
+    const res = await observer.agent
+      .post('/api/spectra')
+      .set('x-csrf-token', observer.csrf)
+      .field('campaignId', String(campaign.id))
+      .field('wavelengthUnit', 'furlong')
+      .attach('files', unique(readFileSync(join(CORPUS, 'txt-plain.txt'))), 'x.txt')
+      .expect(422)
     expect(res.body.error.details.fields.wavelengthUnit).toMatch(/must be one of file, Angstrom, nm, um, m/)
   })
 })
@@ -137,7 +140,9 @@ describe('PATCH /api/spectra/:id: correcting how the file is read', () => {
     const history = await observer.agent.get(`/api/spectra/${first.spectrumId}/history`).expect(200)
     const kinds = history.body.events.map((e: { kind: string }) => e.kind)
     expect(kinds.filter((k: string) => k === 'measurement')).toHaveLength(2)
-    expect(history.body.events.find((e: { kind: string }) => e.kind === 'reread').summary).toMatch(/^Read again as vacuum, unit Angstrom \(assumed\): 3800\.0–5299\.0 Å, 1500 pixels \(was 3801\.1–5300\.5 Å, 1500 pixels\)$/)
+    expect(history.body.events.find((e: { kind: string }) => e.kind === 'reread').summary).toMatch(
+      /^Read again as vacuum, unit Angstrom \(assumed\): 3800\.0–5299\.0 Å, 1500 pixels \(was 3801\.1–5300\.5 Å, 1500 pixels\)$/,
+    )
   }, 60_000)
 
   it('re-processes with a corrected resolution without re-reading', async () => {
@@ -181,13 +186,29 @@ describe('PATCH /api/spectra/:id: correcting how the file is read', () => {
 async function addCall(spectrumId: number) {
   const c = await makeUser('classifier')
   await ReviewCall.create({
-    spectrumId, userId: c.user.id, kind: 'call', firstCall: 1, correctsCallId: null, spectralType: 'F5 V', letter: 'F', subtype: 5,
-    typeCode: 35, luminosityClass: 'V', classCode: 5, peculiarities: '[]', notes: '', confidence: 2, uncertain: false,
-    acceptedSuggestion: false, suggestionId: null, suggestionShown: false, secondsSpent: 30,
+    spectrumId,
+    userId: c.user.id,
+    kind: 'call',
+    firstCall: 1,
+    correctsCallId: null,
+    spectralType: 'F5 V',
+    letter: 'F',
+    subtype: 5,
+    typeCode: 35,
+    luminosityClass: 'V',
+    classCode: 5,
+    peculiarities: '[]',
+    notes: '',
+    confidence: 2,
+    uncertain: false,
+    acceptedSuggestion: false,
+    suggestionId: null,
+    suggestionShown: false,
+    secondsSpent: 30,
   })
 }
 
-describe('DELETE /api/spectra/:id: withdrawing one\'s own spectrum', () => {
+describe("DELETE /api/spectra/:id: withdrawing one's own spectrum", () => {
   it('removes the file and every row, keeps a record, and lets the file be sent again', async () => {
     const bytes = unique(readFileSync(join(CORPUS, 'txt-plain.txt')))
     const r = await submit(bytes, 'withdraw-me.txt')

@@ -26,35 +26,122 @@ const spectra: Record<string, Spectrum> = {}
 
 async function makeSpectrum(name: string, status: Spectrum['status'], extra: Partial<Spectrum> = {}) {
   return Spectrum.create({
-    campaignId: campaign.id, submittedBy: observerUser.id, batchId: null, status, statusReason: null, objectName: name, raDeg: 150.25, decDeg: -12.5,
-    obsDate: new Date('2025-01-05T03:04:05.600Z'), exposureS: null, instrument: '', resolutionFwhm: null, resolvingPower: null, vMag: null, parallaxMas: null,
-    parallaxErrorMas: null, ebv: null, notes: '', fileName: 'x.txt', fileSha256: randomBytes(32).toString('hex'), fileSize: 1, format: 'text', hdu: null, pixels: 1,
-    wlMin: 3800, wlMax: 5000, dispersion: 1, snr: 40, vacuumConverted: false, readInfo: '{}', ...extra,
+    campaignId: campaign.id,
+    submittedBy: observerUser.id,
+    batchId: null,
+    status,
+    statusReason: null,
+    objectName: name,
+    raDeg: 150.25,
+    decDeg: -12.5,
+    obsDate: new Date('2025-01-05T03:04:05.600Z'),
+    exposureS: null,
+    instrument: '',
+    resolutionFwhm: null,
+    resolvingPower: null,
+    vMag: null,
+    parallaxMas: null,
+    parallaxErrorMas: null,
+    ebv: null,
+    notes: '',
+    fileName: 'x.txt',
+    fileSha256: randomBytes(32).toString('hex'),
+    fileSize: 1,
+    format: 'text',
+    hdu: null,
+    pixels: 1,
+    wlMin: 3800,
+    wlMax: 5000,
+    dispersion: 1,
+    snr: 40,
+    vacuumConverted: false,
+    readInfo: '{}',
+    ...extra,
   })
 }
 
 async function suggest(s: Spectrum, type: string, letter: string, subtype: number, typeCode: number, cls: string, classCode: number) {
   const m = await Measurement.create({
-    spectrumId: s.id, pipelineVersion: '1.0.0', isCurrent: true, snr: 55.5, rv: -21.5, rvError: 4.2, pseudoContinuum: false, warnings: '[]', ratios: '[]',
-    gridStart: 3800, gridStep: 1, gridLength: 0, flux: Buffer.alloc(0), continuum: Buffer.alloc(0), rectified: Buffer.alloc(0), mask: Buffer.alloc(0), seconds: 0,
+    spectrumId: s.id,
+    pipelineVersion: '1.0.0',
+    isCurrent: true,
+    snr: 55.5,
+    rv: -21.5,
+    rvError: 4.2,
+    pseudoContinuum: false,
+    warnings: '[]',
+    ratios: '[]',
+    gridStart: 3800,
+    gridStep: 1,
+    gridLength: 0,
+    flux: Buffer.alloc(0),
+    continuum: Buffer.alloc(0),
+    rectified: Buffer.alloc(0),
+    mask: Buffer.alloc(0),
+    seconds: 0,
   })
   return Suggestion.create({
-    spectrumId: s.id, measurementId: m.id, libraryVersionId: version.id, pipelineVersion: '1.0.0', isCurrent: true, spectralType: type, letter, subtype, typeCode,
-    luminosityClass: cls, classCode, uncertaintySubtypes: 1.5, uncertaintyClasses: 0.7, bestStandardId: null, candidates: '[]', votes: '[]', flags: '[]', probabilities: '[]',
+    spectrumId: s.id,
+    measurementId: m.id,
+    libraryVersionId: version.id,
+    pipelineVersion: '1.0.0',
+    isCurrent: true,
+    spectralType: type,
+    letter,
+    subtype,
+    typeCode,
+    luminosityClass: cls,
+    classCode,
+    uncertaintySubtypes: 1.5,
+    uncertaintyClasses: 0.7,
+    bestStandardId: null,
+    candidates: '[]',
+    votes: '[]',
+    flags: '[]',
+    probabilities: '[]',
   })
 }
 
 async function callOn(s: Spectrum, user: User, typeCode: number, classCode: number) {
   return ReviewCall.create({
-    spectrumId: s.id, userId: user.id, kind: 'call', firstCall: 1, correctsCallId: null, spectralType: '', letter: '', subtype: 0, typeCode, luminosityClass: '', classCode,
-    peculiarities: '[]', notes: '', confidence: 3, uncertain: false, acceptedSuggestion: false, suggestionId: null, suggestionShown: false, secondsSpent: 30,
+    spectrumId: s.id,
+    userId: user.id,
+    kind: 'call',
+    firstCall: 1,
+    correctsCallId: null,
+    spectralType: '',
+    letter: '',
+    subtype: 0,
+    typeCode,
+    luminosityClass: '',
+    classCode,
+    peculiarities: '[]',
+    notes: '',
+    confidence: 3,
+    uncertain: false,
+    acceptedSuggestion: false,
+    suggestionId: null,
+    suggestionShown: false,
+    secondsSpent: 30,
   })
 }
 
 async function decide(s: Spectrum, fields: Partial<Classification> & Pick<Classification, 'source' | 'spectralType' | 'typeCode' | 'luminosityClass' | 'classCode'>) {
   return Classification.create({
-    spectrumId: s.id, letter: fields.spectralType.slice(0, 1), subtype: 0, peculiarities: '[]', decidedBy: null, nCalls: 1, callIds: '[]', agreement: 'exact',
-    typeSpread: 0, classSpread: 0, suggestionId: null, disputeId: null, note: '', ...fields,
+    spectrumId: s.id,
+    letter: fields.spectralType.slice(0, 1),
+    subtype: 0,
+    peculiarities: '[]',
+    decidedBy: null,
+    nCalls: 1,
+    callIds: '[]',
+    agreement: 'exact',
+    typeSpread: 0,
+    classSpread: 0,
+    suggestionId: null,
+    disputeId: null,
+    note: '',
+    ...fields,
   })
 }
 
@@ -80,11 +167,34 @@ beforeAll(async () => {
   const s1 = await suggest(spectra.consensus, 'B8 III', 'B', 8, 18, 'III', 4)
   const c1 = await callOn(spectra.consensus, callers[0]!, 18, 4)
   const c2 = await callOn(spectra.consensus, callers[1]!, 19, 4)
-  await decide(spectra.consensus, { source: 'consensus', spectralType: 'B8 III', typeCode: 18, luminosityClass: 'III', classCode: 4, nCalls: 2, callIds: JSON.stringify([c1.id, c2.id]), agreement: 'within', typeSpread: 1, classSpread: 0, suggestionId: s1.id, decidedBy: callers[1]!.id })
+  await decide(spectra.consensus, {
+    source: 'consensus',
+    spectralType: 'B8 III',
+    typeCode: 18,
+    luminosityClass: 'III',
+    classCode: 4,
+    nCalls: 2,
+    callIds: JSON.stringify([c1.id, c2.id]),
+    agreement: 'within',
+    typeSpread: 1,
+    classSpread: 0,
+    suggestionId: s1.id,
+    decidedBy: callers[1]!.id,
+  })
   // Settled by the lead.
   spectra.settled = await makeSpectrum('Field star 2', 'settled')
   await suggest(spectra.settled, 'G2 V', 'G', 2, 42, 'V', 6)
-  await decide(spectra.settled, { source: 'settled', spectralType: 'G5 IV', typeCode: 45, luminosityClass: 'IV', classCode: 5, nCalls: 2, agreement: 'settled', decidedBy: leadUser.id, peculiarities: JSON.stringify(['e']) })
+  await decide(spectra.settled, {
+    source: 'settled',
+    spectralType: 'G5 IV',
+    typeCode: 45,
+    luminosityClass: 'IV',
+    classCode: 5,
+    nCalls: 2,
+    agreement: 'settled',
+    decidedBy: leadUser.id,
+    peculiarities: JSON.stringify(['e']),
+  })
   // The suggestion accepted; a white dwarf, outside the MK grid.
   spectra.accepted = await makeSpectrum('Faint blue star 3', 'agreed')
   await decide(spectra.accepted, { source: 'accepted-suggestion', spectralType: 'DA3', typeCode: 0, luminosityClass: '', classCode: 0, nCalls: 1 })
@@ -115,7 +225,10 @@ const download = (client: Client, id: number, format: string) =>
 // The campaign's releases 1, 2 and 3, each made once by whichever test needs it first, so any test runs alone.
 let first: { id: number; version: number }
 let made1: Promise<{ id: number; version: number; [k: string]: unknown }> | null = null
-const firstRelease = () => (made1 ??= post(lead, '/api/releases', { campaignId: campaign.id, title: 'First look', description: 'Decided spectra of the first nights.' }).expect(201).then((r) => (first = r.body.release)))
+const firstRelease = () =>
+  (made1 ??= post(lead, '/api/releases', { campaignId: campaign.id, title: 'First look', description: 'Decided spectra of the first nights.' })
+    .expect(201)
+    .then((r) => (first = r.body.release)))
 let made2: Promise<{ id: number; version: number; rows: number }> | null = null
 /** Later: a new decision on a released spectrum, new metadata, and one more spectrum agreed; then release 2. */
 const secondRelease = () =>
@@ -128,7 +241,8 @@ const secondRelease = () =>
     return (await post(lead, '/api/releases', { campaignId: campaign.id, title: 'Second look' }).expect(201)).body.release
   })())
 let made3: Promise<{ id: number; version: number; rows: number; description: string }> | null = null
-const thirdRelease = () => (made3 ??= secondRelease().then(async (second) => (await post(lead, `/api/releases/${second.id}/supersede`, { title: 'Third look', description: 'with corrections' }).expect(201)).body.release))
+const thirdRelease = () =>
+  (made3 ??= secondRelease().then(async (second) => (await post(lead, `/api/releases/${second.id}/supersede`, { title: 'Third look', description: 'with corrections' }).expect(201)).body.release))
 
 beforeEach(async () => {
   await firstRelease()
@@ -148,12 +262,41 @@ describe('POST /api/releases', () => {
     expect(res.body.columns.map((c: { name: string }) => c.name)).toContain('Teff')
     const [consensus, settled, accepted] = res.body.rows
     expect(consensus).toMatchObject({
-      SpId: spectra.consensus!.id, Object: 'Field star, "north" 1', RAdeg: 150.25, DEdeg: -12.5, ObsDate: '2025-01-05T03:04:05.600', SpType: 'B8 III', TypeCode: 18,
-      LumClass: 'III', ClassCode: 4, e_TypeCode: 0.5, e_ClassCode: 0.5, Decision: 'consensus of 2', DecidedBy: 'Caller One; Caller Two', Ncalls: 2, Agreement: 'within',
-      LibVer: version.name, PipeVer: '1.0.0', SNR: 55.5, RV: -21.5, e_RV: 4.2, Vmag: 8.5, EBV: 0.1, Plx: 2.5, e_Plx: 0.1, DFlag: null,
+      SpId: spectra.consensus!.id,
+      Object: 'Field star, "north" 1',
+      RAdeg: 150.25,
+      DEdeg: -12.5,
+      ObsDate: '2025-01-05T03:04:05.600',
+      SpType: 'B8 III',
+      TypeCode: 18,
+      LumClass: 'III',
+      ClassCode: 4,
+      e_TypeCode: 0.5,
+      e_ClassCode: 0.5,
+      Decision: 'consensus of 2',
+      DecidedBy: 'Caller One; Caller Two',
+      Ncalls: 2,
+      Agreement: 'within',
+      LibVer: version.name,
+      PipeVer: '1.0.0',
+      SNR: 55.5,
+      RV: -21.5,
+      e_RV: 4.2,
+      Vmag: 8.5,
+      EBV: 0.1,
+      Plx: 2.5,
+      e_Plx: 0.1,
+      DFlag: null,
     })
     // The same estimate shared/derived.ts gives for B8 III ± 0.5 with these inputs.
-    const d = deriveParameters((parseMK('B8 III') as { ok: true; value: never }).value, { typeUncertainty: 0.5, classUncertainty: 0.5, apparentMagnitudeV: 8.5, ebv: 0.1, parallaxMas: 2.5, parallaxErrorMas: 0.1 })
+    const d = deriveParameters((parseMK('B8 III') as { ok: true; value: never }).value, {
+      typeUncertainty: 0.5,
+      classUncertainty: 0.5,
+      apparentMagnitudeV: 8.5,
+      ebv: 0.1,
+      parallaxMas: 2.5,
+      parallaxErrorMas: 0.1,
+    })
     if (!d.ok) throw new Error('B8 III should be on the grid')
     // Each value is rounded to the decimal place of its uncertainty, given to two significant figures
     // but never past the units (common practice).
@@ -169,7 +312,16 @@ describe('POST /api/releases', () => {
     expect(consensus.MJD).toBeCloseTo(60680.127843, 6)
     expect(settled).toMatchObject({ Decision: 'settled by lead', DecidedBy: 'Release Lead', SpType: 'G5 IV', Pec: 'e', Agreement: 'settled', Vmag: null, Dist: null })
     expect(settled.Teff).toBeGreaterThan(4000)
-    expect(accepted).toMatchObject({ Decision: 'single call (suggestion accepted)', Agreement: 'single', SpType: 'DA3', LumClass: null, Teff: null, Lum: null, DFlag: 'outside the MK grid', LibVer: null })
+    expect(accepted).toMatchObject({
+      Decision: 'single call (suggestion accepted)',
+      Agreement: 'single',
+      SpType: 'DA3',
+      LumClass: null,
+      Teff: null,
+      Lum: null,
+      DFlag: 'outside the MK grid',
+      LibVer: null,
+    })
   })
 
   it('refuses a campaign with nothing decided, a missing title and non-leads', async () => {
@@ -205,7 +357,10 @@ describe('GET /api/releases/:id/download', () => {
         expect(body.toString('utf8')).toContain('<TABLE name="catalogue" nrows="3">')
       } else if (format === 'csv') {
         // Plain CSV: exactly one header line, then the rows.
-        const lines = body.toString('utf8').split('\r\n').filter((l) => l)
+        const lines = body
+          .toString('utf8')
+          .split('\r\n')
+          .filter((l) => l)
         expect(lines).toHaveLength(4)
         expect(lines[0]!.startsWith('SpId,Object,')).toBe(true)
         expect(lines[1]).toContain('"Field star, ""north"" 1"')

@@ -74,7 +74,14 @@ describe('the consensus rules', () => {
 
   it('agrees within tolerance and disputes beyond it', () => {
     const rules = { typeTolerance: 1, classTolerance: 1 }
-    const c = (id: number, spectralType: string, typeCode: number, luminosityClass: string, classCode: number) => ({ id, spectralType, typeCode, luminosityClass, classCode, acceptedSuggestion: false })
+    const c = (id: number, spectralType: string, typeCode: number, luminosityClass: string, classCode: number) => ({
+      id,
+      spectralType,
+      typeCode,
+      luminosityClass,
+      classCode,
+      acceptedSuggestion: false,
+    })
     const agreed = judgeCalls([c(1, 'B8 III', 18, 'III', 4), c(2, 'B9 IV', 19, 'IV', 5)], rules, { typeCode: 19, classCode: 4 })
     expect(agreed).toMatchObject({ outcome: 'agreed', typeSpread: 1, classSpread: 1, agreement: 'within', source: 'consensus' })
     if (agreed.outcome === 'agreed') expect(agreed.consensus.spectralType).toBe('B9 III')

@@ -140,8 +140,16 @@ function request(client: Client, method: Row[0], path: string, body: object = {}
 
 describe('every route × every role', () => {
   it('lists every route of the server once', () => {
-    const served = apiRoutes(t.ctx).map((r) => `${r.method} ${r.path.replace(/:id|:spectrumId/, 'X').replace(/:userId/, 'X')}`).sort()
-    const listed = MATRIX.map(([m, p]) => `${m} ${p.replace(/\?.*$/, '').replace(/\/(S|A|R|N)(?=\/|$)/, '/X').replace(/\/N(?=\/|$)/, '/X')}`).sort()
+    const served = apiRoutes(t.ctx)
+      .map((r) => `${r.method} ${r.path.replace(/:id|:spectrumId/, 'X').replace(/:userId/, 'X')}`)
+      .sort()
+    const listed = MATRIX.map(
+      ([m, p]) =>
+        `${m} ${p
+          .replace(/\?.*$/, '')
+          .replace(/\/(S|A|R|N)(?=\/|$)/, '/X')
+          .replace(/\/N(?=\/|$)/, '/X')}`,
+    ).sort()
     expect(listed).toEqual(served)
   })
 

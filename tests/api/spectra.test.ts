@@ -25,8 +25,7 @@ afterAll(async () => {
   await closeDatabase()
 })
 
-const post = (client: typeof observer, campaignId = campaign.id) =>
-  client.agent.post('/api/spectra').set('x-csrf-token', client.csrf).field('campaignId', String(campaignId))
+const post = (client: typeof observer, campaignId = campaign.id) => client.agent.post('/api/spectra').set('x-csrf-token', client.csrf).field('campaignId', String(campaignId))
 
 describe('POST /api/spectra', () => {
   it('takes the good files of a mixed batch, refuses the bad ones and says why', async () => {
@@ -44,7 +43,7 @@ describe('POST /api/spectra', () => {
     expect(byFile['a0v.fits'].outcome).toBe(earlier ? 'duplicate' : 'accepted')
     expect(byFile['field-star-017.txt']).toMatchObject({ outcome: 'accepted', pixels: 2000 })
     expect(byFile['field-star-017.txt'].wavelengthRange[0]).toBeCloseTo(3800, 6)
-    expect(byFile["field-star-017.txt"].dispersion).toBeCloseTo(1400 / 1999, 3)
+    expect(byFile['field-star-017.txt'].dispersion).toBeCloseTo(1400 / 1999, 3)
     expect(byFile['field-star-017.txt'].snr).toBeGreaterThan(10)
     expect(byFile['notes.txt'].outcome).toBe('refused')
     expect(byFile['red-only.csv']).toMatchObject({ outcome: 'refused', code: 'NO_COVERAGE' })
@@ -108,7 +107,12 @@ describe('POST /api/spectra', () => {
       const { user, password } = await makeUser('lead')
       const lead = await signedInAgent(small.app, user.email, password)
       const before = await Spectrum.count()
-      const res = await lead.agent.post('/api/spectra').set('x-csrf-token', lead.csrf).field('campaignId', String(campaign.id)).attach('files', syntheticTextSpectrum(seed++), 'one.txt').attach('files', syntheticTextSpectrum(seed++), 'two.txt')
+      const res = await lead.agent
+        .post('/api/spectra')
+        .set('x-csrf-token', lead.csrf)
+        .field('campaignId', String(campaign.id))
+        .attach('files', syntheticTextSpectrum(seed++), 'one.txt')
+        .attach('files', syntheticTextSpectrum(seed++), 'two.txt')
       expect(res.status).toBe(413)
       expect(res.body.error.code).toBe('upload_too_large')
       expect(await Spectrum.count()).toBe(before)
@@ -171,11 +175,15 @@ describe('GET /api/spectra/:id/data', () => {
   it('sends float32 columns, decimated for an overview and whole when zoomed', async () => {
     const res = await post(observer).attach('files', syntheticTextSpectrum(seed++), 'plot.txt').expect(200)
     const id = res.body.results[0].spectrumId
-    const overview = await observer.agent.get(`/api/spectra/${id}/data?maxPoints=500`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = []
-      r.on('data', (c: Buffer) => chunks.push(c))
-      r.on('end', () => cb(null, Buffer.concat(chunks)))
-    }).expect(200)
+    const overview = await observer.agent
+      .get(`/api/spectra/${id}/data?maxPoints=500`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = []
+        r.on('data', (c: Buffer) => chunks.push(c))
+        r.on('end', () => cb(null, Buffer.concat(chunks)))
+      })
+      .expect(200)
     const layout = JSON.parse(String(overview.headers['x-series-layout']))
     expect(layout).toMatchObject({ total: 2000, decimated: true, columns: ['wavelength', 'flux', 'error'] })
     expect(layout.points).toBeLessThanOrEqual(500)

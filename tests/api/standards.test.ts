@@ -35,7 +35,13 @@ beforeAll(async () => {
     else observer = agent
   }
   // The real A0 V standard (HST CALSPEC spectrum; type A0 V is common practice), resolution ≈ 5.5 Å.
-  const res = await lead.agent.post('/api/spectra').set('x-csrf-token', lead.csrf).field('campaignId', String(campaign.id)).field('resolutionFwhm', '5.5').attach('files', realA0V(), `a0v-${Date.now()}.fits`).expect(200)
+  const res = await lead.agent
+    .post('/api/spectra')
+    .set('x-csrf-token', lead.csrf)
+    .field('campaignId', String(campaign.id))
+    .field('resolutionFwhm', '5.5')
+    .attach('files', realA0V(), `a0v-${Date.now()}.fits`)
+    .expect(200)
   spectrumId = res.body.results[0].spectrumId
   await runner.idle()
   // A file seen before names the earlier copy: process it again so it is suggested against this version.
@@ -87,11 +93,15 @@ describe('GET /api/standards', () => {
 
   it('serves a shipped standard as float32 columns', async () => {
     const std = await Standard.findOne({ where: { templateId: 'miles-m0166' } })
-    const res = await classifier.agent.get(`/api/standards/${std!.id}/data`).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = []
-      r.on('data', (c: Buffer) => chunks.push(c))
-      r.on('end', () => cb(null, Buffer.concat(chunks)))
-    }).expect(200)
+    const res = await classifier.agent
+      .get(`/api/standards/${std!.id}/data`)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = []
+        r.on('data', (c: Buffer) => chunks.push(c))
+        r.on('end', () => cb(null, Buffer.concat(chunks)))
+      })
+      .expect(200)
     const layout = JSON.parse(String(res.headers['x-series-layout']))
     expect(layout.columns).toEqual(['wavelength', 'rectified'])
     expect((res.body as Buffer).length).toBe(layout.points * 2 * 4)
@@ -107,7 +117,11 @@ describe('POST /api/standards and /api/standards/versions', () => {
   })
 
   it('adds an observed standard to a new version, retires it, and re-suggests keeping history', async () => {
-    const added = await lead.agent.post('/api/standards').set('x-csrf-token', lead.csrf).send({ spectrumId, spectralType: 'A0', luminosityClass: 'V', note: 'MK primary standard (common practice)' }).expect(201)
+    const added = await lead.agent
+      .post('/api/standards')
+      .set('x-csrf-token', lead.csrf)
+      .send({ spectrumId, spectralType: 'A0', luminosityClass: 'V', note: 'MK primary standard (common practice)' })
+      .expect(201)
     expect(added.body.standard.spectralType).toBe('A0 V')
     expect(added.body.standard.source).toBe('observed')
     const row = await Standard.findByPk(added.body.standard.id)
@@ -140,7 +154,11 @@ describe('POST /api/standards and /api/standards/versions', () => {
     const retired = await lead.agent.post(`/api/standards/${added.body.standard.id}/retire`).set('x-csrf-token', lead.csrf).expect(200)
     expect(retired.body.standard.retiredAt).not.toBeNull()
     await lead.agent.post(`/api/standards/${added.body.standard.id}/retire`).set('x-csrf-token', lead.csrf).expect(409)
-    const next = await lead.agent.post('/api/standards/versions').set('x-csrf-token', lead.csrf).send({ name: `${name}-b`, description: '' }).expect(201)
+    const next = await lead.agent
+      .post('/api/standards/versions')
+      .set('x-csrf-token', lead.csrf)
+      .send({ name: `${name}-b`, description: '' })
+      .expect(201)
     const nextMembers = (await LibraryVersionStandard.findAll({ where: { versionId: next.body.version.id } })).map((l) => l.standardId)
     expect(nextMembers).not.toContain(added.body.standard.id)
     expect(nextMembers).toContain(shippedA0V!.id)

@@ -27,7 +27,11 @@ const rows: AgreementRow[] = [
 
 describe('AuditAgreementTable', () => {
   const w = mount(AuditAgreementTable, { props: { rows, whoTitle: 'Pair', smallBelow: 10, testid: 'audit-pairs' } })
-  const cellsOf = (key: string) => w.get(`[data-testid="audit-pairs-row"][data-key="${key}"]`).findAll('td').map((td) => td.text())
+  const cellsOf = (key: string) =>
+    w
+      .get(`[data-testid="audit-pairs-row"][data-key="${key}"]`)
+      .findAll('td')
+      .map((td) => td.text())
 
   it('draws shares as percentages and κ to two places, with the count', () => {
     const [who, n, exactType, within, exactClass, withinClass, kc, kl, kq] = cellsOf('1-2')

@@ -9,9 +9,21 @@ const matrix: ConfusionMatrix = {
   columnsAre: 'Consensus (type letter)',
   labels: ['B', 'A', 'F'],
   cells: [
-    [{ count: 5, spectrumIds: [11, 12, 13, 14, 15] }, { count: 0, spectrumIds: [] }, { count: 0, spectrumIds: [] }],
-    [{ count: 2, spectrumIds: [21, 22] }, { count: 4, spectrumIds: [31, 32, 33, 34] }, { count: 0, spectrumIds: [] }],
-    [{ count: 0, spectrumIds: [] }, { count: 0, spectrumIds: [] }, { count: 1, spectrumIds: [41] }],
+    [
+      { count: 5, spectrumIds: [11, 12, 13, 14, 15] },
+      { count: 0, spectrumIds: [] },
+      { count: 0, spectrumIds: [] },
+    ],
+    [
+      { count: 2, spectrumIds: [21, 22] },
+      { count: 4, spectrumIds: [31, 32, 33, 34] },
+      { count: 0, spectrumIds: [] },
+    ],
+    [
+      { count: 0, spectrumIds: [] },
+      { count: 0, spectrumIds: [] },
+      { count: 1, spectrumIds: [41] },
+    ],
   ],
   n: 12,
 }

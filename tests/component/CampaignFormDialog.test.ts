@@ -60,7 +60,19 @@ describe('CampaignFormDialog', () => {
     await flush()
     expect(save).toHaveBeenCalledTimes(1)
     expect(save.mock.calls[0]).toEqual([
-      { name: 'Southern Arc Survey', code: 'SKY-27', description: '', observatory: '', regionMin: 3850, regionMax: 5000, callsRequired: 1, blindReview: false, typeTolerance: 1, classTolerance: 1, deadline: null },
+      {
+        name: 'Southern Arc Survey',
+        code: 'SKY-27',
+        description: '',
+        observatory: '',
+        regionMin: 3850,
+        regionMax: 5000,
+        callsRequired: 1,
+        blindReview: false,
+        typeTolerance: 1,
+        classTolerance: 1,
+        deadline: null,
+      },
       null,
     ])
     expect(wrapper.findComponent(CampaignFormDialog).emitted('saved')?.[0]).toEqual([saved, true])

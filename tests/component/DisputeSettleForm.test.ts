@@ -14,7 +14,14 @@ describe('DisputeSettleForm', () => {
   })
 
   it('starts from one of the calls and emits the settlement', async () => {
-    const wrapper = mount(DisputeSettleForm, { props: { presets: [{ label: 'B8 III', type: 'B8', luminosityClass: 'III' }, { label: 'A1 III', type: 'A1', luminosityClass: 'III' }] } })
+    const wrapper = mount(DisputeSettleForm, {
+      props: {
+        presets: [
+          { label: 'B8 III', type: 'B8', luminosityClass: 'III' },
+          { label: 'A1 III', type: 'A1', luminosityClass: 'III' },
+        ],
+      },
+    })
     await wrapper.findAll('[data-testid="settle-preset"]')[1]!.trigger('click')
     await wrapper.get('[data-testid="settle-note"]').setValue('Ca II K too weak for B8')
     await flush()

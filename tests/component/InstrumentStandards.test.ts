@@ -42,20 +42,42 @@ function candidate(spectrumId: number, typeCode: number, classCode: number, firs
 
 function promoted(id: number, typeCode: number, classCode: number, versionIds: number[]): StandardSummary {
   return {
-    id, source: 'observed', modelId: null, templateId: null, star: `KRF 0${id}`, origin: 'KRO-LRS', spectrumId: id, spectralType: coverageCell(typeCode, classCode).label, typeCode,
-    luminosityClass: 'V', classCode, teff: null, logg: null, feh: null, resolutionFwhm: 3.54, note: '', addedBy: 1, retiredAt: null, createdAt: '2026-03-02T00:00:00.000Z',
-    versionIds, instrumentId: 7, provenance: null,
+    id,
+    source: 'observed',
+    modelId: null,
+    templateId: null,
+    star: `KRF 0${id}`,
+    origin: 'KRO-LRS',
+    spectrumId: id,
+    spectralType: coverageCell(typeCode, classCode).label,
+    typeCode,
+    luminosityClass: 'V',
+    classCode,
+    teff: null,
+    logg: null,
+    feh: null,
+    resolutionFwhm: 3.54,
+    note: '',
+    addedBy: 1,
+    retiredAt: null,
+    createdAt: '2026-03-02T00:00:00.000Z',
+    versionIds,
+    instrumentId: 7,
+    provenance: null,
   }
 }
 
-describe('coverage of an instrument\'s standards', () => {
+describe("coverage of an instrument's standards", () => {
   it('is one cell per subtype and class, the cells a version added named apart', () => {
     const standards = [promoted(1, 12, 6, [2, 3]), promoted(2, 20, 6, [3]), promoted(3, 20, 6, [3])]
     const { cells, titles } = coverageOf(standards)
     // Two A0 V standards share one cell (shared/coverage.ts), whose hover text names both.
     expect(cells.map((c) => c.label).sort()).toEqual(['A0 V', 'B2 V'])
     expect(titles['20|6']).toBe('A0 V: KRF 02; KRF 03')
-    const version = { id: 3, changes: { action: 'promote', instrument: { id: 7, name: 'KRO-LRS' }, note: '', standards: [{ standardId: 2, spectrumId: 2, spectralType: 'A0 V', reason: '' }] } } as unknown as VersionSummary
+    const version = {
+      id: 3,
+      changes: { action: 'promote', instrument: { id: 7, name: 'KRO-LRS' }, note: '', standards: [{ standardId: 2, spectrumId: 2, spectralType: 'A0 V', reason: '' }] },
+    } as unknown as VersionSummary
     expect(cellsAddedBy(version, 7, standards).map((c) => c.label)).toEqual(['A0 V'])
     expect(cellsAddedBy(version, 8, standards)).toEqual([])
   })
@@ -71,8 +93,16 @@ describe('coverage of an instrument\'s standards', () => {
 describe('StandardsCandidateTable', () => {
   it('lets a lead tick one candidate per gap at a time', async () => {
     const selected = ref<number[]>([])
-    const Host = defineComponent(() => () =>
-      h(NConfigProvider, null, () => h(StandardsCandidateTable, { candidates: [candidate(11, 12, 6), candidate(12, 12, 6, false), candidate(13, 20, 6)], canPromote: true, selected: selected.value, 'onUpdate:selected': (v: number[]) => (selected.value = v) })),
+    const Host = defineComponent(
+      () => () =>
+        h(NConfigProvider, null, () =>
+          h(StandardsCandidateTable, {
+            candidates: [candidate(11, 12, 6), candidate(12, 12, 6, false), candidate(13, 20, 6)],
+            canPromote: true,
+            selected: selected.value,
+            'onUpdate:selected': (v: number[]) => (selected.value = v),
+          }),
+        ),
     )
     const wrapper = mount(Host, { global: { plugins: [router] } })
     const boxes = () => wrapper.findAll('[data-testid="candidate-row"] .n-checkbox')
@@ -87,7 +117,10 @@ describe('StandardsCandidateTable', () => {
   })
 
   it('shows a classifier the candidates without boxes to tick', () => {
-    const wrapper = mount(defineComponent(() => () => h(NConfigProvider, null, () => h(StandardsCandidateTable, { candidates: [candidate(11, 12, 6)], canPromote: false, selected: [] }))), { global: { plugins: [router] } })
+    const wrapper = mount(
+      defineComponent(() => () => h(NConfigProvider, null, () => h(StandardsCandidateTable, { candidates: [candidate(11, 12, 6)], canPromote: false, selected: [] }))),
+      { global: { plugins: [router] } },
+    )
     expect(wrapper.findAll('.n-checkbox')).toHaveLength(0)
     expect(wrapper.find('[data-testid="candidate-row"]').attributes('data-cell')).toBe('B2 V')
   })
@@ -109,7 +142,7 @@ describe('SuggestionEvidence', () => {
     ...(standards ? { standards } : {}),
   })
 
-  it('says which standards decided the suggestion: the instrument\'s own and the library\'s', () => {
+  it("says which standards decided the suggestion: the instrument's own and the library's", () => {
     const wrapper = mount(SuggestionEvidence, {
       props: {
         details: details({
@@ -133,7 +166,9 @@ describe('SuggestionEvidence', () => {
   })
 
   it('says so when the spectrum has no instrument, and says nothing for suggestions made before instruments', () => {
-    const none = mount(SuggestionEvidence, { props: { details: details({ instrument: null, instrumentStandards: 0, covered: 0, instrumentShare: { type: 0, class: 0 }, decidedBy: 'library', deciding: [], correction: null }) } })
+    const none = mount(SuggestionEvidence, {
+      props: { details: details({ instrument: null, instrumentStandards: 0, covered: 0, instrumentShare: { type: 0, class: 0 }, decidedBy: 'library', deciding: [], correction: null }) },
+    })
     expect(none.find('[data-testid="suggestion-standards"]').text()).toContain("The library's standards (the spectrum names no instrument)")
     const old = mount(SuggestionEvidence, { props: { details: details(undefined) } })
     expect(old.find('[data-testid="suggestion-standards"]').exists()).toBe(false)

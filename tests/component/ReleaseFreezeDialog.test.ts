@@ -18,15 +18,19 @@ const frozen: ReleaseSummary = {
   rows: 31,
   supersededBy: null,
   authors: '',
-  downloads: { csv: '/api/releases/9/download?format=csv', ecsv: '/api/releases/9/download?format=ecsv', votable: '/api/releases/9/download?format=votable', fits: '/api/releases/9/download?format=fits', mrt: '/api/releases/9/download?format=mrt' },
+  downloads: {
+    csv: '/api/releases/9/download?format=csv',
+    ecsv: '/api/releases/9/download?format=ecsv',
+    votable: '/api/releases/9/download?format=votable',
+    fits: '/api/releases/9/download?format=fits',
+    mrt: '/api/releases/9/download?format=mrt',
+  },
 }
 
 function mountDialog(freeze: (input: FreezeInput) => Promise<ReleaseSummary>) {
   const show = ref(true)
   const onFrozen = vi.fn()
-  const Host = defineComponent(() => () =>
-    h(NConfigProvider, null, () => h(ReleaseFreezeDialog, { show: show.value, 'onUpdate:show': (v: boolean) => (show.value = v), campaigns, freeze, onFrozen })),
-  )
+  const Host = defineComponent(() => () => h(NConfigProvider, null, () => h(ReleaseFreezeDialog, { show: show.value, 'onUpdate:show': (v: boolean) => (show.value = v), campaigns, freeze, onFrozen })))
   const wrapper = mount(Host, { attachTo: document.body })
   return { wrapper, show, onFrozen }
 }

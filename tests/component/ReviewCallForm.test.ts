@@ -15,7 +15,16 @@ describe('checkCall', () => {
     const r = checkCall({ ...emptyDraft(), type: 'k1.5', luminosityClass: 'IIIb', peculiarities: 'CN0.5' })
     expect(r.ok).toBe(false) // lower-case letters are not MK letters
     const ok = checkCall({ ...emptyDraft(), type: 'K1.5', luminosityClass: 'IIIb', peculiarities: 'CN0.5' })
-    expect(ok.ok && ok.call).toMatchObject({ display: 'K1.5 IIIb CN0.5', spectralType: 'K1.5', letter: 'K', subtype: 1.5, typeCode: 51.5, luminosityClass: 'IIIb', classCode: 4.25, peculiarityList: ['CN0.5'] })
+    expect(ok.ok && ok.call).toMatchObject({
+      display: 'K1.5 IIIb CN0.5',
+      spectralType: 'K1.5',
+      letter: 'K',
+      subtype: 1.5,
+      typeCode: 51.5,
+      luminosityClass: 'IIIb',
+      classCode: 4.25,
+      peculiarityList: ['CN0.5'],
+    })
   })
 
   it('takes the class from the type field when the class field is empty', () => {

@@ -13,22 +13,57 @@ const getReview = vi.fn()
 const getHistory = vi.fn()
 vi.mock('@/api/calls', () => ({ getReview: (id: number) => getReview(id), recordCall: (id: number, body: unknown) => recordCall(id, body), getHistory: (id: number) => getHistory(id) }))
 vi.mock('@/api/queue', () => ({ nextQueueItem: async () => null, claimQueueItem: async () => ({}), listQueue: async () => ({ items: [], claimMinutes: 10 }) }))
-const series = (n: number) => ({ layout: { points: n, total: n, decimated: false, columns: ['wavelength', 'rectified'] }, columns: { wavelength: Float32Array.from({ length: n }, (_, i) => 3900 + i), rectified: new Float32Array(n).fill(1) } })
+const series = (n: number) => ({
+  layout: { points: n, total: n, decimated: false, columns: ['wavelength', 'rectified'] },
+  columns: { wavelength: Float32Array.from({ length: n }, (_, i) => 3900 + i), rectified: new Float32Array(n).fill(1) },
+})
 vi.mock('@/api/reviewSeries', () => ({ fetchPrepared: async () => series(50), fetchStandardSeries: async () => series(50), listOverlayStandards: async () => [] }))
 
 const me = { id: 2, name: 'Ilse Varga' }
 
 function call(over: Partial<CallView>): CallView {
   return {
-    id: 7, kind: 'call', correctsCallId: null, by: me, spectralType: 'B8 III n', letter: 'B', subtype: 8, typeCode: 18, luminosityClass: 'III', classCode: 4,
-    peculiarities: ['n'], notes: 'broad Balmer wings', confidence: 3, uncertain: false, acceptedSuggestion: false, suggestionId: null, suggestionShown: false,
-    secondsSpent: 40, createdAt: '2026-03-01T10:05:00.000Z', ...over,
+    id: 7,
+    kind: 'call',
+    correctsCallId: null,
+    by: me,
+    spectralType: 'B8 III n',
+    letter: 'B',
+    subtype: 8,
+    typeCode: 18,
+    luminosityClass: 'III',
+    classCode: 4,
+    peculiarities: ['n'],
+    notes: 'broad Balmer wings',
+    confidence: 3,
+    uncertain: false,
+    acceptedSuggestion: false,
+    suggestionId: null,
+    suggestionShown: false,
+    secondsSpent: 40,
+    createdAt: '2026-03-01T10:05:00.000Z',
+    ...over,
   }
 }
 
 function review(myCall: CallView | null, canCorrect: boolean): ReviewData {
   return {
-    spectrum: { id: 31, objectName: 'KRF 031', status: 'under_review', statusReason: null, submittedBy: { id: 4, name: 'Rohan Delacroix' }, createdAt: '2026-03-01T10:00:00.000Z', obsDate: null, instrument: '', snr: 80, wavelengthRange: [3850, 5000], dispersion: 1, resolvingPower: null, vMag: null, notes: '' },
+    spectrum: {
+      id: 31,
+      objectName: 'KRF 031',
+      status: 'under_review',
+      statusReason: null,
+      submittedBy: { id: 4, name: 'Rohan Delacroix' },
+      createdAt: '2026-03-01T10:00:00.000Z',
+      obsDate: null,
+      instrument: '',
+      snr: 80,
+      wavelengthRange: [3850, 5000],
+      dispersion: 1,
+      resolvingPower: null,
+      vMag: null,
+      notes: '',
+    },
     campaign: { id: 1, code: 'NFS', name: 'Northern Fields Survey 2026', callsRequired: 2, blindReview: false, typeTolerance: 1, classTolerance: 1, regionMin: 3850, regionMax: 5000 },
     measurement: null,
     suggestion: null,
@@ -94,7 +129,18 @@ describe('Correcting my call on the review screen', () => {
     expect([valueOf(wrapper, 'call-type'), valueOf(wrapper, 'call-class'), valueOf(wrapper, 'call-peculiarities'), valueOf(wrapper, 'call-note')]).toEqual(['B8', 'III', 'n', 'broad Balmer wings'])
     expect(wrapper.get('[data-testid="call-submit"]').text()).toContain('Record correction')
 
-    const corrected = call({ id: 9, kind: 'correction', correctsCallId: 7, spectralType: 'B9 IV n', letter: 'B', subtype: 9, typeCode: 19, luminosityClass: 'IV', classCode: 5, createdAt: '2026-03-01T10:20:00.000Z' })
+    const corrected = call({
+      id: 9,
+      kind: 'correction',
+      correctsCallId: 7,
+      spectralType: 'B9 IV n',
+      letter: 'B',
+      subtype: 9,
+      typeCode: 19,
+      luminosityClass: 'IV',
+      classCode: 5,
+      createdAt: '2026-03-01T10:20:00.000Z',
+    })
     recordCall.mockResolvedValueOnce({ outcome: 'waiting', call: corrected, spectrum: { id: 31, status: 'under_review' }, callsSoFar: 1, callsRequired: 2, classification: null, dispute: null })
     getReview.mockResolvedValueOnce(review(corrected, true))
     getHistory.mockResolvedValueOnce([event('call', 'Call B8 III n', '2026-03-01T10:05:00.000Z'), event('correction', 'Corrected to B9 IV n', '2026-03-01T10:20:00.000Z')])
@@ -105,7 +151,10 @@ describe('Correcting my call on the review screen', () => {
     await flushPromises()
 
     expect(recordCall).toHaveBeenCalledTimes(1)
-    expect(recordCall).toHaveBeenCalledWith(31, expect.objectContaining({ spectralType: 'B9', luminosityClass: 'IV', peculiarities: 'n', notes: 'broad Balmer wings', confidence: 3, acceptedSuggestion: false, correctsCallId: 7 }))
+    expect(recordCall).toHaveBeenCalledWith(
+      31,
+      expect.objectContaining({ spectralType: 'B9', luminosityClass: 'IV', peculiarities: 'n', notes: 'broad Balmer wings', confidence: 3, acceptedSuggestion: false, correctsCallId: 7 }),
+    )
     // The correction stays on this spectrum: the review is read again, nothing moves on.
     expect(getReview).toHaveBeenCalledTimes(2)
     expect(router.currentRoute.value.params.id).toBe('31')

@@ -107,7 +107,13 @@ describe('ReviewKeyMap', () => {
     const labelled = new Set(KEY_MAP.map((b) => b.group + b.what))
     expect(labelled.size).toBe(KEY_MAP.length)
     const text = mount(ReviewKeyMap).text()
-    for (const words of ['earlier / later type in the matrix', 'show the highlighted standard in the large plot', 'next / previous region of the strip', 'take the suggestion as your call', 'next spectrum']) {
+    for (const words of [
+      'earlier / later type in the matrix',
+      'show the highlighted standard in the large plot',
+      'next / previous region of the strip',
+      'take the suggestion as your call',
+      'next spectrum',
+    ]) {
       expect(text).toContain(words)
     }
   })

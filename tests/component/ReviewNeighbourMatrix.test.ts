@@ -111,8 +111,7 @@ describe('scales', () => {
 describe('ReviewNeighbourMatrix', () => {
   const comparison = (chi2: number) => ({ wavelength: [4000, 4050, 4100], values: [0, 0.02, -0.01], reducedChi2: chi2, pixels: 3 })
   const tiles: NeighbourTile[] = neighbourCells(grid, byId(5)).map((c, i) => ({ ...c, comparison: c.standard ? comparison(1 + i) : null }))
-  const mountMatrix = (cursor: MatrixPosition = { row: 0, col: 0 }) =>
-    mount(ReviewNeighbourMatrix, { props: { tiles, cursor, pickedId: 5, scale: 0.05, mode: 'difference', region: [4000, 4100] } })
+  const mountMatrix = (cursor: MatrixPosition = { row: 0, col: 0 }) => mount(ReviewNeighbourMatrix, { props: { tiles, cursor, pickedId: 5, scale: 0.05, mode: 'difference', region: [4000, 4100] } })
 
   it('draws nine tiles, each standard with its χ², its axis and a curve', () => {
     const wrapper = mountMatrix()

@@ -13,13 +13,21 @@ const nextQueueItem = vi.fn()
 const claimQueueItem = vi.fn(async (_id: number) => ({}))
 const releaseQueueItem = vi.fn(async (_id: number) => undefined)
 vi.mock('@/api/calls', () => ({ getReview: (id: number) => getReview(id), recordCall: (id: number, body: unknown) => recordCall(id, body), getHistory: async () => [] }))
-vi.mock('@/api/queue', () => ({ nextQueueItem: (f: unknown, after: number) => nextQueueItem(f, after), claimQueueItem: (id: number) => claimQueueItem(id), releaseQueueItem: (id: number) => releaseQueueItem(id), listQueue: async () => ({ items: [], claimMinutes: 10 }) }))
+vi.mock('@/api/queue', () => ({
+  nextQueueItem: (f: unknown, after: number) => nextQueueItem(f, after),
+  claimQueueItem: (id: number) => claimQueueItem(id),
+  releaseQueueItem: (id: number) => releaseQueueItem(id),
+  listQueue: async () => ({ items: [], claimMinutes: 10 }),
+}))
 const standards = [
   { id: 40, spectralType: 'B8 III', typeCode: 18, luminosityClass: 'III', classCode: 4, source: 'model', retiredAt: null },
   { id: 41, spectralType: 'B9 III', typeCode: 19, luminosityClass: 'III', classCode: 4, source: 'model', retiredAt: null },
   { id: 42, spectralType: 'B8 V', typeCode: 18, luminosityClass: 'V', classCode: 6, source: 'model', retiredAt: null },
 ]
-const series = (n: number) => ({ layout: { points: n, total: n, decimated: false, columns: ['wavelength', 'rectified'] }, columns: { wavelength: Float32Array.from({ length: n }, (_, i) => 3850 + i), rectified: new Float32Array(n).fill(1) } })
+const series = (n: number) => ({
+  layout: { points: n, total: n, decimated: false, columns: ['wavelength', 'rectified'] },
+  columns: { wavelength: Float32Array.from({ length: n }, (_, i) => 3850 + i), rectified: new Float32Array(n).fill(1) },
+})
 vi.mock('@/api/reviewSeries', () => ({
   fetchPrepared: async () => series(1200),
   fetchStandardSeries: async () => series(1200),
@@ -27,13 +35,45 @@ vi.mock('@/api/reviewSeries', () => ({
 }))
 
 const suggestion: SuggestionView = {
-  id: 3, spectralType: 'B8 III', letter: 'B', subtype: 8, typeCode: 18, luminosityClass: 'III', classCode: 4, uncertaintySubtypes: 1, uncertaintyClasses: 0.5,
-  libraryVersionId: 1, pipelineVersion: 'test', bestStandardId: 40, candidates: [{ standardId: 40, spectralType: 'B8 III' }, { standardId: 41, spectralType: 'B9 III' }], votes: [], flags: [], createdAt: '2026-03-01T10:00:00.000Z',
+  id: 3,
+  spectralType: 'B8 III',
+  letter: 'B',
+  subtype: 8,
+  typeCode: 18,
+  luminosityClass: 'III',
+  classCode: 4,
+  uncertaintySubtypes: 1,
+  uncertaintyClasses: 0.5,
+  libraryVersionId: 1,
+  pipelineVersion: 'test',
+  bestStandardId: 40,
+  candidates: [
+    { standardId: 40, spectralType: 'B8 III' },
+    { standardId: 41, spectralType: 'B9 III' },
+  ],
+  votes: [],
+  flags: [],
+  createdAt: '2026-03-01T10:00:00.000Z',
 }
 
 function review(id: number, blind: boolean): ReviewData {
   return {
-    spectrum: { id, objectName: `KRF 0${id}`, status: 'suggested', statusReason: null, submittedBy: { id: 4, name: 'Rohan Delacroix' }, createdAt: '2026-03-01T10:00:00.000Z', obsDate: null, instrument: '', snr: 80, wavelengthRange: [3850, 5000], dispersion: 1, resolvingPower: null, vMag: null, notes: '' },
+    spectrum: {
+      id,
+      objectName: `KRF 0${id}`,
+      status: 'suggested',
+      statusReason: null,
+      submittedBy: { id: 4, name: 'Rohan Delacroix' },
+      createdAt: '2026-03-01T10:00:00.000Z',
+      obsDate: null,
+      instrument: '',
+      snr: 80,
+      wavelengthRange: [3850, 5000],
+      dispersion: 1,
+      resolvingPower: null,
+      vMag: null,
+      notes: '',
+    },
     campaign: { id: 1, code: 'NFS', name: 'Northern Fields Survey 2026', callsRequired: 2, blindReview: blind, typeTolerance: 1, classTolerance: 1, regionMin: 3850, regionMax: 5000 },
     measurement: null,
     suggestion: blind ? null : suggestion,
@@ -67,8 +107,7 @@ async function mountAt(id: number) {
   return { wrapper, router }
 }
 
-const key = (k: string, init: KeyboardEventInit = {}, target: EventTarget = document.body) =>
-  target.dispatchEvent(new KeyboardEvent('keydown', { key: k, bubbles: true, cancelable: true, ...init }))
+const key = (k: string, init: KeyboardEventInit = {}, target: EventTarget = document.body) => target.dispatchEvent(new KeyboardEvent('keydown', { key: k, bubbles: true, cancelable: true, ...init }))
 
 const mounted: { unmount(): void }[] = []
 afterEach(() => {

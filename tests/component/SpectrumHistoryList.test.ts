@@ -10,7 +10,15 @@ const events: SpectrumHistoryEvent[] = [
   { at: '2026-11-18T02:00:01.000Z', kind: 'suggestion', who: null, summary: 'Suggested B5 Ib (±0.5 subtypes, ±0.25 classes)', details: {} },
   { at: '2026-11-19T03:58:00.000Z', kind: 'call', who: { id: 2, name: 'Classifier A' }, summary: 'Called B5 Ib (confidence 2/3)', suggestionShown: false, secondsSpent: 97, details: {} },
   { at: '2026-11-19T07:58:00.000Z', kind: 'call', who: { id: 3, name: 'Classifier B' }, summary: 'Called B9 II (confidence 3/3)', suggestionShown: true, secondsSpent: 160, details: {} },
-  { at: '2026-11-19T08:10:00.000Z', kind: 'correction', who: { id: 3, name: 'Classifier B' }, summary: 'Corrected the call to B8 II (confidence 2/3)', suggestionShown: true, secondsSpent: 3725, details: {} },
+  {
+    at: '2026-11-19T08:10:00.000Z',
+    kind: 'correction',
+    who: { id: 3, name: 'Classifier B' },
+    summary: 'Corrected the call to B8 II (confidence 2/3)',
+    suggestionShown: true,
+    secondsSpent: 3725,
+    details: {},
+  },
   { at: '2026-11-19T08:10:00.000Z', kind: 'dispute', who: null, summary: 'Disputed: the calls differ by 3 subtypes and 1 classes (tolerance 1 and 1)', details: {} },
   { at: '2026-11-20T07:58:00.000Z', kind: 'settled', who: { id: 1, name: 'Lead One' }, summary: 'Settled as B5 Ib: the first call stands.', details: {} },
 ]

@@ -31,7 +31,14 @@ describe('parseSeriesLayout', () => {
 describe('decodeSeries', () => {
   it('splits the body into named columns in order', () => {
     const layout = parseSeriesLayout('{"points":3,"total":3,"decimated":false,"columns":["wavelength","flux","error"]}')
-    const s = decodeSeries(body([[4000, 4000.5, 4001], [1.5, 0.25, -2], [0.01, 0.02, 0.03]]), layout)
+    const s = decodeSeries(
+      body([
+        [4000, 4000.5, 4001],
+        [1.5, 0.25, -2],
+        [0.01, 0.02, 0.03],
+      ]),
+      layout,
+    )
     expect(Array.from(column(s, 'wavelength'))).toEqual([4000, 4000.5, 4001])
     expect(Array.from(column(s, 'flux'))).toEqual([1.5, 0.25, -2])
     // float32 rounding of 0.01 etc.: compare within 1e-7.
@@ -39,7 +46,13 @@ describe('decodeSeries', () => {
   })
 
   it('keeps NaN for masked pixels', () => {
-    const s = decodeSeries(body([[1, 2], [Number.NaN, 3]]), { points: 2, total: 2, decimated: false, columns: ['wavelength', 'flux'] })
+    const s = decodeSeries(
+      body([
+        [1, 2],
+        [Number.NaN, 3],
+      ]),
+      { points: 2, total: 2, decimated: false, columns: ['wavelength', 'flux'] },
+    )
     expect(Number.isNaN(column(s, 'flux')[0]!)).toBe(true)
   })
 

@@ -77,9 +77,21 @@ describe('SpectrumSuggestionPanel', () => {
   })
 
   it('says why there is no suggestion yet for a spectrum still waiting to be measured, and for one that failed', () => {
-    expect(mountPanel({ suggestions: shown(null), status: 'received' }).get('[data-testid="spectrum-suggestion-none"]').text()).toContain('waiting to be measured')
-    expect(mountPanel({ suggestions: shown(null), status: 'measured' }).get('[data-testid="spectrum-suggestion-none"]').text()).toContain('waiting to be matched')
-    expect(mountPanel({ suggestions: shown(null), status: 'failed' }).get('[data-testid="spectrum-suggestion-none"]').text()).toContain('processing failed')
+    expect(
+      mountPanel({ suggestions: shown(null), status: 'received' })
+        .get('[data-testid="spectrum-suggestion-none"]')
+        .text(),
+    ).toContain('waiting to be measured')
+    expect(
+      mountPanel({ suggestions: shown(null), status: 'measured' })
+        .get('[data-testid="spectrum-suggestion-none"]')
+        .text(),
+    ).toContain('waiting to be matched')
+    expect(
+      mountPanel({ suggestions: shown(null), status: 'failed' })
+        .get('[data-testid="spectrum-suggestion-none"]')
+        .text(),
+    ).toContain('processing failed')
   })
 
   it('shows the type in MK notation with its uncertainty and the versions that made it', () => {
@@ -192,7 +204,9 @@ describe('useSpectrumSuggestionOverlay', () => {
     const fetchMock = vi.fn()
     vi.stubGlobal('fetch', fetchMock)
     const scope = effectScope()
-    const overlay = scope.run(() => useSpectrumSuggestionOverlay(suggestion({ id: 9002, bestStandardId: 9070, candidates: [{ standardId: 9070, spectralType: 'F0 V', chi2: 1, reducedChi2: 1, probability: 1 }] }), false))!
+    const overlay = scope.run(() =>
+      useSpectrumSuggestionOverlay(suggestion({ id: 9002, bestStandardId: 9070, candidates: [{ standardId: 9070, spectralType: 'F0 V', chi2: 1, reducedChi2: 1, probability: 1 }] }), false),
+    )!
     await flushPromises()
     expect(overlay.data.value).toBeNull()
     expect(fetchMock).not.toHaveBeenCalled()

@@ -34,8 +34,8 @@ describe('StandardsAddDialog', () => {
 
   function mountDialog(add: (input: AddObservedStandardInput) => Promise<StandardSummary>) {
     const show = ref(true)
-    const Host = defineComponent(() => () =>
-      h(NConfigProvider, null, () => h(StandardsAddDialog, { show: show.value, 'onUpdate:show': (v: boolean) => (show.value = v), add, find: async () => choices })),
+    const Host = defineComponent(
+      () => () => h(NConfigProvider, null, () => h(StandardsAddDialog, { show: show.value, 'onUpdate:show': (v: boolean) => (show.value = v), add, find: async () => choices })),
     )
     return { wrapper: mount(Host, { attachTo: document.body }), show }
   }

@@ -56,11 +56,7 @@ describe('http', () => {
 
   it('refetches the token and retries once when the server answers csrf_failed', async () => {
     setCsrfToken('stale')
-    const fetch = mockFetch(
-      apiError(403, 'csrf_failed', 'The request is missing a valid CSRF token.'),
-      jsonResponse(200, { csrfToken: 'fresh' }),
-      jsonResponse(201, { user: { id: 9 } }),
-    )
+    const fetch = mockFetch(apiError(403, 'csrf_failed', 'The request is missing a valid CSRF token.'), jsonResponse(200, { csrfToken: 'fresh' }), jsonResponse(201, { user: { id: 9 } }))
     const reply = await http.post<{ user: { id: number } }>('/users', { name: 'B' })
     expect(reply.user.id).toBe(9)
     expect(fetch).toHaveBeenCalledTimes(3)

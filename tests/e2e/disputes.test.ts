@@ -102,7 +102,9 @@ describe('sending a dispute to a third classifier', () => {
     expect(await page.getByTestId('dispute-action').textContent()).toContain('Sent to a third classifier')
     await screenshot(page, 'dispute-sent-to-third')
 
-    const list = (await (await page.request.get(`${baseUrl}/api/disputes?state=another-call`)).json()) as { disputes: { spectrum: { id: number }; calls: { letter: string; subtype: number; luminosityClass: string }[] }[] }
+    const list = (await (await page.request.get(`${baseUrl}/api/disputes?state=another-call`)).json()) as {
+      disputes: { spectrum: { id: number }; calls: { letter: string; subtype: number; luminosityClass: string }[] }[]
+    }
     const sent = list.disputes.find((d) => d.spectrum.id === spectrumId)
     expect(sent).toBeDefined()
     const first = sent!.calls[0]!

@@ -8,7 +8,7 @@ const LEAD = { email: 'lead@kestrel-ridge.example', password: 'lead-demo-2026' }
 const CLASSIFIER = { email: 'classifier@kestrel-ridge.example', password: 'classifier-demo-2026' }
 const INSTRUMENT = 'KRO-LRS, 600 l/mm grating'
 
-describe('a lead promotes agreed spectra as an instrument\'s standards', () => {
+describe("a lead promotes agreed spectra as an instrument's standards", () => {
   const baseUrl = process.env.E2E_BASE_URL ?? inject('baseUrl')
   let browser: Awaited<ReturnType<typeof openBrowser>>
   let page: Page
@@ -57,7 +57,7 @@ describe('a lead promotes agreed spectra as an instrument\'s standards', () => {
     await dialog.waitFor()
     expect(await page.locator('[data-testid="standards-change-items"] li').count()).toBe(2)
     expect(await page.getByTestId('standards-change-items').textContent()).toMatch(/agreed by|settled by/)
-    await page.getByTestId('standards-change-note').fill('First standards of the spectrograph, from the survey\'s agreed spectra.')
+    await page.getByTestId('standards-change-note').fill("First standards of the spectrograph, from the survey's agreed spectra.")
     await screenshot(page, 'lead-instrument-promote')
     await page.getByTestId('standards-change-submit').click()
     await dialog.waitFor({ state: 'hidden', timeout: 30_000 })

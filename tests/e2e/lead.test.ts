@@ -102,7 +102,10 @@ describe('the lead audits the demo campaign and publishes a catalogue release', 
     // Either the release opens, or the server's reason is on the dialog (and the test says it).
     const outcome = await Promise.race([
       page.waitForURL(/\/releases\/\d+$/, { timeout: 30_000 }).then(() => 'frozen'),
-      page.getByTestId('freeze-error').waitFor({ timeout: 30_000 }).then(async () => `refused: ${await page.getByTestId('freeze-error').textContent()}`),
+      page
+        .getByTestId('freeze-error')
+        .waitFor({ timeout: 30_000 })
+        .then(async () => `refused: ${await page.getByTestId('freeze-error').textContent()}`),
     ])
     expect(outcome).toBe('frozen')
     releaseId = Number(new URL(page.url()).pathname.split('/').pop())

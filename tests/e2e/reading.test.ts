@@ -66,11 +66,16 @@ describe('the observer sees how each file was read, has one read again, and with
     // The corpus states the true air range of this file: 3800.0–5299.0 Å.
     expect(vacuum.airRange).toEqual([3800, 5299])
     await expect.poll(() => page.getByTestId('spectrum-metadata').innerText()).toContain('3800–5299 Å')
-    await expect.poll(async () => {
-      await page.reload()
-      await page.getByTestId('spectrum-history').waitFor()
-      return page.locator('[data-testid="spectrum-history-event"][data-kind="reread"]').count()
-    }, { timeout: 30_000 }).toBe(1)
+    await expect
+      .poll(
+        async () => {
+          await page.reload()
+          await page.getByTestId('spectrum-history').waitFor()
+          return page.locator('[data-testid="spectrum-history-event"][data-kind="reread"]').count()
+        },
+        { timeout: 30_000 },
+      )
+      .toBe(1)
     expect(await page.locator('[data-testid="spectrum-history-event"][data-kind="reread"]').innerText()).toMatch(/Read again as vacuum, unit Angstrom \(assumed\): 3800\.0–5299\.0 Å/)
     await screenshot(page, 'observer-read-again')
   })

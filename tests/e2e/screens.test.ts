@@ -37,9 +37,9 @@ async function screensOf(page: Page, who: Who): Promise<string[]> {
 
 /** Texts of select boxes that do not fit their box (a truncated choice). */
 const truncatedSelects = (page: Page) =>
-  page.locator('.n-base-selection-label .n-base-selection-input__content, .n-base-selection-label .n-base-selection-input').evaluateAll((els) =>
-    els.filter((e) => e.scrollWidth > e.clientWidth + 1 && (e.textContent ?? '').trim() !== '').map((e) => e.textContent ?? ''),
-  )
+  page
+    .locator('.n-base-selection-label .n-base-selection-input__content, .n-base-selection-label .n-base-selection-input')
+    .evaluateAll((els) => els.filter((e) => e.scrollWidth > e.clientWidth + 1 && (e.textContent ?? '').trim() !== '').map((e) => e.textContent ?? ''))
 
 describe('every screen, light and dark', () => {
   for (const who of Object.keys(PEOPLE) as Who[]) {

@@ -40,7 +40,9 @@ export async function privateDatabase() {
     /** A user with a password, a campaign they belong to; returns their ids. */
     async person(role: 'observer' | 'classifier' | 'lead', email: string, password: string, campaignId?: number) {
       const hash = await hashPassword(password, 4)
-      await sql.query('INSERT INTO users (email, name, role, password_hash, active, created_at, updated_at) VALUES (?, ?, ?, ?, 1, NOW(3), NOW(3))', { replacements: [email, email.split('@')[0]!, role, hash] })
+      await sql.query('INSERT INTO users (email, name, role, password_hash, active, created_at, updated_at) VALUES (?, ?, ?, ?, 1, NOW(3), NOW(3))', {
+        replacements: [email, email.split('@')[0]!, role, hash],
+      })
       const [[row]] = (await sql.query('SELECT id FROM users WHERE email = ?', { replacements: [email] })) as [Array<{ id: number }>, unknown]
       if (campaignId) await sql.query('INSERT INTO campaign_members (campaign_id, user_id, created_at) VALUES (?, ?, NOW(3))', { replacements: [campaignId, row!.id] })
       return row!.id

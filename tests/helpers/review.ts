@@ -67,7 +67,18 @@ export async function createSuggestedSpectrum(o: SuggestedSpectrumOptions) {
     snr: o.snr,
     vacuumConverted: false,
     // What a text reader records for such a file (shared/api/spectra.ts ReadMeta).
-    readInfo: JSON.stringify({ format: 'text', vacuumConverted: false, vacuumSource: 'assumed air', wavelengthUnit: 'Angstrom', header: {}, pixels: 2000, maskedPixels: 0, coverage: 1, reversed: false, notes: [] }),
+    readInfo: JSON.stringify({
+      format: 'text',
+      vacuumConverted: false,
+      vacuumSource: 'assumed air',
+      wavelengthUnit: 'Angstrom',
+      header: {},
+      pixels: 2000,
+      maskedPixels: 0,
+      coverage: 1,
+      reversed: false,
+      notes: [],
+    }),
   })
   const empty = Buffer.alloc(0)
   const m = await Measurement.create({

@@ -33,7 +33,7 @@ export async function suggested(sequelize: Sequelize, campaign: Campaign, submit
 
 /** A frozen release of the campaign holding these rows (columns not given are empty). */
 export async function frozenRelease(campaign: Campaign, lead: Person, rows: Array<Partial<ExportRow> & { SpId: number; Object: string }>): Promise<Release> {
-  const version = ((await Release.max('version', { where: { campaignId: campaign.id } })) as number | null ?? 0) + 1
+  const version = (((await Release.max('version', { where: { campaignId: campaign.id } })) as number | null) ?? 0) + 1
   const release = await Release.create({
     campaignId: campaign.id,
     version,

@@ -4,8 +4,16 @@
  */
 import { vacuumToAirArray } from '../../../shared/airvac'
 import {
-  SpectrumReadError, type MediumEvidence, type RawSpectrum, type ReadDecisions, type ReadMask, type ReadMeta,
-  type ReadSuccess, type ResolvedReadOptions, type SpectrumFormat, type SpectrumHdu,
+  SpectrumReadError,
+  type MediumEvidence,
+  type RawSpectrum,
+  type ReadDecisions,
+  type ReadMask,
+  type ReadMeta,
+  type ReadSuccess,
+  type ResolvedReadOptions,
+  type SpectrumFormat,
+  type SpectrumHdu,
 } from './types'
 
 /** Beyond these, after unit handling, no part of the spectrum can be optical (Å). */
@@ -61,9 +69,7 @@ export function decideMedium(evidence: readonly MediumEvidence[], choice: boolea
   const out: ReadDecisions['medium'] = { vacuum: strongest.vacuum, why: strongest.source }
   const against = evidence.filter((e) => e.vacuum !== strongest.vacuum && !e.inferred)
   if (against.length) {
-    const reason = against.every((e) => e.strength < strongest.strength)
-      ? `${strongest.source} is the stronger statement`
-      : `the statements weigh the same; the first one was taken`
+    const reason = against.every((e) => e.strength < strongest.strength) ? `${strongest.source} is the stronger statement` : `the statements weigh the same; the first one was taken`
     out.conflict = `the header contradicts itself: ${strongest.source} says ${said(strongest.vacuum)} but ${against.map((e) => e.source).join(', ')} says ${said(!strongest.vacuum)}; ${said(strongest.vacuum)} was taken because ${reason}. If that is wrong, choose the medium (Wavelengths on upload, --medium with npm run classify)`
   }
   return out
@@ -78,9 +84,7 @@ const fmt = (x: number) => (Math.abs(x) >= 1e5 || Math.abs(x) < 0.1 ? x.toExpone
  * @throws SpectrumReadError LENGTH_MISMATCH, TOO_FEW_PIXELS, TOO_MANY_PIXELS, BAD_WAVELENGTHS,
  *   UNSORTED_WAVELENGTHS, DUPLICATE_WAVELENGTHS, NOT_OPTICAL, NO_VALID_FLUX, NO_COVERAGE
  */
-export function finalizeSpectrum(
-  raw: RawSpectrum, options: ResolvedReadOptions, fileName: string, format: SpectrumFormat, hdus?: SpectrumHdu[],
-): ReadSuccess {
+export function finalizeSpectrum(raw: RawSpectrum, options: ResolvedReadOptions, fileName: string, format: SpectrumFormat, hdus?: SpectrumHdu[]): ReadSuccess {
   const n = raw.wavelength.length
   if (raw.flux.length !== n || (raw.error && raw.error.length !== n) || (raw.mask && raw.mask.length !== n)) {
     throw new SpectrumReadError('LENGTH_MISMATCH', `${fileName}: ${n} wavelengths but ${raw.flux.length} flux values${raw.error ? ` and ${raw.error.length} errors` : ''}`)
@@ -96,7 +100,8 @@ export function finalizeSpectrum(
   }
   const reversed = w[n - 1]! < w[0]!
   if (reversed) {
-    reverse(w); reverse(raw.flux)
+    reverse(w)
+    reverse(raw.flux)
     if (raw.error) reverse(raw.error)
     if (raw.mask) reverse(raw.mask)
     for (const set of raw.flagSets ?? []) reverse(set.flags)
@@ -120,7 +125,10 @@ export function finalizeSpectrum(
     if (mask[i]) continue
     const f = flux[i]!
     const e = err ? err[i]! : 0
-    if (!Number.isFinite(f) || !(e >= 0)) { mask[i] = 1; invalid++ }
+    if (!Number.isFinite(f) || !(e >= 0)) {
+      mask[i] = 1
+      invalid++
+    }
   }
   const medium = decideMedium(raw.medium, options.assumeVacuum)
   const vacuum = medium.vacuum
@@ -147,8 +155,15 @@ export function finalizeSpectrum(
   for (const set of raw.flagSets ?? []) {
     const trial = mask.slice()
     let added = 0
-    for (let i = 0; i < n; i++) if (set.flags[i] && !trial[i]) { trial[i] = 1; added++ }
-    if (added === 0) { masks.push({ source: set.source, rule: set.rule, pixels: 0 }); continue }
+    for (let i = 0; i < n; i++)
+      if (set.flags[i] && !trial[i]) {
+        trial[i] = 1
+        added++
+      }
+    if (added === 0) {
+      masks.push({ source: set.source, rule: set.rule, pixels: 0 })
+      continue
+    }
     if (!usable(trial)) {
       warnings.push(`${set.source} was not applied: by the rule "${set.rule}" it flags ${added} of ${n} pixels and would leave too little to classify. Check which convention the file follows.`)
       continue
@@ -171,7 +186,10 @@ export function finalizeSpectrum(
   const coverage = regionCoverage(air, masked ? mask : undefined, options.classificationRegion)
   if (coverage < options.minCoverage) {
     const [lo, hi] = options.classificationRegion
-    throw new SpectrumReadError('NO_COVERAGE', `${fileName}: valid pixels cover ${(coverage * 100).toFixed(0)} % of ${lo}–${hi} Å (the spectrum runs ${fmt(air[0]!)}–${fmt(air[n - 1]!)} Å); at least ${(options.minCoverage * 100).toFixed(0)} % is needed, as the MK criteria lie there${raw.coverageHint ?? ''}`)
+    throw new SpectrumReadError(
+      'NO_COVERAGE',
+      `${fileName}: valid pixels cover ${(coverage * 100).toFixed(0)} % of ${lo}–${hi} Å (the spectrum runs ${fmt(air[0]!)}–${fmt(air[n - 1]!)} Å); at least ${(options.minCoverage * 100).toFixed(0)} % is needed, as the MK criteria lie there${raw.coverageHint ?? ''}`,
+    )
   }
   const decisions: ReadDecisions = {
     source: raw.source,
@@ -187,8 +205,17 @@ export function finalizeSpectrum(
   if (raw.errorSource) decisions.errors = raw.errorSource
   const notes = raw.notes.concat(noteLines(decisions))
   const meta: ReadMeta = {
-    format, vacuumConverted: vacuum, vacuumSource, wavelengthUnit: raw.wavelengthUnit, header: raw.header,
-    pixels: n, maskedPixels: masked, coverage, reversed, notes, decisions,
+    format,
+    vacuumConverted: vacuum,
+    vacuumSource,
+    wavelengthUnit: raw.wavelengthUnit,
+    header: raw.header,
+    pixels: n,
+    maskedPixels: masked,
+    coverage,
+    reversed,
+    notes,
+    decisions,
   }
   if (raw.hdu !== undefined) meta.hdu = raw.hdu
   if (hdus) meta.hdus = hdus

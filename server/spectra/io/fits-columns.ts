@@ -125,13 +125,20 @@ export function heapDescriptors(bytes: Uint8Array, hdu: FitsHdu, col: TableColum
 
 function readBigEndian(view: DataView, type: string, at: number): number {
   switch (type) {
-    case 'B': return view.getUint8(at)
-    case 'L': return view.getUint8(at) === 84 ? 1 : 0
-    case 'I': return view.getInt16(at)
-    case 'J': return view.getInt32(at)
-    case 'K': return Number(view.getBigInt64(at))
-    case 'E': return view.getFloat32(at)
-    default: return view.getFloat64(at)
+    case 'B':
+      return view.getUint8(at)
+    case 'L':
+      return view.getUint8(at) === 84 ? 1 : 0
+    case 'I':
+      return view.getInt16(at)
+    case 'J':
+      return view.getInt32(at)
+    case 'K':
+      return Number(view.getBigInt64(at))
+    case 'E':
+      return view.getFloat32(at)
+    default:
+      return view.getFloat64(at)
   }
 }
 
@@ -259,7 +266,10 @@ export function decodeAsciiColumns(bytes: Uint8Array, hdu: FitsHdu, cols: TableC
     for (let r = 0; r < rows; r++) {
       const at = hdu.dataOffset + r * rowBytes + c.ascii!.start
       const field = text.decode(bytes.subarray(at, at + c.ascii!.width)).trim()
-      if (field === '' || field === nul) { out[r] = NaN; continue }
+      if (field === '' || field === nul) {
+        out[r] = NaN
+        continue
+      }
       const v = Number(field.replace(/[Dd]/, 'E'))
       out[r] = Number.isFinite(v) ? scale(v) : NaN
     }
@@ -280,7 +290,10 @@ export function decodeCompressedImage(bytes: Uint8Array, hdu: FitsHdu, maxPixels
   if (pixels > maxPixels) throw new SpectrumReadError('TOO_MANY_PIXELS', `${fileName}: ${pixels} pixels is more than the limit of ${maxPixels}`)
   const algorithm = (cardString(hdu, 'ZCMPTYPE') ?? '').toUpperCase()
   if (!['RICE_1', 'GZIP_1', 'PLIO_1', 'HCOMPRESS_1'].includes(algorithm)) {
-    throw new SpectrumReadError('FITS_UNSUPPORTED', `${fileName}: HDU ${hdu.index} is compressed with ${algorithm || 'an unnamed method'}, which is not read; uncompress it first (funpack, or astropy's CompImageHDU)`)
+    throw new SpectrumReadError(
+      'FITS_UNSUPPORTED',
+      `${fileName}: HDU ${hdu.index} is compressed with ${algorithm || 'an unnamed method'}, which is not read; uncompress it first (funpack, or astropy's CompImageHDU)`,
+    )
   }
   const cols = tableColumns(hdu, fileName)
   const tileBytes = (cardNumber(hdu, 'ZTILE1') ?? hdu.naxis[0] ?? 0) * (cardNumber(hdu, 'ZTILE2') ?? 1) * (Math.abs(hdu.bitpix) / 8)
@@ -300,7 +313,11 @@ export function decodeCompressedImage(bytes: Uint8Array, hdu: FitsHdu, maxPixels
       for (const d of descriptors) {
         const tile = bytes.subarray(hdu.dataOffset + d[1], hdu.dataOffset + d[1] + d[0])
         let inflated: Uint8Array | undefined
-        try { inflated = gunzipBounded(tile, Math.max(tileBytes, (tileBytes / (Math.abs(hdu.bitpix) / 8)) * 4)) } catch { inflated = undefined }
+        try {
+          inflated = gunzipBounded(tile, Math.max(tileBytes, (tileBytes / (Math.abs(hdu.bitpix) / 8)) * 4))
+        } catch {
+          inflated = undefined
+        }
         if (!inflated) throw new SpectrumReadError('FITS_MALFORMED', `${fileName}: HDU ${hdu.index} has a gzip tile that is broken or larger than its tile`)
       }
     }

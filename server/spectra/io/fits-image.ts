@@ -4,10 +4,7 @@
  * rows hold flux, inverse variance, wavelength and masks, 1 × 1 × N cubes, tile-compressed images,
  * and extensions that take their keywords from the primary header (INHERIT).
  */
-import {
-  cardNumber, cardString, hduName, inheritance, inheritedCard, keptHeader, mediumFromHeaders, readImagePixels,
-  type FitsHdu,
-} from './fits'
+import { cardNumber, cardString, hduName, inheritance, inheritedCard, keptHeader, mediumFromHeaders, readImagePixels, type FitsHdu } from './fits'
 import { decodeCompressedImage } from './fits-columns'
 import { isMultispec, multispecApertures, watString, watUnits } from './multispec'
 import { QUALITY_NAMES, preferAndMask, qualityFlags, type FlagSet } from './quality'
@@ -75,7 +72,9 @@ function spectralAxis(hdu: FitsHdu): number {
   const long = hdu.naxis.map((v, i) => (v > 1 ? i + 1 : 0)).filter((v) => v > 0)
   if (long.length === 1 && long[0]! > 1) {
     const k = long[0]!
-    const ctype = String(hdu.cards.get(`CTYPE${k}`) ?? '').toUpperCase().slice(0, 4)
+    const ctype = String(hdu.cards.get(`CTYPE${k}`) ?? '')
+      .toUpperCase()
+      .slice(0, 4)
     if (SPECTRAL_CTYPES.some((t) => t.startsWith(ctype) && ctype !== '') || hdu.cards.has(`CRVAL${k}`)) return k
   }
   return 1
@@ -97,8 +96,7 @@ function shapeOf(hdu: FitsHdu): Shape {
   return { axis, n: hdu.naxis[0] ?? 0, lines: hdu.naxis[1] ?? 1, bands: hdu.naxis[2] ?? 1 }
 }
 
-const hasMultispecKeywords = (hdu: FitsHdu) =>
-  hdu.cards.has('APNUM1') || hdu.cards.has('BANDID1') || hdu.cards.has('WAT0_001') || isMultispec(hdu)
+const hasMultispecKeywords = (hdu: FitsHdu) => hdu.cards.has('APNUM1') || hdu.cards.has('BANDID1') || hdu.cards.has('WAT0_001') || isMultispec(hdu)
 
 /** Reads one line of one band as float64 (compressed images are decoded whole, once). */
 function linePixels(ctx: ImageContext, hdu: FitsHdu, shape: Shape, line: number, band: number, cache: Map<FitsHdu, Float64Array>): Float64Array {
@@ -182,7 +180,9 @@ function keywordDispersion(ctx: ImageContext, hdu: FitsHdu, k: number): Dispersi
   if (k === 1 && coeff0 !== undefined && coeff1 !== undefined) {
     if (coeff1 === 0) throw new SpectrumReadError('NO_WAVELENGTH_SCALE', `${fileName}: COEFF1 is zero, so every pixel has the same wavelength`)
     return {
-      at: (i) => 10 ** (coeff0 + coeff1 * i), kind: 'log10 λ = COEFF0 + COEFF1 · i (survey convention)', inherited: inheritedFrom('COEFF0'),
+      at: (i) => 10 ** (coeff0 + coeff1 * i),
+      kind: 'log10 λ = COEFF0 + COEFF1 · i (survey convention)',
+      inherited: inheritedFrom('COEFF0'),
       medium: [{ vacuum: true, source: 'COEFF0/COEFF1 log10 wavelengths, vacuum by the survey convention', strength: 1.5, inferred: true }],
     }
   }
@@ -195,9 +195,10 @@ function keywordDispersion(ctx: ImageContext, hdu: FitsHdu, k: number): Dispersi
   const crpix = axisNumber(ctx, hdu, `CRPIX${k}`) ?? 0
   if (crval === undefined || (cd === undefined && cdelt === undefined)) {
     const inherit = inheritance(hdu, ctx.primary)
-    const hint = inherit === 'no' && ctx.primary.cards.has(`CRVAL${k}`)
-      ? `; the primary header has one but this extension says INHERIT = F: set INHERIT = T, or pick the primary HDU`
-      : '; add CRVAL1 and CDELT1 (or CD1_1) in Å with CTYPE1 = \'AWAV\' or \'WAVE\', or save a wavelength column'
+    const hint =
+      inherit === 'no' && ctx.primary.cards.has(`CRVAL${k}`)
+        ? `; the primary header has one but this extension says INHERIT = F: set INHERIT = T, or pick the primary HDU`
+        : "; add CRVAL1 and CDELT1 (or CD1_1) in Å with CTYPE1 = 'AWAV' or 'WAVE', or save a wavelength column"
     throw new SpectrumReadError('NO_WAVELENGTH_SCALE', `${fileName}: HDU ${hdu.index} has no wavelength scale (CRVAL${k} with CDELT${k} or CD${k}_${k}, or COEFF0/COEFF1)${hint}`)
   }
   if (step === 0) throw new SpectrumReadError('NO_WAVELENGTH_SCALE', `${fileName}: the wavelength step (CDELT${k}/CD${k}_${k}) is zero`)
@@ -206,7 +207,8 @@ function keywordDispersion(ctx: ImageContext, hdu: FitsHdu, k: number): Dispersi
   const algorithm = ctype.length > 4 ? ctype.slice(4).replace(/^-+/, '') : ''
   const medium: MediumEvidence[] = []
   if (base === 'AWAV') medium.push({ vacuum: false, source: `CTYPE${k} = '${ctype}' (air, FITS WCS Paper III)`, strength: 3 })
-  if (base === 'WAVE' && (algorithm === '' || algorithm === 'LOG')) medium.push({ vacuum: true, source: `CTYPE${k} = '${ctype}' (vacuum by FITS WCS Paper III, though many writers use WAVE for air too)`, strength: 1 })
+  if (base === 'WAVE' && (algorithm === '' || algorithm === 'LOG'))
+    medium.push({ vacuum: true, source: `CTYPE${k} = '${ctype}' (vacuum by FITS WCS Paper III, though many writers use WAVE for air too)`, strength: 1 })
   const dcFlag = axisNumber(ctx, hdu, 'DC-FLAG')
   if ((base === 'WAVE' || base === 'AWAV') && algorithm === 'LOG') {
     // Paper III eq. 5: λ = λr exp(w / λr), w = CDELT (p − CRPIX).
@@ -214,23 +216,37 @@ function keywordDispersion(ctx: ImageContext, hdu: FitsHdu, k: number): Dispersi
   }
   if (ctype === 'PIXEL' || ctype === 'LINEAR' || ctype === '' || ctype === 'LAMBDA' || ctype === 'WAVELENGTH' || ctype === 'WAVELEN' || ((base === 'WAVE' || base === 'AWAV') && algorithm === '')) {
     if (ctype === 'PIXEL' && dcFlag === undefined) {
-      throw new SpectrumReadError('NO_WAVELENGTH_SCALE', `${fileName}: CTYPE${k} = 'PIXEL' without DC-FLAG: the axis is in pixels, not wavelength. If CRVAL${k}/CDELT${k} are wavelengths, set DC-FLAG = 0 (linear) or 1 (log10), or CTYPE${k} = 'AWAV'`)
+      throw new SpectrumReadError(
+        'NO_WAVELENGTH_SCALE',
+        `${fileName}: CTYPE${k} = 'PIXEL' without DC-FLAG: the axis is in pixels, not wavelength. If CRVAL${k}/CDELT${k} are wavelengths, set DC-FLAG = 0 (linear) or 1 (log10), or CTYPE${k} = 'AWAV'`,
+      )
     }
     if (dcFlag !== undefined && dcFlag < 0) {
       throw new SpectrumReadError('NO_WAVELENGTH_SCALE', `${fileName}: DC-FLAG = ${dcFlag}: the spectrum is not dispersion-corrected; calibrate it first (IRAF dispcor)`)
     }
     if (dcFlag === 1) {
       // IRAF onedspec: DC-FLAG = 1 means log10 λ is linear in the pixel.
-      return { at: (i) => 10 ** (crval + step * (i + 1 - crpix)), kind: `log10 λ = CRVAL${k} + CDELT${k} (p − CRPIX${k}) (DC-FLAG = 1${ctype === 'PIXEL' ? ", CTYPE1 = 'PIXEL' of older IRAF files" : ''})`, medium, inherited }
+      return {
+        at: (i) => 10 ** (crval + step * (i + 1 - crpix)),
+        kind: `log10 λ = CRVAL${k} + CDELT${k} (p − CRPIX${k}) (DC-FLAG = 1${ctype === 'PIXEL' ? ", CTYPE1 = 'PIXEL' of older IRAF files" : ''})`,
+        medium,
+        inherited,
+      }
     }
     const why = ctype === 'PIXEL' ? ` (DC-FLAG = ${dcFlag}: dispersion-corrected, CTYPE${k} = 'PIXEL' of older IRAF files)` : dcFlag === 0 ? ' (DC-FLAG = 0)' : ''
     return { at: (i) => crval + step * (i + 1 - crpix), kind: `linear: λ = CRVAL${k} + CDELT${k} (p − CRPIX${k})${why}`, medium, inherited }
   }
   if (['FREQ', 'ENER', 'WAVN', 'VRAD', 'VOPT', 'ZOPT', 'VELO', 'BETA'].includes(base)) {
-    throw new SpectrumReadError('NO_WAVELENGTH_SCALE', `${fileName}: CTYPE${k} = '${ctype}' is a ${base === 'FREQ' ? 'frequency' : base === 'ENER' ? 'energy' : base === 'WAVN' ? 'wavenumber' : 'velocity'} axis; save the spectrum on a wavelength axis (CTYPE${k} = 'AWAV' or 'WAVE', or a wavelength column)`)
+    throw new SpectrumReadError(
+      'NO_WAVELENGTH_SCALE',
+      `${fileName}: CTYPE${k} = '${ctype}' is a ${base === 'FREQ' ? 'frequency' : base === 'ENER' ? 'energy' : base === 'WAVN' ? 'wavenumber' : 'velocity'} axis; save the spectrum on a wavelength axis (CTYPE${k} = 'AWAV' or 'WAVE', or a wavelength column)`,
+    )
   }
   if (algorithm !== '') {
-    throw new SpectrumReadError('NO_WAVELENGTH_SCALE', `${fileName}: CTYPE${k} = '${ctype}' uses the '${algorithm}' algorithm, which is not read (WAVE, AWAV, WAVE-LOG, AWAV-LOG, LINEAR are); resample to a linear or log axis`)
+    throw new SpectrumReadError(
+      'NO_WAVELENGTH_SCALE',
+      `${fileName}: CTYPE${k} = '${ctype}' uses the '${algorithm}' algorithm, which is not read (WAVE, AWAV, WAVE-LOG, AWAV-LOG, LINEAR are); resample to a linear or log axis`,
+    )
   }
   throw new SpectrumReadError('NOT_A_SPECTRUM', `${fileName}: axis ${k} is '${ctype}', not a spectral axis`)
 }
@@ -247,7 +263,8 @@ function keywordUnit(ctx: ImageContext, hdu: FitsHdu, k: number): { unit?: strin
 function unitFactor(unit: string | undefined, fileName: string, where: string): number {
   if (unit === undefined) return 1
   const f = angstromsPerUnit(unit)
-  if (f === undefined) throw new SpectrumReadError('UNKNOWN_UNIT', `${fileName}: wavelength unit '${unit}' (${where}) is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)`)
+  if (f === undefined)
+    throw new SpectrumReadError('UNKNOWN_UNIT', `${fileName}: wavelength unit '${unit}' (${where}) is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)`)
   return f
 }
 
@@ -283,7 +300,10 @@ export function readImageHdu(ctx: ImageContext, hdu: FitsHdu): RawSpectrum {
   }
   // Every line's wavelengths may be computed to choose one: bound the whole, not only a line.
   if (n * shape.lines > options.maxPixels * 4) {
-    throw new SpectrumReadError('TOO_MANY_PIXELS', `${fileName}: ${shape.lines} lines of ${n} pixels is more than the limit of ${options.maxPixels * 4} pixels in all; pick the spectrum out of the file first`)
+    throw new SpectrumReadError(
+      'TOO_MANY_PIXELS',
+      `${fileName}: ${shape.lines} lines of ${n} pixels is more than the limit of ${options.maxPixels * 4} pixels in all; pick the spectrum out of the file first`,
+    )
   }
   const cache = new Map<FitsHdu, Float64Array>()
   const companions = companionsOf(ctx, hdu)
@@ -310,7 +330,8 @@ export function readImageHdu(ctx: ImageContext, hdu: FitsHdu): RawSpectrum {
     solution = `row ${waveRow + 1} of the image holds the wavelengths (${describeDispersion(fitDispersion(row))})`
     const k = keywordUnit(ctx, hdu, 1)
     unit = k.unit ? k : { source: 'assumed Å: the image names no unit' }
-    if (axisNumber(ctx, hdu, 'COEFF0') !== undefined) medium.push({ vacuum: true, source: 'survey image with COEFF0/COEFF1: log10 vacuum wavelengths by the survey convention', strength: 1.5, inferred: true })
+    if (axisNumber(ctx, hdu, 'COEFF0') !== undefined)
+      medium.push({ vacuum: true, source: 'survey image with COEFF0/COEFF1: log10 vacuum wavelengths by the survey convention', strength: 1.5, inferred: true })
     const rows = shape.lines
     const used = new Set([waveRow, fluxRow])
     if (rows === 5 && waveRow === 2) {
@@ -321,7 +342,10 @@ export function readImageHdu(ctx: ImageContext, hdu: FitsHdu): RawSpectrum {
       for (let i = 0; i < n; i++) {
         const iv = ivar[i]!
         if (iv > 0 && Number.isFinite(iv)) error[i] = 1 / Math.sqrt(iv)
-        else { error[i] = Infinity; zero[i] = 1 }
+        else {
+          error[i] = Infinity
+          zero[i] = 1
+        }
       }
       flagSets.push({ source: 'inverse variance (row 2)', rule: 'inverse variance 0 means no data', flags: zero })
       errorSource = 'row 2, inverse variance: error = 1/√ivar'
@@ -380,7 +404,10 @@ export function readImageHdu(ctx: ImageContext, hdu: FitsHdu): RawSpectrum {
     const count = lines.length
     if (count > 1 && options.aperture !== undefined) {
       if (options.aperture < 1 || options.aperture > count) {
-        throw new SpectrumReadError('APERTURE_NOT_FOUND', `${fileName}: there is no aperture ${options.aperture}; ${describeHdu(hdu)} holds ${count} (${lines.map((l) => lineLabel(l)).join(', ')}), counted from 1`)
+        throw new SpectrumReadError(
+          'APERTURE_NOT_FOUND',
+          `${fileName}: there is no aperture ${options.aperture}; ${describeHdu(hdu)} holds ${count} (${lines.map((l) => lineLabel(l)).join(', ')}), counted from 1`,
+        )
       }
       chosen = [options.aperture - 1]
       apertureWhy = 'your choice'
@@ -388,7 +415,13 @@ export function readImageHdu(ctx: ImageContext, hdu: FitsHdu): RawSpectrum {
       const covers = lines.findIndex((_, i) => spanCoverage(waves[i]!, regionIn) >= options.minCoverage)
       if (covers >= 0) {
         chosen = [covers]
-        apertureWhy = covers === 0 ? 'the first one, and it covers the classification region' : `the first one that covers the classification region (${lines.slice(0, covers).map((l) => lineLabel(l)).join(', ')} ${covers === 1 ? 'does' : 'do'} not)`
+        apertureWhy =
+          covers === 0
+            ? 'the first one, and it covers the classification region'
+            : `the first one that covers the classification region (${lines
+                .slice(0, covers)
+                .map((l) => lineLabel(l))
+                .join(', ')} ${covers === 1 ? 'does' : 'do'} not)`
       } else {
         chosen = lines.map((_, i) => i)
         apertureWhy = `no single one covers the classification region, so all ${count} were merged in wavelength order (in overlaps each keeps the pixels on its side of the midpoint); pick one with the aperture option`
@@ -432,7 +465,9 @@ export function readImageHdu(ctx: ImageContext, hdu: FitsHdu): RawSpectrum {
     for (let b = 1; b < shape.bands; b++) if (b !== band) ignored.push(`band ${b + 1} of the image${cardString(hdu, `BANDID${b + 1}`) ? ` (${cardString(hdu, `BANDID${b + 1}`)})` : ''}`)
     if (chosen.length === 1 && count > 1) {
       const others = lines.filter((_, i) => i !== chosen[0]).map((l) => lineLabel(l))
-      ignored.push(`${others.length === 1 ? others[0] : `${others.length} other apertures (${others.slice(0, 6).join(', ')}${others.length > 6 ? ', …' : ''})`}: ${count} are in the file; pick another with the aperture option`)
+      ignored.push(
+        `${others.length === 1 ? others[0] : `${others.length} other apertures (${others.slice(0, 6).join(', ')}${others.length > 6 ? ', …' : ''})`}: ${count} are in the file; pick another with the aperture option`,
+      )
     }
 
     let wavelength: Float64Array
@@ -460,16 +495,31 @@ export function readImageHdu(ctx: ImageContext, hdu: FitsHdu): RawSpectrum {
     // BLANK pixels come back as NaN; mark them so the reason shows.
     let blank = 0
     const mask = new Uint8Array(flux.length)
-    if (hdu.bitpix > 0 && cardNumber(hdu, 'BLANK') !== undefined) for (let i = 0; i < flux.length; i++) if (Number.isNaN(flux[i]!)) { mask[i] = 1; blank++ }
+    if (hdu.bitpix > 0 && cardNumber(hdu, 'BLANK') !== undefined)
+      for (let i = 0; i < flux.length; i++)
+        if (Number.isNaN(flux[i]!)) {
+          mask[i] = 1
+          blank++
+        }
     const masks = blank ? [{ source: 'BLANK pixels', rule: `integer value ${cardNumber(hdu, 'BLANK')} means no data (FITS Standard §5.3)`, pixels: blank }] : []
     medium.push(...mediumFromHeaders([hdu, inheritance(hdu, primary) === 'no' ? undefined : primary]))
     const bunit = cardString(hdu, 'BUNIT') ?? cardString(primary, 'BUNIT')
     const raw: RawSpectrum = {
-      wavelength, flux, medium, wavelengthUnit: options.unitFactor?.unit ?? unit.unit ?? 'Angstrom (assumed)',
+      wavelength,
+      flux,
+      medium,
+      wavelengthUnit: options.unitFactor?.unit ?? unit.unit ?? 'Angstrom (assumed)',
       unitSource: options.unitFactor ? `your choice (the file says ${unit.unit ?? 'nothing'})` : unit.source,
-      unitAssumed: !options.unitFactor && unit.unit === undefined, header: keptHeader(hdu, primary), notes, hdu: hdu.index,
+      unitAssumed: !options.unitFactor && unit.unit === undefined,
+      header: keptHeader(hdu, primary),
+      notes,
+      hdu: hdu.index,
       source: `${describeHdu(hdu)}, ${hdu.compressed ? 'tile-compressed ' : ''}image ${hdu.naxis.join(' × ')}`,
-      solution, masks, ignored, warnings, flagSets: flagSetsOut,
+      solution,
+      masks,
+      ignored,
+      warnings,
+      flagSets: flagSetsOut,
     }
     if (blank) raw.mask = mask
     if (hduName(hdu)) raw.hduName = hduName(hdu)!

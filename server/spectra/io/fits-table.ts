@@ -3,10 +3,7 @@
  * or one row per aperture or echelle order (fixed or variable-length arrays).
  */
 import { hduName, keptHeader, mediumFromHeaders, type FitsHdu } from './fits'
-import {
-  decodeAsciiColumns, decodeFixedColumns, heapDescriptors, isNumericColumn, readHeapArray, rowCount, tableColumns,
-  type TableColumn,
-} from './fits-columns'
+import { decodeAsciiColumns, decodeFixedColumns, heapDescriptors, isNumericColumn, readHeapArray, rowCount, tableColumns, type TableColumn } from './fits-columns'
 import { QUALITY_NAMES, preferAndMask, qualityFlags, type FlagSet } from './quality'
 import { describeDispersion, fitDispersion, gather, mergeSegments, spanCoverage } from './solution'
 import { SpectrumReadError, type MediumEvidence, type RawSpectrum, type ResolvedReadOptions } from './types'
@@ -87,9 +84,7 @@ function readColumns(bytes: Uint8Array, hdu: FitsHdu, cols: TableColumn[], maxPi
  * text, and the survey convention that LOGLAM tables are vacuum.
  * @throws SpectrumReadError NOT_A_SPECTRUM, LENGTH_MISMATCH, UNKNOWN_UNIT, TOO_MANY_PIXELS, APERTURE_NOT_FOUND
  */
-export function readTableHdu(
-  bytes: Uint8Array, hdu: FitsHdu, primary: FitsHdu | undefined, fileName: string, options: ResolvedReadOptions,
-): RawSpectrum {
+export function readTableHdu(bytes: Uint8Array, hdu: FitsHdu, primary: FitsHdu | undefined, fileName: string, options: ResolvedReadOptions): RawSpectrum {
   const layout = tableLayout(hdu, fileName)
   if (typeof layout === 'string') throw new SpectrumReadError('NOT_A_SPECTRUM', `${fileName}: HDU ${hdu.index} is not a spectrum: ${layout}`)
   const { wave, flux, error } = layout
@@ -104,7 +99,10 @@ export function readTableHdu(
   for (const col of wanted.slice(1)) {
     const colPerPixel = col.repeat === 1 && !col.heap
     if (colPerPixel !== perPixel || (!col.heap && !wave.heap && col.repeat !== wave.repeat)) {
-      throw new SpectrumReadError('LENGTH_MISMATCH', `${fileName}: column ${col.name} has ${col.heap ? 'variable-length arrays' : `${col.repeat} value(s) a row`} but ${wave.name} has ${wave.heap ? 'variable-length arrays' : `${wave.repeat}`}`)
+      throw new SpectrumReadError(
+        'LENGTH_MISMATCH',
+        `${fileName}: column ${col.name} has ${col.heap ? 'variable-length arrays' : `${col.repeat} value(s) a row`} but ${wave.name} has ${wave.heap ? 'variable-length arrays' : `${wave.repeat}`}`,
+      )
     }
   }
   const data = readColumns(bytes, hdu, wanted, options.maxPixels, fileName)
@@ -127,7 +125,11 @@ export function readTableHdu(
   if (options.unitFactor) factor = options.unitFactor.factor
   else {
     const f = fileUnit === undefined ? 1 : angstromsPerUnit(fileUnit)
-    if (f === undefined) throw new SpectrumReadError('UNKNOWN_UNIT', `${fileName}: wavelength unit '${fileUnit}' of column ${wave.name} is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)`)
+    if (f === undefined)
+      throw new SpectrumReadError(
+        'UNKNOWN_UNIT',
+        `${fileName}: wavelength unit '${fileUnit}' of column ${wave.name} is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)`,
+      )
     factor = f
   }
   const waves = segs[0]!.map((w) => w.map((v) => (isLog ? 10 ** v : v) * factor))
@@ -161,8 +163,17 @@ export function readTableHdu(
   let pick: (k: number) => Float64Array
   if (chosen.length > 1) {
     const order = mergeSegments(chosen.map((i) => waves[i]!))
-    wavelength = gather(chosen.map((i) => waves[i]!), order, (k) => new Float64Array(k))
-    pick = (k) => gather(chosen.map((i) => segs[k]![i]!), order, (m) => new Float64Array(m))
+    wavelength = gather(
+      chosen.map((i) => waves[i]!),
+      order,
+      (k) => new Float64Array(k),
+    )
+    pick = (k) =>
+      gather(
+        chosen.map((i) => segs[k]![i]!),
+        order,
+        (m) => new Float64Array(m),
+      )
     if (order.skipped.length) ignored.push(`rows ${order.skipped.map((i) => i + 1).join(', ')}: inside the range of the others`)
     warnings.push(`${count} orders were merged without a blaze correction or flux matching between them: check the continuum, or pick one order with the aperture option`)
   } else {
@@ -174,12 +185,24 @@ export function readTableHdu(
   }
   const fluxValues = pick(1)
   const raw: RawSpectrum = {
-    wavelength, flux: fluxValues, medium: [], wavelengthUnit: options.unitFactor?.unit ?? fileUnit ?? 'Angstrom (assumed)',
-    unitSource: options.unitFactor ? `your choice (the file says ${fileUnit ?? 'nothing'})` : fileUnit ? `TUNIT${wave.number} of column ${wave.name}` : `assumed Å: column ${wave.name} has no TUNIT${wave.number}`,
-    unitAssumed: !options.unitFactor && fileUnit === undefined, header: keptHeader(hdu, primary), notes: [], hdu: hdu.index,
+    wavelength,
+    flux: fluxValues,
+    medium: [],
+    wavelengthUnit: options.unitFactor?.unit ?? fileUnit ?? 'Angstrom (assumed)',
+    unitSource: options.unitFactor
+      ? `your choice (the file says ${fileUnit ?? 'nothing'})`
+      : fileUnit
+        ? `TUNIT${wave.number} of column ${wave.name}`
+        : `assumed Å: column ${wave.name} has no TUNIT${wave.number}`,
+    unitAssumed: !options.unitFactor && fileUnit === undefined,
+    header: keptHeader(hdu, primary),
+    notes: [],
+    hdu: hdu.index,
     source: `HDU ${hdu.index}${hduName(hdu) ? ` (${hduName(hdu)})` : ''}, ${hdu.kind === 'ascii' ? 'ASCII' : 'binary'} table, ${perPixel ? `one row per pixel (${rows} rows)` : count > 1 ? `${count} rows of ${wave.heap ? 'variable-length ' : ''}arrays` : `one row of ${wave.heap ? 'variable-length ' : ''}arrays`}`,
     solution: `${isLog ? `10^${wave.name}` : `column ${wave.name}`} (${describeDispersion(fitDispersion(wavelength))})`,
-    masks: [], ignored, warnings,
+    masks: [],
+    ignored,
+    warnings,
   }
   if (hduName(hdu)) raw.hduName = hduName(hdu)!
   if (flux.unit) raw.fluxUnit = flux.unit
@@ -193,7 +216,10 @@ export function readTableHdu(
       for (let i = 0; i < values.length; i++) {
         const iv = values[i]!
         if (iv > 0 && Number.isFinite(iv)) values[i] = 1 / Math.sqrt(iv)
-        else { values[i] = Infinity; zero[i] = 1 }
+        else {
+          values[i] = Infinity
+          zero[i] = 1
+        }
       }
       flags.push({ source: `${name} column`, rule: 'inverse variance 0 means no data', flags: zero })
       raw.errorSource = `column ${name}: error = 1/√${name}`
@@ -227,4 +253,3 @@ function tableMedium(hdu: FitsHdu, primary: FitsHdu | undefined, wave: TableColu
   if (isLog) out.push({ vacuum: true, source: 'LOGLAM column: log10 vacuum wavelengths by the survey convention', strength: 1.5, inferred: true })
   return out.sort((a, b) => b.strength - a.strength)
 }
-

@@ -45,7 +45,11 @@ function parseValue(field: string): { value: HeaderValue | undefined; comment: s
     for (; i < s.length; i++) {
       const ch = s[i]!
       if (ch === "'") {
-        if (s[i + 1] === "'") { out += "'"; i++; continue }
+        if (s[i + 1] === "'") {
+          out += "'"
+          i++
+          continue
+        }
         break
       }
       out += ch
@@ -144,7 +148,12 @@ export function parseFits(bytes: Uint8Array, fileName: string): FitsHdu[] {
       if (elems * (Math.abs(bitpix) / 8) > available) elems = Infinity
     }
     if (empty) elems = 0
-    const xtension = index === 0 ? 'PRIMARY' : String(h.cards.get('XTENSION') ?? '').trim().toUpperCase()
+    const xtension =
+      index === 0
+        ? 'PRIMARY'
+        : String(h.cards.get('XTENSION') ?? '')
+            .trim()
+            .toUpperCase()
     let pcount = 0
     let gcount = 1
     if (index > 0) {
@@ -156,18 +165,24 @@ export function parseFits(bytes: Uint8Array, fileName: string): FitsHdu[] {
     }
     const dataBytes = (Math.abs(bitpix) / 8) * gcount * (pcount + elems)
     if (!(dataBytes <= available)) {
-      throw new SpectrumReadError(
-        'FITS_TRUNCATED',
-        `${fileName}: HDU ${index} claims more data than the file holds (${available} bytes left after its header)`,
-      )
+      throw new SpectrumReadError('FITS_TRUNCATED', `${fileName}: HDU ${index} claims more data than the file holds (${available} bytes left after its header)`)
     }
     const compressed = xtension === 'BINTABLE' && h.cards.get('ZIMAGE') === true
-    const kind: FitsHdu['kind'] = xtension === 'PRIMARY' || xtension === 'IMAGE' || compressed
-      ? 'image' : xtension === 'BINTABLE' ? 'bintable' : xtension === 'TABLE' ? 'ascii' : 'other'
+    const kind: FitsHdu['kind'] = xtension === 'PRIMARY' || xtension === 'IMAGE' || compressed ? 'image' : xtension === 'BINTABLE' ? 'bintable' : xtension === 'TABLE' ? 'ascii' : 'other'
     const hdu: FitsHdu = {
-      index, kind, compressed, headerText: h.headerText, xtension, cards: h.cards, comments: h.comments,
-      commentary: h.commentary, bitpix, naxis, table: { rowBytes: naxis[0] ?? 0, rows: naxis[1] ?? 0 },
-      dataOffset: h.dataOffset, dataBytes,
+      index,
+      kind,
+      compressed,
+      headerText: h.headerText,
+      xtension,
+      cards: h.cards,
+      comments: h.comments,
+      commentary: h.commentary,
+      bitpix,
+      naxis,
+      table: { rowBytes: naxis[0] ?? 0, rows: naxis[1] ?? 0 },
+      dataOffset: h.dataOffset,
+      dataBytes,
     }
     if (compressed) {
       // The image a compressed table stands for: its size is checked before any tile is decoded.
@@ -239,12 +254,23 @@ export function readImagePixels(bytes: Uint8Array, hdu: FitsHdu, first: number, 
   for (let i = 0; i < count; i++) {
     let raw: number
     switch (hdu.bitpix) {
-      case 8: raw = view.getUint8(i); break
-      case 16: raw = view.getInt16(i * 2); break
-      case 32: raw = view.getInt32(i * 4); break
-      case 64: raw = Number(view.getBigInt64(i * 8)); break
-      case -32: raw = view.getFloat32(i * 4); break
-      default: raw = view.getFloat64(i * 8)
+      case 8:
+        raw = view.getUint8(i)
+        break
+      case 16:
+        raw = view.getInt16(i * 2)
+        break
+      case 32:
+        raw = view.getInt32(i * 4)
+        break
+      case 64:
+        raw = Number(view.getBigInt64(i * 8))
+        break
+      case -32:
+        raw = view.getFloat32(i * 4)
+        break
+      default:
+        raw = view.getFloat64(i * 8)
     }
     out[i] = raw === blank ? NaN : zero + scale * raw
   }

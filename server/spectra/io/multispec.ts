@@ -88,7 +88,10 @@ export function multispecApertures(hdu: FitsHdu, n: number, lines: number, fileN
   for (let line = 1; line <= lines; line++) {
     const spec = specs.get(line)
     if (spec === undefined) {
-      throw new SpectrumReadError('NO_WAVELENGTH_SCALE', `${fileName}: multispec line ${line} has no spec${line} entry in WAT2; the file may be cut short — write it again with IRAF's scopy or save it with a linear WCS`)
+      throw new SpectrumReadError(
+        'NO_WAVELENGTH_SCALE',
+        `${fileName}: multispec line ${line} has no spec${line} entry in WAT2; the file may be cut short — write it again with IRAF's scopy or save it with a linear WCS`,
+      )
     }
     const f = spec.trim().split(/\s+/).map(Number)
     if (f.length < 9 || f.slice(0, 9).some((v) => !Number.isFinite(v))) {
@@ -98,9 +101,13 @@ export function multispecApertures(hdu: FitsHdu, n: number, lines: number, fileN
     const doppler = 1 + z
     let at: (p: number) => number
     let kind: string
-    if (dtype === 0) { at = (p) => (w1 + dw * (p - 1)) / doppler; kind = 'multispec linear (dtype 0)' }
-    else if (dtype === 1) { at = (p) => 10 ** (w1 + dw * (p - 1)) / doppler; kind = 'multispec log-linear (dtype 1)' }
-    else if (dtype === 2) {
+    if (dtype === 0) {
+      at = (p) => (w1 + dw * (p - 1)) / doppler
+      kind = 'multispec linear (dtype 0)'
+    } else if (dtype === 1) {
+      at = (p) => 10 ** (w1 + dw * (p - 1)) / doppler
+      kind = 'multispec log-linear (dtype 1)'
+    } else if (dtype === 2) {
       const terms: { wt: number; w0: number; fn: (p: number) => number }[] = []
       let i = 9
       const names: string[] = []
@@ -112,7 +119,10 @@ export function multispecApertures(hdu: FitsHdu, n: number, lines: number, fileN
         const pmin = f[i + 4]!
         const pmax = f[i + 5]!
         if (![1, 2, 3, 4].includes(ftype)) {
-          throw new SpectrumReadError('FITS_UNSUPPORTED', `${fileName}: spec${line} uses dispersion function type ${ftype} (${ftype === 5 ? 'pixel coordinate array' : ftype === 6 ? 'sampled array' : 'unknown'}), which is not read; resample it with IRAF's dispcor (linear=yes) or save a linear WCS`)
+          throw new SpectrumReadError(
+            'FITS_UNSUPPORTED',
+            `${fileName}: spec${line} uses dispersion function type ${ftype} (${ftype === 5 ? 'pixel coordinate array' : ftype === 6 ? 'sampled array' : 'unknown'}), which is not read; resample it with IRAF's dispcor (linear=yes) or save a linear WCS`,
+          )
         }
         const count = ftype <= 2 ? order : ftype === 3 ? order + 3 : order + 1
         const c = f.slice(i + 6, i + 6 + count)

@@ -9,8 +9,15 @@ import { finalizeSpectrum } from './finalize'
 import { spanCoverage } from './solution'
 import { textReader } from './text'
 import {
-  DEFAULT_READ_OPTIONS, SpectrumReadError, type FormatReader, type RawSpectrum, type ReadOptions,
-  type ReadResult, type ResolvedReadOptions, type SpectrumFormat, type SpectrumHdu,
+  DEFAULT_READ_OPTIONS,
+  SpectrumReadError,
+  type FormatReader,
+  type RawSpectrum,
+  type ReadOptions,
+  type ReadResult,
+  type ResolvedReadOptions,
+  type SpectrumFormat,
+  type SpectrumHdu,
 } from './types'
 import { angstromsPerUnit } from './units'
 import { gunzipBounded, isGzip } from './zip'
@@ -47,11 +54,12 @@ function spectrumKind(ctx: ImageContext, hdu: FitsHdu): 'image' | 'table' | stri
 }
 
 function pickHdu(hdus: FitsHdu[], wanted: number | string, fileName: string): FitsHdu {
-  const hdu = typeof wanted === 'number'
-    ? hdus[wanted]
-    : hdus.find((h) => (hduName(h) ?? (h.index === 0 ? 'PRIMARY' : '')).toUpperCase() === wanted.trim().toUpperCase())
+  const hdu = typeof wanted === 'number' ? hdus[wanted] : hdus.find((h) => (hduName(h) ?? (h.index === 0 ? 'PRIMARY' : '')).toUpperCase() === wanted.trim().toUpperCase())
   if (!hdu) {
-    throw new SpectrumReadError('HDU_NOT_FOUND', `${fileName}: there is no HDU ${typeof wanted === 'number' ? wanted : `named '${wanted}'`} (the file has ${hdus.length}, numbered 0–${hdus.length - 1})`)
+    throw new SpectrumReadError(
+      'HDU_NOT_FOUND',
+      `${fileName}: there is no HDU ${typeof wanted === 'number' ? wanted : `named '${wanted}'`} (the file has ${hdus.length}, numbered 0–${hdus.length - 1})`,
+    )
   }
   return hdu
 }
@@ -65,7 +73,10 @@ function readHdu(ctx: ImageContext, hdu: FitsHdu): { raw: RawSpectrum; format: S
 const range = (w: Float64Array) => {
   let lo = Infinity
   let hi = -Infinity
-  for (const v of w) { if (v < lo) lo = v; if (v > hi) hi = v }
+  for (const v of w) {
+    if (v < lo) lo = v
+    if (v > hi) hi = v
+  }
   return `${lo.toFixed(0)}–${hi.toFixed(0)} Å`
 }
 
@@ -120,7 +131,10 @@ export const fitsReader: FormatReader = {
         const { raw, format } = readHdu(ctx, hdu)
         const coverage = spanCoverage(raw.wavelength, options.classificationRegion)
         tried.push({ hdu, raw, format, coverage })
-        if (coverage >= options.minCoverage) { chosen = tried[tried.length - 1]; break }
+        if (coverage >= options.minCoverage) {
+          chosen = tried[tried.length - 1]
+          break
+        }
       } catch (err) {
         if (!(err instanceof SpectrumReadError)) throw err
         tried.push({ hdu, error: err, coverage: 0 })
@@ -134,11 +148,19 @@ export const fitsReader: FormatReader = {
     const raw = chosen.raw!
     const others = tried.filter((t) => t !== chosen)
     const first = candidates[0]!.index === chosen.hdu.index
-    raw.hduWhy = candidates.length === 1 ? 'the only HDU holding a spectrum'
-      : first ? 'the first HDU holding a spectrum, and it covers the classification region'
-      : `the first HDU that covers the classification region (${others.filter((t) => t.hdu.index < chosen.hdu.index).map((t) => describe(t.hdu)).join(', ')} ${others.length === 1 ? 'does' : 'do'} not)`
+    raw.hduWhy =
+      candidates.length === 1
+        ? 'the only HDU holding a spectrum'
+        : first
+          ? 'the first HDU holding a spectrum, and it covers the classification region'
+          : `the first HDU that covers the classification region (${others
+              .filter((t) => t.hdu.index < chosen.hdu.index)
+              .map((t) => describe(t.hdu))
+              .join(', ')} ${others.length === 1 ? 'does' : 'do'} not)`
     for (const t of others) {
-      raw.ignored.push(`${describe(t.hdu)}: ${t.raw ? `another spectrum (${range(t.raw.wavelength)})` : `could not be read (${t.error!.message.replace(`${fileName}: `, '')})`}; pick it with the HDU option`)
+      raw.ignored.push(
+        `${describe(t.hdu)}: ${t.raw ? `another spectrum (${range(t.raw.wavelength)})` : `could not be read (${t.error!.message.replace(`${fileName}: `, '')})`}; pick it with the HDU option`,
+      )
     }
     const triedIndex = new Set(tried.map((t) => t.hdu.index))
     for (const c of candidates) {

@@ -100,7 +100,9 @@ export function mergeSegments(wavelengths: Float64Array[]): MergeOrder {
     if (w.length > 1 && w[w.length - 1]! < w[0]!) idx.reverse()
     return idx
   })
-  const order = wavelengths.map((_, k) => k).filter((k) => wavelengths[k]!.length > 0)
+  const order = wavelengths
+    .map((_, k) => k)
+    .filter((k) => wavelengths[k]!.length > 0)
     .sort((a, b) => wavelengths[a]![ascending[a]![0]!]! - wavelengths[b]![ascending[b]![0]!]!)
   const seg: number[] = []
   const pix: number[] = []
@@ -111,13 +113,26 @@ export function mergeSegments(wavelengths: Float64Array[]): MergeOrder {
     const idx = ascending[k]!
     const first = w[idx[0]!]!
     const last = w[idx[idx.length - 1]!]!
-    if (last <= end) { skipped.push(k); continue }
+    if (last <= end) {
+      skipped.push(k)
+      continue
+    }
     if (first < end) {
       const cut = (first + end) / 2
-      while (seg.length > 0 && wavelengths[seg[seg.length - 1]!]![pix[pix.length - 1]!]! >= cut) { seg.pop(); pix.pop() }
-      for (const i of idx) if (w[i]! >= cut) { seg.push(k); pix.push(i) }
+      while (seg.length > 0 && wavelengths[seg[seg.length - 1]!]![pix[pix.length - 1]!]! >= cut) {
+        seg.pop()
+        pix.pop()
+      }
+      for (const i of idx)
+        if (w[i]! >= cut) {
+          seg.push(k)
+          pix.push(i)
+        }
     } else {
-      for (const i of idx) { seg.push(k); pix.push(i) }
+      for (const i of idx) {
+        seg.push(k)
+        pix.push(i)
+      }
     }
     end = last
   }

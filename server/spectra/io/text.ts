@@ -14,8 +14,17 @@ import { angstromsPerUnit, vacuumFromText } from './units'
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([EeDd][+-]?\d+)?$/
 const DECIMAL_COMMA = /^[+-]?\d+,\d+([Ee][+-]?\d+)?$/
 const SPECIAL: Record<string, number> = {
-  nan: NaN, '+nan': NaN, '-nan': NaN, inf: Infinity, '+inf': Infinity, '-inf': -Infinity, infinity: Infinity,
-  '-infinity': -Infinity, null: NaN, '--': NaN, 'n/a': NaN,
+  nan: NaN,
+  '+nan': NaN,
+  '-nan': NaN,
+  inf: Infinity,
+  '+inf': Infinity,
+  '-inf': -Infinity,
+  infinity: Infinity,
+  '-infinity': -Infinity,
+  null: NaN,
+  '--': NaN,
+  'n/a': NaN,
 }
 
 /** Parses one numeric token; undefined when it is not a number. */
@@ -32,7 +41,14 @@ function sniffDelimiter(line: string): Delimiter {
   if (line.includes('\t') && line.split('\t').filter((s) => s.trim()).length > 1) return '\t'
   if (line.includes(';')) return ';'
   // "3800,5 1,23": commas inside space-separated numbers are decimal commas.
-  if (line.includes(',') && !line.trim().split(/\s+/).every((t) => DECIMAL_COMMA.test(t))) return ','
+  if (
+    line.includes(',') &&
+    !line
+      .trim()
+      .split(/\s+/)
+      .every((t) => DECIMAL_COMMA.test(t))
+  )
+    return ','
   return 'space'
 }
 
@@ -46,7 +62,8 @@ function splitLine(line: string, delimiter: Delimiter): string[] {
 }
 
 const WAVE_WORDS = /^(wave(length)?s?|wavelen|lambda|lam|wl|loglam|λ|(wave(length)?|lambda)[ _-]?(vac(uum)?|air)|(vac(uum)?|air)[ _-]?(wave(length)?s?|lambda)|angstroms?|nm)$/
-const FLUX_WORDS = /^(flux(_?density)?|fluxes|f(lam|nu|lambda)?|intensity|counts|spec(trum)?|normali[sz]ed[ _]?(flux|amplitude|intensity)|norm[ _]?flux|relative[ _]?flux|rel[ _]?flux|amplitude|f_lambda)$/
+const FLUX_WORDS =
+  /^(flux(_?density)?|fluxes|f(lam|nu|lambda)?|intensity|counts|spec(trum)?|normali[sz]ed[ _]?(flux|amplitude|intensity)|norm[ _]?flux|relative[ _]?flux|rel[ _]?flux|amplitude|f_lambda)$/
 const ERROR_WORDS = /^(err(or)?s?|sigma|sig|unc(ertainty)?|e_?flux|flux_?err(or)?|noise|stddev|std)$/
 const IVAR_WORDS = /^(ivar|invvar|inverse[ _]variance)$/
 const VARIANCE_WORDS = /^(var|variance)$/
@@ -57,11 +74,18 @@ const MAX_LINE = 10_000
 /** Lines of preamble (comments, keywords, header rows) looked at before the data must start. */
 const MAX_PREAMBLE = 500
 
-interface HeaderColumn { word: string; unit?: string; raw: string }
+interface HeaderColumn {
+  word: string
+  unit?: string
+  raw: string
+}
 
 /** Splits "wavelength(nm)", "wave [Angstrom]", "λ (Å)", "lambda_A" into a name and a unit. */
 function parseHeaderToken(token: string): HeaderColumn {
-  const t = token.trim().replace(/^["']|["']$/g, '').slice(0, MAX_NAME)
+  const t = token
+    .trim()
+    .replace(/^["']|["']$/g, '')
+    .slice(0, MAX_NAME)
   // Index arithmetic rather than a backtracking regex: names come from untrusted files.
   const close = t.at(-1)
   const open = close === ')' ? t.lastIndexOf('(') : close === ']' ? t.lastIndexOf('[') : close === '}' ? t.lastIndexOf('{') : -1
@@ -91,7 +115,16 @@ function headerTokens(line: string, width: number): string[] {
   return out
 }
 
-interface Columns { wave: number; flux: number; error?: number; errorKind: 'sigma' | 'ivar' | 'variance'; unit?: string; names: string[]; unitFrom?: string; guessed?: string }
+interface Columns {
+  wave: number
+  flux: number
+  error?: number
+  errorKind: 'sigma' | 'ivar' | 'variance'
+  unit?: string
+  names: string[]
+  unitFrom?: string
+  guessed?: string
+}
 
 function columnsFromNames(tokens: string[], guess = true): Columns | string {
   const parsed = tokens.map(parseHeaderToken)
@@ -111,11 +144,19 @@ function columnsFromNames(tokens: string[], guess = true): Columns | string {
   const ivar = find(IVAR_WORDS)
   const variance = find(VARIANCE_WORDS)
   if (sigma >= 0) out.error = sigma
-  else if (ivar >= 0) { out.error = ivar; out.errorKind = 'ivar' }
-  else if (variance >= 0) { out.error = variance; out.errorKind = 'variance' }
+  else if (ivar >= 0) {
+    out.error = ivar
+    out.errorKind = 'ivar'
+  } else if (variance >= 0) {
+    out.error = variance
+    out.errorKind = 'variance'
+  }
   const w = parsed[wave]!
   const unit = w.unit ?? (/^(angstroms?|nm)$/.test(w.word) ? w.word : undefined)
-  if (unit) { out.unit = unit; out.unitFrom = `the column header '${w.raw}'` }
+  if (unit) {
+    out.unit = unit
+    out.unitFrom = `the column header '${w.raw}'`
+  }
   return out
 }
 
@@ -238,14 +279,23 @@ export function readTextSpectrum(bytes: Uint8Array, fileName: string, options: R
     for (const r of rows.slice(rows.indexOf(named) + 1)) {
       if (r.length !== named.length || r.every((t) => TYPE_WORDS.test(t) || /^null$/i.test(t))) continue
       const u = r[columns.wave]!.replace(/^[[(]|[\])]$/g, '')
-      if (!columns.unit && angstromsPerUnit(u) !== undefined) { columns.unit = u; columns.unitFrom = `the units row under the header ('${r.join(' | ')}')` }
+      if (!columns.unit && angstromsPerUnit(u) !== undefined) {
+        columns.unit = u
+        columns.unitFrom = `the units row under the header ('${r.join(' | ')}')`
+      }
     }
   } else if (lastComment !== undefined) {
     const tokens = headerTokens(lastComment, width)
     if (tokens.length === width && tokens.every((t) => parseNumberToken(t) === undefined)) {
       // A comment is only a header when it names the flux too, or gives the wavelength's unit.
-      const found = columnsFromNames(tokens, tokens.some((t) => parseHeaderToken(t).unit !== undefined))
-      if (typeof found !== 'string') { columns = found; headerWhy = `commented header '${lastComment}'` }
+      const found = columnsFromNames(
+        tokens,
+        tokens.some((t) => parseHeaderToken(t).unit !== undefined),
+      )
+      if (typeof found !== 'string') {
+        columns = found
+        headerWhy = `commented header '${lastComment}'`
+      }
     }
   }
   if (columns && Math.max(columns.wave, columns.flux, columns.error ?? 0) >= width) {
@@ -253,7 +303,10 @@ export function readTextSpectrum(bytes: Uint8Array, fileName: string, options: R
   }
   if (!columns) {
     if (width < 2 || width > 3) {
-      throw new SpectrumReadError('TEXT_MALFORMED', `${fileName}: the rows have ${width} columns; without a header row naming them, 2 or 3 columns (wavelength, flux, error) are expected: add a header row such as "wavelength flux error"`)
+      throw new SpectrumReadError(
+        'TEXT_MALFORMED',
+        `${fileName}: the rows have ${width} columns; without a header row naming them, 2 or 3 columns (wavelength, flux, error) are expected: add a header row such as "wavelength flux error"`,
+      )
     }
     columns = width === 3 ? { wave: 0, flux: 1, error: 2, errorKind: 'sigma', names: [] } : { wave: 0, flux: 1, errorKind: 'sigma', names: [] }
     headerWhy = 'no header: columns taken as wavelength, flux' + (width === 3 ? ', error' : '')
@@ -261,7 +314,10 @@ export function readTextSpectrum(bytes: Uint8Array, fileName: string, options: R
   if (columns.guessed) notes.push(columns.guessed)
   if (ecsv && columns.names.length) {
     const u = ecsvUnits.get(parseHeaderToken(columns.names[columns.wave]!).word)
-    if (u && !columns.unit) { columns.unit = u; columns.unitFrom = 'the ECSV header' }
+    if (u && !columns.unit) {
+      columns.unit = u
+      columns.unitFrom = 'the ECSV header'
+    }
   }
 
   // Keywords of the preamble.
@@ -284,18 +340,36 @@ export function readTextSpectrum(bytes: Uint8Array, fileName: string, options: R
     }
   }
   const unitFromComment = comments.map((c) => /\bunits?\s?[:=]\s?([A-Za-zµμÅ]+)/i.exec(c)?.[1]).find((u) => u !== undefined && angstromsPerUnit(u) !== undefined)
-  const commentHeaderUnit = comments.map((c) => headerTokens(c, width).map(parseHeaderToken).find((h) => WAVE_WORDS.test(h.word) && h.unit && angstromsPerUnit(h.unit) !== undefined)?.unit).find((u) => u !== undefined)
+  const commentHeaderUnit = comments
+    .map(
+      (c) =>
+        headerTokens(c, width)
+          .map(parseHeaderToken)
+          .find((h) => WAVE_WORDS.test(h.word) && h.unit && angstromsPerUnit(h.unit) !== undefined)?.unit,
+    )
+    .find((u) => u !== undefined)
 
   let unit: string | undefined
   let unitSource: string
-  if (options.unitFactor) { unit = options.unitFactor.unit; unitSource = 'your choice' }
-  else if (columns.unit) { unit = columns.unit; unitSource = columns.unitFrom! }
-  else if (keywordUnit) { unit = keywordUnit.unit; unitSource = `the keyword line ${keywordUnit.key}` }
-  else if (commentHeaderUnit) { unit = commentHeaderUnit; unitSource = 'the commented column header' }
-  else if (unitFromComment) { unit = unitFromComment; unitSource = 'a comment line' }
-  else unitSource = 'assumed Å: the file names no unit'
+  if (options.unitFactor) {
+    unit = options.unitFactor.unit
+    unitSource = 'your choice'
+  } else if (columns.unit) {
+    unit = columns.unit
+    unitSource = columns.unitFrom!
+  } else if (keywordUnit) {
+    unit = keywordUnit.unit
+    unitSource = `the keyword line ${keywordUnit.key}`
+  } else if (commentHeaderUnit) {
+    unit = commentHeaderUnit
+    unitSource = 'the commented column header'
+  } else if (unitFromComment) {
+    unit = unitFromComment
+    unitSource = 'a comment line'
+  } else unitSource = 'assumed Å: the file names no unit'
   const factor = options.unitFactor?.factor ?? (unit === undefined ? 1 : angstromsPerUnit(unit))
-  if (factor === undefined) throw new SpectrumReadError('UNKNOWN_UNIT', `${fileName}: wavelength unit '${unit}' is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)`)
+  if (factor === undefined)
+    throw new SpectrumReadError('UNKNOWN_UNIT', `${fileName}: wavelength unit '${unit}' is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)`)
 
   const wavelength = Float64Array.from(cols[columns.wave]!, (v) => v * factor)
   const flux = Float64Array.from(cols[columns.flux]!)
@@ -309,8 +383,18 @@ export function readTextSpectrum(bytes: Uint8Array, fileName: string, options: R
   const flagSets: FlagSet[] = []
   const ignored: string[] = []
   const raw: RawSpectrum = {
-    wavelength, flux, medium: medium.sort((a, b) => b.strength - a.strength), wavelengthUnit: unit ?? 'Angstrom (assumed)', unitSource,
-    unitAssumed: unit === undefined, header, notes, masks: [], ignored, warnings: [], flagSets,
+    wavelength,
+    flux,
+    medium: medium.sort((a, b) => b.strength - a.strength),
+    wavelengthUnit: unit ?? 'Angstrom (assumed)',
+    unitSource,
+    unitAssumed: unit === undefined,
+    header,
+    notes,
+    masks: [],
+    ignored,
+    warnings: [],
+    flagSets,
     source: `text table (${encoding}${delimiter === 'space' ? ', whitespace' : delimiter === '\t' ? ', tab' : `, '${delimiter}'`}-separated${decimalComma ? ', decimal commas' : ''}), ${width} columns, ${n} rows; ${headerWhy}`,
     solution: `${columns.names[columns.wave] ? `column '${columns.names[columns.wave]}'` : 'column 1'} (${describeDispersion(fitDispersion(wavelength))})`,
   }
@@ -322,7 +406,10 @@ export function readTextSpectrum(bytes: Uint8Array, fileName: string, options: R
       for (let i = 0; i < n; i++) {
         const iv = e[i]!
         if (iv > 0 && Number.isFinite(iv)) e[i] = 1 / Math.sqrt(iv)
-        else { e[i] = Infinity; zero[i] = 1 }
+        else {
+          e[i] = Infinity
+          zero[i] = 1
+        }
       }
       flagSets.push({ source: `${name} column`, rule: 'inverse variance 0 means no data', flags: zero })
       raw.errorSource = `${name}: error = 1/√${name}`

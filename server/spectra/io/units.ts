@@ -42,12 +42,10 @@ export function isBlankUnit(unit: string | undefined): boolean {
  * that one counts. Returns undefined when the text says neither, or both without a conversion.
  */
 export function vacuumFromText(text: string): boolean | undefined {
-  const converted = /\b(?:convert|transform|shift)\w*\b[^.;]{0,60}?\bto\s+(air|vac\w*)\b/i.exec(text)
-    ?? /\b(?:air|vac\w*)[\s-]+to[\s-]+(air|vac\w*)\b/i.exec(text)
+  const converted = /\b(?:convert|transform|shift)\w*\b[^.;]{0,60}?\bto\s+(air|vac\w*)\b/i.exec(text) ?? /\b(?:air|vac\w*)[\s-]+to[\s-]+(air|vac\w*)\b/i.exec(text)
   if (converted) return converted[1]!.toLowerCase().startsWith('vac')
   const vac = /\b(vac(uum)?|in vacuo)\b/i.test(text)
   const air = /\bair\b/i.test(text)
   if (vac === air) return undefined
   return vac
 }
-

@@ -15,15 +15,21 @@ export interface ZipLimits {
   maxTotalBytes?: number
 }
 
-export interface ZipEntry { name: string; bytes: Uint8Array }
+export interface ZipEntry {
+  name: string
+  bytes: Uint8Array
+}
 
 export type ZipRefusalCode = 'ZIP_MALFORMED' | 'ZIP_UNSUPPORTED' | 'ZIP_TOO_MANY_ENTRIES' | 'ZIP_TOO_LARGE'
-export type UnzipResult =
-  | { ok: true; entries: ZipEntry[]; skipped: string[] }
-  | { ok: false; code: ZipRefusalCode; message: string }
+export type UnzipResult = { ok: true; entries: ZipEntry[]; skipped: string[] } | { ok: false; code: ZipRefusalCode; message: string }
 
 class ZipError extends Error {
-  constructor(readonly code: ZipRefusalCode, message: string) { super(message) }
+  constructor(
+    readonly code: ZipRefusalCode,
+    message: string,
+  ) {
+    super(message)
+  }
 }
 
 /** Slice of compressed input handed to the inflater at a time: bounds how far one push can overshoot (deflate expands at most ~1032×). */
@@ -52,7 +58,10 @@ export function inflateBounded(data: Uint8Array, limit: number): Uint8Array | un
   if (!done) throw new ZipError('ZIP_MALFORMED', 'compressed data end early')
   const out = new Uint8Array(total)
   let pos = 0
-  for (const c of chunks) { out.set(c, pos); pos += c.length }
+  for (const c of chunks) {
+    out.set(c, pos)
+    pos += c.length
+  }
   return out
 }
 
@@ -84,7 +93,10 @@ export function unpackZip(bytes: Uint8Array, limits: ZipLimits = {}): UnzipResul
     // End-of-central-directory record: 22 bytes plus a comment of up to 65535 bytes, at the end.
     let eocd = -1
     for (let at = bytes.length - 22; at >= Math.max(0, bytes.length - 22 - 65535); at--) {
-      if (u32(bytes, at) === 0x06054b50) { eocd = at; break }
+      if (u32(bytes, at) === 0x06054b50) {
+        eocd = at
+        break
+      }
     }
     if (eocd < 0) throw new ZipError('ZIP_MALFORMED', 'not a zip archive (no end-of-central-directory record)')
     const count = u16(bytes, eocd + 10)
@@ -110,7 +122,10 @@ export function unpackZip(bytes: Uint8Array, limits: ZipLimits = {}): UnzipResul
       if (p + 46 + nameLen > eocd) throw new ZipError('ZIP_MALFORMED', `central directory entry ${k + 1} is damaged`)
       const name = decoder.decode(bytes.subarray(p + 46, p + 46 + nameLen))
       p += 46 + nameLen + extraLen + commentLen
-      if (isSkippedName(name)) { skipped.push(name); continue }
+      if (isSkippedName(name)) {
+        skipped.push(name)
+        continue
+      }
       if (flags & 1) throw new ZipError('ZIP_UNSUPPORTED', `${name} is encrypted`)
       if (method !== 0 && method !== 8) throw new ZipError('ZIP_UNSUPPORTED', `${name} uses compression method ${method}; only stored and deflate are supported`)
       if (size === 0xffffffff || compSize === 0xffffffff) throw new ZipError('ZIP_UNSUPPORTED', 'ZIP64 archives are not supported')
@@ -158,8 +173,14 @@ export function gunzipBounded(bytes: Uint8Array, limit: number): Uint8Array | un
   const flags = bytes[3]!
   let at = 10
   if (flags & 4) at += 2 + u16(bytes, at)
-  if (flags & 8) { while (at < bytes.length && bytes[at] !== 0) at++; at++ }
-  if (flags & 16) { while (at < bytes.length && bytes[at] !== 0) at++; at++ }
+  if (flags & 8) {
+    while (at < bytes.length && bytes[at] !== 0) at++
+    at++
+  }
+  if (flags & 16) {
+    while (at < bytes.length && bytes[at] !== 0) at++
+    at++
+  }
   if (flags & 2) at += 2
   if (at >= bytes.length - 8) throw new Error('gzip header runs past the data')
   try {

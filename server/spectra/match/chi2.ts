@@ -20,13 +20,7 @@ export interface ScaledChiSquare {
  * @param weights 1/σ² per pixel; 0 to ignore a pixel
  * @returns χ² = Infinity and scale NaN when no pixel is usable or the template is zero there
  */
-export function scaledChiSquare(
-  flux: ArrayLike<number>,
-  template: ArrayLike<number>,
-  weights: ArrayLike<number>,
-  from = 0,
-  to = flux.length,
-): ScaledChiSquare {
+export function scaledChiSquare(flux: ArrayLike<number>, template: ArrayLike<number>, weights: ArrayLike<number>, from = 0, to = flux.length): ScaledChiSquare {
   let sff = 0
   let sft = 0
   let stt = 0
@@ -133,7 +127,18 @@ export function depthScaledChiSquareSelected(
     const b1 = r1 * pixels + from
     const b2 = r2 * pixels + from
     const b3 = r3 * pixels + from
-    let t0 = 0, ft0 = 0, tt0 = 0, t1 = 0, ft1 = 0, tt1 = 0, t2 = 0, ft2 = 0, tt2 = 0, t3 = 0, ft3 = 0, tt3 = 0
+    let t0 = 0,
+      ft0 = 0,
+      tt0 = 0,
+      t1 = 0,
+      ft1 = 0,
+      tt1 = 0,
+      t2 = 0,
+      ft2 = 0,
+      tt2 = 0,
+      t3 = 0,
+      ft3 = 0,
+      tt3 = 0
     for (let k = 0; k < width; k++) {
       const w = wv[k]!
       const f = fv[k]!
@@ -185,9 +190,19 @@ const scratchSums = new Float64Array(4)
 
 /** Solves the 2 × 2 normal equations of one row from its sums (spectrum sums in scratchSums). */
 function solveRow(
-  s: number, St: number, Sft: number, Stt: number,
-  flux: Float64Array, weights: Float64Array, rows: Float32Array, pixels: number, from: number, to: number,
-  chi2: Float64Array, scale: Float64Array, used: Float64Array,
+  s: number,
+  St: number,
+  Sft: number,
+  Stt: number,
+  flux: Float64Array,
+  weights: Float64Array,
+  rows: Float32Array,
+  pixels: number,
+  from: number,
+  to: number,
+  chi2: Float64Array,
+  scale: Float64Array,
+  used: Float64Array,
 ): void {
   const S = scratchSums[0]!
   const Sf = scratchSums[1]!
@@ -294,19 +309,19 @@ export interface PairChiSquare {
  * @param rows row-major block; @param row1, row2 the two rows; @param pixels row length
  * @returns χ² = Infinity when fewer than 4 pixels are usable or the system is singular
  */
-export function depthScaledPairChiSquare(
-  flux: Float64Array,
-  weights: Float64Array,
-  rows: Float32Array,
-  pixels: number,
-  row1: number,
-  row2: number,
-  from: number,
-  to: number,
-): PairChiSquare {
+export function depthScaledPairChiSquare(flux: Float64Array, weights: Float64Array, rows: Float32Array, pixels: number, row1: number, row2: number, from: number, to: number): PairChiSquare {
   const b1 = row1 * pixels
   const b2 = row2 * pixels
-  let S = 0, Sf = 0, Sff = 0, S1 = 0, S2 = 0, Sf1 = 0, Sf2 = 0, S11 = 0, S22 = 0, S12 = 0
+  let S = 0,
+    Sf = 0,
+    Sff = 0,
+    S1 = 0,
+    S2 = 0,
+    Sf1 = 0,
+    Sf2 = 0,
+    S11 = 0,
+    S22 = 0,
+    S12 = 0
   let n = 0
   for (let i = from; i < to; i++) {
     const w = weights[i]!
@@ -329,8 +344,7 @@ export function depthScaledPairChiSquare(
   const none: PairChiSquare = { chi2: Infinity, fraction: Number.NaN, scale: Number.NaN }
   if (n < 4) return none
   // χ²(a, p, q) for f ≈ a + p·t₁ + q·t₂, from the sums.
-  const chi = (a: number, p: number, q: number) =>
-    Math.max(0, Sff - 2 * (a * Sf + p * Sf1 + q * Sf2) + a * a * S + p * p * S11 + q * q * S22 + 2 * (a * p * S1 + a * q * S2 + p * q * S12))
+  const chi = (a: number, p: number, q: number) => Math.max(0, Sff - 2 * (a * Sf + p * Sf1 + q * Sf2) + a * a * S + p * p * S11 + q * q * S22 + 2 * (a * p * S1 + a * q * S2 + p * q * S12))
   // Free solution of the 3 × 3 normal equations (Cramer's rule).
   const det3 = S * (S11 * S22 - S12 * S12) - S1 * (S1 * S22 - S12 * S2) + S2 * (S1 * S12 - S11 * S2)
   const [bMin, bMax] = DEPTH_SCALE_BOUNDS
@@ -359,7 +373,10 @@ export function depthScaledPairChiSquare(
     const x = Math.min(1, Math.max(0, y / b))
     consider((Sg - b * x * Sd) / S, b, x)
   }
-  for (const [St, Sft, Stt, x] of [[S1, Sf1, S11, 0], [S2, Sf2, S22, 1]] as const) {
+  for (const [St, Sft, Stt, x] of [
+    [S1, Sf1, S11, 0],
+    [S2, Sf2, S22, 1],
+  ] as const) {
     const det = S * Stt - St * St
     if (!(det > 0)) continue
     const b = Math.min(bMax, Math.max(bMin, (S * Sft - St * Sf) / det))
@@ -400,8 +417,41 @@ export function smoothPairChiSquare(
   steps = 10,
 ): SmoothPairChiSquare {
   // Moments in scalar locals: the loop then touches no array but the inputs.
-  let m00 = 0, m01 = 0, m02 = 0, m03 = 0, m04 = 0, m05 = 0, m06 = 0, m11 = 0, m12 = 0, m13 = 0, m14 = 0, m15 = 0, m16 = 0, m22 = 0, m23 = 0, m24 = 0, m25 = 0, m26 = 0, m33 = 0, m34 = 0, m35 = 0, m36 = 0, m44 = 0, m45 = 0, m46 = 0, m55 = 0, m56 = 0, m66 = 0
-  let h0 = 0, h1 = 0, h2 = 0, h3 = 0, h4 = 0, h5 = 0, h6 = 0
+  let m00 = 0,
+    m01 = 0,
+    m02 = 0,
+    m03 = 0,
+    m04 = 0,
+    m05 = 0,
+    m06 = 0,
+    m11 = 0,
+    m12 = 0,
+    m13 = 0,
+    m14 = 0,
+    m15 = 0,
+    m16 = 0,
+    m22 = 0,
+    m23 = 0,
+    m24 = 0,
+    m25 = 0,
+    m26 = 0,
+    m33 = 0,
+    m34 = 0,
+    m35 = 0,
+    m36 = 0,
+    m44 = 0,
+    m45 = 0,
+    m46 = 0,
+    m55 = 0,
+    m56 = 0,
+    m66 = 0
+  let h0 = 0,
+    h1 = 0,
+    h2 = 0,
+    h3 = 0,
+    h4 = 0,
+    h5 = 0,
+    h6 = 0
   let Sff = 0
   let n = 0
   const b1 = row1 * pixels
@@ -528,14 +578,27 @@ function smoothChiAt(x: number): number {
   const v = smoothScratch.v
   // Normal equations in the basis (1, X, X², t₁ + x d, X(t₁ + x d)), assembled from the moments.
   const x2 = x * x
-  M[0] = q[0]!; M[1] = q[1]!; M[2] = q[2]!; M[3] = q[3]! + x * q[5]!; M[4] = q[4]! + x * q[6]!
-  M[6] = q[7]!; M[7] = q[8]!; M[8] = q[9]! + x * q[11]!; M[9] = q[10]! + x * q[12]!
-  M[12] = q[13]!; M[13] = q[14]! + x * q[16]!; M[14] = q[15]! + x * q[17]!
+  M[0] = q[0]!
+  M[1] = q[1]!
+  M[2] = q[2]!
+  M[3] = q[3]! + x * q[5]!
+  M[4] = q[4]! + x * q[6]!
+  M[6] = q[7]!
+  M[7] = q[8]!
+  M[8] = q[9]! + x * q[11]!
+  M[9] = q[10]! + x * q[12]!
+  M[12] = q[13]!
+  M[13] = q[14]! + x * q[16]!
+  M[14] = q[15]! + x * q[17]!
   M[18] = q[18]! + 2 * x * q[20]! + x2 * q[25]!
   M[19] = q[19]! + x * (q[21]! + q[23]!) + x2 * q[26]!
   M[24] = q[22]! + 2 * x * q[24]! + x2 * q[27]!
   for (let r = 1; r < 5; r++) for (let c = 0; c < r; c++) M[r * 5 + c] = M[c * 5 + r]!
-  v[0] = q[28]!; v[1] = q[29]!; v[2] = q[30]!; v[3] = q[31]! + x * q[33]!; v[4] = q[32]! + x * q[34]!
+  v[0] = q[28]!
+  v[1] = q[29]!
+  v[2] = q[30]!
+  v[3] = q[31]! + x * q[33]!
+  v[4] = q[32]! + x * q[34]!
   const solution = solveSymmetric(M, v, 5)
   if (solution === null) return Infinity
   let fit = 0

@@ -169,7 +169,13 @@ function scratchFor(library: PreparedMatchLibrary): Scratch {
  * Fills the scratch flux and weights over the library span: w = 1/(σ² + (modelError·f)²), σ from
  * the errors or 1/S/N, 0 outside the region or where masked. Returns the region's [from, to) range.
  */
-export function fillWeights(library: PreparedMatchLibrary, input: MatchInput, region: readonly [number, number], modelError: number, s: { flux: Float64Array; weights: Float64Array; noise?: Float64Array }): [number, number] {
+export function fillWeights(
+  library: PreparedMatchLibrary,
+  input: MatchInput,
+  region: readonly [number, number],
+  modelError: number,
+  s: { flux: Float64Array; weights: Float64Array; noise?: Float64Array },
+): [number, number] {
   const { wavelength, offset, pixels } = library
   const from = lowerBound(wavelength, region[0])
   const to = lowerBound(wavelength, region[1])
@@ -298,7 +304,12 @@ function leaveOut(level: LibraryLevel, library: PreparedMatchLibrary, chi2: Floa
  * resolution estimate start from.
  * @throws when the spectrum has fewer than 10 usable pixels in the region
  */
-export function fitSpectrumAtLevel(library: PreparedMatchLibrary, input: MatchInput, fwhm: number, options: { region?: readonly [number, number]; modelError?: number; exhaustive?: boolean; refineCount?: number; exclude?: ReadonlySet<number> } = {}): { level: LibraryLevel; fit: LevelFit; from: number; to: number; scratch: Scratch } {
+export function fitSpectrumAtLevel(
+  library: PreparedMatchLibrary,
+  input: MatchInput,
+  fwhm: number,
+  options: { region?: readonly [number, number]; modelError?: number; exhaustive?: boolean; refineCount?: number; exclude?: ReadonlySet<number> } = {},
+): { level: LibraryLevel; fit: LevelFit; from: number; to: number; scratch: Scratch } {
   const region = options.region ?? DEFAULT_CLASSIFICATION_REGION
   if (input.rectified.length !== library.grid.length) throw new Error(`spectrum has ${input.rectified.length} pixels, the library grid ${library.grid.length}`)
   const s = scratchFor(library)
@@ -365,7 +376,9 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   const n = level.rows.length
   const std = (r: number) => library.standards[level.rows[r]!]!
 
-  const order = Array.from({ length: n }, (_, r) => r).filter((r) => Number.isFinite(chi2[r]!)).sort((a, b) => chi2[a]! - chi2[b]!)
+  const order = Array.from({ length: n }, (_, r) => r)
+    .filter((r) => Number.isFinite(chi2[r]!))
+    .sort((a, b) => chi2[a]! - chi2[b]!)
   if (order.length === 0) throw new Error('no standard overlaps the spectrum in the classification region')
   const best = order[0]!
   const voters = order.slice(0, Math.min(neighbours, order.length))
@@ -399,10 +412,11 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
     point.p += typeWeights[q]!
     shareByPoint.set(key, point)
   })
-  const classShares = [...shareByClass]
-    .map(([c, p]) => ({ luminosityClass: classText(c), classCode: c, p: round(p, 4) }))
+  const classShares = [...shareByClass].map(([c, p]) => ({ luminosityClass: classText(c), classCode: c, p: round(p, 4) })).sort((a, b) => b.p - a.p)
+  const probabilities = [...shareByPoint.values()]
+    .filter((p) => p.p >= 1e-4)
+    .map((p) => ({ ...p, p: round(p.p, 5) }))
     .sort((a, b) => b.p - a.p)
-  const probabilities = [...shareByPoint.values()].filter((p) => p.p >= 1e-4).map((p) => ({ ...p, p: round(p.p, 5) })).sort((a, b) => b.p - a.p)
 
   const centre = (region[0] + region[1]) / 2
   const pixelsPerElement = Math.max(1, level.fwhm / (centre * library.grid.step))
@@ -573,7 +587,12 @@ function parameterEstimate(voters: readonly { teff: number | null; logg: number 
 
 /** Unweighted rms residual, in continuum units, of the best level-and-depth fit of row `row` over the region. */
 function bestResidual(flux: Float64Array, weights: Float64Array, rows: Float32Array, pixels: number, row: number, from: number, to: number): number {
-  let m = 0, sx = 0, sy = 0, sxx = 0, sxy = 0, syy = 0
+  let m = 0,
+    sx = 0,
+    sy = 0,
+    sxx = 0,
+    sxy = 0,
+    syy = 0
   const base = row * pixels
   for (let i = from; i < to; i++) {
     if (!(weights[i]! > 0)) continue
@@ -597,7 +616,9 @@ function bestResidual(flux: Float64Array, weights: Float64Array, rows: Float32Ar
 function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel, spectrumSpan: Float64Array, typeCode: number, snr: number | null, centre: number): Vote[] {
   const sigmaPix = snr !== null && snr > 0 ? 1 / snr : 0.02
   const pixelsPerAngstrom = 1 / (centre * library.grid.step)
-  const classCodes = levelClassCodes(library, level).filter((c) => Number.isInteger(c) || c === 1.5).sort((a, b) => a - b)
+  const classCodes = levelClassCodes(library, level)
+    .filter((c) => Number.isInteger(c) || c === 1.5)
+    .sort((a, b) => a - b)
   return CRITERIA.map((c, ci) => {
     const value = criterionValue(c, spectrumSpan, library.wavelength)
     const vote: Vote = { criterion: c.id, name: c.name, value: Number.isFinite(value) ? round(value, 4) : null, vote: null }

@@ -23,12 +23,7 @@ export function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined,
   const hot = typeCode < 40
   const ids = hot ? ['h-alpha', 'h-beta', 'h-gamma'] : ['h-alpha']
   return lines.some(
-    (l) =>
-      l.measured &&
-      ids.includes(l.id) &&
-      l.equivalentWidth < -1 &&
-      (hot || l.depth < -0.05) &&
-      (l.equivalentWidthError === null || -l.equivalentWidth > 3 * l.equivalentWidthError),
+    (l) => l.measured && ids.includes(l.id) && l.equivalentWidth < -1 && (hot || l.depth < -0.05) && (l.equivalentWidthError === null || -l.equivalentWidth > 3 * l.equivalentWidthError),
   )
 }
 
@@ -105,7 +100,14 @@ export function isBeyondDwarfs(level: LibraryLevel, standards: readonly MatchSta
 }
 
 /** Type bins from which one standard each enters the two-star fits. */
-const COMPOSITE_BINS: readonly [number, number][] = [[0, 15], [15, 25], [25, 35], [35, 45], [45, 55], [55, 70]]
+const COMPOSITE_BINS: readonly [number, number][] = [
+  [0, 15],
+  [15, 25],
+  [25, 35],
+  [35, 45],
+  [45, 55],
+  [55, 70],
+]
 
 export interface CompositeEvidence {
   /** Rows (level indices) of the two standards. */
@@ -128,7 +130,16 @@ export interface CompositeEvidence {
  * sum changes whole bands and line groups, not single pixels.
  * @param flux, weights the spectrum and its weights on the coarse pixels; from, to their range
  */
-export function compositeEvidence(library: PreparedMatchLibrary, level: LibraryLevel, flux: Float64Array, weights: Float64Array, fit: LevelFit, from: number, to: number, best: number): CompositeEvidence | null {
+export function compositeEvidence(
+  library: PreparedMatchLibrary,
+  level: LibraryLevel,
+  flux: Float64Array,
+  weights: Float64Array,
+  fit: LevelFit,
+  from: number,
+  to: number,
+  best: number,
+): CompositeEvidence | null {
   const rows = level.coarse
   const pixels = library.coarsePixels
   const typeOf = (r: number) => library.standards[level.rows[r]!]!.typeCode

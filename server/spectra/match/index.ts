@@ -1,4 +1,15 @@
-export { scaledChiSquare, depthScaledChiSquareRows, depthScaledChiSquareSelected, depthScaledPairChiSquare, smoothPairChiSquare, type PairChiSquare, type SmoothPairChiSquare, DEPTH_SCALE_BOUNDS, parabolaVertex, type ScaledChiSquare } from './chi2'
+export {
+  scaledChiSquare,
+  depthScaledChiSquareRows,
+  depthScaledChiSquareSelected,
+  depthScaledPairChiSquare,
+  smoothPairChiSquare,
+  type PairChiSquare,
+  type SmoothPairChiSquare,
+  DEPTH_SCALE_BOUNDS,
+  parabolaVertex,
+  type ScaledChiSquare,
+} from './chi2'
 export { CRITERIA, criterionValue, criterionNoise, type Criterion } from './criteria'
 export {
   prepareMatchLibrary,
@@ -15,7 +26,19 @@ export {
   type ObservedLibraryLike,
   type PreparedMatchLibrary,
 } from './library'
-export { classText, matchSpectrum, windowMode, type Candidate, type Estimate, type MatchInput, type MatchOptions, type MatchResult, type ParameterEstimate, type SuggestionFlag, type Vote } from './classify'
+export {
+  classText,
+  matchSpectrum,
+  windowMode,
+  type Candidate,
+  type Estimate,
+  type MatchInput,
+  type MatchOptions,
+  type MatchResult,
+  type ParameterEstimate,
+  type SuggestionFlag,
+  type Vote,
+} from './classify'
 export { hasBalmerEmission, notStarEvidence, type NotStarEvidence } from './flags'
 export { estimateResolution, type ResolutionEstimate } from './resolution'
 export { standardOnGrid } from './reference'

@@ -89,7 +89,13 @@ export function libraryForInstrument(library: PreparedMatchLibrary, instrumentId
   const { exclude, cover = null, responseCorrection: correct = false } = options
   // Only exclusions among the instrument's own standards change the view (they no longer cover
   // anything); every other excluded standard keeps its row and is left out by the matcher's own `exclude`.
-  const excluded = exclude && instrumentId !== null ? library.standards.filter((s) => exclude.has(s.id) && isOwn(s, instrumentId)).map((s) => s.id).sort((a, b) => a - b) : []
+  const excluded =
+    exclude && instrumentId !== null
+      ? library.standards
+          .filter((s) => exclude.has(s.id) && isOwn(s, instrumentId))
+          .map((s) => s.id)
+          .sort((a, b) => a - b)
+      : []
   const key = `${instrumentId}|${cover ? `${cover.types},${cover.classes}` : '-'}|${correct}|${excluded.join(',')}`
   let views = cache.get(library)
   if (!views) cache.set(library, (views = new Map()))
@@ -120,7 +126,14 @@ export function libraryForInstrument(library: PreparedMatchLibrary, instrumentId
 const isOwn = (s: MatchStandardInfo, instrumentId: number | null) => instrumentId !== null && s.instrumentId === instrumentId
 const isGeneral = (s: MatchStandardInfo) => s.instrumentId === null || s.instrumentId === undefined
 
-function deriveLevel(library: PreparedMatchLibrary, level: LibraryLevel, instrumentId: number | null, out: ReadonlySet<number>, cover: { types: number; classes: number } | null, correct: boolean): { level: LibraryLevel; info: InstrumentLevelInfo } {
+function deriveLevel(
+  library: PreparedMatchLibrary,
+  level: LibraryLevel,
+  instrumentId: number | null,
+  out: ReadonlySet<number>,
+  cover: { types: number; classes: number } | null,
+  correct: boolean,
+): { level: LibraryLevel; info: InstrumentLevelInfo } {
   const std = (k: number) => library.standards[k]!
   const own: number[] = []
   const covering: number[] = []
@@ -190,7 +203,14 @@ function deriveLevel(library: PreparedMatchLibrary, level: LibraryLevel, instrum
  * @param own, general rows of the level
  * @returns the factor over the library span and the number of pairs, or null with fewer than `minPairs` pairs
  */
-export function responseCorrection(library: PreparedMatchLibrary, level: LibraryLevel, own: readonly number[], general: readonly number[], halfWidth = 60, minPairs = 3): { factor: Float64Array; pairs: number; largest: number } | null {
+export function responseCorrection(
+  library: PreparedMatchLibrary,
+  level: LibraryLevel,
+  own: readonly number[],
+  general: readonly number[],
+  halfWidth = 60,
+  minPairs = 3,
+): { factor: Float64Array; pairs: number; largest: number } | null {
   const std = (r: number) => library.standards[level.rows[r]!]!
   const pairs: [number, number][] = []
   for (const a of own) {

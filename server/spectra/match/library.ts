@@ -248,7 +248,12 @@ export function fillNeighbourResiduals(level: LibraryLevel, standards: readonly 
     const starA = standards[level.rows[a]!]!.star
     for (let b = 0; b < n; b++) {
       if (b === a || (starA !== null && standards[level.rows[b]!]!.star === starA)) continue
-      let m = 0, sx = 0, sy = 0, sxx = 0, sxy = 0, syy = 0
+      let m = 0,
+        sx = 0,
+        sy = 0,
+        sxx = 0,
+        sxy = 0,
+        syy = 0
       for (let j = from; j < to; j++) {
         const y = c[a * cp + j]!
         const x = c[b * cp + j]!

@@ -22,12 +22,18 @@ export interface ResolutionEstimate {
  * @param input the spectrum, prepared without smoothing
  * @param options.standards how many of the best standards are followed across levels @default 6
  */
-export function estimateResolution(library: PreparedMatchLibrary, input: MatchInput, options: { region?: readonly [number, number]; standards?: number; exclude?: ReadonlySet<number> } = {}): ResolutionEstimate {
+export function estimateResolution(
+  library: PreparedMatchLibrary,
+  input: MatchInput,
+  options: { region?: readonly [number, number]; standards?: number; exclude?: ReadonlySet<number> } = {},
+): ResolutionEstimate {
   const region = options.region ?? DEFAULT_CLASSIFICATION_REGION
   const count = options.standards ?? 6
   const levels = library.resolutions
   const first = fitSpectrumAtLevel(library, input, levels[0]!, { region, ...(options.exclude ? { exclude: options.exclude } : {}) })
-  const order = Array.from(first.fit.chi2.keys()).filter((r) => Number.isFinite(first.fit.chi2[r]!)).sort((a, b) => first.fit.chi2[a]! - first.fit.chi2[b]!)
+  const order = Array.from(first.fit.chi2.keys())
+    .filter((r) => Number.isFinite(first.fit.chi2[r]!))
+    .sort((a, b) => first.fit.chi2[a]! - first.fit.chi2[b]!)
   const followed = order.slice(0, count).map((r) => first.level.rows[r]!)
   const s = first.scratch
   const curve = levels.map((fwhm) => {

@@ -64,7 +64,11 @@ export function measureCheckedSpectrumLine(spectrum: Spectrum1D, line: Classific
   const blue = bandMean(spectrum, line.blue)
   const red = bandMean(spectrum, line.red)
   const win = bandMean(spectrum, line.window)
-  for (const [band, name] of [[blue, 'blue side band'], [red, 'red side band'], [win, 'window']] as const) {
+  for (const [band, name] of [
+    [blue, 'blue side band'],
+    [red, 'red side band'],
+    [win, 'window'],
+  ] as const) {
     if (band.maskedFraction > maxMaskedFraction) {
       return {
         ...identity,
@@ -224,15 +228,7 @@ function pixelOverlap(w: Float64Array, i: number, n: number, range: WavelengthRa
 }
 
 /** Distance between the half-depth crossings nearest the deepest pixel, inside the window. */
-function halfDepthWidth(
-  spectrum: Spectrum1D,
-  window: WavelengthRange,
-  deepest: number,
-  half: number,
-  level: number,
-  slope: number,
-  wb: number,
-): number | null {
+function halfDepthWidth(spectrum: Spectrum1D, window: WavelengthRange, deepest: number, half: number, level: number, slope: number, wb: number): number | null {
   const { wavelength: w, flux } = spectrum
   const d = (i: number) => 1 - flux[i]! / (level + slope * (w[i]! - wb))
   let left: number | null = null

@@ -30,15 +30,7 @@ export interface LinesOptions {
  */
 export function measureSpectrumLines(spectrum: Spectrum1D, options: LinesOptions = {}): LineMeasurement[] {
   assertSpectrum(spectrum, 2)
-  const {
-    lines = CLASSIFICATION_LINES,
-    snrByLine = {},
-    snr = null,
-    snrFloor = 10,
-    noiseCorrelation = 1,
-    voigtLineIds = VOIGT_FIT_LINE_IDS,
-    instrumentalFwhm,
-  } = options
+  const { lines = CLASSIFICATION_LINES, snrByLine = {}, snr = null, snrFloor = 10, noiseCorrelation = 1, voigtLineIds = VOIGT_FIT_LINE_IDS, instrumentalFwhm } = options
   const minSigma = instrumentalFwhm !== undefined ? instrumentalFwhm / gaussianFwhm(1) : undefined
   return lines.map((line) => {
     const lineSnr = snrByLine[line.id] ?? snr
@@ -70,19 +62,12 @@ export function measureLineRatios(measurements: readonly LineMeasurement[], opti
     if (typeof bottom === 'string') return { ...base, value: null, error: null, reason: bottom }
     if (!(bottom.value > 0)) return { ...base, value: null, error: null, reason: 'the denominator is not positive' }
     const value = top.value / bottom.value
-    const error =
-      top.error === null || bottom.error === null
-        ? null
-        : Math.hypot(top.error / bottom.value, (top.value * bottom.error) / (bottom.value * bottom.value))
+    const error = top.error === null || bottom.error === null ? null : Math.hypot(top.error / bottom.value, (top.value * bottom.error) / (bottom.value * bottom.value))
     return { ...base, value, error }
   })
 }
 
-function sumOf(
-  ids: readonly string[],
-  quantity: 'ew' | 'depth',
-  byId: Map<string, LineMeasurement>,
-): { value: number; error: number | null } | string {
+function sumOf(ids: readonly string[], quantity: 'ew' | 'depth', byId: Map<string, LineMeasurement>): { value: number; error: number | null } | string {
   let value = 0
   let variance: number | null = 0
   for (const id of ids) {

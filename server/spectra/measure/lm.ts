@@ -40,13 +40,7 @@ export interface LevenbergMarquardtResult {
  * Minimises Σ wᵢ (yᵢ − model(params)ᵢ)² from `initial`.
  * @throws when data, weights and the initial guess disagree in length
  */
-export function fitLevenbergMarquardt(
-  model: LeastSquaresModel,
-  y: Float64Array,
-  weights: Float64Array,
-  initial: ArrayLike<number>,
-  options: LevenbergMarquardtOptions = {},
-): LevenbergMarquardtResult {
+export function fitLevenbergMarquardt(model: LeastSquaresModel, y: Float64Array, weights: Float64Array, initial: ArrayLike<number>, options: LevenbergMarquardtOptions = {}): LevenbergMarquardtResult {
   const { maxIterations = 50, tolerance = 1e-9, initialDamping = 1e-3, lower, upper } = options
   const n = y.length
   const p = initial.length
@@ -132,15 +126,7 @@ function chiSquare(y: Float64Array, model: Float64Array, w: Float64Array): numbe
   return sum
 }
 
-function normalEquations(
-  y: Float64Array,
-  values: Float64Array,
-  jacobian: Float64Array,
-  w: Float64Array,
-  p: number,
-  alpha: Float64Array,
-  beta: Float64Array,
-): void {
+function normalEquations(y: Float64Array, values: Float64Array, jacobian: Float64Array, w: Float64Array, p: number, alpha: Float64Array, beta: Float64Array): void {
   alpha.fill(0)
   beta.fill(0)
   for (let i = 0; i < y.length; i++) {

@@ -70,9 +70,17 @@ export function fitCheckedSpectrumVoigtLine(spectrum: Spectrum1D, line: Classifi
   const depth0 = level0 - y[deepest]!
   if (!(depth0 > 0)) return { ok: false, reason: 'no absorption in the fitting window' }
   let left = x[0]!
-  for (let j = deepest; j >= 0; j--) if (level0 - y[j]! < depth0 / 2) { left = x[j]!; break }
+  for (let j = deepest; j >= 0; j--)
+    if (level0 - y[j]! < depth0 / 2) {
+      left = x[j]!
+      break
+    }
   let right = x[count - 1]!
-  for (let j = deepest; j < count; j++) if (level0 - y[j]! < depth0 / 2) { right = x[j]!; break }
+  for (let j = deepest; j < count; j++)
+    if (level0 - y[j]! < depth0 / 2) {
+      right = x[j]!
+      break
+    }
   const fwhm0 = Math.max(right - left, 2 * (x[1]! - x[0]!))
   const pixel = (window[1] - window[0]) / count
   const minSigma = Math.max(options.minSigma ?? 0, pixel / 4)

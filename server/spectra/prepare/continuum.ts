@@ -281,15 +281,7 @@ function chebyshev(c: Float64Array, x: number): number {
  * Weighted least squares for Chebyshev coefficients via the normal equations (basis precomputed,
  * row-major m × size), solved with ml-matrix; writes the fitted values of all m points into `model`.
  */
-function fitChebyshev(
-  basis: Float64Array,
-  ys: Float64Array,
-  ws: Float64Array,
-  used: Uint8Array,
-  m: number,
-  size: number,
-  model: Float64Array,
-): Float64Array {
+function fitChebyshev(basis: Float64Array, ys: Float64Array, ws: Float64Array, used: Uint8Array, m: number, size: number, model: Float64Array): Float64Array {
   const ata = new Float64Array(size * size)
   const atb = new Float64Array(size)
   for (let k = 0; k < m; k++) {
@@ -324,4 +316,3 @@ function percentileInPlace(values: Float64Array, n: number, q: number): number {
   const sorted = values.subarray(0, n).sort()
   return sorted[Math.min(n - 1, Math.max(0, Math.round(q * (n - 1))))]!
 }
-

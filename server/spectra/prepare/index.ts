@@ -4,10 +4,4 @@ export { estimateSpectrumSnr, estimateSpectrumSnrByWindow, type SnrOptions, type
 export { rebinSpectrumToLogGrid, rebinNoiseCorrelation, type RebinOptions } from './rebin'
 export { smoothSpectrumToFwhm, type SmoothOptions } from './smooth'
 export { fitSpectrumContinuum, type ContinuumOptions, type ContinuumResult } from './continuum'
-export {
-  measureSpectrumRadialVelocity,
-  shiftSpectrumToRest,
-  type RadialVelocityOptions,
-  type RadialVelocityResult,
-  type ShiftOptions,
-} from './rv'
+export { measureSpectrumRadialVelocity, shiftSpectrumToRest, type RadialVelocityOptions, type RadialVelocityResult, type ShiftOptions } from './rv'

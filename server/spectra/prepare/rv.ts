@@ -44,11 +44,7 @@ export type RadialVelocityResult =
  * @returns the velocity, or `found: false` with a reason when the peak sits at the search edge,
  * the correlation is not positive, or too few pixels overlap.
  */
-export function measureSpectrumRadialVelocity(
-  spectrum: Spectrum1D,
-  reference: Spectrum1D,
-  options: RadialVelocityOptions,
-): RadialVelocityResult {
+export function measureSpectrumRadialVelocity(spectrum: Spectrum1D, reference: Spectrum1D, options: RadialVelocityOptions): RadialVelocityResult {
   assertSpectrum(spectrum)
   assertSpectrum(reference)
   const { grid, maxVelocity = 1000, region } = options
@@ -151,4 +147,3 @@ export function shiftSpectrumToRest(spectrum: Spectrum1D, options: ShiftOptions)
   for (let i = 0; i < wavelength.length; i++) wavelength[i] = spectrum.wavelength[i]! * factor
   return { ...spectrum, wavelength }
 }
-

@@ -67,12 +67,7 @@ export function estimateSpectrumSnrByWindow(spectrum: Spectrum1D, options: SnrBy
   return options.windows.map((window) => derSnr(spectrum, window, good, scratch))
 }
 
-function derSnr(
-  spectrum: Spectrum1D,
-  region: WavelengthRange | undefined,
-  good: Float64Array,
-  scratch: Float64Array,
-): number | null {
+function derSnr(spectrum: Spectrum1D, region: WavelengthRange | undefined, good: Float64Array, scratch: Float64Array): number | null {
   const { wavelength, flux } = spectrum
   const lo = region ? region[0] : -Infinity
   const hi = region ? region[1] : Infinity

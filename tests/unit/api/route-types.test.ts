@@ -5,7 +5,15 @@ import { route } from '../../../server/routes/route'
 
 // These lines are checked by `vue-tsc -b` (part of npm test): each @ts-expect-error must meet a type error,
 // so a handler that reads a field its schema lacks, or a route without schemas, fails the type check.
-const rename = endpoint({ method: 'patch', path: '/things/:id', tag: 'Things', summary: 'Rename a thing', params: z.object({ id: z.coerce.number() }), body: z.object({ name: z.string() }), response: z.object({ name: z.string() }) })
+const rename = endpoint({
+  method: 'patch',
+  path: '/things/:id',
+  tag: 'Things',
+  summary: 'Rename a thing',
+  params: z.object({ id: z.coerce.number() }),
+  body: z.object({ name: z.string() }),
+  response: z.object({ name: z.string() }),
+})
 
 export const typedRoutes = [
   route(rename, { access: 'signed-in', handler: ({ params, body }) => ({ name: `${body.name} #${params.id}` }) }),

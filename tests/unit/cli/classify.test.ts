@@ -10,7 +10,15 @@ const CORPUS = join(ROOT, 'tests', 'fixtures', 'corpus')
 const tsx = join(ROOT, 'node_modules', '.bin', 'tsx')
 const run = (...args: string[]) => {
   const r = spawnSync(tsx, ['server/cli/classify.ts', ...args], { cwd: ROOT, encoding: 'utf8', env: { ...process.env, FORCE_COLOR: '0' } })
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr, lines: r.stdout.split('\n').filter((l) => l.startsWith('{')).map((l) => JSON.parse(l) as Record<string, any>) }
+  return {
+    code: r.status,
+    stdout: r.stdout,
+    stderr: r.stderr,
+    lines: r.stdout
+      .split('\n')
+      .filter((l) => l.startsWith('{'))
+      .map((l) => JSON.parse(l) as Record<string, any>),
+  }
 }
 const dir = mkdtempSync(join(tmpdir(), 'classify-cli-'))
 afterAll(() => rmSync(dir, { recursive: true, force: true }))
@@ -18,7 +26,11 @@ afterAll(() => rmSync(dir, { recursive: true, force: true }))
 describe('parseCliArgs', () => {
   it('turns the options into reader options and the resolution', () => {
     expect(parseCliArgs(['--', '--fwhm', '2.5', '--medium', 'vacuum', '--unit', 'nm', '--hdu', '2', '--aperture', '3', 'a.fits'])).toEqual({
-      read: { assumeVacuum: true, wavelengthUnit: 'nm', hdu: 2, aperture: 3 }, fwhm: 2.5, quiet: false, help: false, inputs: ['a.fits'],
+      read: { assumeVacuum: true, wavelengthUnit: 'nm', hdu: 2, aperture: 3 },
+      fwhm: 2.5,
+      quiet: false,
+      help: false,
+      inputs: ['a.fits'],
     })
   })
   it('refuses a wrong value with a message naming the option', () => {

@@ -56,7 +56,7 @@ const base = {
 
 export const sampleCatalogue = (): ExportTable => ({
   name: 'catalogue',
-  title: "Test fields, release 2: \"northern\" B stars & friends (the lead's picks)",
+  title: 'Test fields, release 2: "northern" B stars & friends (the lead\'s picks)',
   description: 'Made-up rows for the writer tests; every value is invented. A description long enough to need more than one FITS card, so that the CONTINUE convention is exercised as well.',
   date: '2025-01-15T10:20:30.000',
   authors: 'Test, A.; Test, B. (Kestrel Ridge)',

@@ -30,12 +30,20 @@ describe('transliterate', () => {
 
 describe('prepareForExport', () => {
   const table: ExportTable = {
-    name: 'catalogue', title: 't', description: '', date: '2026-01-01T00:00:00', params: [], notes: ['first'],
+    name: 'catalogue',
+    title: 't',
+    description: '',
+    date: '2026-01-01T00:00:00',
+    params: [],
+    notes: ['first'],
     columns: [
       { name: 'Object', description: 'name', unit: '', ucd: 'meta.id', type: 'string', nullable: true },
       { name: 'Vmag', description: 'V', unit: 'mag', ucd: 'phot.mag', type: 'double', format: { notation: 'F', width: 6, decimals: 2 }, nullable: true },
     ],
-    rows: [{ Object: '=HYPERLINK("x")', Vmag: -1.5 }, { Object: 'ζ Oph', Vmag: 2.5 }],
+    rows: [
+      { Object: '=HYPERLINK("x")', Vmag: -1.5 },
+      { Object: 'ζ Oph', Vmag: 2.5 },
+    ],
   }
   it('neutralises text cells in text formats, not numbers, and says so', () => {
     for (const format of ['csv', 'votable', 'mrt'] as const) {

@@ -1,5 +1,21 @@
 import { describe, expect, it } from 'vitest'
-import { cdsUnit, commentCards, csvNumber, FITS_BLOCK, FITS_INT_NULL, formatDouble, headerCards, toAscii, writeCsv, writeEcsv, writeFits, writeFixedWidth, writeVotable, xmlEscape, type ExportTable } from '../../../server/exports'
+import {
+  cdsUnit,
+  commentCards,
+  csvNumber,
+  FITS_BLOCK,
+  FITS_INT_NULL,
+  formatDouble,
+  headerCards,
+  toAscii,
+  writeCsv,
+  writeEcsv,
+  writeFits,
+  writeFixedWidth,
+  writeVotable,
+  xmlEscape,
+  type ExportTable,
+} from '../../../server/exports'
 import { sampleCatalogue, sampleTypes } from './samples'
 
 /** A minimal RFC 4180 reader for the round trips (quoted fields, doubled quotes, CRLF). */
@@ -65,7 +81,7 @@ describe('headerCards', () => {
   })
 
   it('doubles quotes and continues a long string with & and CONTINUE cards, never splitting a doubled quote', () => {
-    const text = "a".repeat(66) + "'" + 'b'.repeat(100)
+    const text = 'a'.repeat(66) + "'" + 'b'.repeat(100)
     const cards = headerCards('TITLE', text, 'the title')
     expect(cards.length).toBe(3)
     for (const c of cards) expect(c).toHaveLength(80)
@@ -212,7 +228,12 @@ describe('writeEcsv', () => {
   })
 
   it('keeps every digit of the numbers', () => {
-    const rows = parseCsv(text.split('\r\n').filter((l) => !l.startsWith('#')).join('\r\n'))
+    const rows = parseCsv(
+      text
+        .split('\r\n')
+        .filter((l) => !l.startsWith('#'))
+        .join('\r\n'),
+    )
     expect(rows[0]).toEqual(table.columns.map((c) => c.name))
     const col = (name: string) => rows[0]!.indexOf(name)
     expect(Number(rows[2]![col('RAdeg')])).toBe(359.9999991)
@@ -292,7 +313,10 @@ describe('writeFixedWidth', () => {
 
   it('puts the description before the data in the single-file form, the data after the last rule', () => {
     const combined = out.combined.toString('ascii').split('\n')
-    const lastRule = combined.map((l, i) => (/^-{20}/.test(l) ? i : -1)).filter((i) => i >= 0).pop()!
+    const lastRule = combined
+      .map((l, i) => (/^-{20}/.test(l) ? i : -1))
+      .filter((i) => i >= 0)
+      .pop()!
     expect(combined.slice(lastRule + 1).filter(Boolean)).toEqual(data)
     expect(combined[0]).toBe(`Title: ${toAscii(table.title)}`)
   })

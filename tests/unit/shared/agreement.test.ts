@@ -1,14 +1,7 @@
 import { readFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
 import { describe, expect, it } from 'vitest'
-import {
-  agreementFraction,
-  cohenKappa,
-  confusionMatrix,
-  fleissKappa,
-  meanOffset,
-  weightedKappa,
-} from '../../../shared/agreement'
+import { agreementFraction, cohenKappa, confusionMatrix, fleissKappa, meanOffset, weightedKappa } from '../../../shared/agreement'
 
 // Textbook worked example (from memory, a common textbook example, as in the project's reference
 // sheet): 50 items, 20 yes–yes, 5 yes–no, 10 no–yes, 15 no–no → p_o = 0.70, p_e = 0.50, κ = 0.40.
@@ -25,16 +18,24 @@ interface SklearnCase {
   quadratic: number
 }
 // Made by tests/reference/kappa_sklearn.py with Debian's scikit-learn (version inside the file).
-const sklearn = JSON.parse(
-  readFileSync(fileURLToPath(new URL('../../reference/out/kappa_sklearn.json', import.meta.url)), 'utf8'),
-) as { sklearn_version: string; cases: SklearnCase[] }
+const sklearn = JSON.parse(readFileSync(fileURLToPath(new URL('../../reference/out/kappa_sklearn.json', import.meta.url)), 'utf8')) as { sklearn_version: string; cases: SklearnCase[] }
 
 describe('confusionMatrix', () => {
   it('counts the textbook table with rows for the first rater', () => {
-    expect(confusionMatrix(yesNoA, yesNoB)).toEqual({ categories: [0, 1], counts: [[15, 10], [5, 20]] })
+    expect(confusionMatrix(yesNoA, yesNoB)).toEqual({
+      categories: [0, 1],
+      counts: [
+        [15, 10],
+        [5, 20],
+      ],
+    })
   })
   it('keeps categories nobody used when they are given', () => {
-    expect(confusionMatrix([1, 3], [1, 3], { categories: [1, 2, 3] }).counts).toEqual([[1, 0, 0], [0, 0, 0], [0, 0, 1]])
+    expect(confusionMatrix([1, 3], [1, 3], { categories: [1, 2, 3] }).counts).toEqual([
+      [1, 0, 0],
+      [0, 0, 0],
+      [0, 0, 1],
+    ])
   })
   it('refuses a rating outside the given categories', () => {
     expect(() => confusionMatrix([1, 4], [1, 3], { categories: [1, 2, 3] })).toThrow('rating 4 is not one of the categories')
@@ -121,13 +122,29 @@ describe('fleissKappa', () => {
     expect(fleissKappa(rows)).toBeCloseTo(0.195 / 0.495, 12)
   })
   it('gives 1 when all raters agree on every item', () => {
-    expect(fleissKappa([[3, 0], [0, 3], [3, 0]])).toBe(1)
+    expect(
+      fleissKappa([
+        [3, 0],
+        [0, 3],
+        [3, 0],
+      ]),
+    ).toBe(1)
   })
   it('is NaN when every rating falls in one category', () => {
-    expect(fleissKappa([[3, 0], [3, 0]])).toBeNaN()
+    expect(
+      fleissKappa([
+        [3, 0],
+        [3, 0],
+      ]),
+    ).toBeNaN()
   })
   it('refuses items with different numbers of raters', () => {
-    expect(() => fleissKappa([[2, 1], [1, 1]])).toThrow('item 1 has 2 ratings, item 0 has 3')
+    expect(() =>
+      fleissKappa([
+        [2, 1],
+        [1, 1],
+      ]),
+    ).toThrow('item 1 has 2 ratings, item 0 has 3')
   })
   it('refuses a single rater', () => {
     expect(() => fleissKappa([[1, 0]])).toThrow('fewer than two raters per item')

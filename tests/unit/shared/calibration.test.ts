@@ -42,8 +42,19 @@ describe('spectralTypeFromCode', () => {
 describe('effectiveTemperature', () => {
   // Pecaut & Mamajek (2013) dwarf sequence, values as listed in the project's reference sheet (from memory).
   const dwarfs: Array<[string, number, number]> = [
-    ['B', 0, 31400], ['B', 5, 15700], ['A', 0, 9700], ['A', 5, 8180], ['F', 0, 7220], ['F', 5, 6510],
-    ['G', 0, 5920], ['G', 2, 5770], ['G', 5, 5660], ['K', 0, 5270], ['K', 5, 4440], ['M', 0, 3850], ['M', 5, 3060],
+    ['B', 0, 31400],
+    ['B', 5, 15700],
+    ['A', 0, 9700],
+    ['A', 5, 8180],
+    ['F', 0, 7220],
+    ['F', 5, 6510],
+    ['G', 0, 5920],
+    ['G', 2, 5770],
+    ['G', 5, 5660],
+    ['K', 0, 5270],
+    ['K', 5, 4440],
+    ['M', 0, 3850],
+    ['M', 5, 3060],
   ]
   it.each(dwarfs)('gives the Pecaut & Mamajek (2013) Teff of %s%s V', (letter, subtype, teff) => {
     expect(effectiveTemperature(typeCode(letter as 'B', subtype), 'V')).toBe(teff)

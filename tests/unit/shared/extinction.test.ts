@@ -4,9 +4,11 @@ import { describe, expect, it } from 'vitest'
 import { ccm89, ccm89Coefficients, extinctionMagnitudes, spectrumDeredden } from '../../../shared/extinction'
 
 // Made by tests/reference/extinction_ccm89.py with Debian's python3-extinction (version inside).
-const reference = JSON.parse(
-  readFileSync(fileURLToPath(new URL('../../reference/out/extinction_ccm89.json', import.meta.url)), 'utf8'),
-) as { extinction_version: string; wavelength_angstrom: number[]; cases: Array<{ r_v: number; a_lambda_over_a_v: number[] }> }
+const reference = JSON.parse(readFileSync(fileURLToPath(new URL('../../reference/out/extinction_ccm89.json', import.meta.url)), 'utf8')) as {
+  extinction_version: string
+  wavelength_angstrom: number[]
+  cases: Array<{ r_v: number; a_lambda_over_a_v: number[] }>
+}
 
 describe('ccm89Coefficients', () => {
   it('gives a = 1, b = 0 at y = 0 (x = 1.82 µm⁻¹, the V band), from the form of eqs. 3a–b', () => {

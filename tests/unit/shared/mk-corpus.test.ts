@@ -50,7 +50,10 @@ describe('parseMK on the Hipparcos spectral types', () => {
   })
 
   it('fails on exactly the listed strings, each with a reason', () => {
-    const failed = results.filter((r) => !r.result.ok).map((r) => r.text).sort()
+    const failed = results
+      .filter((r) => !r.result.ok)
+      .map((r) => r.text)
+      .sort()
     expect(failed).toEqual(Object.keys(UNREAD).sort())
     for (const r of results) if (!r.result.ok) expect(r.result.reason.length).toBeGreaterThan(0)
   })

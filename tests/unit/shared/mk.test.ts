@@ -1,16 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import {
-  classCodeOf,
-  formatMK,
-  formatTypeCode,
-  LUMINOSITY_CLASSES,
-  type MKValue,
-  neighbourClass,
-  neighbourType,
-  parseMK,
-  typeCodeOf,
-  typeFromCode,
-} from '../../../shared/mk'
+import { classCodeOf, formatMK, formatTypeCode, LUMINOSITY_CLASSES, type MKValue, neighbourClass, neighbourType, parseMK, typeCodeOf, typeFromCode } from '../../../shared/mk'
 
 function read(text: string): MKValue {
   const r = parseMK(text)

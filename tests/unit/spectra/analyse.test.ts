@@ -16,7 +16,7 @@ const measuredLine = (result: ReturnType<typeof analyseSpectrum>, id: string) =>
 
 describe('analyseSpectrum', () => {
   const result = analyseSpectrum(a0v, { targetFwhm: 6, inputFwhm: 5.5 })
-  it('reports the S/N the file\'s own errors give (STATERROR of the HST table), at least what DER_SNR gives, within the cap', () => {
+  it("reports the S/N the file's own errors give (STATERROR of the HST table), at least what DER_SNR gives, within the cap", () => {
     // tests/reference/out/der_snr.json holds the reference DER_SNR over 4000–5000 Å (254.1); DER_SNR
     // takes the noise from second differences, which lines inflate, so the errors give more.
     const reference = readReference<{ real: { range: number[]; snr: number }[] }>('der_snr.json')
@@ -55,20 +55,14 @@ describe('analyseSpectrum', () => {
   })
   it('warns when asked to smooth without knowing the input resolution, or when the input is broader', () => {
     expect(analyseSpectrum(a0v, { targetFwhm: 3 }).warnings).toContain('input resolution unknown: not smoothed to the target')
-    expect(analyseSpectrum(a0v, { targetFwhm: 3, inputFwhm: 5.5 }).warnings).toContain(
-      'input resolution 5.5 Å FWHM is not sharper than the target 3 Å: not smoothed',
-    )
+    expect(analyseSpectrum(a0v, { targetFwhm: 3, inputFwhm: 5.5 }).warnings).toContain('input resolution 5.5 Å FWHM is not sharper than the target 3 Å: not smoothed')
   })
   it('refuses a spectrum that misses the grid, and malformed input', () => {
     const far = { wavelength: Float64Array.from([8000, 8001, 8002, 8003, 8004, 8005]), flux: new Float64Array(6).fill(1) }
     expect(() => analyseSpectrum(far)).toThrow("spectrum covers 8000.0–8005.0 Å, which does not overlap the grid's 3700.0–6999.5 Å")
     expect(() => analyseSpectrum({ wavelength: new Float64Array(), flux: new Float64Array() })).toThrow('spectrum is empty')
-    expect(() => analyseSpectrum({ wavelength: Float64Array.from([4000]), flux: Float64Array.from([1]) })).toThrow(
-      'spectrum has 1 pixel; at least 5 are needed',
-    )
-    expect(() => analyseSpectrum({ wavelength: Float64Array.from([4000, 4001]), flux: Float64Array.from([1]) })).toThrow(
-      'flux has 1 values but wavelength has 2',
-    )
+    expect(() => analyseSpectrum({ wavelength: Float64Array.from([4000]), flux: Float64Array.from([1]) })).toThrow('spectrum has 1 pixel; at least 5 are needed')
+    expect(() => analyseSpectrum({ wavelength: Float64Array.from([4000, 4001]), flux: Float64Array.from([1]) })).toThrow('flux has 1 values but wavelength has 2')
   })
   it('masks NaN flux and says how many pixels it masked', () => {
     const flux = a0v.flux.slice()

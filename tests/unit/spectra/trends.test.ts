@@ -38,7 +38,10 @@ describe('what the measurements show across real stars', () => {
 
   it('gives A dwarf Balmer lines a larger Lorentzian width than A supergiant ones (Voigt fits of Hγ and Hδ; common practice)', () => {
     // A0 V HD 31295 and A1 V HD 60179 against A0 Ia HD 39970 and A0 Ib HD 87737.
-    for (const [dwarfId, supergiantId] of [['miles-m0166', 'miles-m0200'], ['miles-m0262', 'miles-m0371']]) {
+    for (const [dwarfId, supergiantId] of [
+      ['miles-m0166', 'miles-m0200'],
+      ['miles-m0262', 'miles-m0371'],
+    ]) {
       const dwarf = measure(dwarfId!)
       const supergiant = measure(supergiantId!)
       for (const id of ['h-gamma', 'h-delta']) {

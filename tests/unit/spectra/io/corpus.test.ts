@@ -102,7 +102,10 @@ describe('the reader corpus', () => {
         { source: 'DATAQUAL column', rule: '0 is bad, 1 is good (as its comment says: "Data quality: 1=good, 0=bad")', pixels: 5 },
       ])
       const d = ok(read(byFile('tab-sdss-loglam.fits'))).meta.decisions!
-      expect(d.masks.map((m) => [m.source, m.pixels])).toEqual([['ivar column', 2], ['and_mask column', 3]])
+      expect(d.masks.map((m) => [m.source, m.pixels])).toEqual([
+        ['ivar column', 2],
+        ['and_mask column', 3],
+      ])
       expect(d.ignored).toEqual(['column or_mask: the AND mask is the one used for science', 'columns wdisp, sky, model'])
       expect(d.medium).toEqual({ vacuum: true, why: 'LOGLAM column: log10 vacuum wavelengths by the survey convention' })
     })

@@ -27,15 +27,15 @@ export function dataFloat32(values: ArrayLike<number>): Uint8Array {
 export function concat(...parts: Uint8Array[]): Uint8Array {
   const out = new Uint8Array(parts.reduce((a, p) => a + p.length, 0))
   let at = 0
-  for (const p of parts) { out.set(p, at); at += p.length }
+  for (const p of parts) {
+    out.set(p, at)
+    at += p.length
+  }
   return out
 }
 
 /** A 1-D float32 primary-HDU spectrum with a linear axis. */
 export function linearImage(n: number, crval: number, cdelt: number, flux: (i: number) => number, extra: Card[] = []): Uint8Array {
   const values = Array.from({ length: n }, (_, i) => flux(i))
-  return concat(
-    header([['SIMPLE', true], ['BITPIX', -32], ['NAXIS', 1], ['NAXIS1', n], ['CRVAL1', crval], ['CDELT1', cdelt], ['CRPIX1', 1], ...extra]),
-    dataFloat32(values),
-  )
+  return concat(header([['SIMPLE', true], ['BITPIX', -32], ['NAXIS', 1], ['NAXIS1', n], ['CRVAL1', crval], ['CDELT1', cdelt], ['CRPIX1', 1], ...extra]), dataFloat32(values))
 }

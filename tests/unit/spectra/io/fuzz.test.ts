@@ -6,12 +6,17 @@ import { unpackZip } from '../../../../server/spectra/io/zip'
 import { zipSync } from 'fflate'
 import { seededRandom as prng } from '../../../../shared/random'
 
-
 const FIX = join(__dirname, '../../../fixtures')
 const SEEDS = [
-  'fits/image_awav_cdelt_f32.fits', 'fits/image_int16_bscale_blank.fits', 'fits/image_multispec_3d.fits',
-  'fits/table_rows_nm_ivar.fits', 'fits/table_array_row_vacuum.fits', 'fits/mef_frame_table_sky.fits',
-  'fits/image_coeff_log10_vacuum.fits', 'text/header_nm_error.csv', 'text/tab_ivar_vacuum.tsv',
+  'fits/image_awav_cdelt_f32.fits',
+  'fits/image_int16_bscale_blank.fits',
+  'fits/image_multispec_3d.fits',
+  'fits/table_rows_nm_ivar.fits',
+  'fits/table_array_row_vacuum.fits',
+  'fits/mef_frame_table_sky.fits',
+  'fits/image_coeff_log10_vacuum.fits',
+  'text/header_nm_error.csv',
+  'text/tab_ivar_vacuum.tsv',
 ].map((p) => ({ name: p, bytes: new Uint8Array(readFileSync(join(FIX, p))) }))
 const LIMITS = { maxPixels: 20_000, maxBytes: 200_000 }
 const codes = new Set<string>(REFUSAL_CODES)

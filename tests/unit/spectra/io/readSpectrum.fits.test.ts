@@ -9,9 +9,20 @@ const FITS_DIR = join(__dirname, '../../../fixtures/fits')
 const REAL = join(__dirname, '../../../fixtures/real/alpha_lyr_stis_010.fits')
 
 interface FixtureRef {
-  file: string; method: string; vacuum?: boolean; hdu?: number; pixels?: number; refused?: string
-  indices?: number[]; wavelength?: number[]; flux?: (number | null)[]; error?: (number | null)[]
-  astropy: string; maskedIndices?: number[]; spectrumHdus?: number[]; sky?: FixtureRef
+  file: string
+  method: string
+  vacuum?: boolean
+  hdu?: number
+  pixels?: number
+  refused?: string
+  indices?: number[]
+  wavelength?: number[]
+  flux?: (number | null)[]
+  error?: (number | null)[]
+  astropy: string
+  maskedIndices?: number[]
+  spectrumHdus?: number[]
+  sky?: FixtureRef
 }
 
 function load(name: string): Uint8Array {
@@ -126,14 +137,20 @@ describe('readSpectrum on multi-extension files', () => {
   it('refuses a picked extension that is not a spectrum', () => {
     const r = readSpectrum(load(ref.file), 'mef.fits', { hdu: 1 })
     expect(r.ok).toBe(false)
-    if (!r.ok) expect(r.message).toBe('mef.fits: HDU 1 is not a spectrum: it is a 50 × 40 image with 40 rows and nothing saying what the rows are (no multispec keywords, wavelength image or wavelength row), not a 1-D spectrum: extract a 1-D spectrum first')
+    if (!r.ok)
+      expect(r.message).toBe(
+        'mef.fits: HDU 1 is not a spectrum: it is a 50 × 40 image with 40 rows and nothing saying what the rows are (no multispec keywords, wavelength image or wavelength row), not a 1-D spectrum: extract a 1-D spectrum first',
+      )
   })
 })
 
 describe('readSpectrum on the real HST spectrum', () => {
   // Reference: astropy 5.2.1 via tests/reference/alpha_lyr_reader_reference.py → alpha_lyr_reader_reference.json.
   const ref = JSON.parse(readFileSync(join(__dirname, '../../../reference/alpha_lyr_reader_reference.json'), 'utf8')) as {
-    rows: number; wavelengthMin: number; wavelengthMax: number; astropy: string
+    rows: number
+    wavelengthMin: number
+    wavelengthMax: number
+    astropy: string
     sample: { rows: number[]; wavelength: number[]; flux: number[]; staterror: number[] }
   }
   const bytes = new Uint8Array(readFileSync(REAL))
@@ -168,8 +185,14 @@ describe('readSpectrum on the real HST spectrum', () => {
 describe('readSpectrum on the real HST table with DATAQUAL', () => {
   // Reference: astropy 5.2.1 via tests/reference/calspec_dataqual_reference.py → out/calspec_dataqual.json.
   const ref = JSON.parse(readFileSync(join(__dirname, '../../../reference/out/calspec_dataqual.json'), 'utf8')) as {
-    rows: number; dataqualComment: string; flaggedByDataqual: number; wavelengthMin: number; wavelengthMax: number
-    airMin: number; airMax: number; sample: { rows: number[]; wavelength: number[]; flux: number[]; staterror: number[]; dataqual: number[] }
+    rows: number
+    dataqualComment: string
+    flaggedByDataqual: number
+    wavelengthMin: number
+    wavelengthMax: number
+    airMin: number
+    airMax: number
+    sample: { rows: number[]; wavelength: number[]; flux: number[]; staterror: number[]; dataqual: number[] }
   }
   const bytes = new Uint8Array(readFileSync(join(__dirname, '../../../fixtures/real/bd_75d325_stis_001.fits')))
   it('reads every row and masks exactly the rows whose DATAQUAL is 0, as the column comment says', () => {
@@ -202,19 +225,48 @@ function refusal(bytes: Uint8Array, options = {}) {
 
 describe('readSpectrum refusals for FITS', () => {
   it('refuses a header that claims more data than the file holds', () => {
-    const bytes = concat(header([['SIMPLE', true], ['BITPIX', -32], ['NAXIS', 1], ['NAXIS1', 1_000_000_000], ['CRVAL1', 4000], ['CDELT1', 1]]), dataFloat32([1, 2, 3]))
+    const bytes = concat(
+      header([
+        ['SIMPLE', true],
+        ['BITPIX', -32],
+        ['NAXIS', 1],
+        ['NAXIS1', 1_000_000_000],
+        ['CRVAL1', 4000],
+        ['CDELT1', 1],
+      ]),
+      dataFloat32([1, 2, 3]),
+    )
     expect(refusal(bytes)).toEqual({ ok: false, code: 'FITS_TRUNCATED', message: 'bad.fits: HDU 0 claims more data than the file holds (2880 bytes left after its header)' })
   })
   it('refuses absurd axis products without allocating them', () => {
-    const cards: Card[] = [['SIMPLE', true], ['BITPIX', -64], ['NAXIS', 3], ['NAXIS1', 2 ** 40], ['NAXIS2', 2 ** 40], ['NAXIS3', 2 ** 40]]
+    const cards: Card[] = [
+      ['SIMPLE', true],
+      ['BITPIX', -64],
+      ['NAXIS', 3],
+      ['NAXIS1', 2 ** 40],
+      ['NAXIS2', 2 ** 40],
+      ['NAXIS3', 2 ** 40],
+    ]
     expect(refusal(header(cards)).code).toBe('FITS_TRUNCATED')
   })
   it('refuses a header without an END card', () => {
-    const bytes = header([['SIMPLE', true], ['BITPIX', -32], ['NAXIS', 0]]).slice(0, 2000)
+    const bytes = header([
+      ['SIMPLE', true],
+      ['BITPIX', -32],
+      ['NAXIS', 0],
+    ]).slice(0, 2000)
     expect(refusal(bytes)).toEqual({ ok: false, code: 'FITS_TRUNCATED', message: 'bad.fits: the header of HDU 0 is cut off before its END card' })
   })
   it('refuses a BITPIX that FITS does not allow', () => {
-    expect(refusal(header([['SIMPLE', true], ['BITPIX', 12], ['NAXIS', 0]])).message).toBe('bad.fits: HDU 0 has BITPIX = 12, which FITS does not allow')
+    expect(
+      refusal(
+        header([
+          ['SIMPLE', true],
+          ['BITPIX', 12],
+          ['NAXIS', 0],
+        ]),
+      ).message,
+    ).toBe('bad.fits: HDU 0 has BITPIX = 12, which FITS does not allow')
   })
   it('refuses a file over maxBytes, an empty file and an unknown format', () => {
     expect(refusal(new Uint8Array(10), { maxBytes: 5 })).toEqual({ ok: false, code: 'FILE_TOO_LARGE', message: 'bad.fits is 10 bytes; the limit is 5' })
@@ -222,12 +274,25 @@ describe('readSpectrum refusals for FITS', () => {
     expect(refusal(new Uint8Array([0, 1, 2, 3, 255, 0]))).toEqual({ ok: false, code: 'UNKNOWN_FORMAT', message: "bad.fits is neither FITS (it does not start with 'SIMPLE  =') nor a text table" })
   })
   it('refuses an image without a wavelength scale', () => {
-    const bytes = concat(header([['SIMPLE', true], ['BITPIX', -32], ['NAXIS', 1], ['NAXIS1', 500], ['CDELT1', 1]]), dataFloat32(new Array(500).fill(1)))
+    const bytes = concat(
+      header([
+        ['SIMPLE', true],
+        ['BITPIX', -32],
+        ['NAXIS', 1],
+        ['NAXIS1', 500],
+        ['CDELT1', 1],
+      ]),
+      dataFloat32(new Array(500).fill(1)),
+    )
     expect(refusal(bytes, { hdu: 0 }).code).toBe('NO_WAVELENGTH_SCALE')
   })
   it('refuses a frequency axis and an unknown wavelength unit', () => {
     expect(refusal(linearImage(500, 4000, 1, flat, [['CTYPE1', 'FREQ']])).code).toBe('NO_WAVELENGTH_SCALE')
-    expect(refusal(linearImage(500, 4000, 1, flat, [['CUNIT1', 'furlong']]))).toEqual({ ok: false, code: 'UNKNOWN_UNIT', message: "bad.fits: wavelength unit 'furlong' (CUNIT1) is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)" })
+    expect(refusal(linearImage(500, 4000, 1, flat, [['CUNIT1', 'furlong']]))).toEqual({
+      ok: false,
+      code: 'UNKNOWN_UNIT',
+      message: "bad.fits: wavelength unit 'furlong' (CUNIT1) is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)",
+    })
   })
   it('refuses all-NaN and all-zero flux', () => {
     expect(refusal(linearImage(500, 3800, 2.5, () => NaN))).toEqual({ ok: false, code: 'NO_VALID_FLUX', message: 'bad.fits: every flux value is NaN or flagged' })
@@ -243,7 +308,12 @@ describe('readSpectrum refusals for FITS', () => {
     expect(refusal(holed).code).toBe('NO_COVERAGE')
   })
   it('refuses wavelengths that cannot be optical and hints at a missing unit', () => {
-    expect(refusal(linearImage(500, 380, 0.2, flat))).toEqual({ ok: false, code: 'NOT_OPTICAL', message: 'bad.fits: wavelengths run from 380.0 to 479.8 Å, which cannot be an optical spectrum; they look like nm but the file names no unit: choose the wavelength unit when you submit (--unit with npm run classify), or name it in the file (CUNIT1, TUNITn, or a "wavelength (nm)" column header)' })
+    expect(refusal(linearImage(500, 380, 0.2, flat))).toEqual({
+      ok: false,
+      code: 'NOT_OPTICAL',
+      message:
+        'bad.fits: wavelengths run from 380.0 to 479.8 Å, which cannot be an optical spectrum; they look like nm but the file names no unit: choose the wavelength unit when you submit (--unit with npm run classify), or name it in the file (CUNIT1, TUNITn, or a "wavelength (nm)" column header)',
+    })
     const told = readSpectrum(linearImage(500, 380, 0.2, flat), 'bad.fits', { wavelengthUnit: 'nm' })
     expect(told.ok && told.spectrum.wavelengthAir[0]).toBe(3800)
     expect(refusal(linearImage(500, 20000, 10, flat, [['CUNIT1', 'Angstrom']])).code).toBe('NOT_OPTICAL')
@@ -262,7 +332,17 @@ describe('readSpectrum bounds the work on many-line images', () => {
     // 60 apertures of 2000 pixels with multispec keywords: 120 000 pixels, limit 4 × 20 000.
     const n = 2000
     const lines = 60
-    const cards: Card[] = [['SIMPLE', true], ['BITPIX', -32], ['NAXIS', 2], ['NAXIS1', n], ['NAXIS2', lines], ['CTYPE1', 'LINEAR'], ['CRVAL1', 3800], ['CDELT1', 1], ['APNUM1', '1 1 1 2']]
+    const cards: Card[] = [
+      ['SIMPLE', true],
+      ['BITPIX', -32],
+      ['NAXIS', 2],
+      ['NAXIS1', n],
+      ['NAXIS2', lines],
+      ['CTYPE1', 'LINEAR'],
+      ['CRVAL1', 3800],
+      ['CDELT1', 1],
+      ['APNUM1', '1 1 1 2'],
+    ]
     const r = readSpectrum(concat(header(cards), dataFloat32(new Array(n * lines).fill(1))), 'many.fits', { maxPixels: 20_000 })
     expect(r).toEqual({ ok: false, code: 'TOO_MANY_PIXELS', message: 'many.fits: 60 lines of 2000 pixels is more than the limit of 80000 pixels in all; pick the spectrum out of the file first' })
   })

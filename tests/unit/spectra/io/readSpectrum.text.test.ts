@@ -43,7 +43,11 @@ describe('readSpectrum on text files', () => {
   }
   it('refuses a file with four unnamed columns', () => {
     const r = read(rows(200, (w) => `${w} 1 0.1 7`))
-    expect(r).toEqual({ ok: false, code: 'TEXT_MALFORMED', message: 'spec.txt: the rows have 4 columns; without a header row naming them, 2 or 3 columns (wavelength, flux, error) are expected: add a header row such as "wavelength flux error"' })
+    expect(r).toEqual({
+      ok: false,
+      code: 'TEXT_MALFORMED',
+      message: 'spec.txt: the rows have 4 columns; without a header row naming them, 2 or 3 columns (wavelength, flux, error) are expected: add a header row such as "wavelength flux error"',
+    })
   })
   it('picks named columns out of a wider table', () => {
     const r = read('id,flux,err,wavelength_A\n' + rows(600, (w) => `7,${1 + w / 1e5},0.1,${w}`))
@@ -53,13 +57,22 @@ describe('readSpectrum on text files', () => {
     expect(r.meta.wavelengthUnit).toBe('A')
   })
   it('refuses a header row that names no flux column', () => {
-    expect(read('wavelength,temperature,pressure\n' + rows(200, (w) => `${w},1,2`))).toEqual({ ok: false, code: 'TEXT_MALFORMED', message: 'spec.txt: the header row names no flux column (wavelength, temperature, pressure); name the columns wavelength and flux (with the unit, e.g. "wavelength (nm)")' })
+    expect(read('wavelength,temperature,pressure\n' + rows(200, (w) => `${w},1,2`))).toEqual({
+      ok: false,
+      code: 'TEXT_MALFORMED',
+      message: 'spec.txt: the header row names no flux column (wavelength, temperature, pressure); name the columns wavelength and flux (with the unit, e.g. "wavelength (nm)")',
+    })
   })
   it('refuses a text file with no numbers at all', () => {
     expect(read('# only a comment\n\n').ok).toBe(false)
   })
   it('refuses more rows than maxPixels', () => {
-    expect(read(rows(600, (w) => `${w} 1`), { maxPixels: 500 })).toEqual({ ok: false, code: 'TOO_MANY_PIXELS', message: 'spec.txt: more than 500 rows, the limit' })
+    expect(
+      read(
+        rows(600, (w) => `${w} 1`),
+        { maxPixels: 500 },
+      ),
+    ).toEqual({ ok: false, code: 'TOO_MANY_PIXELS', message: 'spec.txt: more than 500 rows, the limit' })
   })
   it('takes the wavelength unit from a comment line', () => {
     const r = read('# wavelength unit: nm\n' + rows(600, (w) => `${w / 10} 1`))

@@ -24,21 +24,29 @@ const noisy = (flux: Float64Array, snr: number, seed: number) => {
 
 function standard(id: number, typeCode: number, classCode: number, extra: Partial<MatchStandardInput> = {}): MatchStandardInput {
   return {
-    id, modelId: null, templateId: null, source: 'observed', star: `S${id}`, origin: 'made up', spectralType: `t${typeCode} c${classCode}`, typeCode,
-    luminosityClass: classCode === 6 ? 'V' : 'III', classCode, teff: null, logg: null, feh: null,
-    rectified: lines((typeCode - 20) / 30, classCode === 6 ? 4 : 2.5), resolutionFwhm: 2.5, ...extra,
+    id,
+    modelId: null,
+    templateId: null,
+    source: 'observed',
+    star: `S${id}`,
+    origin: 'made up',
+    spectralType: `t${typeCode} c${classCode}`,
+    typeCode,
+    luminosityClass: classCode === 6 ? 'V' : 'III',
+    classCode,
+    teff: null,
+    logg: null,
+    feh: null,
+    rectified: lines((typeCode - 20) / 30, classCode === 6 ? 4 : 2.5),
+    resolutionFwhm: 2.5,
+    ...extra,
   }
 }
 
 /** Eight general standards (types 20–48 in steps of 4, class III), two of instrument 1 and one of instrument 2. */
 function inputs(): MatchStandardInput[] {
   const general = [20, 24, 28, 32, 36, 40, 44, 48].map((t, k) => standard(k + 1, t, 4))
-  return [
-    ...general,
-    standard(101, 32, 4, { instrumentId: 1, star: 'own 32' }),
-    standard(102, 44, 4, { instrumentId: 1, star: 'own 44' }),
-    standard(201, 28, 4, { instrumentId: 2, star: 'other 28' }),
-  ]
+  return [...general, standard(101, 32, 4, { instrumentId: 1, star: 'own 32' }), standard(102, 44, 4, { instrumentId: 1, star: 'own 44' }), standard(201, 28, 4, { instrumentId: 2, star: 'other 28' })]
 }
 
 const library = prepareMatchLibrary(inputs(), { versionId: 1, versionName: 'toy', grid: DEFAULT_GRID, resolutions: [2.5] })
@@ -46,13 +54,16 @@ const idsAt = (lib: ReturnType<typeof libraryForInstrument>) => Array.from(lib.l
 
 describe('libraryForInstrument', () => {
   it('gives a library without instrument standards back level for level, so spectra of no instrument match as before', () => {
-    const plain = prepareMatchLibrary(inputs().filter((s) => !s.instrumentId), { versionId: 2, versionName: 'plain', grid: DEFAULT_GRID, resolutions: [2.5] })
+    const plain = prepareMatchLibrary(
+      inputs().filter((s) => !s.instrumentId),
+      { versionId: 2, versionName: 'plain', grid: DEFAULT_GRID, resolutions: [2.5] },
+    )
     const view = libraryForInstrument(plain, null)
     expect(view.level(2.5)).toBe(plain.level(2.5))
     expect(libraryForInstrument(plain, 1).level(2.5)).toBe(plain.level(2.5))
   })
 
-  it('keeps the general standards and its own, never another instrument\'s', () => {
+  it("keeps the general standards and its own, never another instrument's", () => {
     expect(idsAt(libraryForInstrument(library, 1))).toEqual([1, 2, 3, 4, 5, 6, 7, 8, 101, 102])
     expect(idsAt(libraryForInstrument(library, 2))).toEqual([1, 2, 3, 4, 5, 6, 7, 8, 201])
     expect(idsAt(libraryForInstrument(library, null))).toEqual([1, 2, 3, 4, 5, 6, 7, 8])
@@ -75,8 +86,8 @@ describe('libraryForInstrument', () => {
   })
 })
 
-describe('matching with an instrument\'s noisy standards', () => {
-  it('takes a standard\'s own noise out of its χ², so a noisy copy of the right star fits like a clean one', () => {
+describe("matching with an instrument's noisy standards", () => {
+  it("takes a standard's own noise out of its χ², so a noisy copy of the right star fits like a clean one", () => {
     // A spectrum of type 34 at S/N 50; the library has a clean standard of that type and the
     // instrument a copy of it at S/N 50. Without the correction the copy's χ² is about twice the
     // clean one's (two noises, common practice for a difference of two noisy spectra).
@@ -121,18 +132,30 @@ describe('standardsUsed', () => {
 })
 
 describe('responseCorrection', () => {
-  it('recovers a smooth factor between the instrument\'s standards and the general ones of the same type and class', () => {
+  it("recovers a smooth factor between the instrument's standards and the general ones of the same type and class", () => {
     // Own standards are the general ones of their type times 1 + 0.04 sin(2π (λ − 3750)/1800): the factor to learn.
     const factor = (w: number) => 1 + 0.04 * Math.sin((2 * Math.PI * (w - 3750)) / 1800)
     const own = [24, 32, 40].map((t, k) => ({ ...standard(300 + k, t, 4, { instrumentId: 3 }), rectified: Float64Array.from(lines((t - 20) / 30, 2.5), (v, i) => v * factor(wl[i]!)) }))
     const lib = prepareMatchLibrary([...inputs().slice(0, 8), ...own], { versionId: 4, versionName: 'response', grid: DEFAULT_GRID, resolutions: [2.5] })
     const level = lib.level(2.5)
     const rowsOf = (pred: (id: number) => boolean) => Array.from(level.rows, (k, r) => (pred(lib.standards[k]!.id) ? r : -1)).filter((r) => r >= 0)
-    const c = responseCorrection(lib, level, rowsOf((id) => id >= 300), rowsOf((id) => id < 100))!
+    const c = responseCorrection(
+      lib,
+      level,
+      rowsOf((id) => id >= 300),
+      rowsOf((id) => id < 100),
+    )!
     expect(c.pairs).toBe(3)
     let worst = 0
     for (let i = 0; i < lib.pixels; i++) if (lib.wavelength[i]! > 3900 && lib.wavelength[i]! < 5400) worst = Math.max(worst, Math.abs(c.factor[i]! - factor(lib.wavelength[i]!)))
     expect(worst).toBeLessThan(0.006)
-    expect(responseCorrection(lib, level, rowsOf((id) => id === 300), rowsOf((id) => id < 100))).toBeNull()
+    expect(
+      responseCorrection(
+        lib,
+        level,
+        rowsOf((id) => id === 300),
+        rowsOf((id) => id < 100),
+      ),
+    ).toBeNull()
   })
 })

@@ -38,11 +38,25 @@ function toyLibrary(): MatchStandardInput[] {
   const out: MatchStandardInput[] = []
   let id = 1
   for (const typeCode of [10, 15, 20, 25, 30]) {
-    for (const [cls, classCode, width] of [['III', 4, 2], ['V', 6, 4]] as const) {
+    for (const [cls, classCode, width] of [
+      ['III', 4, 2],
+      ['V', 6, 4],
+    ] as const) {
       const t = (typeCode - 10) / 20
       out.push({
-        id: id++, modelId: `T${typeCode}-${cls}`, templateId: null, source: 'model', star: null, origin: 'toy', spectralType: `x${typeCode} ${cls}`, typeCode, luminosityClass: cls, classCode,
-        teff: 20000 - 300 * typeCode, logg: classCode === 6 ? 4.2 : 3.0, feh: 0,
+        id: id++,
+        modelId: `T${typeCode}-${cls}`,
+        templateId: null,
+        source: 'model',
+        star: null,
+        origin: 'toy',
+        spectralType: `x${typeCode} ${cls}`,
+        typeCode,
+        luminosityClass: cls,
+        classCode,
+        teff: 20000 - 300 * typeCode,
+        logg: classCode === 6 ? 4.2 : 3.0,
+        feh: 0,
         rectified: lines(DEFAULT_GRID, [0.1 + 0.5 * t, 0.5 - 0.2 * Math.abs(t - 0.5), 0.5 - 0.2 * Math.abs(t - 0.5), 0.05 + 0.3 * t, 0.3 - 0.2 * t, 0.5 - 0.2 * Math.abs(t - 0.5)], width),
         resolutionFwhm: 1.5,
       })
@@ -125,7 +139,19 @@ describe('replaceModelsByObserved', () => {
 
 describe('hasBalmerEmission', () => {
   const line = (id: string, ew: number, depth: number): LineMeasurement => ({
-    id, name: id, wavelength: 4340.47, family: 'balmer', measured: true, equivalentWidth: ew, equivalentWidthError: 0.2, depth, depthError: 0.01, fwhm: 5, centroid: 4340, continuum: { blue: 1, red: 1 }, snr: 80,
+    id,
+    name: id,
+    wavelength: 4340.47,
+    family: 'balmer',
+    measured: true,
+    equivalentWidth: ew,
+    equivalentWidthError: 0.2,
+    depth,
+    depthError: 0.01,
+    fwhm: 5,
+    centroid: 4340,
+    continuum: { blue: 1, red: 1 },
+    snr: 80,
   })
 
   it('sees emission in Hγ of an A star', () => {
@@ -200,8 +226,26 @@ describe('matchSpectrum', () => {
 
   it('flags Balmer emission and appends "e" to the type', () => {
     const r = matchSpectrum(toy, {
-      rectified: standard(6), snr: 100, fwhm: 1.5,
-      lines: [{ id: 'h-beta', name: 'Hβ', wavelength: 4861.33, family: 'balmer', measured: true, equivalentWidth: -4, equivalentWidthError: 0.2, depth: -0.5, depthError: 0.01, fwhm: 5, centroid: 4861, continuum: { blue: 1, red: 1 }, snr: 100 }],
+      rectified: standard(6),
+      snr: 100,
+      fwhm: 1.5,
+      lines: [
+        {
+          id: 'h-beta',
+          name: 'Hβ',
+          wavelength: 4861.33,
+          family: 'balmer',
+          measured: true,
+          equivalentWidth: -4,
+          equivalentWidthError: 0.2,
+          depth: -0.5,
+          depthError: 0.01,
+          fwhm: 5,
+          centroid: 4861,
+          continuum: { blue: 1, red: 1 },
+          snr: 100,
+        },
+      ],
     })
     expect(r.flags).toContain('emission')
     expect(r.spectralType.endsWith('e')).toBe(true)
@@ -223,13 +267,7 @@ describe('matchSpectrum', () => {
 describe('depthScaledChiSquareSelected', () => {
   // Five rows: one batch of four and one left over; row 2 has a gap (NaN).
   const pixels = 6
-  const rows = new Float32Array([
-    1, 0.5, 0.8, 1, 0.2, 0.9,
-    0.9, 0.6, 0.7, 1, 0.3, 1,
-    1, Number.NaN, 0.8, 1, 0.2, 0.9,
-    0.8, 0.8, 0.8, 0.9, 0.9, 0.9,
-    1, 0.4, 0.9, 0.95, 0.25, 0.85,
-  ])
+  const rows = new Float32Array([1, 0.5, 0.8, 1, 0.2, 0.9, 0.9, 0.6, 0.7, 1, 0.3, 1, 1, Number.NaN, 0.8, 1, 0.2, 0.9, 0.8, 0.8, 0.8, 0.9, 0.9, 0.9, 1, 0.4, 0.9, 0.95, 0.25, 0.85])
   const f = Float64Array.from([1, 0.5, 0.8, 1, 0.2, 0.9], (v) => 0.05 + 0.95 * v)
   const w = new Float64Array([1, 2, 1, 0, 1, 1])
 

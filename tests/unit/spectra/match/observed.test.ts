@@ -24,8 +24,7 @@ const star = (name: string): ReferenceStar => {
   return s
 }
 /** Classifies a reference star (or a spectrum made from it) with every spectrum of it left out; `given: false` leaves the resolution to the pipeline. */
-const classify = (s: ReferenceStar, spectrum: Spectrum1D = s.spectrum, given = true) =>
-  runPipeline({ spectrum, ...(given ? { inputFwhm: s.fwhm } : {}), exclude: s.exclude }, library)
+const classify = (s: ReferenceStar, spectrum: Spectrum1D = s.spectrum, given = true) => runPipeline({ spectrum, ...(given ? { inputFwhm: s.fwhm } : {}), exclude: s.exclude }, library)
 
 function fixture(name: string, z = 0): Spectrum1D {
   const read = readSpectrum(readFileSync(new URL(`../../../fixtures/flags/${name}`, import.meta.url)), name)
@@ -68,13 +67,20 @@ describe('the class and type of named reference stars', () => {
     ['HD013520', 'K4 III (MILES)'],
     ['HD121130', 'M3 III (MILES)'],
     ['SAO 20899', 'B3 I (JHC)'],
-  ])('%s, published %s, gets its class and its type within one subtype', (name) => {
-    const s = star(name)
-    const r = classify(s).suggestion!
-    expect(Math.abs(r.typeCode - s.typeCode), `${name}: ${r.spectralType} for ${s.publishedType}`).toBeLessThanOrEqual(1)
-    const published: [number, number] = s.publishedType.trim().endsWith(' I') ? [1, 2] : s.classRange
-    expect(exactClass({ truthType: s.typeCode, truthClass: s.classCode, truthClassRange: published, type: r.typeCode, classCode: r.classCode, sigmaType: 0, sigmaClass: 0, flags: [] }), `${name}: ${r.spectralType} for ${s.publishedType}`).toBe(true)
-  }, 60_000)
+  ])(
+    '%s, published %s, gets its class and its type within one subtype',
+    (name) => {
+      const s = star(name)
+      const r = classify(s).suggestion!
+      expect(Math.abs(r.typeCode - s.typeCode), `${name}: ${r.spectralType} for ${s.publishedType}`).toBeLessThanOrEqual(1)
+      const published: [number, number] = s.publishedType.trim().endsWith(' I') ? [1, 2] : s.classRange
+      expect(
+        exactClass({ truthType: s.typeCode, truthClass: s.classCode, truthClassRange: published, type: r.typeCode, classCode: r.classCode, sigmaType: 0, sigmaClass: 0, flags: [] }),
+        `${name}: ${r.spectralType} for ${s.publishedType}`,
+      ).toBe(true)
+    },
+    60_000,
+  )
 
   it('reports Teff, log g and [Fe/H] near the published values of a solar-type dwarf (HD 10307, G2 V; MILES parameter table)', () => {
     const s = star('HD010307')
@@ -87,16 +93,23 @@ describe('the class and type of named reference stars', () => {
 
 describe('the resolution estimate', () => {
   // MILES is at 2.5 Å FWHM (Falcón-Barroso et al. 2011); degraded here with a Gaussian of √(target² − 2.5²).
-  it.each([['HD207130', 'K0 III'], ['HD004307', 'G0 V']])('recovers %s (%s) degraded to 4, 7 and 12 Å FWHM within 15 %%', (name) => {
-    const s = star(name)
-    for (const fwhm of [4, 7, 12]) {
-      const out = classify(s, degradeSpectrum(s.spectrum, { from: 2.5, to: fwhm, seed: 7 }), false)
-      expect(out.resolution.source).toBe('estimated')
-      expect(Math.abs(out.resolution.fwhm! / fwhm - 1), `${name} at ${fwhm} Å: ${out.resolution.fwhm}`).toBeLessThan(0.15)
-    }
-  }, 120_000)
+  it.each([
+    ['HD207130', 'K0 III'],
+    ['HD004307', 'G0 V'],
+  ])(
+    'recovers %s (%s) degraded to 4, 7 and 12 Å FWHM within 15 %%',
+    (name) => {
+      const s = star(name)
+      for (const fwhm of [4, 7, 12]) {
+        const out = classify(s, degradeSpectrum(s.spectrum, { from: 2.5, to: fwhm, seed: 7 }), false)
+        expect(out.resolution.source).toBe('estimated')
+        expect(Math.abs(out.resolution.fwhm! / fwhm - 1), `${name} at ${fwhm} Å: ${out.resolution.fwhm}`).toBeLessThan(0.15)
+      }
+    },
+    120_000,
+  )
 
-  it('says a spectrum at the standards\' own resolution is at least as sharp as they are', () => {
+  it("says a spectrum at the standards' own resolution is at least as sharp as they are", () => {
     const out = classify(star('HD207130'), undefined, false)
     expect(out.resolution).toMatchObject({ source: 'estimated', bound: 'sharpest', fwhm: 2.5, level: 2.5 })
   }, 60_000)
@@ -105,7 +118,10 @@ describe('the resolution estimate', () => {
 describe('the flags on real spectra', () => {
   it('raises possible-composite for two stars of different type at equal flux near 5500 Å, and not for either alone', () => {
     // A0 V HD 31295 + K0 III HD 10975, and B9 V HD 130095 + K2 III HD 104307 (MILES types).
-    for (const [a, b] of [['HD031295', 'HD010975'], ['HD130095', 'HD104307']] as const) {
+    for (const [a, b] of [
+      ['HD031295', 'HD010975'],
+      ['HD130095', 'HD104307'],
+    ] as const) {
       const sa = star(a)
       const sb = star(b)
       const out = runPipeline({ spectrum: composite(sa, sb), inputFwhm: 2.5, exclude: new Set([...sa.exclude, ...sb.exclude]) }, library)
@@ -127,7 +143,12 @@ describe('the flags on real spectra', () => {
   }, 60_000)
 
   it('calls a Seyfert galaxy (NGC 1068, at rest and at z = 0.2) and a quasar (at rest and at z = 0.3) not a star, with no confident type', () => {
-    for (const [name, z] of [['ngc1068_template.fits', 0], ['ngc1068_template.fits', 0.2], ['qso_template.fits', 0], ['qso_template.fits', 0.3]] as const) {
+    for (const [name, z] of [
+      ['ngc1068_template.fits', 0],
+      ['ngc1068_template.fits', 0.2],
+      ['qso_template.fits', 0],
+      ['qso_template.fits', 0.3],
+    ] as const) {
       const out = runPipeline({ spectrum: fixture(name, z) }, library)
       expect(out.suggestion!.flags, `${name} z=${z}`).toContain('not-star')
       expect(out.suggestion!.uncertainty.subtypes).toBeGreaterThanOrEqual(10)

@@ -71,7 +71,11 @@ describe('runPipeline', () => {
       const row = rowOf(id)
       expect(row, id).toBeGreaterThanOrEqual(0)
       const flux = observed.standards[row]!.flux
-      const spectrum = { wavelength: gridWavelengths(DEFAULT_GRID), flux: Float64Array.from(flux, (v) => (Number.isFinite(v) ? v : 0)), mask: Uint8Array.from(flux, (v) => (Number.isFinite(v) ? 0 : 1)) }
+      const spectrum = {
+        wavelength: gridWavelengths(DEFAULT_GRID),
+        flux: Float64Array.from(flux, (v) => (Number.isFinite(v) ? v : 0)),
+        mask: Uint8Array.from(flux, (v) => (Number.isFinite(v) ? 0 : 1)),
+      }
       for (const given of [15, undefined]) {
         const out = runPipeline({ spectrum, ...(given ? { inputFwhm: given } : {}), exclude: sameStar(row) }, library)
         expect(out.suggestion!.letter, `${id} ${given ?? 'estimated'}`).toBe('O')

@@ -36,8 +36,28 @@ describe('CLASSIFICATION_LINES', () => {
   })
   it('covers the features the MK criteria use', () => {
     const names = new Set(CLASSIFICATION_LINES.map((l) => l.name))
-    for (const name of ['Hβ', 'Hγ', 'Hδ', 'Hε', 'H8', 'Ca II K', 'Ca II H', 'He I 4471', 'He II 4686', 'Mg II 4481',
-      'Si IV 4089', 'Sr II 4077', 'Ca I 4226', 'Fe I 4045', 'Y II 4375', 'G band', 'TiO 4954', 'MgH 4780', 'Mg b', 'Na D']) {
+    for (const name of [
+      'Hβ',
+      'Hγ',
+      'Hδ',
+      'Hε',
+      'H8',
+      'Ca II K',
+      'Ca II H',
+      'He I 4471',
+      'He II 4686',
+      'Mg II 4481',
+      'Si IV 4089',
+      'Sr II 4077',
+      'Ca I 4226',
+      'Fe I 4045',
+      'Y II 4375',
+      'G band',
+      'TiO 4954',
+      'MgH 4780',
+      'Mg b',
+      'Na D',
+    ]) {
       expect(names.has(name), name).toBe(true)
     }
   })

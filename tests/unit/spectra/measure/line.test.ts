@@ -4,8 +4,16 @@ import type { ClassificationLine } from '../../../../shared/lines'
 import { linearWavelengths, syntheticSpectrum } from '../prepare/synthetic'
 
 const line = (over: Partial<ClassificationLine> = {}): ClassificationLine => ({
-  id: 'test', name: 'test line', wavelength: 4500, wavelengthSource: 'synthetic', family: 'metal',
-  window: [4400, 4600], blue: [4300, 4350], red: [4650, 4700], windowSource: 'synthetic', indicates: ['temperature'],
+  id: 'test',
+  name: 'test line',
+  wavelength: 4500,
+  wavelengthSource: 'synthetic',
+  family: 'metal',
+  window: [4400, 4600],
+  blue: [4300, 4350],
+  red: [4650, 4700],
+  windowSource: 'synthetic',
+  indicates: ['temperature'],
   ...over,
 })
 const wavelength = linearWavelengths(4250, 4750, 0.25)
@@ -71,9 +79,7 @@ describe('measureSpectrumLine', () => {
       const mean = values.reduce((s, v) => s + v, 0) / values.length
       const sd = Math.sqrt(values.reduce((s, v) => s + (v - mean) ** 2, 0) / (values.length - 1))
       // Truth inside ±20 Å: the Voigt wings beyond hold ~1 % of the area; compare with the window value.
-      const truthInWindow = measured(
-        measureSpectrumLine(syntheticSpectrum(wavelength, [{ centre: 4500, ew: 1.5, sigma: 2, gamma: 0.3 }]), line({ window: [4480, 4520] })),
-      ).equivalentWidth
+      const truthInWindow = measured(measureSpectrumLine(syntheticSpectrum(wavelength, [{ centre: 4500, ew: 1.5, sigma: 2, gamma: 0.3 }]), line({ window: [4480, 4520] }))).equivalentWidth
       expect(Math.abs(mean - truthInWindow)).toBeLessThan((3 * sd) / Math.sqrt(150))
       expect(Math.abs(sd / reported - 1)).toBeLessThan(0.2)
     }
@@ -109,12 +115,12 @@ describe('measureSpectrumLine', () => {
     const spectrum = syntheticSpectrum(wavelength, [])
     const mask = Uint8Array.from(wavelength, (w) => (w > 4300 && w < 4340 ? 1 : 0))
     expect(measureSpectrumLine({ ...spectrum, mask }, line())).toMatchObject({
-      measured: false, reason: 'masked-pixels', detail: '80 % of the blue side band is masked',
+      measured: false,
+      reason: 'masked-pixels',
+      detail: '80 % of the blue side band is masked',
     })
   })
   it('refuses a one-pixel spectrum', () => {
-    expect(() => measureSpectrumLine({ wavelength: Float64Array.from([4500]), flux: Float64Array.from([1]) }, line())).toThrow(
-      'spectrum has 1 pixel; at least 2 are needed',
-    )
+    expect(() => measureSpectrumLine({ wavelength: Float64Array.from([4500]), flux: Float64Array.from([1]) }, line())).toThrow('spectrum has 1 pixel; at least 2 are needed')
   })
 })

@@ -8,9 +8,19 @@ import { syntheticSpectrum } from '../prepare/synthetic'
 function fake(id: string, ew: number, depth: number): LineMeasurement {
   const line = findLine(id)!
   return {
-    id, name: line.name, wavelength: line.wavelength, family: line.family, measured: true,
-    equivalentWidth: ew, equivalentWidthError: 0.1 * ew, depth, depthError: 0.01, fwhm: 2, centroid: line.wavelength,
-    continuum: { blue: 1, red: 1 }, snr: 100,
+    id,
+    name: line.name,
+    wavelength: line.wavelength,
+    family: line.family,
+    measured: true,
+    equivalentWidth: ew,
+    equivalentWidthError: 0.1 * ew,
+    depth,
+    depthError: 0.01,
+    fwhm: 2,
+    centroid: line.wavelength,
+    continuum: { blue: 1, red: 1 },
+    snr: 100,
   }
 }
 

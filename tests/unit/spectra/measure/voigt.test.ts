@@ -1,12 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import {
-  faddeeva,
-  gaussianFwhm,
-  voigtFwhmApproximation,
-  voigtFwhmNumeric,
-  voigtProfile,
-  voigtWithDerivatives,
-} from '../../../../server/spectra/measure/voigt'
+import { faddeeva, gaussianFwhm, voigtFwhmApproximation, voigtFwhmNumeric, voigtProfile, voigtWithDerivatives } from '../../../../server/spectra/measure/voigt'
 
 const slot = () => ({ re: 0, im: 0, dre: 0, dim: 0 })
 
@@ -25,7 +18,11 @@ describe('faddeeva', () => {
   it('has the derivative −2z w + 2i/√π, checked by finite differences', () => {
     const out = slot()
     const h = 1e-6
-    for (const [x, y] of [[0.3, 0.2], [2, 1], [-1.5, 0.05]] as const) {
+    for (const [x, y] of [
+      [0.3, 0.2],
+      [2, 1],
+      [-1.5, 0.05],
+    ] as const) {
       faddeeva(x, y, out)
       const { dre, dim } = out
       const p = faddeeva(x + h, y, slot())

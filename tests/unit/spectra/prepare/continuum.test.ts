@@ -82,9 +82,7 @@ describe('fitSpectrumContinuum', () => {
   })
   it('refuses to fit when too few points remain outside the masks', () => {
     const w = Float64Array.from([4860, 4861, 4862, 4863])
-    expect(() => fitSpectrumContinuum({ wavelength: w, flux: Float64Array.from([1, 1, 1, 1]) })).toThrow(
-      'too few continuum points to fit: 0',
-    )
+    expect(() => fitSpectrumContinuum({ wavelength: w, flux: Float64Array.from([1, 1, 1, 1]) })).toThrow('too few continuum points to fit: 0')
   })
 })
 
@@ -106,7 +104,10 @@ describe('fitSpectrumContinuum in ln F', () => {
     const red = fitSpectrumContinuum({ wavelength: w, flux: reddened }, { space: 'log' }).rectified
     // Median |difference| of the rectified fluxes over the classification region 3850–5000 Å.
     const medianIn = (a: Float64Array, b: Float64Array) => {
-      const d = Array.from(w.keys()).filter((k) => w[k]! >= 3850 && w[k]! <= 5000).map((k) => Math.abs(a[k]! - b[k]!)).sort((x, y) => x - y)
+      const d = Array.from(w.keys())
+        .filter((k) => w[k]! >= 3850 && w[k]! <= 5000)
+        .map((k) => Math.abs(a[k]! - b[k]!))
+        .sort((x, y) => x - y)
       return d[d.length >> 1]!
     }
     const inLog = medianIn(plain, red)

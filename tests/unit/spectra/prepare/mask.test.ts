@@ -16,10 +16,7 @@ describe('maskSpectrumBadPixels', () => {
     expect(Array.from(out.mask!)).toEqual([1, 1, 1, 1, 1])
   })
   it('keeps zero errors when told to', () => {
-    const out = maskSpectrumBadPixels(
-      { wavelength, flux: Float64Array.from([1, 1, 1, 1, 1]), error: Float64Array.from([0, 0.1, 0.1, 0.1, 0.1]) },
-      { maskNonPositiveError: false },
-    )
+    const out = maskSpectrumBadPixels({ wavelength, flux: Float64Array.from([1, 1, 1, 1, 1]), error: Float64Array.from([0, 0.1, 0.1, 0.1, 0.1]) }, { maskNonPositiveError: false })
     expect(countMaskedPixels(out)).toBe(0)
   })
   it('always returns a mask, and does not change the input', () => {

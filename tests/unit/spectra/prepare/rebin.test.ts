@@ -45,10 +45,7 @@ describe('rebinSpectrumToLogGrid', () => {
     // Input on a log grid of half the step, placed so that its pixel edges meet the output's.
     const n = 2 * grid.length + 10
     const wavelength = Float64Array.from({ length: n }, (_, k) => grid.start * Math.exp((grid.step / 2) * (k - 4 - 0.5)))
-    const out = rebinSpectrumToLogGrid(
-      { wavelength, flux: new Float64Array(n).fill(1), error: new Float64Array(n).fill(0.1) },
-      { grid },
-    )
+    const out = rebinSpectrumToLogGrid({ wavelength, flux: new Float64Array(n).fill(1), error: new Float64Array(n).fill(0.1) }, { grid })
     expect(out.error![10]! / (0.1 / Math.SQRT2)).toBeCloseTo(1, 3)
   })
   it('leaves masked input pixels out and masks output pixels they mostly cover', () => {

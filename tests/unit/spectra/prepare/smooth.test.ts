@@ -7,8 +7,16 @@ import { syntheticSpectrum } from './synthetic'
 
 const grid = makeLogGrid(4300, 4700, 1e-4)
 const line: ClassificationLine = {
-  id: 'test', name: 'test line', wavelength: 4500, wavelengthSource: 'synthetic', family: 'metal',
-  window: [4470, 4530], blue: [4420, 4440], red: [4560, 4580], windowSource: 'synthetic', indicates: ['temperature'],
+  id: 'test',
+  name: 'test line',
+  wavelength: 4500,
+  wavelengthSource: 'synthetic',
+  family: 'metal',
+  window: [4470, 4530],
+  blue: [4420, 4440],
+  red: [4560, 4580],
+  windowSource: 'synthetic',
+  indicates: ['temperature'],
 }
 
 describe('smoothSpectrumToFwhm', () => {
@@ -33,10 +41,7 @@ describe('smoothSpectrumToFwhm', () => {
     const wavelength = gridWavelengths(grid)
     const mask = new Uint8Array(grid.length)
     for (let i = 400; i < 500; i++) mask[i] = 1
-    const out = smoothSpectrumToFwhm(
-      { wavelength, flux: new Float64Array(grid.length).fill(1), error: new Float64Array(grid.length).fill(0.1), mask },
-      { grid, targetFwhm: 3, inputFwhm: 0 },
-    )
+    const out = smoothSpectrumToFwhm({ wavelength, flux: new Float64Array(grid.length).fill(1), error: new Float64Array(grid.length).fill(0.1), mask }, { grid, targetFwhm: 3, inputFwhm: 0 })
     expect(out.error![200]!).toBeLessThan(0.05)
     expect(out.mask![450]).toBe(1)
     expect(out.mask![200]).toBe(0)

@@ -58,7 +58,16 @@ describe('estimateSpectrumSnrByWindow', () => {
     const normal = seededNormal(3)
     const wavelength = linearWavelengths(4000, 5999, 1)
     const flux = Float64Array.from(wavelength, (w) => (w < 5000 ? 1 + normal() / 50 : 1 + normal() / 200))
-    const [a, b, c] = estimateSpectrumSnrByWindow({ wavelength, flux }, { windows: [[4000, 4999], [5000, 5999], [7000, 7100]] })
+    const [a, b, c] = estimateSpectrumSnrByWindow(
+      { wavelength, flux },
+      {
+        windows: [
+          [4000, 4999],
+          [5000, 5999],
+          [7000, 7100],
+        ],
+      },
+    )
     expect(Math.abs(a! / 50 - 1)).toBeLessThan(0.1)
     expect(Math.abs(b! / 200 - 1)).toBeLessThan(0.1)
     expect(c).toBeNull()

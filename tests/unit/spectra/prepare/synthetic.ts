@@ -26,11 +26,7 @@ export interface InjectedLine {
 }
 
 /** A spectrum of continuum × (1 − Σ EW·V) with optional Gaussian noise of the given S/N. */
-export function syntheticSpectrum(
-  wavelength: Float64Array,
-  lines: InjectedLine[],
-  options: { continuum?: (w: number) => number; snr?: number; seed?: number } = {},
-): Spectrum1D {
+export function syntheticSpectrum(wavelength: Float64Array, lines: InjectedLine[], options: { continuum?: (w: number) => number; snr?: number; seed?: number } = {}): Spectrum1D {
   const { continuum = () => 1, snr, seed = 1 } = options
   const normal = seededNormal(seed)
   const n = wavelength.length
