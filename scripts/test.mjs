@@ -1,4 +1,4 @@
-// `npm test`: a throw-away MariaDB, then type-check, unit, API, component and browser tests.
+// `npm test`: a throw-away MariaDB, then type-check, lint, unit, API, component and browser tests.
 import { mkdtempSync, rmSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
@@ -61,6 +61,13 @@ const redisEnv = () => ({
 })
 const steps = [
   ['type-check', () => run(bin('vue-tsc'), ['-b'], { env })],
+  [
+    'lint and formatting',
+    () => {
+      run(bin('eslint'), ['--cache', '--cache-location', 'node_modules/.cache/eslint/', '.'], { env })
+      run(bin('prettier'), ['--check', '.'], { env })
+    },
+  ],
   ['migrations', () => run(bin('tsx'), ['server/db/migrate-cli.ts', 'up'], { env })],
   ['unit, API and component tests', () => run(bin('vitest'), ['run', '--project', 'unit', '--project', 'api', '--project', 'component', '--exclude', REDIS_ONLY], { env })],
   ['processing and upload tests on Redis and S3', () => run(bin('vitest'), ['run', '--project', 'api', ...BOTH_MODES, REDIS_ONLY], { env: redisEnv() })],

@@ -13,7 +13,7 @@ import { recordCall } from '../services/review.service'
 import { submitFiles } from '../services/spectra.service'
 import { ensureDefaultLibrary } from '../services/standards.service'
 import { hashPassword } from '../services/users.service'
-import { spectralTypeLabel, typeCode, type SpectralLetter } from '../../shared/calibration'
+import { spectralTypeLabel } from '../../shared/calibration'
 import { DEMO_ENTRIES, DEMO_RANGE, DEMO_RESOLUTION_FWHM, demoFits, demoObservation, demoText, seededRandom, type DemoEntry } from './demo-spectra'
 
 /** The invented demo scenario: one observatory, two campaigns, one person per role (and a second classifier). */

@@ -92,13 +92,6 @@ export async function ensureDefaultLibrary(sequelize: Sequelize, observedDir = D
   })
 }
 
-function classCodeOrThrow(text: string): number {
-  const parsed = parseMK(`A0 ${text}`)
-  const code = parsed.ok ? parsed.value.classCode : undefined
-  if (code === undefined) throw new Error(`"${text}" is not a luminosity class`)
-  return code
-}
-
 const SUMMARY_ATTRIBUTES = { exclude: ['rectified'] }
 
 /** Resolution of the sharpest shipped standards (MILES, 2.5 Å FWHM): spectra are never measured sharper. */

@@ -50,7 +50,7 @@ export class S3Store implements FileStore {
     try {
       await this.client.send(new HeadBucketCommand({ Bucket: this.bucket }))
     } catch (error) {
-      if (!isMissing(error)) throw new Error(`the S3 bucket ${this.bucket} cannot be reached: ${(error as Error).message}`)
+      if (!isMissing(error)) throw new Error(`the S3 bucket ${this.bucket} cannot be reached: ${(error as Error).message}`, { cause: error })
       await this.client.send(new CreateBucketCommand({ Bucket: this.bucket }))
     }
     return this

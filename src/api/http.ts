@@ -157,7 +157,8 @@ export const http = {
   delete: <T>(path: string, options?: RequestOptions) => request<T>('DELETE', path, undefined, options),
 }
 
-type CallArgs<E extends Endpoint> = {} extends RequestOf<E> ? [input?: RequestOf<E>, options?: CallOptions] : [input: RequestOf<E>, options?: CallOptions]
+// Input may be left out when every part of the request is optional.
+type CallArgs<E extends Endpoint> = Partial<RequestOf<E>> extends RequestOf<E> ? [input?: RequestOf<E>, options?: CallOptions] : [input: RequestOf<E>, options?: CallOptions]
 export type CallOptions = Omit<RequestOptions, 'query'>
 
 /** Calls an endpoint declared in shared/api: the path, query and body are typed by its schemas, and so is the answer. */

@@ -10,7 +10,6 @@ import {
   type SpectrumSort,
   type SubmitFields as SubmitFieldsOf,
   type SubmitReply,
-  type WavelengthUnitChoice,
 } from '@shared/api/spectra'
 import type { SuggestionSummary } from '@shared/api/suggestions'
 import { ApiError, NETWORK_ERROR, NETWORK_MESSAGE, call, currentCsrfToken, setCsrfToken, type ApiErrorDetails } from './http'

@@ -186,6 +186,6 @@ export function gunzipBounded(bytes: Uint8Array, limit: number): Uint8Array | un
   try {
     return inflateBounded(bytes.subarray(at, bytes.length - 8), limit)
   } catch (err) {
-    throw new Error(err instanceof ZipError ? err.message : `damaged compressed data (${(err as Error).message})`)
+    throw new Error(err instanceof ZipError ? err.message : `damaged compressed data (${(err as Error).message})`, { cause: err })
   }
 }

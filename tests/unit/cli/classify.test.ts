@@ -5,6 +5,16 @@ import { join } from 'node:path'
 import { afterAll, describe, expect, it } from 'vitest'
 import { expandInputs, parseCliArgs } from '../../../server/cli/args'
 
+/** The fields of the command's JSON lines that these tests read. */
+interface CliLine {
+  file: string
+  ok: boolean
+  code?: string
+  error?: string
+  read: { hdu: unknown; medium: { why: string } }
+  rv: { v: number }
+}
+
 const ROOT = process.cwd()
 const CORPUS = join(ROOT, 'tests', 'fixtures', 'corpus')
 const tsx = join(ROOT, 'node_modules', '.bin', 'tsx')
@@ -17,7 +27,7 @@ const run = (...args: string[]) => {
     lines: r.stdout
       .split('\n')
       .filter((l) => l.startsWith('{'))
-      .map((l) => JSON.parse(l) as Record<string, any>),
+      .map((l) => JSON.parse(l) as CliLine),
   }
 }
 const dir = mkdtempSync(join(tmpdir(), 'classify-cli-'))
