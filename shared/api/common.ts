@@ -53,6 +53,17 @@ export const emptyToUndefined = (v: unknown) => (v === '' || v === null ? undefi
 /** A campaign id that must be given. */
 export const campaignRef = z.coerce.number({ message: 'choose a campaign' }).int().positive({ message: 'choose a campaign' })
 
+/** An MK classification as every answer writes it: the notation, its parts and their numeric codes (shared/mk.ts). */
+export const mkFields = {
+  /** MK notation with the class, e.g. "B5 Ib". */
+  spectralType: z.string(),
+  letter: z.string(),
+  subtype: z.number(),
+  typeCode: z.number(),
+  luminosityClass: z.string(),
+  classCode: z.number(),
+}
+
 /** Who did something, as the screens name them. */
 export const PersonRef = z.object({ id: z.number().int(), name: z.string() }).meta({ id: 'PersonRef' })
 export type PersonRef = z.infer<typeof PersonRef>

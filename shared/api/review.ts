@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { SPECTRUM_STATUSES } from '../status'
 import { MeasurementSummary } from './measurements'
 import { SuggestionDetails } from './suggestions'
-import { PersonRef, idParams, multiLine } from './common'
+import { PersonRef, idParams, mkFields, multiLine } from './common'
 import { endpoint } from './endpoint'
 
 export { PersonRef }
@@ -18,12 +18,7 @@ export type Agreement = z.infer<typeof Agreement>
 export const SuggestionView = z
   .object({
     id: z.number().int(),
-    spectralType: z.string(),
-    letter: z.string(),
-    subtype: z.number(),
-    typeCode: z.number(),
-    luminosityClass: z.string(),
-    classCode: z.number(),
+    ...mkFields,
     uncertaintySubtypes: z.number(),
     uncertaintyClasses: z.number(),
     libraryVersionId: z.number().int(),
@@ -47,12 +42,7 @@ export const CallView = z
     kind: CallKind,
     correctsCallId: z.number().int().nullable(),
     by: PersonRef,
-    spectralType: z.string(),
-    letter: z.string(),
-    subtype: z.number(),
-    typeCode: z.number(),
-    luminosityClass: z.string(),
-    classCode: z.number(),
+    ...mkFields,
     peculiarities: z.array(z.string()),
     notes: z.string(),
     confidence: z.number().int(),
@@ -72,12 +62,7 @@ export const FinalClassification = z
     id: z.number().int(),
     spectrumId: z.number().int(),
     source: ClassificationSource,
-    spectralType: z.string(),
-    letter: z.string(),
-    subtype: z.number(),
-    typeCode: z.number(),
-    luminosityClass: z.string(),
-    classCode: z.number(),
+    ...mkFields,
     peculiarities: z.array(z.string()),
     decidedBy: PersonRef.nullable(),
     decidedAt: z.string(),

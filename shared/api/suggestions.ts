@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { mkFields } from './common'
 
 /** An estimate with its 1σ spread. */
 export const EstimateSummary = z.object({ value: z.number(), error: z.number() })
@@ -68,13 +69,7 @@ export const SuggestionSummary = z
     libraryVersionId: z.number().int(),
     pipelineVersion: z.string(),
     isCurrent: z.boolean(),
-    /** MK notation with the class, e.g. "B5 Ib". */
-    spectralType: z.string(),
-    letter: z.string(),
-    subtype: z.number(),
-    typeCode: z.number(),
-    luminosityClass: z.string(),
-    classCode: z.number(),
+    ...mkFields,
     uncertainty: z.object({ subtypes: z.number(), classes: z.number() }),
     bestStandardId: z.number().int().nullable(),
     candidates: z.array(z.unknown()),
