@@ -3,18 +3,10 @@
  * library looks for gaps. A cell is one subtype (the type code rounded) and one luminosity class
  * (the nearest of Ia … V; intermediate classes fall to the brighter, Keenan's IIIa and IIIb to III).
  */
-import { formatTypeCode } from './mk'
+import { LUMINOSITY_CLASSES, formatTypeCode } from './mk'
 
-/** Classes a cell can have, brightest first (shared/mk.ts class codes). */
-export const COVERAGE_CLASSES: ReadonlyArray<{ text: string; code: number }> = [
-  { text: 'Ia', code: 1 },
-  { text: 'Iab', code: 1.5 },
-  { text: 'Ib', code: 2 },
-  { text: 'II', code: 3 },
-  { text: 'III', code: 4 },
-  { text: 'IV', code: 5 },
-  { text: 'V', code: 6 },
-]
+/** Classes a cell can have, brightest first: the MK classes from Ia to V (shared/mk.ts). */
+export const COVERAGE_CLASSES: ReadonlyArray<{ text: string; code: number }> = LUMINOSITY_CLASSES.filter((c) => c.code >= 1 && c.code <= 6)
 
 export interface CoverageCell {
   /** The subtype, as a whole type code (O0 = 0 … M9 = 69). */
