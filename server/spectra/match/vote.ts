@@ -69,7 +69,7 @@ export function parameterEstimate(voters: readonly { teff: number | null; logg: 
 }
 
 /** The luminosity criteria of criteria.ts measured on the spectrum and read off each class's standards at the type, as evidence shown beside the vote. */
-export function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel, spectrumSpan: Float64Array, typeCode: number, snr: number | null, centre: number): Vote[] {
+export function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel, spectrumSpan: Float64Array, typeCode: number, snr: number | null, centre: number, exclude?: ReadonlySet<number>): Vote[] {
   const sigmaPix = snr !== null && snr > 0 ? 1 / snr : 0.02
   const pixelsPerAngstrom = 1 / (centre * library.grid.step)
   const classCodes = levelClassCodes(library, level)
@@ -91,7 +91,7 @@ export function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel
     let bestD = Infinity
     const sigma = Math.hypot(criterionNoise(c, value, sigmaPix, pixelsPerAngstrom), c.scatter, 1e-3)
     for (const cc of classCodes) {
-      const v = criterionAtType(library, level, ci, cc, typeCode)
+      const v = criterionAtType(library, level, ci, cc, typeCode, exclude)
       if (v === null) continue
       standards[classText(cc)] = round(v, 4)
       const d = Math.abs(value - v) / sigma
@@ -114,7 +114,8 @@ export function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel
  * A criterion's typical value for one class at a type code: the median over that class's
  * standards within ±2 subtypes (±4 where there are fewer than two); null when none.
  */
-function criterionAtType(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number): number | null {
+function criterionAtType(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number, exclude?: ReadonlySet<number>): number | null {
+  if (exclude && exclude.size > 0) return criterionAtTypeUncached(library, level, ci, classCode, typeCode, exclude)
   let memo = criterionMemo.get(level)
   if (!memo) criterionMemo.set(level, (memo = new Map()))
   const key = `${ci}|${classCode}|${typeCode}`
@@ -126,13 +127,13 @@ function criterionAtType(library: PreparedMatchLibrary, level: LibraryLevel, ci:
 
 const criterionMemo = new WeakMap<LibraryLevel, Map<string, number | null>>()
 
-function criterionAtTypeUncached(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number): number | null {
+function criterionAtTypeUncached(library: PreparedMatchLibrary, level: LibraryLevel, ci: number, classCode: number, typeCode: number, exclude?: ReadonlySet<number>): number | null {
   const n = level.rows.length
   for (const width of [2, 4]) {
     const values: number[] = []
     level.rows.forEach((k, r) => {
       const st = library.standards[k]!
-      if (st.classCode !== classCode || Math.abs(st.typeCode - typeCode) > width) return
+      if (st.classCode !== classCode || Math.abs(st.typeCode - typeCode) > width || exclude?.has(st.id)) return
       const v = level.criteria[ci * n + r]!
       if (Number.isFinite(v)) values.push(v)
     })
