@@ -1,6 +1,6 @@
 /**
  * The real reference stars of the accuracy benchmark: every star of the shipped observed library
- * (templates/observed-v1), with its published type, read from the source files through the
+ * (templates/observed-v2), with its published type, read from the source files through the
  * product's readers when the reference folder is present (REFERENCE_DATA_DIR, default
  * ../shared/data), else taken from the library's own copy of its flux. Each star knows the
  * database ids of every standard that is the same star, so that leave-one-star-out never matches
@@ -65,8 +65,9 @@ function readJhcText(bytes: Uint8Array): Spectrum1D {
 /**
  * Every kept standard of the shipped library as a reference star.
  * @param options.fromFiles read the source files when present @default true; false takes the library's copies, as on a machine without them
+ * @param options.retired the standards of earlier versions that this one leaves out instead (they are not in the library, so nothing of them is excluded but other spectra of the same star)
  */
-export function referenceStars(observedDir = DEFAULT_OBSERVED_DIR, options: { fromFiles?: boolean } = {}): ReferenceStar[] {
+export function referenceStars(observedDir = DEFAULT_OBSERVED_DIR, options: { fromFiles?: boolean; retired?: boolean } = {}): ReferenceStar[] {
   const fromFiles = options.fromFiles ?? true
   const { library, inputs } = observedLibraryAt(observedDir)
   const wl = gridWavelengths(DEFAULT_GRID)
@@ -76,7 +77,7 @@ export function referenceStars(observedDir = DEFAULT_OBSERVED_DIR, options: { fr
     byKey.set(key, (byKey.get(key) ?? new Set()).add(s.id))
   })
   const folders: Record<string, string> = { miles: 'miles-reference', jhc: 'jhc-reference' }
-  return library.standards.map((s, row) => {
+  return (options.retired ? library.retired : library.standards).map((s, row) => {
     const e = s.entry
     const path = join(REFERENCE_DATA_DIR, folders[e.source]!, e.file)
     let spectrum: Spectrum1D | null = null
@@ -101,7 +102,7 @@ export function referenceStars(observedDir = DEFAULT_OBSERVED_DIR, options: { fr
       fwhm: s.source.resolutionFwhm,
       spectrum: spectrum ?? { wavelength: wl.slice(), flux: Float64Array.from(s.flux, (v) => (Number.isFinite(v) ? v : 0)), mask: Uint8Array.from(s.flux, (v) => (Number.isFinite(v) ? 0 : 1)) },
       readFrom: spectrum ? 'file' : 'library',
-      exclude: byKey.get(starKey(e.star)) ?? new Set([row + 1]),
+      exclude: byKey.get(starKey(e.star)) ?? (options.retired ? new Set<number>() : new Set([row + 1])),
     }
   })
 }

@@ -42,7 +42,7 @@ export class Standard extends Model<InferAttributes<Standard>, InferCreationAttr
   declare id: CreationOptional<number>
   declare source: 'model' | 'observed'
   declare modelId: string | null
-  /** Id in the shipped observed library (templates/observed-v1), e.g. "miles-0892". */
+  /** Id in the shipped observed library (templates/observed-v2), e.g. "miles-0892". */
   declare templateId: CreationOptional<string | null>
   declare spectrumId: number | null
   /** Star name and the library it comes from, for shipped observed standards. */

@@ -4,7 +4,7 @@ import { Op, type Sequelize } from 'sequelize'
 import { DEFAULT_GRID, gridWavelength } from '../../shared/grid'
 import { formatMK, parseMK } from '../../shared/mk'
 import type { ObservedLibraryManifest } from '../../templates/observed/library'
-import { DEFAULT_MODEL_DIR, DEFAULT_OBSERVED_DIR, modelLibraryAt, observedLibraryAt, type LibrarySpec } from '../spectra/match/load'
+import { DEFAULT_MODEL_DIR, DEFAULT_OBSERVED_DIR, modelLibraryAt, observedInputByTemplate, observedLibraryAt, type LibrarySpec } from '../spectra/match/load'
 import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
 import { HttpError, notFound } from '../lib/http-error'
 import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, Suggestion, type User } from '../models'
@@ -21,7 +21,8 @@ export const MODEL_VERSION_NAME = 'model-v1'
  * Makes sure the default version exists: one `standards` row per standard of the shipped observed
  * library (template_id = its id, with star, source, published type and parameters) and a published
  * version holding them all. It becomes the active version when none is active or when the active
- * one is the old model library. The model standards, where a database still has them, are retired:
+ * one is the old model library or an earlier shipped version (manifest.earlierVersions); the
+ * standards the shipped version leaves out (retiredIn) are retired, and the versions holding them keep them. The model standards, where a database still has them, are retired:
  * on real stars they suggested the right type far less often (bench/results/accuracy.txt), so later
  * versions leave them out; versions already published keep them. Safe to call at every start.
  */
@@ -30,16 +31,20 @@ export async function ensureDefaultLibrary(sequelize: Sequelize, observedDir = D
   return sequelize.transaction(async (transaction) => {
     const active = await LibraryVersion.findOne({ where: { isActive: true }, transaction })
     await Standard.update({ retiredAt: new Date() }, { where: { source: 'model', retiredAt: null }, transaction })
+    const retiredIds = manifest.entries.filter((e) => e.retiredIn !== undefined).map((e) => e.id)
+    if (retiredIds.length > 0) await Standard.update({ retiredAt: new Date() }, { where: { templateId: { [Op.in]: retiredIds }, retiredAt: null }, transaction })
+    // A newer shipped version takes over from the model grid or an earlier shipped version, never from a team's own.
+    const takeOver = !active || active.name === MODEL_VERSION_NAME || ((manifest.earlierVersions ?? []).includes(active.name) && active.name !== manifest.version)
     const existing = await LibraryVersion.findOne({ where: { name: manifest.version }, transaction })
     if (existing) {
-      if (!active || active.name === MODEL_VERSION_NAME) {
+      if (takeOver) {
         await LibraryVersion.update({ isActive: false }, { where: { isActive: true }, transaction })
         await existing.update({ isActive: true }, { transaction })
       }
       return existing
     }
     const sources = new Map(manifest.sources.map((src) => [src.key, src]))
-    const kept = manifest.entries.filter((e) => e.row !== undefined)
+    const kept = manifest.entries.filter((e) => e.row !== undefined && e.excludedBecause === undefined)
     const have = new Set((await Standard.findAll({ where: { templateId: { [Op.ne]: null } }, attributes: ['templateId'], transaction })).map((s) => s.templateId))
     await Standard.bulkCreate(
       kept
@@ -71,7 +76,6 @@ export async function ensureDefaultLibrary(sequelize: Sequelize, observedDir = D
     )
     const ids = new Set(kept.map((e) => e.id))
     const rows = (await Standard.findAll({ where: { templateId: { [Op.ne]: null } }, attributes: ['id', 'templateId'], transaction })).filter((s) => ids.has(s.templateId!))
-    const takeOver = !active || active.name === MODEL_VERSION_NAME
     if (takeOver) await LibraryVersion.update({ isActive: false }, { where: { isActive: true }, transaction })
     const version = await LibraryVersion.create(
       {
@@ -259,7 +263,7 @@ export async function standardSeries(
   if (!s) throw notFound('The standard')
   let values: ArrayLike<number>
   if (s.templateId) {
-    const row = observedLibraryAt(observedDir).inputs.find((i) => i.templateId === s.templateId)
+    const row = observedInputByTemplate(observedDir, s.templateId)
     if (!row) throw notFound('The data of this standard')
     values = row.rectified
   } else if (s.source === 'observed') {

@@ -1,5 +1,5 @@
 /**
- * Builds the observed standards library templates/observed-v1/ from real spectra of published
+ * Builds the observed standards library templates/observed-v2/ from real spectra of published
  * type (npm run templates:observed). The reference folder (default ../shared/data, or
  * REFERENCE_DATA_DIR) holds one folder per source with an index.csv; see SOURCES for what each is.
  * Deterministic: the same files give the same bytes.
@@ -15,10 +15,12 @@ import { rebinSpectrumToLogGrid } from '../../server/spectra/prepare/rebin'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { float32LittleEndian, sha256 } from '../format'
 import type { ObservedEntry, ObservedLibraryManifest, ObservedSource } from './library'
-import { screenPublishedType } from './screen'
+import { screenParameters, screenPublishedType } from './screen'
 
-export const BUILDER_VERSION = '1.0.0'
-export const LIBRARY_VERSION = 'observed-v1'
+export const BUILDER_VERSION = '2.0.0'
+export const LIBRARY_VERSION = 'observed-v2'
+/** The versions built before this one, whose standards stay loadable (their rows stay in flux.f32). */
+export const EARLIER_VERSIONS: readonly string[] = ['observed-v1']
 /** Range over which each spectrum is scaled to a median of 1, Å. */
 const NORMALISATION: [number, number] = [4500, 5500]
 
@@ -203,6 +205,12 @@ export function buildObservedLibrary(dataDir: string, outDir: string): ObservedL
       k.entry.row = fluxes.length
       k.entry.checksum = sha256(float32LittleEndian(k.flux))
       fluxes.push(k.flux)
+      // Standards of observed-v1 that contradict their own parameters: the row stays for that version.
+      const contradiction = screenParameters({ teff: k.entry.teff, logg: k.entry.logg, feh: k.entry.feh, typeCode: k.entry.typeCode!, classCode: k.entry.classCode! })
+      if (contradiction) {
+        k.entry.excludedBecause = contradiction
+        k.entry.retiredIn = LIBRARY_VERSION
+      }
     })
   }
   const all = new Float32Array(fluxes.length * grid.length)
@@ -217,11 +225,14 @@ export function buildObservedLibrary(dataDir: string, outDir: string): ObservedL
     flux: { path: 'flux.f32', dtype: 'float32le', rows: fluxes.length, columns: grid.length, sha256: sha256(bytes) },
     sources: SOURCES.map(({ folder: _f, ...s }) => s),
     entries,
+    earlierVersions: [...EARLIER_VERSIONS],
     screening:
       'Kept: a normal MK type with one subtype and a luminosity class Ia–V (a range of at most one step, e.g. IV-V). ' +
       'Left out: types the source flags as peculiar; emission, peculiar, weak-line and other suffixes; uncertain (":" "?") or truncated ("...") types; ' +
       'composites; variables; abundance notes (CN, Ba, CH, Fe-); subdwarfs, horizontal-branch stars and hypergiants; type ranges; ' +
-      `and spectra whose nearest neighbour in their source is more than ${OUTLIER_FACTOR}× further than is usual for stars within three subtypes of them (damaged).`,
+      `spectra whose nearest neighbour in their source is more than ${OUTLIER_FACTOR}× further than is usual for stars within three subtypes of them (damaged); ` +
+      'and, from observed-v2 on, stars whose published parameters contradict their published type: metal-poor stars of types A0 and later ([Fe/H] ≤ −1, outside the near-solar composition the MK standards are defined on), ' +
+      'class IV–V with log g < 3 and class III or brighter with log g ≥ 4.3 (these keep their row in flux.f32, marked retiredIn, so that versions made before can still be re-made).',
   }
   mkdirSync(outDir, { recursive: true })
   writeFileSync(join(outDir, 'flux.f32'), bytes)
@@ -239,7 +250,10 @@ if (process.argv[1] && resolve(process.argv[1]) === resolve(here, 'build.ts')) {
   const started = performance.now()
   const out = resolve(here, '..', LIBRARY_VERSION)
   const manifest = buildObservedLibrary(dataDir, out)
-  const kept = manifest.entries.filter((e) => e.row !== undefined).length
-  for (const e of manifest.entries.filter((x) => x.excludedBecause?.startsWith('spectrum unlike'))) process.stdout.write(`left out ${e.id} ${e.publishedType}: ${e.excludedBecause}\n`)
-  process.stdout.write(`wrote ${kept} of ${manifest.entries.length} stars to ${out} in ${((performance.now() - started) / 1000).toFixed(1)} s\n`)
+  const kept = manifest.entries.filter((e) => e.row !== undefined && e.excludedBecause === undefined).length
+  const retired = manifest.entries.filter((e) => e.retiredIn !== undefined)
+  for (const e of manifest.entries.filter((x) => x.excludedBecause?.startsWith('spectrum unlike') || x.retiredIn)) process.stdout.write(`left out ${e.id} ${e.publishedType}: ${e.excludedBecause}\n`)
+  process.stdout.write(
+    `wrote ${kept} standards of ${manifest.entries.length} stars (and ${retired.length} rows of earlier versions' standards) to ${out} in ${((performance.now() - started) / 1000).toFixed(1)} s\n`,
+  )
 }

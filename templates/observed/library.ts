@@ -1,5 +1,5 @@
 /**
- * The on-disk layout of an observed standards library (templates/observed-v1/, see
+ * The on-disk layout of an observed standards library (templates/observed-v2/, see
  * templates/README.md) and its loader.
  */
 import { readFileSync } from 'node:fs'
@@ -34,9 +34,11 @@ export interface ObservedEntry {
   file: string
   /** Spectral type exactly as the source publishes it. */
   publishedType: string
-  /** Why the star is not a standard; absent for kept stars. */
+  /** Why the star is not a standard of this version; absent for kept stars. */
   excludedBecause?: string
-  /** Row of flux.f32 for kept stars. */
+  /** The version from which a standard of earlier versions is left out (its row stays in flux.f32). */
+  retiredIn?: string
+  /** Row of flux.f32 for kept stars and for retired ones. */
   row?: number
   spectralType?: string
   typeCode?: number
@@ -66,6 +68,8 @@ export interface ObservedLibraryManifest {
   entries: ObservedEntry[]
   /** The screening rule, in words. */
   screening: string
+  /** Shipped versions built before this one (their standards are this file's rows, retired ones included). */
+  earlierVersions?: string[]
 }
 
 /** A kept standard with a view into the flux array. */
@@ -79,12 +83,15 @@ export interface ObservedStandard {
 export interface ObservedLibrary {
   manifest: ObservedLibraryManifest
   grid: LogGrid
+  /** The standards of this version, in row order. */
   standards: ObservedStandard[]
+  /** Standards of earlier versions left out of this one (entry.retiredIn), for re-making those versions. */
+  retired: ObservedStandard[]
 }
 
 /**
  * Loads an observed library: reads manifest.json and flux.f32, checks the size (and SHA-256 when
- * `verify`), and returns one view per kept standard, in row order.
+ * `verify`), and returns one view per standard of the version and per retired one, in row order.
  * @param dir directory holding manifest.json
  * @param options.verify check the file's SHA-256 @default true
  */
@@ -96,12 +103,14 @@ export function loadObservedLibrary(dir: string, options: { verify?: boolean } =
   const flux = readFloat32(join(dir, manifest.flux.path), manifest.flux, options.verify ?? true)
   const sources = new Map(manifest.sources.map((s) => [s.key, s]))
   const standards: ObservedStandard[] = []
+  const retired: ObservedStandard[] = []
   for (const entry of manifest.entries) {
     if (entry.row === undefined) continue
     const source = sources.get(entry.source)
     if (!source) throw new Error(`standard ${entry.id} names an unknown source ${entry.source}`)
-    standards.push({ entry: entry as ObservedStandard['entry'], source, flux: flux.subarray(entry.row * grid.length, (entry.row + 1) * grid.length) })
+    const view = { entry: entry as ObservedStandard['entry'], source, flux: flux.subarray(entry.row * grid.length, (entry.row + 1) * grid.length) }
+    ;(entry.retiredIn ? retired : standards).push(view)
   }
-  if (standards.length !== manifest.flux.rows) throw new Error(`the manifest lists ${standards.length} kept standards for ${manifest.flux.rows} rows`)
-  return { manifest, grid, standards }
+  if (standards.length + retired.length !== manifest.flux.rows) throw new Error(`the manifest lists ${standards.length + retired.length} rows for ${manifest.flux.rows} in flux.f32`)
+  return { manifest, grid, standards, retired }
 }

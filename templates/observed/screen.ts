@@ -57,3 +57,35 @@ function formatStandardType(typeCode: number, luminosityClass: string): string {
   const subtype = Math.round((typeCode - Math.floor(typeCode / 10) * 10) * 10) / 10
   return `${letter}${subtype} ${luminosityClass}`
 }
+
+/** Published parameters of a star whose type passed screenPublishedType. */
+export interface PublishedParameters {
+  teff: number | null
+  logg: number | null
+  feh: number | null
+  typeCode: number
+  classCode: number
+}
+
+/** Metal-poor boundary, dex (common practice: "metal-poor" below a tenth of solar iron). */
+export const METAL_POOR_FEH = -1
+/** From A0 on metal lines are part of the type criteria; O and B types rest on helium and hydrogen (common practice). */
+export const METAL_LINE_TYPES_FROM = 20
+/** Gravity limits, log g in cgs, set loosely so that only clear contradictions go (common practice: dwarfs and subgiants about 3.5–5; giants and supergiants about 0–3.5, B giants up to about 4). */
+export const DWARF_MIN_LOGG = 3
+export const GIANT_MAX_LOGG = 4.3
+
+/**
+ * Screens a standard's published parameters against its published type. The MK system is defined on
+ * stars of near-solar composition, so metal-poor stars ([Fe/H] ≤ −1) of types A0 and later, whose
+ * weak metal lines give types too early, are left out (the published [Fe/H] of O and B stars is
+ * rarely measured from their own lines, and their types rest on helium and hydrogen); so are stars whose published class contradicts their published
+ * surface gravity (class IV–V with log g < 3, class III or brighter with log g ≥ 4.3). Returns the
+ * reason, or null when the parameters agree with the type or are not given.
+ */
+export function screenParameters(p: PublishedParameters): string | null {
+  if (p.feh !== null && p.feh <= METAL_POOR_FEH && p.typeCode >= METAL_LINE_TYPES_FROM) return `metal-poor ([Fe/H] ${p.feh}): outside the near-solar composition the MK standards are defined on`
+  if (p.logg !== null && p.classCode >= 5 && p.logg < DWARF_MIN_LOGG) return `the published class (IV–V) contradicts the published log g ${p.logg}`
+  if (p.logg !== null && p.classCode <= 4 && p.logg >= GIANT_MAX_LOGG) return `the published class (III or brighter) contradicts the published log g ${p.logg}`
+  return null
+}

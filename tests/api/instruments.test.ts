@@ -1,6 +1,6 @@
 // Instruments, candidate standards from agreed spectra, promotion and demotion, and suggestions that
 // use an instrument's own standards. The spectra are real reference stars of published type
-// (templates/observed-v1: MILES v9.1, Sánchez-Blázquez et al. 2006); the types the classifiers
+// (templates/observed-v2: MILES v9.1, Sánchez-Blázquez et al. 2006); the types the classifiers
 // call here are the published ones.
 import { randomBytes } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -28,7 +28,7 @@ let instrumentId: number
 let otherInstrumentId: number
 
 /** Shipped reference stars by template id (their published types). */
-const STAR = { k0iii: 'miles-m0070', k0iiiBis: 'miles-m0244', a0v: 'miles-m0166', g8iii: 'miles-m0089' } as const
+const STAR = { k0iii: 'miles-m0070', k0iiiBis: 'miles-m0244', a0v: 'miles-m0166', g8iii: 'miles-m0179' } as const
 const templateOf = (id: string) => {
   const s = observedLibraryAt(DEFAULT_OBSERVED_DIR).inputs.find((i) => i.templateId === id)
   if (!s) throw new Error(`no shipped standard ${id}`)
@@ -369,7 +369,7 @@ describe('the agreement audit', () => {
       res.body.audit.suggestionAccuracy.instruments as { instrument: { id: number }; versions: { version: { name: string }; n: number; ownShare: { value: number | null; n: number } }[] }[]
     ).find((i) => i.instrument.id === instrumentId)!
     // The six decided spectra were suggested by the shipped version; none of them is one of its standards.
-    expect(mine.versions.map((v) => [v.version.name, v.n])).toEqual([['observed-v1', 6]])
+    expect(mine.versions.map((v) => [v.version.name, v.n])).toEqual([['observed-v2', 6]])
     expect(mine.versions[0]!.ownShare).toMatchObject({ value: 0.25, n: 1 })
   })
 })

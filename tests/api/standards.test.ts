@@ -81,10 +81,10 @@ describe('GET /api/standards', () => {
   it('lists versions and standards for leads and classifiers, not observers', async () => {
     const res = await classifier.agent.get('/api/standards').expect(200)
     expect(res.body.activeVersionId).not.toBeNull()
-    const shipped = res.body.versions.find((v: { name: string }) => v.name === 'observed-v1')
+    const shipped = res.body.versions.find((v: { name: string }) => v.name === 'observed-v2')
     expect(shipped.standardCount).toBeGreaterThanOrEqual(300)
-    // Every shipped standard names its star and its library (templates/observed-v1/manifest.json).
-    const templates = res.body.standards.filter((s: { templateId: string | null }) => s.templateId !== null)
+    // Every shipped standard names its star and its library (templates/observed-v2/manifest.json).
+    const templates = res.body.standards.filter((s: { templateId: string | null; retiredAt: string | null }) => s.templateId !== null && s.retiredAt === null)
     expect(templates.length).toBe(shipped.standardCount)
     const a0v = templates.find((s: { templateId: string }) => s.templateId === 'miles-m0166')
     expect(a0v).toMatchObject({ star: 'HD031295', spectralType: 'A0 V', origin: 'MILES stellar library v9.1', resolutionFwhm: 2.5 })

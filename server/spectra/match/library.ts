@@ -10,7 +10,7 @@ export interface MatchStandardInput {
   id: number
   /** Model id from a model library manifest, or null. */
   modelId: string | null
-  /** Id in a shipped observed library (templates/observed-v1), or null. */
+  /** Id in a shipped observed library (templates/observed-v2), or null. */
   templateId: string | null
   source: 'model' | 'observed'
   /** Star name, for observed standards. */

@@ -11,7 +11,7 @@ import { modelMatchInputs, observedMatchInputs, prepareMatchLibrary, type MatchS
 /** Directory of the model library (kept for library versions published before the observed library). */
 export const DEFAULT_MODEL_DIR = fileURLToPath(new URL('../../../templates/model-v1', import.meta.url))
 /** Directory of the shipped observed library, the default standards. */
-export const DEFAULT_OBSERVED_DIR = fileURLToPath(new URL('../../../templates/observed-v1', import.meta.url))
+export const DEFAULT_OBSERVED_DIR = fileURLToPath(new URL('../../../templates/observed-v2', import.meta.url))
 
 /** An observed standard made from an uploaded spectrum, with its frozen rectified flux. */
 export interface UploadedStandardSpec {
@@ -48,7 +48,7 @@ export interface LibrarySpec {
 }
 
 const modelLibraries = new Map<string, ModelLibrary>()
-const observedLibraries = new Map<string, { library: ObservedLibrary; inputs: MatchStandardInput[] }>()
+const observedLibraries = new Map<string, { library: ObservedLibrary; inputs: MatchStandardInput[]; retired: MatchStandardInput[] }>()
 const prepared = new Map<number, PreparedMatchLibrary>()
 
 /** The model library in `dir`, loaded once per thread. */
@@ -61,15 +61,25 @@ export function modelLibraryAt(dir: string): ModelLibrary {
   return lib
 }
 
-/** The observed library in `dir` with its standards rectified as matcher inputs (ids = row + 1), loaded once per thread. */
-export function observedLibraryAt(dir: string): { library: ObservedLibrary; inputs: MatchStandardInput[] } {
+/**
+ * The observed library in `dir` with its standards rectified as matcher inputs (ids = index + 1),
+ * and the standards of earlier versions it leaves out (ids after those), loaded once per thread.
+ */
+export function observedLibraryAt(dir: string): { library: ObservedLibrary; inputs: MatchStandardInput[]; retired: MatchStandardInput[] } {
   let entry = observedLibraries.get(dir)
   if (!entry) {
     const library = loadObservedLibrary(dir)
-    entry = { library, inputs: observedMatchInputs(library) }
+    const n = library.standards.length
+    entry = { library, inputs: observedMatchInputs(library), retired: observedMatchInputs({ grid: library.grid, standards: library.retired }, (_t, k) => n + k + 1) }
     observedLibraries.set(dir, entry)
   }
   return entry
+}
+
+/** A shipped standard's matcher input by template id, whether in the current version or retired from it. */
+export function observedInputByTemplate(dir: string, templateId: string): MatchStandardInput | undefined {
+  const { inputs, retired } = observedLibraryAt(dir)
+  return inputs.find((i) => i.templateId === templateId) ?? retired.find((i) => i.templateId === templateId)
 }
 
 /** Builds (or takes from this thread's cache) the prepared library of a version. */
@@ -83,7 +93,8 @@ export function preparedLibrary(spec: LibrarySpec): PreparedMatchLibrary {
   }
   if (spec.templates.length > 0) {
     const ids = new Map(spec.templates.map((t) => [t.templateId, t.standardId]))
-    for (const input of observedLibraryAt(spec.observedDir).inputs) {
+    const { inputs: current, retired } = observedLibraryAt(spec.observedDir)
+    for (const input of [...current, ...retired]) {
       const id = ids.get(input.templateId!)
       if (id !== undefined) inputs.push({ ...input, id })
     }

@@ -9,7 +9,7 @@ const { library } = observedLibraryAt(DEFAULT_OBSERVED_DIR)
 const wavelength = gridWavelengths(library.grid)
 
 function measure(id: string) {
-  const std = library.standards.find((s) => s.entry.id === id)
+  const std = [...library.standards, ...library.retired].find((s) => s.entry.id === id)
   if (!std) throw new Error(`no standard ${id}`)
   const flux = Float64Array.from(std.flux, (v) => (Number.isFinite(v) ? v : 0))
   const mask = Uint8Array.from(std.flux, (v) => (Number.isFinite(v) ? 0 : 1))

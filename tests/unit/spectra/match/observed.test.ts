@@ -1,4 +1,4 @@
-// Suggestions for real stars against the shipped observed library (templates/observed-v1), each
+// Suggestions for real stars against the shipped observed library (templates/observed-v2), each
 // star left out of the library it is matched against (leave one star out). Published types are
 // those of the libraries' own indexes: MILES v9.1 (Sánchez-Blázquez et al. 2006, MNRAS 371, 703;
 // 2.5 Å FWHM, Falcón-Barroso et al. 2011) and the JHC library (Jacoby, Hunter & Christian 1984,
@@ -18,8 +18,10 @@ import { realA0V } from '../../../helpers/spectra'
 
 const library = defaultLibrary()
 const stars = referenceStars()
+// Stars left out of the library (e.g. the metal-poor B9 V HD 130095) are still real spectra for composites.
+const retired = referenceStars(undefined, { retired: true })
 const star = (name: string): ReferenceStar => {
-  const s = stars.find((x) => x.star === name)
+  const s = stars.find((x) => x.star === name) ?? retired.find((x) => x.star === name)
   if (!s) throw new Error(`no reference star ${name}`)
   return s
 }

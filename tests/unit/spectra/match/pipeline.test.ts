@@ -1,7 +1,7 @@
-// runPipeline on stars of the shipped observed library (templates/observed-v1): MILES v9.1
+// runPipeline on stars of the shipped observed library (templates/observed-v2): MILES v9.1
 // (Sánchez-Blázquez et al. 2006; 2.5 Å FWHM, Falcón-Barroso et al. 2011) and the JHC library
 // (Jacoby, Hunter & Christian 1984, ApJS 56, 257; these copies at about 15 Å). Published types
-// as the libraries give them (templates/observed-v1/manifest.json).
+// as the libraries give them (templates/observed-v2/manifest.json).
 import { describe, expect, it } from 'vitest'
 import { DEFAULT_GRID, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../../../shared/grid'
 import { DEFAULT_OBSERVED_DIR, defaultLibrary, observedLibraryAt } from '../../../../server/spectra/match/load'
