@@ -4,7 +4,7 @@ import { Op, type Sequelize } from 'sequelize'
 import { DEFAULT_GRID, gridWavelength } from '../../shared/grid'
 import { formatMK, parseMK } from '../../shared/mk'
 import type { ObservedLibraryManifest } from '../../templates/observed/library'
-import { DEFAULT_MODEL_DIR, DEFAULT_OBSERVED_DIR, modelLibraryAt, observedInputByTemplate, observedLibraryAt, type LibrarySpec } from '../spectra/match/load'
+import { DEFAULT_MODEL_DIR, DEFAULT_OBSERVED_DIR, modelLibraryAt, observedInputByTemplate, type LibrarySpec } from '../spectra/match/load'
 import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
 import { HttpError, notFound } from '../lib/http-error'
 import { LibraryVersion, LibraryVersionStandard, Measurement, Spectrum, Standard, Suggestion, type User } from '../models'
@@ -31,8 +31,15 @@ export async function ensureDefaultLibrary(sequelize: Sequelize, observedDir = D
   return sequelize.transaction(async (transaction) => {
     const active = await LibraryVersion.findOne({ where: { isActive: true }, transaction })
     await Standard.update({ retiredAt: new Date() }, { where: { source: 'model', retiredAt: null }, transaction })
-    const retiredIds = manifest.entries.filter((e) => e.retiredIn !== undefined).map((e) => e.id)
-    if (retiredIds.length > 0) await Standard.update({ retiredAt: new Date() }, { where: { templateId: { [Op.in]: retiredIds }, retiredAt: null }, transaction })
+    // Standards an earlier shipped version had and this one leaves out: retired, the reason kept in their note.
+    const retiredEntries = new Map(manifest.entries.filter((e) => e.retiredIn !== undefined).map((e) => [e.id, e]))
+    if (retiredEntries.size > 0) {
+      const toRetire = await Standard.findAll({ where: { templateId: { [Op.in]: [...retiredEntries.keys()] }, retiredAt: null }, transaction })
+      for (const st of toRetire) {
+        const e = retiredEntries.get(st.templateId!)!
+        await st.update({ retiredAt: new Date(), note: `${st.note} Left out of ${e.retiredIn}: ${e.excludedBecause}.` }, { transaction })
+      }
+    }
     // A newer shipped version takes over from the model grid or an earlier shipped version, never from a team's own.
     const takeOver = !active || active.name === MODEL_VERSION_NAME || ((manifest.earlierVersions ?? []).includes(active.name) && active.name !== manifest.version)
     const existing = await LibraryVersion.findOne({ where: { name: manifest.version }, transaction })

@@ -63,7 +63,10 @@ describe('ensureDefaultLibrary over a database that has observed-v1', () => {
     expect((await LibraryVersion.findOne({ where: { isActive: true } }))!.id).toBe(shipped.id)
     const retired = await Standard.findAll({ where: { templateId: retiredEntries.map((e) => e.id) } })
     expect(retired.length).toBe(retiredEntries.length)
-    for (const s of retired) expect(s.retiredAt).not.toBeNull()
+    for (const s of retired) {
+      expect(s.retiredAt).not.toBeNull()
+      expect(s.note).toMatch(new RegExp(`Left out of ${library.manifest.version}: (metal-poor|the published class)`))
+    }
     expect(await LibraryVersionStandard.count({ where: { versionId: shipped.id } })).toBe(library.standards.length)
 
     // observed-v1 is still re-made from all its rows, the retired ones included.

@@ -69,7 +69,15 @@ export function parameterEstimate(voters: readonly { teff: number | null; logg: 
 }
 
 /** The luminosity criteria of criteria.ts measured on the spectrum and read off each class's standards at the type, as evidence shown beside the vote. */
-export function criteriaVotes(library: PreparedMatchLibrary, level: LibraryLevel, spectrumSpan: Float64Array, typeCode: number, snr: number | null, centre: number, exclude?: ReadonlySet<number>): Vote[] {
+export function criteriaVotes(
+  library: PreparedMatchLibrary,
+  level: LibraryLevel,
+  spectrumSpan: Float64Array,
+  typeCode: number,
+  snr: number | null,
+  centre: number,
+  exclude?: ReadonlySet<number>,
+): Vote[] {
   const sigmaPix = snr !== null && snr > 0 ? 1 / snr : 0.02
   const pixelsPerAngstrom = 1 / (centre * library.grid.step)
   const classCodes = levelClassCodes(library, level)
