@@ -74,6 +74,19 @@ export function isoWeek(date: Date): string {
   return `${d.getUTCFullYear()}-W${String(week).padStart(2, '0')}`
 }
 
+const weeksByDay = new Map<number, string>()
+/** isoWeek, worked out once per UTC day: an audit asks it for every call. */
+function weekOf(date: Date): string {
+  const day = Math.floor(date.getTime() / 86_400_000)
+  let week = weeksByDay.get(day)
+  if (week === undefined) {
+    week = isoWeek(date)
+    if (weeksByDay.size > 100_000) weeksByDay.clear()
+    weeksByDay.set(day, week)
+  }
+  return week
+}
+
 /**
  * The categories of the numeric type scale between the lowest and highest code: every half subtype,
  * plus any finer value used, so that weighted κ counts an unused subtype as a step (Cohen 1968 weights
@@ -126,9 +139,14 @@ export function consensusOf(spectrum: AuditSpectrum | undefined, calls: AuditCal
 }
 
 const letterOf = (code: number) => MK_LETTERS[Math.min(MK_LETTERS.length - 1, Math.max(0, Math.floor(code / 10)))]!.letter
+const classLabels = new Map<number, string>()
+/** The nearest luminosity class; a handful of codes recur over every call, so each is worked out once. */
 const classLabel = (code: number) => {
+  const known = classLabels.get(code)
+  if (known !== undefined) return known
   let best = LUMINOSITY_CLASSES[0]!
   for (const c of LUMINOSITY_CLASSES) if (Math.abs(c.code - code) < Math.abs(best.code - code)) best = c
+  classLabels.set(code, best.text)
   return best.text
 }
 
@@ -335,7 +353,7 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
       callsVsConsensus: typeAndClassMatrices(callConsensusPairs, 'call', 'consensus'),
       suggestionVsConsensus: typeAndClassMatrices(suggestionConsensusPairs, 'suggestion', 'consensus'),
     },
-    byWeek: groupFigures((c) => isoWeek(c.at)),
+    byWeek: groupFigures((c) => weekOf(c.at)),
     byLibraryVersion: groupFigures((c) => info.get(c.spectrumId)?.suggestion?.libraryVersion ?? null),
     blind: {
       shown: {
@@ -419,7 +437,7 @@ export function suggestionAccuracy(items: readonly AccuracyItem[]): SuggestionAc
       })
       const weeks = new Map<string, AccuracyItem[]>()
       for (const i of list) {
-        const week = isoWeek(i.madeAt)
+        const week = weekOf(i.madeAt)
         const group = weeks.get(week)
         if (group) group.push(i)
         else weeks.set(week, [i])
