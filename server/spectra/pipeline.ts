@@ -60,6 +60,35 @@ export function resolutionFwhm(fwhm: number | null | undefined, resolvingPower: 
 const EMISSION_RANGE = [3900, 5500] as const
 
 /**
+ * The k-th smallest of `a` (0-based), found in place by selection (Hoare's partitioning, as in
+ * Wirth's "Algorithms + Data Structures"): the same value a full sort puts at index k, in linear
+ * rather than n log n time.
+ */
+function kthSmallest(a: Float64Array, k: number): number {
+  let lo = 0
+  let hi = a.length - 1
+  while (lo < hi) {
+    const pivot = a[k]!
+    let i = lo
+    let j = hi
+    do {
+      while (a[i]! < pivot) i++
+      while (pivot < a[j]!) j--
+      if (i <= j) {
+        const t = a[i]!
+        a[i] = a[j]!
+        a[j] = t
+        i++
+        j--
+      }
+    } while (i <= j)
+    if (j < k) lo = i
+    if (k < i) hi = j
+  }
+  return a[k]!
+}
+
+/**
  * The values minus their running median over ±`halfWidth` Å (plus 1), sampled every tenth pixel
  * and interpolated: removes what is left of a continuum mismatch on scales wider than the lines.
  */
@@ -67,15 +96,14 @@ function subtractRunningMedian(values: Float64Array, wavelength: Float64Array, h
   const n = values.length
   const stride = 10
   const anchors: { i: number; m: number }[] = []
-  // Every third pixel of the window: the median moves slowly, and a typed sort is many times faster.
+  // Every third pixel of the window: the median moves slowly.
   const window = new Float64Array(Math.ceil(n / 3) + 2)
   for (let i = 0; i < n; i += stride) {
     if (!Number.isFinite(values[i]!)) continue
     let w = 0
     for (let j = i; j >= 0 && wavelength[i]! - wavelength[j]! <= halfWidth; j -= 3) if (Number.isFinite(values[j]!)) window[w++] = values[j]!
     for (let j = i + 3; j < n && wavelength[j]! - wavelength[i]! <= halfWidth; j += 3) if (Number.isFinite(values[j]!)) window[w++] = values[j]!
-    const sorted = window.subarray(0, w).sort()
-    anchors.push({ i, m: sorted[w >> 1]! })
+    anchors.push({ i, m: kthSmallest(window.subarray(0, w), w >> 1) })
   }
   const out = new Float64Array(n).fill(Number.NaN)
   let k = 0
