@@ -1,6 +1,7 @@
 import { DEFAULT_CLASSIFICATION_REGION, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../shared/grid'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
+import { kthSmallest } from './prepare/stats'
 import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
 import { fitSpectrumAtLevel } from './match/classify'
 import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type StandardsUsed } from './match/instrument'
@@ -58,35 +59,6 @@ export function resolutionFwhm(fwhm: number | null | undefined, resolvingPower: 
 
 /** Where emission is looked for, Å. */
 const EMISSION_RANGE = [3900, 5500] as const
-
-/**
- * The k-th smallest of `a` (0-based), found in place by selection (Hoare's partitioning, as in
- * Wirth's "Algorithms + Data Structures"): the same value a full sort puts at index k, in linear
- * rather than n log n time.
- */
-function kthSmallest(a: Float64Array, k: number): number {
-  let lo = 0
-  let hi = a.length - 1
-  while (lo < hi) {
-    const pivot = a[k]!
-    let i = lo
-    let j = hi
-    do {
-      while (a[i]! < pivot) i++
-      while (pivot < a[j]!) j--
-      if (i <= j) {
-        const t = a[i]!
-        a[i] = a[j]!
-        a[j] = t
-        i++
-        j--
-      }
-    } while (i <= j)
-    if (j < k) lo = i
-    if (k < i) hi = j
-  }
-  return a[k]!
-}
 
 /**
  * The values minus their running median over ±`halfWidth` Å (plus 1), sampled every tenth pixel
