@@ -1,8 +1,8 @@
-import { Op, QueryTypes, literal } from 'sequelize'
+import { Op, QueryTypes } from 'sequelize'
 import { agreementFraction, classAgreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
-import { Campaign, Classification, Instrument, LibraryVersion, LibraryVersionStandard, ReviewCall, Spectrum, Standard, Suggestion, User } from '../models'
+import { Campaign, Instrument, LibraryVersion, ReviewCall, User } from '../models'
 import type {
   AccuracyFigures,
   AgreementFigures,
@@ -533,7 +533,14 @@ async function accuracyItems(campaignId: number, range: { from?: Date | undefine
   const latest = new Map<string, (typeof suggestions)[number]>()
   for (const s of suggestions) latest.set(`${s.spectrum_id}|${s.library_version_id}`, s)
   const versionIds = [...new Set(suggestions.map((s) => Number(s.library_version_id)))]
-  const instrumentIds = [...new Set(suggestions.map((s) => s.instrument_id).filter((i): i is number => i !== null).map(Number))]
+  const instrumentIds = [
+    ...new Set(
+      suggestions
+        .map((s) => s.instrument_id)
+        .filter((i): i is number => i !== null)
+        .map(Number),
+    ),
+  ]
   const [versions, instruments] = await Promise.all([
     LibraryVersion.findAll({ where: { id: { [Op.in]: versionIds.length ? versionIds : [0] } }, attributes: ['id', 'name', 'publishedAt'] }),
     instrumentIds.length ? Instrument.findAll({ where: { id: { [Op.in]: instrumentIds } }, attributes: ['id', 'name'] }) : [],
@@ -640,9 +647,7 @@ export async function loadAuditInputs(query: AuditQuery, decisions?: Promise<Dec
       shown && shown.shown_type_code != null ? { type_code: shown.shown_type_code, class_code: shown.shown_class_code!, library_version_id: shown.shown_version_id! } : current.get(id)
     return {
       spectrumId: id,
-      suggestion: s
-        ? { typeCode: Number(s.type_code), classCode: Number(s.class_code), libraryVersion: versionName.get(Number(s.library_version_id)) ?? `#${s.library_version_id}` }
-        : null,
+      suggestion: s ? { typeCode: Number(s.type_code), classCode: Number(s.class_code), libraryVersion: versionName.get(Number(s.library_version_id)) ?? `#${s.library_version_id}` } : null,
       decision: latestDecision.get(id) ?? null,
     }
   })

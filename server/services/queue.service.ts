@@ -194,10 +194,7 @@ async function queueItems(ctx: Pick<AppContext, 'sequelize'>, user: User, of: nu
         flags,
         createdAt: r.created_at,
         status: r.status as QueueItem['status'],
-        claim:
-          r.claimed_at && r.claim_expires_at
-            ? { state: 'mine' as const, claimedAt: r.claimed_at, expiresAt: r.claim_expires_at }
-            : { state: 'free' as const },
+        claim: r.claimed_at && r.claim_expires_at ? { state: 'mine' as const, claimedAt: r.claimed_at, expiresAt: r.claim_expires_at } : { state: 'free' as const },
         calls: { count: Number(r.callers), needed: Number(r.calls_required) + Number(r.extra_calls) },
         suggestion:
           hasSuggestion && !hidden

@@ -341,14 +341,7 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
       residual[i] = used ? y - (a + b * x) : Number.NaN
       ownPlusOne[i] = 1 + (used ? y - 1 : Number.NaN)
     }
-    const emission = notStarEvidence(
-      library.wavelength,
-      ownPlusOne,
-      subtractRunningMedian(residual, library.wavelength, 150),
-      sigma,
-      level,
-      suggestion.typeCode,
-    )
+    const emission = notStarEvidence(library.wavelength, ownPlusOne, subtractRunningMedian(residual, library.wavelength, 150), sigma, level, suggestion.typeCode)
     if (emission) return emission.reason
   }
   // Beyond the standards' span only the rectified spectrum speaks: strong emission there (Hβ and
