@@ -16,6 +16,6 @@ export interface AuditTask {
 }
 
 export default async function report(task: AuditTask): Promise<string> {
-  sequelize ??= createSequelize({ ...loadConfig(process.env), DB_POOL_MAX: 2 })
+  sequelize ??= createSequelize({ ...loadConfig(process.env), DB_POOL_MAX: 3 })
   return auditReportJson({ campaignId: task.campaignId, from: task.from ? new Date(task.from) : undefined, to: task.to ? new Date(task.to) : undefined }, task.campaign)
 }

@@ -5,7 +5,7 @@ import type { Sequelize } from 'sequelize'
 import { isDatabaseUnavailable } from '../lib/db-errors'
 import type { PipelineOutput } from '../spectra/pipeline'
 import { librarySpecFor } from '../services/standards.service'
-import { activeLibraryVersionId, loadInput, recordFailure, releaseJobs, renewLeases, returnLapsed, storeOutput, type ClaimedJob } from './process'
+import { loadJob, recordFailure, releaseJobs, renewLeases, returnLapsed, storeOutput, type ClaimedJob } from './process'
 import type { LibrarySpec } from '../spectra/match/load'
 import runTask from './worker'
 
@@ -61,8 +61,7 @@ export class JobExecutor {
     const { logger } = this.options
     this.running.add(job.id)
     try {
-      const input = await loadInput(job.spectrumId)
-      const versionId = await activeLibraryVersionId()
+      const { input, versionId } = await loadJob(job.spectrumId)
       if (versionId !== undefined) input.library = await this.specFor(versionId)
       const output = this.pool ? ((await this.pool.run(input)) as PipelineOutput) : runTask(input)
       await storeOutput(this.options.sequelize, job, output, versionId)

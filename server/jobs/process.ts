@@ -5,7 +5,7 @@
 import { Op, QueryTypes, Transaction, type Sequelize } from 'sequelize'
 import { bufferToFloat32, bufferToFloat64 } from '../lib/binary'
 import { isDatabaseUnavailable } from '../lib/db-errors'
-import { Campaign, Instrument, LibraryVersion, ProcessingJob, Spectrum, SpectrumBlob } from '../models'
+import { ProcessingJob, Spectrum } from '../models'
 import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
 import { PRE_REVIEW, storePipelineOutput } from '../services/measurements.service'
 import type { WorkerTask } from './worker'
@@ -90,37 +90,56 @@ export async function releaseJobs(ids: number[]): Promise<void> {
   await ProcessingJob.update({ status: 'queued', startedAt: null, leaseExpiresAt: null }, { where: { id: { [Op.in]: ids }, status: 'running' } })
 }
 
-/** The library version new suggestions are made against. */
-export async function activeLibraryVersionId(): Promise<number | undefined> {
-  return (await LibraryVersion.findOne({ where: { isActive: true }, attributes: ['id'] }))?.id
+interface InputRow {
+  resolution_fwhm: number | null
+  resolving_power: number | null
+  region_min: number | null
+  region_max: number | null
+  instrument_id: number | null
+  instrument_fwhm: number | null
+  wavelength: Buffer
+  flux: Buffer
+  error: Buffer | null
+  mask: Buffer | null
+  version_id: number | null
+}
+
+/**
+ * The stored arrays and settings of a spectrum as the pipeline takes them, and the library version
+ * its suggestion is made against, in one statement: a job's reads were four round trips.
+ */
+export async function loadJob(spectrumId: number): Promise<{ input: WorkerTask; versionId: number | undefined }> {
+  const [row] = await ProcessingJob.sequelize!.query<InputRow>(
+    `SELECT sp.resolution_fwhm, sp.resolving_power, c.region_min, c.region_max, i.id AS instrument_id, i.resolution_fwhm AS instrument_fwhm,
+            b.wavelength, b.flux, b.error, b.mask,
+            (SELECT v.id FROM library_versions v WHERE v.is_active = 1 LIMIT 1) AS version_id
+     FROM spectra sp JOIN spectrum_blobs b ON b.spectrum_id = sp.id
+     LEFT JOIN campaigns c ON c.id = sp.campaign_id
+     LEFT JOIN instruments i ON i.id = sp.instrument_id
+     WHERE sp.id = :spectrumId`,
+    { replacements: { spectrumId }, type: QueryTypes.SELECT },
+  )
+  if (!row) throw new Error(`spectrum ${spectrumId} has no stored data`)
+  const input: WorkerTask = {
+    spectrum: {
+      wavelength: bufferToFloat64(row.wavelength),
+      flux: bufferToFloat32(row.flux),
+      ...(row.error ? { error: bufferToFloat32(row.error) } : {}),
+      ...(row.mask ? { mask: new Uint8Array(row.mask) } : {}),
+    },
+  }
+  // The instrument's own standards are matched first; its resolution stands in for one the spectrum does not give.
+  if (row.instrument_id !== null) input.instrumentId = Number(row.instrument_id)
+  const fwhm = resolutionFwhm(row.resolution_fwhm, row.resolving_power) ?? (row.instrument_id !== null ? row.instrument_fwhm : null) ?? undefined
+  if (fwhm !== undefined) input.inputFwhm = fwhm
+  const [min, max] = [Number(row.region_min ?? 0), Number(row.region_max ?? 0)]
+  if (row.region_min !== null && min > 0 && max > min) input.region = [min, max]
+  return { input, versionId: row.version_id === null ? undefined : Number(row.version_id) }
 }
 
 /** The stored arrays and settings of a spectrum, as the pipeline takes them. */
 export async function loadInput(spectrumId: number): Promise<WorkerTask> {
-  const [spectrum, blob] = await Promise.all([
-    Spectrum.findByPk(spectrumId, {
-      attributes: ['id', 'campaignId', 'resolutionFwhm', 'resolvingPower', 'instrumentId'],
-      include: [{ model: Campaign, as: 'campaign', attributes: ['id', 'regionMin', 'regionMax'] }],
-    }) as Promise<(Spectrum & { campaign?: Campaign }) | null>,
-    SpectrumBlob.findByPk(spectrumId, { attributes: ['wavelength', 'flux', 'error', 'mask'] }),
-  ])
-  if (!spectrum || !blob) throw new Error(`spectrum ${spectrumId} has no stored data`)
-  const input: WorkerTask = {
-    spectrum: {
-      wavelength: bufferToFloat64(blob.wavelength),
-      flux: bufferToFloat32(blob.flux),
-      ...(blob.error ? { error: bufferToFloat32(blob.error) } : {}),
-      ...(blob.mask ? { mask: new Uint8Array(blob.mask) } : {}),
-    },
-  }
-  // The instrument's own standards are matched first; its resolution stands in for one the spectrum does not give.
-  const instrument = spectrum.instrumentId !== null ? await Instrument.findByPk(spectrum.instrumentId, { attributes: ['id', 'resolutionFwhm'] }) : null
-  if (instrument) input.instrumentId = instrument.id
-  const fwhm = resolutionFwhm(spectrum.resolutionFwhm, spectrum.resolvingPower) ?? instrument?.resolutionFwhm ?? undefined
-  if (fwhm !== undefined) input.inputFwhm = fwhm
-  const c = spectrum.campaign
-  if (c && c.regionMin > 0 && c.regionMax > c.regionMin) input.region = [c.regionMin, c.regionMax]
-  return input
+  return (await loadJob(spectrumId)).input
 }
 
 /**

@@ -13,6 +13,7 @@ import * as m0013 from './0013-instruments'
 import * as m0014 from './0014-instrument-standards'
 import * as m0020 from './0020-lists-at-scale'
 import * as m0030 from './0030-api-tokens'
+import * as m0031 from './0031-audit-index'
 
 export interface Migration {
   name: string
@@ -36,4 +37,5 @@ export const migrations: Migration[] = [
   { name: '0014-instrument-standards', ...m0014 },
   { name: '0020-lists-at-scale', ...m0020 },
   { name: '0030-api-tokens', ...m0030 },
+  { name: '0031-audit-index', ...m0031 },
 ]

@@ -1,8 +1,8 @@
-import { Op, QueryTypes, literal } from 'sequelize'
+import { Op, QueryTypes } from 'sequelize'
 import { agreementFraction, classAgreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
-import { Campaign, Classification, Instrument, LibraryVersion, LibraryVersionStandard, ReviewCall, Spectrum, Standard, Suggestion, User } from '../models'
+import { Campaign, Instrument, LibraryVersion, ReviewCall, User } from '../models'
 import type {
   AccuracyFigures,
   AgreementFigures,
@@ -74,6 +74,19 @@ export function isoWeek(date: Date): string {
   return `${d.getUTCFullYear()}-W${String(week).padStart(2, '0')}`
 }
 
+const weeksByDay = new Map<number, string>()
+/** isoWeek, worked out once per UTC day: an audit asks it for every call. */
+function weekOf(date: Date): string {
+  const day = Math.floor(date.getTime() / 86_400_000)
+  let week = weeksByDay.get(day)
+  if (week === undefined) {
+    week = isoWeek(date)
+    if (weeksByDay.size > 100_000) weeksByDay.clear()
+    weeksByDay.set(day, week)
+  }
+  return week
+}
+
 /**
  * The categories of the numeric type scale between the lowest and highest code: every half subtype,
  * plus any finer value used, so that weighted κ counts an unused subtype as a step (Cohen 1968 weights
@@ -126,9 +139,14 @@ export function consensusOf(spectrum: AuditSpectrum | undefined, calls: AuditCal
 }
 
 const letterOf = (code: number) => MK_LETTERS[Math.min(MK_LETTERS.length - 1, Math.max(0, Math.floor(code / 10)))]!.letter
+const classLabels = new Map<number, string>()
+/** The nearest luminosity class; a handful of codes recur over every call, so each is worked out once. */
 const classLabel = (code: number) => {
+  const known = classLabels.get(code)
+  if (known !== undefined) return known
   let best = LUMINOSITY_CLASSES[0]!
   for (const c of LUMINOSITY_CLASSES) if (Math.abs(c.code - code) < Math.abs(best.code - code)) best = c
+  classLabels.set(code, best.text)
   return best.text
 }
 
@@ -335,7 +353,7 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
       callsVsConsensus: typeAndClassMatrices(callConsensusPairs, 'call', 'consensus'),
       suggestionVsConsensus: typeAndClassMatrices(suggestionConsensusPairs, 'suggestion', 'consensus'),
     },
-    byWeek: groupFigures((c) => isoWeek(c.at)),
+    byWeek: groupFigures((c) => weekOf(c.at)),
     byLibraryVersion: groupFigures((c) => info.get(c.spectrumId)?.suggestion?.libraryVersion ?? null),
     blind: {
       shown: {
@@ -419,7 +437,7 @@ export function suggestionAccuracy(items: readonly AccuracyItem[]): SuggestionAc
       })
       const weeks = new Map<string, AccuracyItem[]>()
       for (const i of list) {
-        const week = isoWeek(i.madeAt)
+        const week = weekOf(i.madeAt)
         const group = weeks.get(week)
         if (group) group.push(i)
         else weeks.set(week, [i])
@@ -445,50 +463,106 @@ export function suggestionAccuracy(items: readonly AccuracyItem[]): SuggestionAc
 // Loading
 // ---------------------------------------------------------------------------------------------
 
-/** The suggestions of the campaign's decided spectra made in the range, as AccuracyItems. */
-async function accuracyItems(campaignId: number, range: { from?: Date | undefined; to?: Date | undefined }): Promise<AccuracyItem[]> {
-  const spectra = await Spectrum.findAll({ where: { campaignId }, attributes: ['id', 'instrumentId'] })
-  if (spectra.length === 0) return []
-  const decisions = await Classification.findAll({ where: { spectrumId: { [Op.in]: spectra.map((s) => s.id) } }, order: [['id', 'ASC']] })
-  const decision = new Map<number, Classification>()
-  for (const d of decisions) decision.set(d.spectrumId, d)
-  if (decision.size === 0) return []
-  const when: Record<symbol, Date> = {}
-  if (range.from) when[Op.gte] = range.from
-  if (range.to) when[Op.lt] = range.to
-  const suggestions = await Suggestion.findAll({
-    where: { spectrumId: { [Op.in]: [...decision.keys()] }, ...(range.from || range.to ? { createdAt: when } : {}) },
-    // Only the share is needed: reading it in SQL spares parsing every suggestion's details here.
-    attributes: ['id', 'spectrumId', 'libraryVersionId', 'typeCode', 'classCode', 'createdAt', [literal("JSON_VALUE(details, '$.standards.instrumentShare.type')"), 'ownShare']],
-    order: [['id', 'ASC']],
-  })
-  const latest = new Map<string, Suggestion>()
-  for (const s of suggestions) latest.set(`${s.spectrumId}|${s.libraryVersionId}`, s)
-  const versionIds = [...new Set(suggestions.map((s) => s.libraryVersionId))]
-  const [versions, selfStandards] = await Promise.all([
-    LibraryVersion.findAll({ where: { id: { [Op.in]: versionIds.length ? versionIds : [0] } }, attributes: ['id', 'name', 'publishedAt'] }),
-    Standard.findAll({ where: { spectrumId: { [Op.in]: [...decision.keys()] } }, attributes: ['id', 'spectrumId'] }),
+type Decisions = Map<number, { typeCode: number; classCode: number }>
+
+/**
+ * A DATETIME column as microseconds since 1970 (the stored UTC text, no time zone involved): the
+ * driver's date parsing of a hundred thousand rows costs more than the rest of the reading.
+ */
+const microseconds = (column: string) => `TIMESTAMPDIFF(MICROSECOND, '1970-01-01 00:00:00', ${column})`
+const dateOf = (us: number | bigint) => new Date(Number(us) / 1000)
+
+/** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
+const sqlTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ')
+
+/**
+ * Plain rows straight from the driver, without the ORM's conversion of every field (it more than
+ * doubles the cost of reading a hundred thousand rows). Only numbers and text are read this way:
+ * times come as microseconds and go in as UTC text, so no date handling is involved.
+ */
+async function rows<T>(sql: string, values: Record<string, Date | number | null>): Promise<T[]> {
+  const manager = ReviewCall.sequelize!.connectionManager
+  const connection = (await manager.getConnection({ type: 'read' })) as unknown as { query(options: object, values: object): Promise<T[]> }
+  try {
+    const plain = Object.fromEntries(Object.entries(values).map(([k, v]) => [k, v instanceof Date ? sqlTime(v) : v]))
+    return await connection.query({ sql, namedPlaceholders: true, typeCast: undefined }, plain)
+  } finally {
+    manager.releaseConnection(connection as never)
+  }
+}
+
+/** The decided classification of each of the campaign's spectra: the latest row. */
+async function loadDecisions(campaignId: number): Promise<Decisions> {
+  const decided = await rows<{ spectrum_id: number; type_code: number; class_code: number }>(
+    `SELECT c.spectrum_id, c.type_code, c.class_code FROM classifications c JOIN spectra sp ON sp.id = c.spectrum_id
+     WHERE sp.campaign_id = :campaign ORDER BY c.id`,
+    { campaign: campaignId },
+  )
+  const latest: Decisions = new Map()
+  for (const d of decided) latest.set(Number(d.spectrum_id), { typeCode: Number(d.type_code), classCode: Number(d.class_code) })
+  return latest
+}
+
+/**
+ * The suggestions of the campaign's decided spectra made in the range, as AccuracyItems: read by
+ * campaign in one joined query (no id lists), only the columns the figures use.
+ */
+async function accuracyItems(campaignId: number, range: { from?: Date | undefined; to?: Date | undefined }, decisions: Promise<Decisions>): Promise<AccuracyItem[]> {
+  const r = { campaign: campaignId, from: range.from ?? null, to: range.to ?? null }
+  const [decision, suggestions, selfStandards] = await Promise.all([
+    decisions,
+    // suggestions_audit (migration 0031) covers every column read here, the share included.
+    rows<{ spectrum_id: number; library_version_id: number; type_code: number; class_code: number; created_us: number | bigint; own_share: string | number | null; instrument_id: number | null }>(
+      `SELECT sg.spectrum_id, sg.library_version_id, sg.type_code, sg.class_code, ${microseconds('sg.created_at')} AS created_us,
+              sg.own_share, sp.instrument_id
+       FROM suggestions sg JOIN spectra sp ON sp.id = sg.spectrum_id
+       WHERE sp.campaign_id = :campaign AND EXISTS (SELECT 1 FROM classifications c WHERE c.spectrum_id = sg.spectrum_id)
+         ${range.from ? 'AND sg.created_at >= :from' : ''} ${range.to ? 'AND sg.created_at < :to' : ''}
+       ORDER BY sg.id`,
+      r,
+    ),
+    rows<{ spectrum_id: number; version_id: number }>(
+      `SELECT st.spectrum_id, l.version_id FROM standards st JOIN spectra sp ON sp.id = st.spectrum_id
+       JOIN library_version_standards l ON l.standard_id = st.id
+       WHERE sp.campaign_id = :campaign AND EXISTS (SELECT 1 FROM classifications c WHERE c.spectrum_id = st.spectrum_id)`,
+      r,
+    ),
   ])
-  const links = selfStandards.length ? await LibraryVersionStandard.findAll({ where: { standardId: { [Op.in]: selfStandards.map((s) => s.id) } } }) : []
-  const spectrumOfStandard = new Map(selfStandards.map((s) => [s.id, s.spectrumId!]))
-  const isOwnStandard = new Set(links.map((l) => `${spectrumOfStandard.get(l.standardId)}|${l.versionId}`))
+  if (decision.size === 0) return []
+  // The latest suggestion of each spectrum and version, in the order the pairs first appear.
+  const latest = new Map<string, (typeof suggestions)[number]>()
+  for (const s of suggestions) latest.set(`${s.spectrum_id}|${s.library_version_id}`, s)
+  const versionIds = [...new Set(suggestions.map((s) => Number(s.library_version_id)))]
+  const instrumentIds = [
+    ...new Set(
+      suggestions
+        .map((s) => s.instrument_id)
+        .filter((i): i is number => i !== null)
+        .map(Number),
+    ),
+  ]
+  const [versions, instruments] = await Promise.all([
+    LibraryVersion.findAll({ where: { id: { [Op.in]: versionIds.length ? versionIds : [0] } }, attributes: ['id', 'name', 'publishedAt'] }),
+    instrumentIds.length ? Instrument.findAll({ where: { id: { [Op.in]: instrumentIds } }, attributes: ['id', 'name'] }) : [],
+  ])
+  const isOwnStandard = new Set(selfStandards.map((l) => `${l.spectrum_id}|${l.version_id}`))
   const versionOf = new Map(versions.map((v) => [v.id, v]))
-  const instrumentIds = [...new Set(spectra.map((s) => s.instrumentId).filter((i): i is number => i !== null))]
-  const names = new Map((instrumentIds.length ? await Instrument.findAll({ where: { id: { [Op.in]: instrumentIds } }, attributes: ['id', 'name'] }) : []).map((i) => [i.id, i.name]))
-  const instrumentOf = new Map(spectra.map((s) => [s.id, s.instrumentId]))
+  const names = new Map(instruments.map((i) => [i.id, i.name]))
   const out: AccuracyItem[] = []
   for (const [key, s] of latest) {
     if (isOwnStandard.has(key)) continue
-    const d = decision.get(s.spectrumId)!
-    const v = versionOf.get(s.libraryVersionId)
-    const instrumentId = instrumentOf.get(s.spectrumId) ?? null
-    const share = s.get('ownShare') as string | number | null
+    const spectrumId = Number(s.spectrum_id)
+    const versionId = Number(s.library_version_id)
+    const d = decision.get(spectrumId)!
+    const v = versionOf.get(versionId)
+    const instrumentId = s.instrument_id === null ? null : Number(s.instrument_id)
+    const share = s.own_share
     out.push({
-      spectrumId: s.spectrumId,
+      spectrumId,
       instrument: { id: instrumentId, name: instrumentId === null ? 'No instrument' : (names.get(instrumentId) ?? `#${instrumentId}`) },
-      version: { id: s.libraryVersionId, name: v?.name ?? `#${s.libraryVersionId}`, publishedAt: v?.publishedAt ?? null },
-      madeAt: s.createdAt,
-      suggestion: { typeCode: s.typeCode, classCode: s.classCode },
+      version: { id: versionId, name: v?.name ?? `#${versionId}`, publishedAt: v?.publishedAt ?? null },
+      madeAt: dateOf(s.created_us),
+      suggestion: { typeCode: Number(s.type_code), classCode: Number(s.class_code) },
       decision: { typeCode: d.typeCode, classCode: d.classCode },
       ownShare: share === null || share === undefined ? null : Number(share),
     })
@@ -505,71 +579,75 @@ interface CallRow {
   user_id: number
   type_code: number
   class_code: number
-  created_at: Date
+  created_us: number | bigint
   seconds_spent: number | null
   suggestion_shown: number
   accepted_suggestion: number
   suggestion_id: number | null
+  /** The suggestion the call names, when it belongs to the same spectrum. */
+  shown_type_code: number | null
+  shown_class_code: number | null
+  shown_version_id: number | null
+}
+
+interface SuggestionRef {
+  type_code: number
+  class_code: number
+  library_version_id: number
 }
 
 /**
- * The rows the audit needs, read by campaign through indexes in four queries (no per-spectrum
- * lookups), as plain AuditCall and AuditSpectrum values.
+ * The rows the audit needs, read by campaign through indexes (no per-spectrum lookups and no
+ * dependent subqueries), as plain AuditCall and AuditSpectrum values. Each call row brings the
+ * suggestion it names; the current suggestion is read only for spectra whose calls name none.
  */
-export async function loadAuditInputs(query: AuditQuery): Promise<{ calls: AuditCall[]; spectra: AuditSpectrum[] }> {
-  const sequelize = ReviewCall.sequelize!
+export async function loadAuditInputs(query: AuditQuery, decisions?: Promise<Decisions>): Promise<{ calls: AuditCall[]; spectra: AuditSpectrum[] }> {
   const r = { campaign: query.campaignId, from: query.from ?? null, to: query.to ?? null }
-  const rows = await sequelize.query<CallRow>(
-    `SELECT rc.id, rc.spectrum_id, rc.user_id, rc.type_code, rc.class_code, rc.created_at, rc.seconds_spent,
-            rc.suggestion_shown, rc.accepted_suggestion, rc.suggestion_id
-     FROM review_calls rc JOIN spectra sp ON sp.id = rc.spectrum_id
-     WHERE sp.campaign_id = :campaign ${query.from ? 'AND rc.created_at >= :from' : ''} ${query.to ? 'AND rc.created_at < :to' : ''}
-     ORDER BY rc.id`,
-    { replacements: r, type: QueryTypes.SELECT },
-  )
+  const [all, users, versions, latestDecision] = await Promise.all([
+    // The named suggestion is read through suggestions_audit (migration 0031), which holds every
+    // column used here: by its primary key the large row itself would be read, from disk at scale.
+    rows<CallRow>(
+      `SELECT rc.id, rc.spectrum_id, rc.user_id, rc.type_code, rc.class_code, ${microseconds('rc.created_at')} AS created_us, rc.seconds_spent,
+              rc.suggestion_shown, rc.accepted_suggestion, rc.suggestion_id,
+              sg.type_code AS shown_type_code, sg.class_code AS shown_class_code, sg.library_version_id AS shown_version_id
+       FROM review_calls rc JOIN spectra sp ON sp.id = rc.spectrum_id
+       LEFT JOIN suggestions sg FORCE INDEX (suggestions_audit) ON sg.spectrum_id = rc.spectrum_id AND sg.id = rc.suggestion_id
+       WHERE sp.campaign_id = :campaign ${query.from ? 'AND rc.created_at >= :from' : ''} ${query.to ? 'AND rc.created_at < :to' : ''}
+       ORDER BY rc.id`,
+      r,
+    ),
+    User.findAll({ attributes: ['id', 'name'], raw: true }),
+    LibraryVersion.findAll({ attributes: ['id', 'name'], raw: true }),
+    decisions ?? loadDecisions(query.campaignId),
+  ])
   // The standing call of each person on each spectrum: the latest row.
   const standing = new Map<string, CallRow>()
-  for (const row of rows) standing.set(`${row.spectrum_id}:${row.user_id}`, row)
+  for (const row of all) standing.set(`${row.spectrum_id}:${row.user_id}`, row)
   const calls = [...standing.values()]
   // The suggestion the calls were made against (the first standing call that names one), else the current one.
-  const shownOf = new Map<number, number>()
-  for (const c of calls) if (c.suggestion_id !== null && !shownOf.has(c.spectrum_id)) shownOf.set(c.spectrum_id, Number(c.suggestion_id))
-
-  const [users, suggestions, versions, decisions] = await Promise.all([
-    calls.length ? User.findAll({ where: { id: { [Op.in]: [...new Set(calls.map((c) => c.user_id))] } }, attributes: ['id', 'name'], raw: true }) : [],
-    calls.length
-      ? sequelize.query<{ id: number; spectrum_id: number; type_code: number; class_code: number; library_version_id: number; is_current: number }>(
-          `SELECT sg.id, sg.spectrum_id, sg.type_code, sg.class_code, sg.library_version_id, sg.is_current
-           FROM suggestions sg JOIN spectra sp ON sp.id = sg.spectrum_id
-           WHERE sp.campaign_id = :campaign
-             AND (sg.is_current = 1 OR sg.id IN (SELECT rc.suggestion_id FROM review_calls rc WHERE rc.spectrum_id = sg.spectrum_id))`,
-          { replacements: r, type: QueryTypes.SELECT },
-        )
-      : [],
-    LibraryVersion.findAll({ attributes: ['id', 'name'], raw: true }),
-    calls.length
-      ? sequelize.query<{ spectrum_id: number; type_code: number; class_code: number }>(
-          `SELECT c.spectrum_id, c.type_code, c.class_code FROM classifications c JOIN spectra sp ON sp.id = c.spectrum_id
-           WHERE sp.campaign_id = :campaign ORDER BY c.id`,
-          { replacements: r, type: QueryTypes.SELECT },
-        )
-      : [],
-  ])
+  const shownOf = new Map<number, CallRow>()
+  for (const c of calls) if (c.suggestion_id !== null && !shownOf.has(c.spectrum_id)) shownOf.set(c.spectrum_id, c)
+  const called = [...new Set(calls.map((c) => c.spectrum_id))]
+  const withoutShown = called.filter((id) => shownOf.get(id)?.shown_type_code == null)
+  const current = new Map<number, SuggestionRef>()
+  if (withoutShown.length > 0) {
+    const currentRows = await rows<SuggestionRef & { spectrum_id: number }>(
+      `SELECT sg.spectrum_id, sg.type_code, sg.class_code, sg.library_version_id FROM suggestions sg JOIN spectra sp ON sp.id = sg.spectrum_id
+       WHERE sp.campaign_id = :campaign AND sg.is_current = 1 ORDER BY sg.id`,
+      r,
+    )
+    for (const s of currentRows) current.set(Number(s.spectrum_id), s)
+  }
   const names = new Map(users.map((u) => [u.id, u.name]))
   const versionName = new Map(versions.map((v) => [v.id, v.name]))
-  const byId = new Map(suggestions.map((s) => [Number(s.id), s]))
-  const current = new Map<number, (typeof suggestions)[number]>()
-  for (const s of suggestions) if (Number(s.is_current) === 1) current.set(Number(s.spectrum_id), s)
-  const latestDecision = new Map<number, { typeCode: number; classCode: number }>()
-  for (const d of decisions) latestDecision.set(Number(d.spectrum_id), { typeCode: Number(d.type_code), classCode: Number(d.class_code) })
 
-  const called = [...new Set(calls.map((c) => c.spectrum_id))]
   const spectra: AuditSpectrum[] = called.map((id) => {
     const shown = shownOf.get(id)
-    const s = (shown !== undefined ? byId.get(shown) : undefined) ?? current.get(id)
+    const s: SuggestionRef | undefined =
+      shown && shown.shown_type_code != null ? { type_code: shown.shown_type_code, class_code: shown.shown_class_code!, library_version_id: shown.shown_version_id! } : current.get(id)
     return {
       spectrumId: id,
-      suggestion: s ? { typeCode: Number(s.type_code), classCode: Number(s.class_code), libraryVersion: versionName.get(s.library_version_id) ?? `#${s.library_version_id}` } : null,
+      suggestion: s ? { typeCode: Number(s.type_code), classCode: Number(s.class_code), libraryVersion: versionName.get(Number(s.library_version_id)) ?? `#${s.library_version_id}` } : null,
       decision: latestDecision.get(id) ?? null,
     }
   })
@@ -579,7 +657,7 @@ export async function loadAuditInputs(query: AuditQuery): Promise<{ calls: Audit
     classifierName: names.get(c.user_id) ?? `#${c.user_id}`,
     typeCode: Number(c.type_code),
     classCode: Number(c.class_code),
-    at: new Date(c.created_at),
+    at: dateOf(c.created_us),
     secondsSpent: c.seconds_spent === null ? null : Number(c.seconds_spent),
     suggestionShown: Boolean(Number(c.suggestion_shown)),
     acceptedSuggestion: Boolean(Number(c.accepted_suggestion)),
@@ -596,13 +674,15 @@ export interface AuditCampaignRef {
 
 /** The audit report as the API sends it (`{ "audit": … }`), as JSON text. */
 export async function auditReportJson(query: AuditQuery, campaign: AuditCampaignRef): Promise<string> {
-  const { calls, spectra } = await loadAuditInputs(query)
+  // Read once for both parts, at the same time as the rest.
+  const decisions = loadDecisions(query.campaignId)
+  const [{ calls, spectra }, accuracy] = await Promise.all([loadAuditInputs(query, decisions), accuracyItems(campaign.id, query, decisions)])
   const report: AuditReport = {
     campaign: { id: campaign.id, code: campaign.code, name: campaign.name },
     from: query.from?.toISOString() ?? null,
     to: query.to?.toISOString() ?? null,
     ...auditFigures(calls, spectra),
-    suggestionAccuracy: suggestionAccuracy(await accuracyItems(campaign.id, query)),
+    suggestionAccuracy: suggestionAccuracy(accuracy),
   }
   return JSON.stringify({ audit: report })
 }

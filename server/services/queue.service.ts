@@ -1,12 +1,12 @@
 import { Op, QueryTypes, UniqueConstraintError } from 'sequelize'
 import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
-import { Campaign, ReviewCall, ReviewClaim, Spectrum, Suggestion, type User } from '../models'
+import { ReviewCall, ReviewClaim, type Spectrum, type User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
 import { OPEN_FOR_CALLS } from '../review/consensus'
-import { namesOf, suggestionFlags, toClaimView, toSuggestionView, type ClaimView } from './review.service'
+import { namesOf, toClaimView, type ClaimView } from './review.service'
 import { findVisibleSpectrum } from './visibility'
-import type { QueueItem, QueueOrder, QueuePage, QueueQuery, QueueSuggestion } from '../../shared/api/queue'
+import type { QueueItem, QueueOrder, QueuePage, QueueQuery } from '../../shared/api/queue'
 
 export type { QueueItem, QueueOrder }
 
@@ -18,6 +18,9 @@ export type { QueueQuery }
 /** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
 const sqlTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ')
 
+/** A stored UTC DATETIME(3) as ISO 8601 text, written by the database: parsing a few hundred dates per page in JS shows in the profile. */
+const isoText = (column: string) => `CONCAT(LEFT(DATE_FORMAT(${column}, '%Y-%m-%dT%H:%i:%s.%f'), 23), 'Z')`
+
 /** Each order is the column order of one spectra index (migration 0020); NULL S/N sorts last under DESC. */
 const ORDER_SQL: Record<QueueOrder, { index: string; sql: string }> = {
   oldest: { index: 'spectra_queue_oldest', sql: 'sp.created_at ASC, sp.id ASC' },
@@ -25,13 +28,22 @@ const ORDER_SQL: Record<QueueOrder, { index: string; sql: string }> = {
   flagged: { index: 'spectra_queue_flagged', sql: 'sp.flag_count DESC, sp.created_at ASC, sp.id ASC' },
 }
 
+interface QueuePageSql {
+  /** SELECT of the ids, in queue order, up to the limit. */
+  sql: string
+  replacements: Record<string, unknown>
+  /** ORDER BY of the queue order, on `sp`. */
+  order: string
+}
+
 /**
- * Ids of the spectra that still need this user's call, in queue order. `keep` stays in the list even
- * after the user has called on or released it, so "the item after it" can be found.
+ * The query of the ids of the spectra that still need this user's call, in queue order (null: the
+ * user sees no campaign). `keep` stays in the list even after the user has called on or released
+ * it, so "the item after it" can be found.
  */
-async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery, now: Date, keep?: number): Promise<number[]> {
+async function queuePageSql(user: User, q: QueueQuery, now: Date, keep?: number): Promise<QueuePageSql | null> {
   const campaigns = await campaignIdsOf(user)
-  if (campaigns !== 'all' && campaigns.length === 0) return []
+  if (campaigns !== 'all' && campaigns.length === 0) return null
   // open_for_calls is stored as status IN OPEN_FOR_CALLS (migration 0020).
   const where: string[] = ['sp.open_for_calls = 1', 'sp.submitted_by <> :uid']
   const r: Record<string, unknown> = { uid: user.id, now: sqlTime(now), limit: q.limit }
@@ -82,54 +94,128 @@ async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: Queue
     WHERE ${where.join('\n      AND ')}
     ORDER BY ${ORDER_SQL[q.order].sql}
     LIMIT :limit`
-  const rows = await ctx.sequelize.query<{ id: number }>(sql, { replacements: r, type: QueryTypes.SELECT })
+  return { sql, replacements: r, order: ORDER_SQL[q.order].sql }
+}
+
+/** The ids of `queuePageSql`, in queue order. */
+async function queueIds(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery, now: Date, keep?: number): Promise<number[]> {
+  const page = await queuePageSql(user, q, now, keep)
+  if (!page) return []
+  const rows = await ctx.sequelize.query<{ id: number }>(page.sql, { replacements: page.replacements, type: QueryTypes.SELECT })
   return rows.map((row) => Number(row.id))
 }
 
-function toQueueSuggestion(s: Suggestion): QueueSuggestion {
-  const { candidates: _c, votes: _v, ...rest } = toSuggestionView(s)
-  return rest
+interface QueueRow {
+  id: number
+  object_name: string
+  snr: number | null
+  created_at: string
+  status: string
+  extra_calls: number
+  campaign_id: number
+  campaign_code: string
+  campaign_name: string
+  blind_review: number
+  calls_required: number
+  callers: number
+  called: number
+  claimed_at: string | null
+  claim_expires_at: string | null
+  sg_id: number | null
+  spectral_type: string
+  letter: string
+  subtype: number
+  type_code: number
+  luminosity_class: string
+  class_code: number
+  uncertainty_subtypes: number
+  uncertainty_classes: number
+  library_version_id: number
+  pipeline_version: string
+  best_standard_id: number | null
+  flags: string | null
+  sg_created_at: string
 }
 
-async function queueItems(user: User, ids: number[], now: Date): Promise<QueueItem[]> {
-  if (ids.length === 0) return []
-  const [spectra, suggestions, calls, claims] = await Promise.all([
-    // Plain rows (raw): a page holds a few hundred, and model instances cost more than the query.
-    Spectrum.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'objectName', 'campaignId', 'snr', 'createdAt', 'status', 'extraCalls'], raw: true }),
-    // The standards, criteria and probability grid are the bulk of a suggestion row; a queue row shows the call.
-    Suggestion.findAll({ where: { spectrumId: { [Op.in]: ids }, isCurrent: true }, attributes: { exclude: ['probabilities', 'candidates', 'votes'] }, order: [['id', 'ASC']], raw: true }),
-    ReviewCall.findAll({ where: { spectrumId: { [Op.in]: ids } }, attributes: ['spectrumId', 'userId'], raw: true }),
-    ReviewClaim.findAll({ where: { spectrumId: { [Op.in]: ids }, userId: user.id, expiresAt: { [Op.gt]: now } } }),
-  ])
-  const campaigns = new Map((await Campaign.findAll({ where: { id: { [Op.in]: [...new Set(spectra.map((s) => s.campaignId))] } } })).map((c) => [c.id, c]))
-  const byId = new Map(spectra.map((s) => [s.id, s]))
-  const suggestionOf = new Map(suggestions.map((s) => [s.spectrumId, s]))
-  const callers = new Map<number, Set<number>>()
-  for (const c of calls) {
-    if (!callers.has(c.spectrumId)) callers.set(c.spectrumId, new Set())
-    callers.get(c.spectrumId)!.add(c.userId)
+function parseFlags(text: string | null): string[] {
+  if (!text) return []
+  try {
+    return JSON.parse(text) as string[]
+  } catch {
+    return []
   }
-  const claimOf = new Map(claims.map((c) => [c.spectrumId, c]))
-  return ids.flatMap((id) => {
-    const s = byId.get(id)
-    const campaign = s && campaigns.get(s.campaignId)
-    if (!s || !campaign) return []
-    const suggestion = suggestionOf.get(id) ?? null
-    const claim = claimOf.get(id)
-    const hidden = campaign.blindReview && !callers.get(id)?.has(user.id)
+}
+
+/**
+ * The rows of the given spectra in one query: spectrum, campaign, current suggestion (its call and
+ * uncertainty; candidates, votes, details and the probability grid stay with the review screen),
+ * the caller's claim and the number of people who called. Every join is a key lookup.
+ */
+async function queueItems(ctx: Pick<AppContext, 'sequelize'>, user: User, of: number[] | QueuePageSql, now: Date): Promise<QueueItem[]> {
+  if (Array.isArray(of) && of.length === 0) return []
+  // A page is read in the same statement as its ids (a derived table of at most `limit` rows).
+  const source = Array.isArray(of)
+    ? { from: 'spectra sp', where: 'WHERE sp.id IN (:ids)', order: 'sg.id', replacements: { ids: of } }
+    : { from: `(${of.sql}) page JOIN spectra sp ON sp.id = page.id`, where: '', order: `${of.order}, sg.id`, replacements: of.replacements }
+  // RAW: the driver's rows as they are; a SELECT would copy every row into a new object first.
+  const [rows] = (await ctx.sequelize.query(
+    `SELECT sp.id, sp.object_name, sp.snr, ${isoText('sp.created_at')} AS created_at, sp.status, sp.extra_calls,
+            c.id AS campaign_id, c.code AS campaign_code, c.name AS campaign_name, c.blind_review, c.calls_required,
+            (SELECT COUNT(DISTINCT rc.user_id) FROM review_calls rc WHERE rc.spectrum_id = sp.id) AS callers,
+            EXISTS (SELECT 1 FROM review_calls rc WHERE rc.spectrum_id = sp.id AND rc.user_id = :uid) AS called,
+            ${isoText('cl.claimed_at')} AS claimed_at, ${isoText('cl.expires_at')} AS claim_expires_at,
+            sg.id AS sg_id, sg.spectral_type, sg.letter, sg.subtype, sg.type_code, sg.luminosity_class, sg.class_code,
+            sg.uncertainty_subtypes, sg.uncertainty_classes, sg.library_version_id, sg.pipeline_version, sg.best_standard_id,
+            sg.flags, ${isoText('sg.created_at')} AS sg_created_at
+     FROM ${source.from}
+     JOIN campaigns c ON c.id = sp.campaign_id
+     LEFT JOIN suggestions sg ON sg.spectrum_id = sp.id AND sg.is_current = 1
+     LEFT JOIN review_claims cl ON cl.spectrum_id = sp.id AND cl.user_id = :uid AND cl.expires_at > :now
+     ${source.where}
+     ORDER BY ${source.order}`,
+    { replacements: { ...source.replacements, uid: user.id, now: sqlTime(now) }, type: QueryTypes.RAW },
+  )) as [QueueRow[], unknown]
+  // The newest current suggestion wins should a spectrum ever hold two.
+  const byId = new Map(rows.map((r) => [Number(r.id), r]))
+  const ids = Array.isArray(of) ? of : [...byId.keys()]
+  return ids.flatMap((id): QueueItem[] => {
+    const r = byId.get(id)
+    if (!r) return []
+    const blind = Boolean(Number(r.blind_review))
+    const hasSuggestion = r.sg_id !== null
+    const hidden = blind && !Number(r.called)
+    const flags = hasSuggestion ? parseFlags(r.flags) : []
     return [
       {
         spectrumId: id,
-        objectName: s.objectName,
-        campaign: { id: campaign.id, code: campaign.code, name: campaign.name, blindReview: campaign.blindReview },
-        snr: s.snr,
-        flags: suggestionFlags(suggestion),
-        createdAt: s.createdAt.toISOString(),
-        status: s.status as QueueItem['status'],
-        claim: claim ? { state: 'mine' as const, claimedAt: claim.claimedAt.toISOString(), expiresAt: claim.expiresAt.toISOString() } : { state: 'free' as const },
-        calls: { count: callers.get(id)?.size ?? 0, needed: campaign.callsRequired + s.extraCalls },
-        suggestion: suggestion && !hidden ? toQueueSuggestion(suggestion) : null,
-        hidden: hidden && suggestion !== null,
+        objectName: r.object_name,
+        campaign: { id: Number(r.campaign_id), code: r.campaign_code, name: r.campaign_name, blindReview: blind },
+        snr: r.snr === null ? null : Number(r.snr),
+        flags,
+        createdAt: r.created_at,
+        status: r.status as QueueItem['status'],
+        claim: r.claimed_at && r.claim_expires_at ? { state: 'mine' as const, claimedAt: r.claimed_at, expiresAt: r.claim_expires_at } : { state: 'free' as const },
+        calls: { count: Number(r.callers), needed: Number(r.calls_required) + Number(r.extra_calls) },
+        suggestion:
+          hasSuggestion && !hidden
+            ? {
+                id: Number(r.sg_id),
+                spectralType: r.spectral_type,
+                letter: r.letter,
+                subtype: Number(r.subtype),
+                typeCode: Number(r.type_code),
+                luminosityClass: r.luminosity_class,
+                classCode: Number(r.class_code),
+                uncertaintySubtypes: Number(r.uncertainty_subtypes),
+                uncertaintyClasses: Number(r.uncertainty_classes),
+                libraryVersionId: Number(r.library_version_id),
+                pipelineVersion: r.pipeline_version,
+                bestStandardId: r.best_standard_id === null ? null : Number(r.best_standard_id),
+                flags,
+                createdAt: r.sg_created_at,
+              }
+            : null,
+        hidden: hidden && hasSuggestion,
       },
     ]
   })
@@ -137,7 +223,8 @@ async function queueItems(user: User, ids: number[], now: Date): Promise<QueueIt
 
 /** The caller's queue: their campaigns' suggested spectra that still need their call. */
 export async function listQueue(ctx: Pick<AppContext, 'sequelize'>, user: User, q: QueueQuery, now = new Date()): Promise<QueuePage> {
-  return { items: await queueItems(user, await queueIds(ctx, user, q, now), now), claimMinutes: CLAIM_MINUTES }
+  const page = await queuePageSql(user, q, now)
+  return { items: page ? await queueItems(ctx, user, page, now) : [], claimMinutes: CLAIM_MINUTES }
 }
 
 /** The item after `after` in the caller's queue (the first one without `after`), for working through it in order. */
@@ -146,7 +233,7 @@ export async function nextInQueue(ctx: Pick<AppContext, 'sequelize'>, user: User
   const at = q.after === undefined ? -1 : ids.indexOf(q.after)
   const next = ids.slice(at + 1).find((id) => id !== q.after)
   if (next === undefined) return { item: null }
-  const [item] = await queueItems(user, [next], now)
+  const [item] = await queueItems(ctx, user, [next], now)
   return { item: item ?? null }
 }
 

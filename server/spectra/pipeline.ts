@@ -1,6 +1,7 @@
 import { DEFAULT_CLASSIFICATION_REGION, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../shared/grid'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
+import { kthSmallest } from './prepare/stats'
 import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
 import { fitSpectrumAtLevel } from './match/classify'
 import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type StandardsUsed } from './match/instrument'
@@ -67,15 +68,14 @@ function subtractRunningMedian(values: Float64Array, wavelength: Float64Array, h
   const n = values.length
   const stride = 10
   const anchors: { i: number; m: number }[] = []
-  // Every third pixel of the window: the median moves slowly, and a typed sort is many times faster.
+  // Every third pixel of the window: the median moves slowly.
   const window = new Float64Array(Math.ceil(n / 3) + 2)
   for (let i = 0; i < n; i += stride) {
     if (!Number.isFinite(values[i]!)) continue
     let w = 0
     for (let j = i; j >= 0 && wavelength[i]! - wavelength[j]! <= halfWidth; j -= 3) if (Number.isFinite(values[j]!)) window[w++] = values[j]!
     for (let j = i + 3; j < n && wavelength[j]! - wavelength[i]! <= halfWidth; j += 3) if (Number.isFinite(values[j]!)) window[w++] = values[j]!
-    const sorted = window.subarray(0, w).sort()
-    anchors.push({ i, m: sorted[w >> 1]! })
+    anchors.push({ i, m: kthSmallest(window.subarray(0, w), w >> 1) })
   }
   const out = new Float64Array(n).fill(Number.NaN)
   let k = 0
@@ -330,7 +330,8 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
     const b = (m * sxy - sx * sy) / (m * sxx - sx * sx)
     const a = (sy - b * sx) / m
     const residual = new Float64Array(pixels)
-    const own = new Float64Array(pixels)
+    // The spectrum's own departure from 1, plus 1 again (kept as the two steps it always was).
+    const ownPlusOne = new Float64Array(pixels)
     for (let i = 0; i < pixels; i++) {
       const x = template[i]!
       const y = p.rectified[i + offset]!
@@ -338,22 +339,18 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
       // Outside 3900–5500 Å the continuum fits of spectrum and standard part ways (few points, steep blue ends).
       const used = p.mask[i + offset] === 0 && Number.isFinite(x) && Number.isFinite(y) && lambda >= EMISSION_RANGE[0] && lambda <= EMISSION_RANGE[1]
       residual[i] = used ? y - (a + b * x) : Number.NaN
-      own[i] = used ? y - 1 : Number.NaN
+      ownPlusOne[i] = 1 + (used ? y - 1 : Number.NaN)
     }
-    const emission = notStarEvidence(
-      library.wavelength,
-      Float64Array.from(own, (v) => 1 + v),
-      subtractRunningMedian(residual, library.wavelength, 150),
-      sigma,
-      level,
-      suggestion.typeCode,
-    )
+    const emission = notStarEvidence(library.wavelength, ownPlusOne, subtractRunningMedian(residual, library.wavelength, 150), sigma, level, suggestion.typeCode)
     if (emission) return emission.reason
   }
   // Beyond the standards' span only the rectified spectrum speaks: strong emission there (Hβ and
   // [O III] of a galaxy at z ≈ 0.1–0.3) away from Hα and He I.
   const wavelength = gridWavelengths(p.grid)
-  const red = Float64Array.from(p.rectified, (v, i) => (p.mask[i] !== 0 || wavelength[i]! < library.wavelength[library.pixels - 1]! ? Number.NaN : v))
+  // A loop: TypedArray.from with a mapping function is many times slower.
+  const red = new Float64Array(p.rectified.length)
+  const redFrom = library.wavelength[library.pixels - 1]!
+  for (let i = 0; i < red.length; i++) red[i] = p.mask[i] !== 0 || wavelength[i]! < redFrom ? Number.NaN : p.rectified[i]!
   const far = notStarEvidence(wavelength, red, red, Math.max(sigma, 0.05), level, suggestion.typeCode)
   if (far) return far.reason
   return null

@@ -2,7 +2,7 @@ import { Matrix, solve } from 'ml-matrix'
 import { continuumMaskRanges, findLine, TIO_BAND_IDS, type WavelengthRange } from '../../../shared/lines'
 import type { Spectrum1D } from '../../../shared/spectrum'
 import { assertSpectrum, isGoodPixel } from './guards'
-import { medianInPlace } from './stats'
+import { kthSmallest, medianInPlace } from './stats'
 
 export interface ContinuumOptions {
   /** Polynomial degree; by default one per 550 Å of covered span, between 1 and 8. @default undefined */
@@ -313,6 +313,5 @@ function fitChebyshev(basis: Float64Array, ys: Float64Array, ws: Float64Array, u
 
 /** The q-quantile (0–1) of the first n values, nearest rank; reorders the array. */
 function percentileInPlace(values: Float64Array, n: number, q: number): number {
-  const sorted = values.subarray(0, n).sort()
-  return sorted[Math.min(n - 1, Math.max(0, Math.round(q * (n - 1))))]!
+  return kthSmallest(values.subarray(0, n), Math.min(n - 1, Math.max(0, Math.round(q * (n - 1)))))
 }
