@@ -8,7 +8,7 @@
 // and current-suggestion rows are copied whole; the arrays and measurements are not (only the
 // review of an original spectrum reads them, and that is what is timed). Calls are made by SQL from
 // each suggestion (two classifiers on 62 % of the spectra, agreeing within a subtype), with the
-// decisions that follow, as in the measurement of today (100 000 spectra, 62 000 called).
+// decisions that follow (at 100 000 spectra, about 62 000 called).
 import { spawn, type ChildProcess } from 'node:child_process'
 import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { availableParallelism, loadavg, tmpdir } from 'node:os'
