@@ -38,33 +38,13 @@ function select(a: Float64Array, n: number, k: number): number {
 }
 
 /**
- * The value a full ascending sort puts at index k (0-based), found by selection (Hoare's
- * partitioning, as in Wirth's "Algorithms + Data Structures"): linear rather than n log n time.
- * Reorders `a`. NaN must not occur. A typed-array sort puts −0 before +0; selection sees them as
- * equal, so a zero result is given the sign the sort would have left at k.
+ * The value a full ascending sort puts at index k (0-based), found by selection (select):
+ * linear rather than n log n time. Reorders `a`. NaN must not occur. A typed-array sort puts −0
+ * before +0; selection sees them as equal, so a zero result is given the sign the sort would have
+ * left at k.
  */
 export function kthSmallest(a: Float64Array, k: number): number {
-  let lo = 0
-  let hi = a.length - 1
-  while (lo < hi) {
-    const pivot = a[k]!
-    let i = lo
-    let j = hi
-    do {
-      while (a[i]! < pivot) i++
-      while (pivot < a[j]!) j--
-      if (i <= j) {
-        const t = a[i]!
-        a[i] = a[j]!
-        a[j] = t
-        i++
-        j--
-      }
-    } while (i <= j)
-    if (j < k) lo = i
-    if (k < i) hi = j
-  }
-  const v = a[k]!
+  const v = select(a, a.length, k)
   if (v !== 0) return v
   let below = 0
   let negativeZeros = 0

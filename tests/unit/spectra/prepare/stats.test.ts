@@ -1,0 +1,32 @@
+// Selection against the plain sort it replaces (Float64Array.prototype.sort, the reference here).
+import { describe, expect, it } from 'vitest'
+import { kthSmallest, medianInPlace } from '../../../../server/spectra/prepare/stats'
+
+function random(seed: number): () => number {
+  let s = seed >>> 0
+  return () => (s = (1664525 * s + 1013904223) >>> 0) / 2 ** 32
+}
+
+describe('kthSmallest', () => {
+  it('gives what a full sort puts at every index, with ties and signed zeros', () => {
+    const next = random(7)
+    for (let trial = 0; trial < 200; trial++) {
+      const n = 1 + Math.floor(next() * 40)
+      const values = Float64Array.from({ length: n }, () => {
+        const r = next()
+        return r < 0.15 ? 0 : r < 0.3 ? -0 : Math.round((next() - 0.5) * 10) / 2
+      })
+      const sorted = values.slice().sort()
+      for (let k = 0; k < n; k++) expect(Object.is(kthSmallest(values.slice(), k), sorted[k]), `n ${n}, k ${k}`).toBe(true)
+    }
+  })
+})
+
+describe('medianInPlace', () => {
+  it('gives the sorted middle, or the mean of the two middles for even counts (as numpy.median; common practice)', () => {
+    expect(medianInPlace(Float64Array.from([5, 1, 3]), 3)).toBe(3)
+    expect(medianInPlace(Float64Array.from([4, 1, 3, 2]), 4)).toBe(2.5)
+    expect(medianInPlace(Float64Array.from([9, 9, 1, 7, 7, 0]), 6)).toBe(7)
+    expect(Number.isNaN(medianInPlace(new Float64Array(0), 0))).toBe(true)
+  })
+})
