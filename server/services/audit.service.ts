@@ -117,7 +117,8 @@ export function agreementFigures(a: { type: number[]; cls: number[] }, b: { type
     n,
     exactType: safe(n, () => agreementFraction(a.type, b.type, 0)),
     withinOneSubtype: safe(n, () => agreementFraction(a.type, b.type, 1)),
-    exactClass: safe(n, () => agreementFraction(a.cls, b.cls, 0)),
+    // As the per-version accuracy and the benchmark read classes: IV-V agrees with IV and with V.
+    exactClass: safe(n, () => classAgreementFraction(a.cls, b.cls)),
     withinOneClass: safe(n, () => agreementFraction(a.cls, b.cls, 1)),
     kappaClass: safe(n, () => cohenKappa(a.cls, b.cls)),
     weightedKappaTypeLinear: safe(n, () => weightedKappa(a.type, b.type, 'linear', { categories: scale })),

@@ -1,7 +1,7 @@
 import { randomBytes } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Campaign, Classification, LibraryVersion, Measurement, ReviewCall, Spectrum, Suggestion, type User } from '../../server/models'
-import { auditFigures, isoWeek, suggestionAccuracy, typeScale, type AccuracyItem, type AuditCall, type AuditSpectrum } from '../../server/services/audit.service'
+import { agreementFigures, auditFigures, isoWeek, suggestionAccuracy, typeScale, type AccuracyItem, type AuditCall, type AuditSpectrum } from '../../server/services/audit.service'
 import { weightedKappa } from '../../shared/agreement'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
 
@@ -64,6 +64,12 @@ describe('auditFigures', () => {
     // classifier 1: 20=20, 42=42, 15≠16 (within 1), 55=55
     expect(a.vsSuggestion[0]!.exactType.value).toBe(0.75)
     expect(a.vsSuggestion[0]!.withinOneSubtype.value).toBe(1)
+  })
+
+  it('reads an intermediate class as agreeing with its ends, as the MK system does (common practice)', () => {
+    // III-IV (4.5) against III and IV agrees; against V (one step off an end) it does not; Ib-II (2.5) against II agrees.
+    const f = agreementFigures({ type: [20, 20, 20, 20], cls: [4.5, 4.5, 4.5, 2.5] }, { type: [20, 20, 20, 20], cls: [4, 5, 6, 3] })
+    expect(f.exactClass.value).toBe(0.75)
   })
 
   it('gives each classifier a signed offset from the consensus, the median call time, and n', () => {
