@@ -21,10 +21,11 @@ export const MODEL_VERSION_NAME = 'model-v1'
  * Makes sure the default version exists: one `standards` row per standard of the shipped observed
  * library (template_id = its id, with star, source, published type and parameters) and a published
  * version holding them all. It becomes the active version when none is active or when the active
- * one is the old model library or an earlier shipped version (manifest.earlierVersions); the
- * standards the shipped version leaves out (retiredIn) are retired, and the versions holding them keep them. The model standards, where a database still has them, are retired:
- * on real stars they suggested the right type far less often (bench/results/accuracy.txt), so later
- * versions leave them out; versions already published keep them. Safe to call at every start.
+ * one is the old model library or an earlier shipped version (manifest.earlierVersions), never a
+ * team's own. The standards the shipped version leaves out (retiredIn) are retired, with the reason
+ * in their note; the versions holding them keep them. The model standards, where a database still
+ * has them, are retired too: on real stars they suggested the right type far less often
+ * (bench/results/accuracy.txt). Safe to call at every start.
  */
 export async function ensureDefaultLibrary(sequelize: Sequelize, observedDir = DEFAULT_OBSERVED_DIR): Promise<LibraryVersion> {
   const manifest = JSON.parse(readFileSync(join(observedDir, 'manifest.json'), 'utf8')) as ObservedLibraryManifest

@@ -21,6 +21,8 @@ export const BUILDER_VERSION = '2.0.0'
 export const LIBRARY_VERSION = 'observed-v2'
 /** The versions built before this one, whose standards stay loadable (their rows stay in flux.f32). */
 export const EARLIER_VERSIONS: readonly string[] = ['observed-v1']
+/** The first version that screens the published parameters (screenParameters). */
+const PARAMETER_SCREEN_SINCE = 'observed-v2'
 /** Range over which each spectrum is scaled to a median of 1, Å. */
 const NORMALISATION: [number, number] = [4500, 5500]
 
@@ -209,7 +211,7 @@ export function buildObservedLibrary(dataDir: string, outDir: string): ObservedL
       const contradiction = screenParameters({ teff: k.entry.teff, logg: k.entry.logg, feh: k.entry.feh, typeCode: k.entry.typeCode!, classCode: k.entry.classCode! })
       if (contradiction) {
         k.entry.excludedBecause = contradiction
-        k.entry.retiredIn = LIBRARY_VERSION
+        k.entry.retiredIn = PARAMETER_SCREEN_SINCE
       }
     })
   }
