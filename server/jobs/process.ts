@@ -130,16 +130,11 @@ export async function loadJob(spectrumId: number): Promise<{ input: WorkerTask; 
   }
   // The instrument's own standards are matched first; its resolution stands in for one the spectrum does not give.
   if (row.instrument_id !== null) input.instrumentId = Number(row.instrument_id)
-  const fwhm = resolutionFwhm(row.resolution_fwhm, row.resolving_power) ?? (row.instrument_id !== null ? row.instrument_fwhm : null) ?? undefined
+  const fwhm = resolutionFwhm(row.resolution_fwhm, row.resolving_power) ?? row.instrument_fwhm ?? undefined
   if (fwhm !== undefined) input.inputFwhm = fwhm
   const [min, max] = [Number(row.region_min ?? 0), Number(row.region_max ?? 0)]
-  if (row.region_min !== null && min > 0 && max > min) input.region = [min, max]
+  if (min > 0 && max > min) input.region = [min, max]
   return { input, versionId: row.version_id === null ? undefined : Number(row.version_id) }
-}
-
-/** The stored arrays and settings of a spectrum, as the pipeline takes them. */
-export async function loadInput(spectrumId: number): Promise<WorkerTask> {
-  return (await loadJob(spectrumId)).input
 }
 
 /**

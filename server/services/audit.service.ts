@@ -2,6 +2,7 @@ import { Op, QueryTypes } from 'sequelize'
 import { agreementFraction, classAgreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
+import { sqlTime } from '../lib/sql-time'
 import { Campaign, Instrument, LibraryVersion, ReviewCall, User } from '../models'
 import type {
   AccuracyFigures,
@@ -472,9 +473,6 @@ type Decisions = Map<number, { typeCode: number; classCode: number }>
  */
 const microseconds = (column: string) => `TIMESTAMPDIFF(MICROSECOND, '1970-01-01 00:00:00', ${column})`
 const dateOf = (us: number | bigint) => new Date(Number(us) / 1000)
-
-/** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
-const sqlTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ')
 
 /**
  * Plain rows straight from the driver, without the ORM's conversion of every field (it more than

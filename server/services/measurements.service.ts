@@ -4,6 +4,7 @@ import { gridWavelength } from '../../shared/grid'
 import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
 import { decimateMinMax } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
+import { sqlTime } from '../lib/sql-time'
 import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, type User } from '../models'
 import type { AppContext } from '../context'
 import type { PipelineOutput } from '../spectra/pipeline'
@@ -174,7 +175,7 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
     float32ToBuffer(p.rectified),
     Buffer.from(p.mask),
     output.seconds,
-    new Date().toISOString().slice(0, 23).replace('T', ' '),
+    sqlTime(new Date()),
   ]
   const suggestion = output.suggestion && libraryVersionId !== undefined ? output.suggestion : null
   const details = suggestion ? await suggestionDetails(suggestion, output.resolution, output.notes, output.standards, transaction) : null

@@ -4,7 +4,8 @@ import { HttpError } from '../lib/http-error'
 import { ReviewCall, ReviewClaim, type Spectrum, type User } from '../models'
 import { campaignIdsOf } from './campaigns.service'
 import { OPEN_FOR_CALLS } from '../review/consensus'
-import { namesOf, toClaimView, type ClaimView } from './review.service'
+import { namesOf, parseJson, toClaimView, type ClaimView } from './review.service'
+import { sqlTime } from '../lib/sql-time'
 import { findVisibleSpectrum } from './visibility'
 import type { QueueItem, QueueOrder, QueuePage, QueueQuery } from '../../shared/api/queue'
 
@@ -14,9 +15,6 @@ export type { QueueItem, QueueOrder }
 export const CLAIM_MINUTES = 10
 
 export type { QueueQuery }
-
-/** MariaDB DATETIME(3) text of a moment, in UTC as the connection stores it. */
-const sqlTime = (d: Date) => d.toISOString().slice(0, 23).replace('T', ' ')
 
 /** A stored UTC DATETIME(3) as ISO 8601 text, written by the database: parsing a few hundred dates per page in JS shows in the profile. */
 const isoText = (column: string) => `CONCAT(LEFT(DATE_FORMAT(${column}, '%Y-%m-%dT%H:%i:%s.%f'), 23), 'Z')`
@@ -137,15 +135,6 @@ interface QueueRow {
   sg_created_at: string
 }
 
-function parseFlags(text: string | null): string[] {
-  if (!text) return []
-  try {
-    return JSON.parse(text) as string[]
-  } catch {
-    return []
-  }
-}
-
 /**
  * The rows of the given spectra in one query: spectrum, campaign, current suggestion (its call and
  * uncertainty; candidates, votes, details and the probability grid stay with the review screen),
@@ -184,7 +173,7 @@ async function queueItems(ctx: Pick<AppContext, 'sequelize'>, user: User, of: nu
     const blind = Boolean(Number(r.blind_review))
     const hasSuggestion = r.sg_id !== null
     const hidden = blind && !Number(r.called)
-    const flags = hasSuggestion ? parseFlags(r.flags) : []
+    const flags = hasSuggestion ? parseJson<string[]>(r.flags, []) : []
     return [
       {
         spectrumId: id,

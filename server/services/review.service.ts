@@ -11,7 +11,8 @@ import type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInp
 
 export type { CallView, ClaimView, FinalClassification, PersonRef, RecordCallInput, RecordCallResult, ReviewCampaign, ReviewView, SuggestionView }
 
-const parseJson = <T>(text: string | null | undefined, fallback: T): T => {
+/** Parsed JSON text of a stored column, or `fallback` when it is empty or not JSON. */
+export const parseJson = <T>(text: string | null | undefined, fallback: T): T => {
   if (!text) return fallback
   try {
     return JSON.parse(text) as T

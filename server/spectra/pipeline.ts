@@ -330,7 +330,7 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
     const b = (m * sxy - sx * sy) / (m * sxx - sx * sx)
     const a = (sy - b * sx) / m
     const residual = new Float64Array(pixels)
-    // The spectrum's own departure from 1, plus 1 again (kept as the two steps it always was).
+    // 1 + (y − 1) rather than y: the rounding the two steps always had, so results stay bit-identical.
     const ownPlusOne = new Float64Array(pixels)
     for (let i = 0; i < pixels; i++) {
       const x = template[i]!

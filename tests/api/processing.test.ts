@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { claimJobs, loadInput, storeOutput, withRetry } from '../../server/jobs/process'
+import { claimJobs, loadJob, storeOutput, withRetry } from '../../server/jobs/process'
 import runTask from '../../server/jobs/worker'
 import { Campaign, CampaignMember, LineMeasurementRow, Measurement, ProcessingJob, Spectrum } from '../../server/models'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
@@ -90,7 +90,7 @@ describe(`processing off the request path (${process.env.QUEUE ?? 'database'} qu
     const claims = await Promise.all(Array.from({ length: 6 }, () => claimJobs(t.ctx.sequelize, 2, 60_000)))
     const claimed = claims.flat()
     expect(claimed.map((j) => j.spectrumId).sort((a, b) => a - b)).toEqual([...ids].sort((a, b) => a - b))
-    const outputs = await Promise.all(claimed.map(async (j) => ({ job: j, output: runTask(await loadInput(j.spectrumId)) })))
+    const outputs = await Promise.all(claimed.map(async (j) => ({ job: j, output: runTask((await loadJob(j.spectrumId)).input) })))
     await Promise.all(outputs.map(({ job, output }) => storeOutput(t.ctx.sequelize, job, output, undefined)))
     const jobs = await ProcessingJob.findAll({ where: { spectrumId: ids } })
     expect(jobs.map((j) => j.status)).toEqual(ids.map(() => 'done'))
