@@ -22,6 +22,7 @@ import { DEMO_ENTRIES, demoFits, demoObservation, demoText } from '../server/db/
 import { Campaign, CampaignMember, User } from '../server/models'
 import { ensureDefaultLibrary } from '../server/services/standards.service'
 import { hashPassword } from '../server/services/users.service'
+import { QUEUE_PAGE_SIZE } from '../shared/api/queue'
 
 const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000')
   .split(',')
@@ -289,6 +290,13 @@ async function growTo(size: number): Promise<void> {
        WHERE c.id > :first AND c.batch_id LIKE 'copy-of-%'`,
       { replacements: { first } },
     )
+    // The queue's flag filters read spectrum_flags, the index of the current suggestion's flags.
+    await sequelize.query(
+      `INSERT INTO spectrum_flags (spectrum_id, flag)
+       SELECT c.id, f.flag FROM spectra c JOIN spectrum_flags f ON f.spectrum_id = CAST(SUBSTRING(c.batch_id, 9) AS UNSIGNED)
+       WHERE c.id > :first AND c.batch_id LIKE 'copy-of-%'`,
+      { replacements: { first } },
+    )
     copies += take
     missing -= take
   }
@@ -361,6 +369,15 @@ for (const size of SIZES) {
   const [leadC, classifierC, observerC] = await Promise.all([Client.signIn(server.url, lead.email), Client.signIn(server.url, classifierA.email), Client.signIn(server.url, observer.email)])
   const original = originals[Math.floor(originals.length / 2)]!
   let page = 0
+  const flagsByUse = (
+    await sequelize.query<{ flag: string }>('SELECT f.flag FROM spectrum_flags f JOIN spectra s ON s.id = f.spectrum_id WHERE s.campaign_id = :c GROUP BY f.flag ORDER BY COUNT(*) DESC, f.flag', {
+      replacements: { c: campaign.id },
+      type: QueryTypes.SELECT,
+    })
+  ).map((r) => r.flag)
+  // The queue screen continues after the last item shown.
+  const firstPage = (await (await classifierC.request('GET', '/api/queue')).json()) as { items: Array<{ spectrumId: number }> }
+  const queueLast = firstPage.items.at(-1)?.spectrumId ?? ''
   const endpoints: Array<[string, Client, string | (() => string)]> = [
     ['list, default (newest first)', leadC, '/api/spectra?pageSize=25'],
     ['list, page 40', leadC, '/api/spectra?pageSize=25&page=40'],
@@ -374,9 +391,11 @@ for (const size of SIZES) {
     ['search, object name', leadC, () => `/api/spectra?pageSize=25&q=${encodeURIComponent(`KRF C${1000 + ((page++ * 37) % 5000)}`)}`],
     ['search, file name', leadC, '/api/spectra?pageSize=25&q=b1-17.fits'],
     ['queue, oldest', classifierC, `/api/queue`],
+    ['queue, oldest, the next page', classifierC, `/api/queue?after=${queueLast}`],
     ['queue, by S/N', classifierC, `/api/queue?order=snr`],
     ['queue, by flags', classifierC, `/api/queue?order=flagged`],
-    ['queue, flag filter', classifierC, `/api/queue?flags=low-snr`],
+    ['queue, flag filter (commonest flag)', classifierC, `/api/queue?flags=${flagsByUse.at(0) ?? 'low-snr'}`],
+    ['queue, flag filter (rarest flag)', classifierC, `/api/queue?flags=${flagsByUse.at(-1) ?? 'low-snr'}`],
     ['queue/next', classifierC, '/api/queue/next'],
     ['review screen (spectrum)', classifierC, `/api/spectra/${original}/review`],
     ['spectrum detail', leadC, `/api/spectra/${original}`],
@@ -436,6 +455,7 @@ lines.push(
 lines.push('| processing | files | seconds | spectra/s | failed jobs | refused files |', '| --- | ---: | ---: | ---: | ---: | ---: |')
 for (const r of ingests) lines.push(`| ${r.label} | ${r.files} | ${r.seconds.toFixed(1)} | ${r.perSecond.toFixed(1)} | ${r.failed} | ${r.refused} |`)
 lines.push('', '## Latency, ms (p50 / p95), concurrency 1 and 8', '')
+lines.push(`Lists ask for 25 rows a page; the queue for its default page of ${QUEUE_PAGE_SIZE} items, as the screens do.`, '')
 lines.push(`| endpoint | ${SIZES.map((s) => `${s.toLocaleString('en')}: c1`).join(' | ')} | ${SIZES.map((s) => `${s.toLocaleString('en')}: c8`).join(' | ')} |`)
 lines.push(`| --- | ${SIZES.map(() => '---:').join(' | ')} | ${SIZES.map(() => '---:').join(' | ')} |`)
 for (const name of [...new Set(rows.map((r) => r.endpoint))]) {

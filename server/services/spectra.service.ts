@@ -32,6 +32,7 @@ import { campaignForSubmission } from './campaigns.service'
 import { instrumentForSpectrum } from './instruments.service'
 import { findVisibleSpectrum, visibilityWhere } from './visibility'
 import { finalClassificationsFor, type FinalClassification } from './review.service'
+import { indexSuggestionFlags } from './suggestions.service'
 import type {
   FileResult,
   KnownFiles,
@@ -622,6 +623,7 @@ export async function updateSpectrumMetadata(ctx: AppContext, user: User, id: nu
       // The old measurement and suggestion described other arrays: they stay as history, no longer current.
       await Measurement.update({ isCurrent: false }, { where: { spectrumId: id, isCurrent: true }, transaction })
       await Suggestion.update({ isCurrent: false }, { where: { spectrumId: id, isCurrent: true }, transaction })
+      await indexSuggestionFlags(ctx.sequelize, id, [], transaction)
       await SpectrumBlob.update(read!.blob, { where: { spectrumId: id }, transaction })
       Object.assign(changes, read!.row, { readChoices: JSON.stringify(choices) })
       if (BEFORE_REVIEW.has(s.status)) Object.assign(changes, { status: 'received', statusReason: null })

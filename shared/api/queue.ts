@@ -7,6 +7,9 @@ import { ClaimView, SuggestionView } from './review'
 export const QUEUE_ORDERS = ['oldest', 'snr', 'flagged'] as const
 export type QueueOrder = (typeof QUEUE_ORDERS)[number]
 
+/** Items per queue page unless `limit` says otherwise. */
+export const QUEUE_PAGE_SIZE = 50
+
 /** A queue row's suggestion: the call and its uncertainty; the review screen has the standards and criteria behind it. */
 export const QueueSuggestion = SuggestionView.omit({ candidates: true, votes: true })
 export type QueueSuggestion = z.infer<typeof QueueSuggestion>
@@ -30,7 +33,16 @@ export const QueueItem = z
   .meta({ id: 'QueueItem' })
 export type QueueItem = z.infer<typeof QueueItem>
 
-export const QueuePage = z.object({ items: z.array(QueueItem), claimMinutes: z.number() }).meta({ id: 'QueuePage' })
+export const QueuePage = z
+  .object({
+    items: z.array(QueueItem),
+    /** Whether items follow this page (ask again with `after` = the last item's spectrumId). */
+    more: z.boolean(),
+    /** How many wait with these filters, counted up to a cap (`atLeast`: more than `count`); first page only, null after. */
+    waiting: z.object({ count: z.number().int(), atLeast: z.boolean() }).nullable(),
+    claimMinutes: z.number(),
+  })
+  .meta({ id: 'QueuePage' })
 export type QueuePage = z.infer<typeof QueuePage>
 
 /** A type bound as a type code (18) or as MK text ("B8"). */
@@ -70,12 +82,11 @@ export const QueueQuery = z.object({
   snrMin: z.preprocess(emptyToUndefined, z.coerce.number().optional()),
   snrMax: z.preprocess(emptyToUndefined, z.coerce.number().optional()),
   order: z.enum(QUEUE_ORDERS).default('oldest'),
-  limit: z.coerce.number().int().min(1).max(500).default(200),
+  limit: z.coerce.number().int().min(1).max(500).default(QUEUE_PAGE_SIZE),
+  /** Continue after this spectrum in the queue order (keyset paging: items others call meanwhile do not shift the page). */
+  after: z.preprocess(emptyToUndefined, id.optional()),
 })
 export type QueueQuery = z.infer<typeof QueueQuery>
-
-export const NextQuery = QueueQuery.extend({ after: z.preprocess(emptyToUndefined, id.optional()) })
-export type NextQuery = z.infer<typeof NextQuery>
 
 const spectrumIdParams = z.object({ spectrumId: id })
 
@@ -86,7 +97,7 @@ export const queueApi = {
     path: '/queue/next',
     tag: 'Review',
     summary: 'The item after `after` in the caller’s queue with these filters (null when the queue is done)',
-    query: NextQuery,
+    query: QueueQuery,
     response: z.object({ item: QueueItem.nullable() }),
   }),
   claim: endpoint({

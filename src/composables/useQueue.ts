@@ -24,10 +24,14 @@ export function saveQueueFilters(filters: QueueFilters): void {
   }
 }
 
-/** The caller's review queue with its filters; reloads whenever a filter changes. */
+/**
+ * The caller's review queue with its filters, a page at a time; reloads from the top whenever a
+ * filter changes, and `loadMore` appends the page after the last item shown.
+ */
 export function useQueue(initial: QueueFilters = savedQueueFilters()) {
   const filters: Ref<QueueFilters> = ref({ ...initial })
   const queue = useAsync(() => listQueue(filters.value))
+  const loadingMore = ref(false)
   watch(
     filters,
     (f) => {
@@ -36,7 +40,22 @@ export function useQueue(initial: QueueFilters = savedQueueFilters()) {
     },
     { deep: true },
   )
-  return { ...queue, filters }
+  async function loadMore(): Promise<void> {
+    const page = queue.data.value
+    const last = page?.items.at(-1)
+    if (!page || !page.more || !last || loadingMore.value) return
+    loadingMore.value = true
+    try {
+      const next = await listQueue(filters.value, last.spectrumId)
+      // A reload meanwhile (filters, refresh) wins.
+      if (queue.data.value !== page) return
+      const shown = new Set(page.items.map((i) => i.spectrumId))
+      queue.data.value = { ...page, items: [...page.items, ...next.items.filter((i) => !shown.has(i.spectrumId))], more: next.more }
+    } finally {
+      loadingMore.value = false
+    }
+  }
+  return { ...queue, filters, loadMore, loadingMore }
 }
 
 /**

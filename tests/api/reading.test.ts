@@ -1,11 +1,13 @@
 import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
+import { QueryTypes } from 'sequelize'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { loadCorpus } from '../../bench/corpus'
 import { JobRunner } from '../../server/jobs/runner'
 import { createLogger } from '../../server/lib/logger'
 import { Campaign, CampaignMember, Measurement, ProcessingJob, ReviewCall, Spectrum, SpectrumBlob, SpectrumEvent, Suggestion } from '../../server/models'
 import { activeVersionId, ensureDefaultLibrary, librarySpecFor } from '../../server/services/standards.service'
+import { indexSuggestionFlags } from '../../server/services/suggestions.service'
 import runTask from '../../server/jobs/worker'
 import { readSpectrum, toSpectrum1D } from '../../server/spectra/io'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
@@ -123,7 +125,12 @@ describe('PATCH /api/spectra/:id: correcting how the file is read', () => {
     const oldSuggestion = await Suggestion.findOne({ where: { spectrumId: first.spectrumId, isCurrent: true } })
     expect(oldSuggestion).not.toBeNull()
 
+    // The queue filters by the current suggestion's flags; the retired suggestion's must not linger.
+    await indexSuggestionFlags(t.ctx.sequelize, first.spectrumId, ['emission'])
     const res = await patch(observer, first.spectrumId, { wavelengthMedium: 'vacuum' }).expect(200)
+    const flagRows = await t.ctx.sequelize.query('SELECT flag FROM spectrum_flags WHERE spectrum_id = :id', { replacements: { id: first.spectrumId }, type: QueryTypes.SELECT })
+    expect(flagRows).toEqual([])
+    expect((await Spectrum.findByPk(first.spectrumId))!.flagCount).toBe(0)
     expect(res.body.spectrum.readChoices).toEqual({ medium: 'vacuum' })
     expect(res.body.spectrum.read.decisions.medium).toEqual({ vacuum: true, why: 'your choice (vacuum)' })
     expect(res.body.spectrum.wavelengthRange[0]).toBeCloseTo(truth.airRange![0], 2)

@@ -2,7 +2,7 @@ import { randomBytes } from 'node:crypto'
 import { Op } from 'sequelize'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Campaign, CampaignMember, Classification, Dispute, LibraryVersion, MailMessage, ReviewCall, ReviewClaim, Spectrum } from '../../server/models'
-import { CLAIM_MINUTES } from '../../server/services/queue.service'
+import { CLAIM_MINUTES, queuePlans } from '../../server/services/queue.service'
 import { judgeCalls, medianOf } from '../../server/review/consensus'
 import { finalClassificationsFor, recordCall } from '../../server/services/review.service'
 import { closeDatabase, createTestContext, type TestContext } from '../helpers/context'
@@ -186,6 +186,22 @@ describe('GET /api/queue', () => {
 
     const flagged = await alice.client.agent.get(`/api/queue?campaign=${campaign.id}&flags=emission`).expect(200)
     expect(flagged.body.items.map((i: { spectrumId: number }) => i.spectrumId)).toEqual([b.spectrum.id])
+    // Common flags are looked up row by row along the order instead: the same answer either way.
+    const threshold = queuePlans.commonFlagRows
+    queuePlans.commonFlagRows = 1
+    try {
+      for (const [flags, expected] of [
+        ['emission', [b.spectrum.id]],
+        ['low_snr', [a.spectrum.id, b.spectrum.id]],
+        ['emission,low_snr', [b.spectrum.id]],
+      ] as const) {
+        const walked = await alice.client.agent.get(`/api/queue?campaign=${campaign.id}&flags=${flags}`).expect(200)
+        expect(walked.body.items.map((i: { spectrumId: number }) => i.spectrumId)).toEqual(expected)
+        expect(walked.body.waiting).toEqual({ count: expected.length, atLeast: false })
+      }
+    } finally {
+      queuePlans.commonFlagRows = threshold
+    }
     const bySnr = await alice.client.agent.get(`/api/queue?campaign=${campaign.id}&order=snr`).expect(200)
     expect(bySnr.body.items.map((i: { spectrumId: number }) => i.spectrumId)).toEqual([b.spectrum.id, a.spectrum.id])
     const snrCut = await alice.client.agent.get(`/api/queue?campaign=${campaign.id}&snrMin=50`).expect(200)
@@ -202,6 +218,60 @@ describe('GET /api/queue', () => {
     expect(last.body.item).toBeNull()
     const first = await alice.client.agent.get(`/api/queue/next?campaign=${campaign.id}`).expect(200)
     expect(first.body.item.spectrumId).toBe(a.spectrum.id)
+  })
+
+  it('pages through every order with `after`, says how many wait, and does not shift when the caller calls meanwhile', async () => {
+    const campaign = await makeCampaign({ callsRequired: 2 }, [observer, alice, bob])
+    const made = []
+    for (const [snr, flags] of [
+      [40, []],
+      [90, ['emission']],
+      [40, ['emission', 'low_snr']],
+      [10, []],
+      [90, []],
+      [60, ['low_snr']],
+      [25, []],
+    ] as const) {
+      made.push((await suggestedSpectrum(campaign, observer, { snr, flags: [...flags] })).spectrum)
+    }
+    // Equal times and a missing S/N, so the ties and NULLS LAST are exercised.
+    await Spectrum.update({ createdAt: made[0]!.createdAt }, { where: { id: made[2]!.id } })
+    await Spectrum.update({ snr: null }, { where: { id: made[3]!.id } })
+    const rows = await Spectrum.findAll({ where: { id: made.map((m) => m.id) }, attributes: ['id', 'createdAt', 'snr', 'flagCount'] })
+    const byTime = (a: Spectrum, b: Spectrum) => a.createdAt.getTime() - b.createdAt.getTime() || a.id - b.id
+    // The orders as the queue screen describes them (oldest first; S/N high to low, none last; most flags first).
+    const expected = {
+      oldest: [...rows].sort(byTime),
+      snr: [...rows].sort((a, b) => (a.snr === null ? 1 : 0) - (b.snr === null ? 1 : 0) || (b.snr ?? 0) - (a.snr ?? 0) || a.id - b.id),
+      flagged: [...rows].sort((a, b) => b.flagCount - a.flagCount || byTime(a, b)),
+    }
+    for (const [order, sorted] of Object.entries(expected)) {
+      const seen: number[] = []
+      let after: number | undefined
+      for (let page = 0; page < 10; page++) {
+        const res = await alice.client.agent.get(`/api/queue?campaign=${campaign.id}&order=${order}&limit=3${after ? `&after=${after}` : ''}`).expect(200)
+        const ids = res.body.items.map((i: { spectrumId: number }) => i.spectrumId)
+        expect(res.body.waiting).toEqual(after ? null : { count: 7, atLeast: false })
+        seen.push(...ids)
+        expect(res.body.more).toBe(seen.length < 7)
+        if (!res.body.more) break
+        after = ids.at(-1)
+      }
+      expect(seen, order).toEqual(sorted.map((r) => r.id))
+    }
+
+    // Alice calls on the first two of the oldest order: the page after the second still starts at the third.
+    const first = await alice.client.agent.get(`/api/queue?campaign=${campaign.id}&limit=2`).expect(200)
+    const [one, two] = first.body.items.map((i: { spectrumId: number }) => i.spectrumId)
+    for (const id of [one, two]) await call(alice.client, id, { spectralType: 'B8', luminosityClass: 'III' }).expect(201)
+    const second = await alice.client.agent.get(`/api/queue?campaign=${campaign.id}&limit=2&after=${two}`).expect(200)
+    expect(second.body.items.map((i: { spectrumId: number }) => i.spectrumId)).toEqual(expected.oldest.slice(2, 4).map((r) => r.id))
+    const fresh = await alice.client.agent.get(`/api/queue?campaign=${campaign.id}&limit=2`).expect(200)
+    expect(fresh.body.waiting).toEqual({ count: 5, atLeast: false })
+    // A spectrum the caller cannot see is no place to continue from: the queue starts at the top.
+    const foreign = await suggestedSpectrum(await makeCampaign({ callsRequired: 1 }, [otherObserver]), otherObserver)
+    const fromForeign = await alice.client.agent.get(`/api/queue?campaign=${campaign.id}&limit=2&after=${foreign.spectrum.id}`).expect(200)
+    expect(fromForeign.body.items.map((i: { spectrumId: number }) => i.spectrumId)).toEqual(fresh.body.items.map((i: { spectrumId: number }) => i.spectrumId))
   })
 
   it('refuses observers', async () => {
