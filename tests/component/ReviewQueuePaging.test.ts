@@ -73,9 +73,7 @@ describe('Review queue paging', () => {
 
   it('brings the next page when ↓ is pressed on the last row', async () => {
     listQueue.mockImplementation(async (_f, after) =>
-      after === undefined
-        ? { items: [item(1), item(2)], more: true, waiting: { count: 3, atLeast: false }, claimMinutes: 10 }
-        : { items: [item(3)], more: false, waiting: null, claimMinutes: 10 },
+      after === undefined ? { items: [item(1), item(2)], more: true, waiting: { count: 3, atLeast: false }, claimMinutes: 10 } : { items: [item(3)], more: false, waiting: null, claimMinutes: 10 },
     )
     const wrapper = await mountQueue()
     expect(wrapper.get('[data-testid="queue-counts"]').text()).toContain('3 spectra waiting for your call · 2 shown')
