@@ -249,6 +249,18 @@ describe("DELETE /api/spectra/:id: withdrawing one's own spectrum", () => {
     await runner.idle()
   }, 60_000)
 
+  it('refuses while the spectrum is being measured, and says to try again in a moment', async () => {
+    const r = await submit(unique(readFileSync(join(CORPUS, 'txt-plain.txt'))), 'busy.txt')
+    await runner.idle()
+    // As a re-measurement in progress leaves it: a job some runner holds.
+    const job = await ProcessingJob.create({ spectrumId: r.spectrumId, status: 'running', error: null, requestedBy: null, startedAt: new Date(), finishedAt: null })
+    const res = await remove(observer, r.spectrumId).expect(409)
+    expect(res.body.error).toMatchObject({ code: 'processing', message: expect.stringMatching(/withdraw it again in a moment/) })
+    expect(await Spectrum.findByPk(r.spectrumId)).not.toBeNull()
+    await job.update({ status: 'done', finishedAt: new Date() })
+    await remove(observer, r.spectrumId).expect(200)
+  }, 60_000)
+
   it('refuses once a classifier has called it', async () => {
     const r = await submit(unique(readFileSync(join(CORPUS, 'txt-plain.txt'))), 'keep-me.txt')
     await runner.idle()

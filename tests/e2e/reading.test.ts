@@ -84,6 +84,8 @@ describe('the observer sees how each file was read, has one read again, and with
     await page.getByTestId('nav-spectra').click()
     const row = page.getByText(`KR-${String(run).padStart(6, '0')}`).first()
     await row.click()
+    // A spectrum being measured cannot be withdrawn yet (409 'processing'); the page says when it is done.
+    await expect.poll(() => page.getByTestId('spectrum-status').getAttribute('data-status'), { timeout: 60_000 }).toMatch(/^(measured|suggested)$/)
     await page.getByTestId('spectrum-withdraw').click()
     await page.getByRole('button', { name: 'Withdraw' }).last().click()
     await page.waitForURL(/\/spectra$/)
