@@ -224,46 +224,42 @@ async function queueItems(ctx: Pick<AppContext, 'sequelize'>, user: User, page: 
   )) as [QueueRow[], unknown]
   // The newest current suggestion wins should a spectrum ever hold two.
   const byId = new Map(rows.map((r) => [Number(r.id), r]))
-  return [...byId.keys()].flatMap((id): QueueItem[] => {
-    const r = byId.get(id)
-    if (!r) return []
+  return [...byId].map(([id, r]): QueueItem => {
     const blind = Boolean(Number(r.blind_review))
     const hasSuggestion = r.sg_id !== null
     const hidden = blind && !Number(r.called)
     const flags = hasSuggestion ? parseJson<string[]>(r.flags, []) : []
-    return [
-      {
-        spectrumId: id,
-        objectName: r.object_name,
-        campaign: { id: Number(r.campaign_id), code: r.campaign_code, name: r.campaign_name, blindReview: blind },
-        snr: r.snr === null ? null : Number(r.snr),
-        flags,
-        createdAt: r.created_at,
-        status: r.status as QueueItem['status'],
-        claim: r.claimed_at && r.claim_expires_at ? { state: 'mine' as const, claimedAt: r.claimed_at, expiresAt: r.claim_expires_at } : { state: 'free' as const },
-        calls: { count: Number(r.callers), needed: Number(r.calls_required) + Number(r.extra_calls) },
-        suggestion:
-          hasSuggestion && !hidden
-            ? {
-                id: Number(r.sg_id),
-                spectralType: r.spectral_type,
-                letter: r.letter,
-                subtype: Number(r.subtype),
-                typeCode: Number(r.type_code),
-                luminosityClass: r.luminosity_class,
-                classCode: Number(r.class_code),
-                uncertaintySubtypes: Number(r.uncertainty_subtypes),
-                uncertaintyClasses: Number(r.uncertainty_classes),
-                libraryVersionId: Number(r.library_version_id),
-                pipelineVersion: r.pipeline_version,
-                bestStandardId: r.best_standard_id === null ? null : Number(r.best_standard_id),
-                flags,
-                createdAt: r.sg_created_at,
-              }
-            : null,
-        hidden: hidden && hasSuggestion,
-      },
-    ]
+    return {
+      spectrumId: id,
+      objectName: r.object_name,
+      campaign: { id: Number(r.campaign_id), code: r.campaign_code, name: r.campaign_name, blindReview: blind },
+      snr: r.snr === null ? null : Number(r.snr),
+      flags,
+      createdAt: r.created_at,
+      status: r.status as QueueItem['status'],
+      claim: r.claimed_at && r.claim_expires_at ? { state: 'mine' as const, claimedAt: r.claimed_at, expiresAt: r.claim_expires_at } : { state: 'free' as const },
+      calls: { count: Number(r.callers), needed: Number(r.calls_required) + Number(r.extra_calls) },
+      suggestion:
+        hasSuggestion && !hidden
+          ? {
+              id: Number(r.sg_id),
+              spectralType: r.spectral_type,
+              letter: r.letter,
+              subtype: Number(r.subtype),
+              typeCode: Number(r.type_code),
+              luminosityClass: r.luminosity_class,
+              classCode: Number(r.class_code),
+              uncertaintySubtypes: Number(r.uncertainty_subtypes),
+              uncertaintyClasses: Number(r.uncertainty_classes),
+              libraryVersionId: Number(r.library_version_id),
+              pipelineVersion: r.pipeline_version,
+              bestStandardId: r.best_standard_id === null ? null : Number(r.best_standard_id),
+              flags,
+              createdAt: r.sg_created_at,
+            }
+          : null,
+      hidden: hidden && hasSuggestion,
+    }
   })
 }
 
