@@ -69,17 +69,19 @@ const jobs =
   config.QUEUE === 'redis'
     ? new RedisPublisher(config.REDIS_URL, logger)
     : new JobRunner({ sequelize, logger, threads: config.WORKERS, pollSeconds: config.JOB_POLL_SECONDS, leaseSeconds: config.JOB_LEASE_SECONDS })
-if (jobs instanceof JobRunner) await jobs.start()
-logger.info(config.QUEUE === 'redis' ? `processing jobs go to Redis at ${new URL(config.REDIS_URL).host}; run \`npm run worker\` to process them` : 'processing jobs run in this server')
 const app = createApp({ config, sequelize, mailer, logger, jobs, files, reading }, { clientDir: fileURLToPath(new URL('../dist', import.meta.url)) })
 const server = createServer(app)
-server.once('error', (error: NodeJS.ErrnoException) => {
-  if (error.code === 'EADDRINUSE') fail(new StartupError(`PORT ${config.PORT} on ${config.HOST} is already in use; stop whatever holds it, or set PORT to a free port.`))
-  fail(error)
+await new Promise<void>((resolve) => {
+  server.once('error', (error: NodeJS.ErrnoException) => {
+    if (error.code === 'EADDRINUSE') fail(new StartupError(`PORT ${config.PORT} on ${config.HOST} is already in use; stop whatever holds it, or set PORT to a free port.`))
+    fail(error)
+  })
+  server.listen(config.PORT, config.HOST, resolve)
 })
-server.listen(config.PORT, config.HOST, () => {
-  logger.info(`Lineweight is serving on ${config.publicUrl}`)
-})
+// Jobs are taken only once the port is ours: a server that cannot start must not hold jobs until their leases lapse.
+if (jobs instanceof JobRunner) await jobs.start()
+logger.info(config.QUEUE === 'redis' ? `processing jobs go to Redis at ${new URL(config.REDIS_URL).host}; run \`npm run worker\` to process them` : 'processing jobs run in this server')
+logger.info(`Lineweight is serving on ${config.publicUrl}`)
 
 async function shutdown() {
   server.close()

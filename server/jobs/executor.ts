@@ -34,6 +34,8 @@ export class JobExecutor {
   readonly running = new Set<number>()
   /** Jobs given up when the database went away or the executor stopped; they go back to the queue. */
   private abandoned = new Set<number>()
+  /** Runs not yet settled, so that stopping can wait for loads and stores in progress. */
+  private settling = new Set<Promise<void>>()
   private stopped = false
 
   constructor(private readonly options: ExecutorOptions) {
@@ -58,11 +60,23 @@ export class JobExecutor {
   }
 
   async run(job: ClaimedJob): Promise<void> {
+    const settled = this.execute(job)
+    this.settling.add(settled)
+    try {
+      await settled
+    } finally {
+      this.settling.delete(settled)
+    }
+  }
+
+  private async execute(job: ClaimedJob): Promise<void> {
     const { logger } = this.options
     this.running.add(job.id)
     try {
+      if (this.stopped) throw new Error('stopping')
       const { input, versionId } = await loadJob(job.spectrumId)
       if (versionId !== undefined) input.library = await this.specFor(versionId)
+      if (this.stopped) throw new Error('stopping')
       const output = this.pool ? ((await this.pool.run(input)) as PipelineOutput) : runTask(input)
       await storeOutput(this.options.sequelize, job, output, versionId)
       logger.info({ jobId: job.id, spectrumId: job.spectrumId, seconds: output.seconds }, 'spectrum measured')
@@ -96,14 +110,17 @@ export class JobExecutor {
     return spec
   }
 
-  /** Stops the threads; jobs still in hand go back to the queue for any runner to take. */
+  /**
+   * Stops the threads and waits for the runs in progress to store their result or give up; jobs
+   * given up go back to the queue for any runner to take, not to a lease that lapses minutes later.
+   */
   async stop(): Promise<void> {
     this.stopped = true
-    const held = [...this.running]
     await this.pool?.destroy()
     this.pool = null
+    await Promise.allSettled([...this.settling])
     try {
-      await releaseJobs([...new Set([...held, ...this.abandoned])])
+      await releaseJobs([...new Set([...this.running, ...this.abandoned])])
     } catch {
       // Without the database the leases lapse and return them instead.
     }

@@ -35,7 +35,7 @@ export class JobRunner implements ProcessingQueue {
   private inflight = 0
   private readonly capacity: number
   private stopped = false
-  private pumping = false
+  private pumping: Promise<void> | null = null
   private again = false
   private idleWaiters: (() => void)[] = []
   private timer: NodeJS.Timeout | null = null
@@ -79,12 +79,18 @@ export class JobRunner implements ProcessingQueue {
     })
   }
 
-  private async pump(): Promise<void> {
+  private pump(): Promise<void> {
     if (this.pumping) {
       this.again = true
-      return
+      return Promise.resolve()
     }
-    this.pumping = true
+    this.pumping = this.claimAndRun().finally(() => {
+      this.pumping = null
+    })
+    return this.pumping
+  }
+
+  private async claimAndRun(): Promise<void> {
     try {
       do {
         this.again = false
@@ -102,9 +108,8 @@ export class JobRunner implements ProcessingQueue {
         }
       } while (this.again && !this.stopped)
     } finally {
-      this.pumping = false
+      if (this.inflight === 0) this.notifyIdle()
     }
-    if (this.inflight === 0) this.notifyIdle()
   }
 
   /** Resolves when nothing is queued or running (tests and shutdown). */
@@ -128,6 +133,8 @@ export class JobRunner implements ProcessingQueue {
   async stop(): Promise<void> {
     this.stopped = true
     if (this.timer) clearInterval(this.timer)
+    // A claim in flight hands its jobs to the executor, which gives them back when it stops.
+    await this.pumping?.catch(() => undefined)
     await this.executor.stop()
   }
 }

@@ -98,6 +98,24 @@ describe(`processing off the request path (${process.env.QUEUE ?? 'database'} qu
     for (const id of ids) expect(await Measurement.count({ where: { spectrumId: id, isCurrent: true } })).toBe(1)
     runner = await startProcessing(t.ctx)
   })
+
+  it('gives every job back when it stops in the middle of its work, so none waits for a lease to lapse', async () => {
+    await runner.stop()
+    const ids: number[] = []
+    for (let i = 0; i < 3; i++) ids.push(await submit(syntheticTextSpectrum(seed++), `stopped-${i}.txt`))
+    // Started and stopped at once: its first claim is still in flight when it is told to stop.
+    runner = await startProcessing(t.ctx)
+    await runner.stop()
+    const statuses = async () => (await ProcessingJob.findAll({ where: { spectrumId: ids }, order: [['id', 'ASC']] })).map((j) => j.status)
+    const atStop = await statuses()
+    expect(atStop).not.toContain('running')
+    // A stopped runner does nothing more: a process that exits now leaves no job held for a lease's length.
+    await new Promise((r) => setTimeout(r, 1500))
+    expect(await statuses()).toEqual(atStop)
+    runner = await startProcessing(t.ctx)
+    await runner.idle()
+    expect((await ProcessingJob.findAll({ where: { spectrumId: ids } })).map((j) => j.status)).toEqual(['done', 'done', 'done'])
+  })
 })
 
 describe('withRetry', () => {

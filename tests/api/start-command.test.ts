@@ -1,7 +1,10 @@
 import { spawn } from 'node:child_process'
 import { createServer, type Server } from 'node:net'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { Campaign, CampaignMember, ProcessingJob } from '../../server/models'
+import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
 import { freePort, startServer } from '../helpers/server'
+import { syntheticTextSpectrum } from '../helpers/spectra'
 
 let held: Server
 let busyPort: number
@@ -78,10 +81,32 @@ describe('the server', () => {
     }
   }, 60_000)
 
-  it('says clearly that its PORT is taken', async () => {
-    const res = await runToEnd('node_modules/.bin/tsx', ['server/index.ts'], { PORT: String(busyPort), LOG_LEVEL: 'warn', SMTP_PORT: '0' })
-    expect(res.code).toBe(78)
-    expect(res.output).toContain(`PORT ${busyPort}`)
-    expect(res.output).not.toMatch(/^\s+at /m)
+  it('says clearly that its PORT is taken, and leaves queued jobs to a server that can start', async () => {
+    // A job waiting in the queue (an upload with no runner in this process).
+    const t: TestContext = await createTestContext()
+    try {
+      const campaign = await Campaign.create({ code: `S-${Date.now()}`, name: 'Start', description: '' })
+      const { user, password } = await makeUser('observer')
+      await CampaignMember.create({ campaignId: campaign.id, userId: user.id })
+      const client = await signedInAgent(t.app, user.email, password)
+      const upload = await client.agent
+        .post('/api/spectra')
+        .set('x-csrf-token', client.csrf)
+        .field('campaignId', String(campaign.id))
+        .attach('files', syntheticTextSpectrum(Date.now() % 1e6), 'waiting.txt')
+        .expect(200)
+      const spectrumId = upload.body.results[0].spectrumId as number
+
+      const res = await runToEnd('node_modules/.bin/tsx', ['server/index.ts'], { PORT: String(busyPort), LOG_LEVEL: 'warn', SMTP_PORT: '0' })
+      expect(res.code).toBe(78)
+      expect(res.output).toContain(`PORT ${busyPort}`)
+      expect(res.output).not.toMatch(/^\s+at /m)
+      // Had it taken the job before finding its port taken, the job would sit "running" until its lease lapsed.
+      const job = await ProcessingJob.findOne({ where: { spectrumId } })
+      expect(job).toMatchObject({ status: 'queued', leaseExpiresAt: null })
+    } finally {
+      await t.close()
+      await closeDatabase()
+    }
   })
 })
