@@ -184,6 +184,25 @@ export function classesAgree(a: number, b: number): boolean {
   return isEnd(a, b) || isEnd(b, a)
 }
 
+/**
+ * The two class lists with every pair that agrees through an intermediate class (IV-V against V)
+ * given the same value, the end both name, so that κ reads classes as `classAgreementFraction` does;
+ * pairs that differ otherwise, and equal pairs, are left as they are.
+ */
+export function reconcileClasses(a: readonly number[], b: readonly number[]): { a: number[]; b: number[] } {
+  checkPair(a, b)
+  const ra = [...a]
+  const rb = [...b]
+  for (let i = 0; i < ra.length; i++) {
+    if (ra[i] === rb[i] || !classesAgree(ra[i]!, rb[i]!)) continue
+    // The end is the code that is a class of its own.
+    const end = LUMINOSITY_CLASSES.some((c) => Math.abs(c.code - ra[i]!) < 1e-9) ? ra[i]! : rb[i]!
+    ra[i] = end
+    rb[i] = end
+  }
+  return { a: ra, b: rb }
+}
+
 /** Mean signed offset of the first rater from the second, mean(a_i − b_i), in the units of the ratings. */
 export function meanOffset(a: readonly number[], b: readonly number[]): number {
   checkPair(a, b)

@@ -1,5 +1,5 @@
 import { Op, QueryTypes } from 'sequelize'
-import { agreementFraction, classAgreementFraction, cohenKappa, fleissKappa, meanOffset, weightedKappa } from '../../shared/agreement'
+import { agreementFraction, classAgreementFraction, cohenKappa, fleissKappa, meanOffset, reconcileClasses, weightedKappa } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { sqlTime } from '../lib/sql-time'
@@ -121,7 +121,11 @@ export function agreementFigures(a: { type: number[]; cls: number[] }, b: { type
     // As the per-version accuracy and the benchmark read classes: IV-V agrees with IV and with V.
     exactClass: safe(n, () => classAgreementFraction(a.cls, b.cls)),
     withinOneClass: safe(n, () => agreementFraction(a.cls, b.cls, 1)),
-    kappaClass: safe(n, () => cohenKappa(a.cls, b.cls)),
+    // Read the same way: a pair such as IV-V and V is one category for κ.
+    kappaClass: safe(n, () => {
+      const r = reconcileClasses(a.cls, b.cls)
+      return cohenKappa(r.a, r.b)
+    }),
     weightedKappaTypeLinear: safe(n, () => weightedKappa(a.type, b.type, 'linear', { categories: scale })),
     weightedKappaTypeQuadratic: safe(n, () => weightedKappa(a.type, b.type, 'quadratic', { categories: scale })),
   }

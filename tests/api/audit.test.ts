@@ -70,6 +70,9 @@ describe('auditFigures', () => {
     // III-IV (4.5) against III and IV agrees; against V (one step off an end) it does not; Ib-II (2.5) against II agrees.
     const f = agreementFigures({ type: [20, 20, 20, 20], cls: [4.5, 4.5, 4.5, 2.5] }, { type: [20, 20, 20, 20], cls: [4, 5, 6, 3] })
     expect(f.exactClass.value).toBe(0.75)
+    // κ reads them the same way: pairs (4,4) (5,5) (4.5,6) (3,3); p_o = 3/4, p_e = 3 × (1/4 × 1/4) = 3/16 from
+    // the marginals, κ = (3/4 − 3/16)/(1 − 3/16) = 9/13 (Cohen 1960, computed by hand here).
+    expect(f.kappaClass.value).toBeCloseTo(9 / 13, 12)
   })
 
   it('gives each classifier a signed offset from the consensus, the median call time, and n', () => {

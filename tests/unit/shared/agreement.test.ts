@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
 import { describe, expect, it } from 'vitest'
-import { agreementFraction, classAgreementFraction, classesAgree, cohenKappa, confusionMatrix, fleissKappa, meanOffset, weightedKappa } from '../../../shared/agreement'
+import { agreementFraction, classAgreementFraction, classesAgree, cohenKappa, confusionMatrix, fleissKappa, meanOffset, reconcileClasses, weightedKappa } from '../../../shared/agreement'
 
 // Textbook worked example (from memory, a common textbook example, as in the project's reference
 // sheet): 50 items, 20 yes–yes, 5 yes–no, 10 no–yes, 15 no–no → p_o = 0.70, p_e = 0.50, κ = 0.40.
@@ -191,6 +191,22 @@ describe('classAgreementFraction', () => {
   })
   it('gives the share of agreeing pairs', () => {
     expect(classAgreementFraction([5.5, 4, 6, 3], [5, 4, 5, 3.5])).toBe(0.75)
+  })
+})
+
+describe('reconcileClasses', () => {
+  it('gives a pair that agrees through an intermediate class the end both name, and leaves the rest', () => {
+    // IV-V (5.5) with V, III with III-IV (4.5): agree; III-IV with V and IV-V with III-IV: do not.
+    expect(reconcileClasses([5.5, 4, 4.5, 5.5, 2], [5, 4.5, 6, 4.5, 2])).toEqual({ a: [5, 4, 4.5, 5.5, 2], b: [5, 4, 6, 4.5, 2] })
+  })
+  it("lets Cohen's κ agree with the exact-class share", () => {
+    // Every pair agrees as the MK system reads classes, and both raters use two classes: κ = 1.
+    const r = reconcileClasses([5.5, 5.5, 4, 4], [5, 6, 4.5, 4])
+    expect(classAgreementFraction(r.a, r.b)).toBe(1)
+    expect(cohenKappa(r.a, r.b)).toBe(1)
+  })
+  it('refuses ratings of different lengths', () => {
+    expect(() => reconcileClasses([5], [5, 6])).toThrow('ratings differ in length: 1 vs 2')
   })
 })
 
