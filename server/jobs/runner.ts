@@ -35,7 +35,9 @@ export class JobRunner implements ProcessingQueue {
   private inflight = 0
   private readonly capacity: number
   private stopped = false
-  private pumping: Promise<void> | null = null
+  private pumping = false
+  /** The latest pass of claiming, so that stopping can wait for a claim in flight. */
+  private pumped: Promise<void> = Promise.resolve()
   private again = false
   private idleWaiters: (() => void)[] = []
   private timer: NodeJS.Timeout | null = null
@@ -84,10 +86,9 @@ export class JobRunner implements ProcessingQueue {
       this.again = true
       return Promise.resolve()
     }
-    this.pumping = this.claimAndRun().finally(() => {
-      this.pumping = null
-    })
-    return this.pumping
+    this.pumping = true
+    this.pumped = this.claimAndRun()
+    return this.pumped
   }
 
   private async claimAndRun(): Promise<void> {
@@ -108,6 +109,8 @@ export class JobRunner implements ProcessingQueue {
         }
       } while (this.again && !this.stopped)
     } finally {
+      // Cleared with no await after the last look at `again`, so no wake-up falls in between.
+      this.pumping = false
       if (this.inflight === 0) this.notifyIdle()
     }
   }
@@ -134,7 +137,7 @@ export class JobRunner implements ProcessingQueue {
     this.stopped = true
     if (this.timer) clearInterval(this.timer)
     // A claim in flight hands its jobs to the executor, which gives them back when it stops.
-    await this.pumping?.catch(() => undefined)
+    await this.pumped.catch(() => undefined)
     await this.executor.stop()
   }
 }
