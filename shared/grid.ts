@@ -47,6 +47,17 @@ export function gridIndex(grid: LogGrid, wavelength: number): number {
 export const DEFAULT_CLASSIFICATION_REGION: readonly [number, number] = [3850, 5000]
 
 /**
+ * Region over which a spectrum is matched instead of the default one when its nearest standard is
+ * G0 or later (type code ≥ {@link LATE_TYPE_FROM}), it reaches past Hα, and its campaign keeps the
+ * default region, Å (air): in cool stars Mg b, Na D and Hα change with temperature more clearly
+ * than the crowded blue does. Chosen on the odd-numbered MILES stars (bench/accuracy.ts).
+ */
+export const LATE_TYPE_REGION: readonly [number, number] = [3850, 6800]
+
+/** Type code from which {@link LATE_TYPE_REGION} applies (G0). */
+export const LATE_TYPE_FROM = 40
+
+/**
  * Bounds of a campaign's classification region, Å: the optical range the file readers accept
  * (OPTICAL_LIMITS of server/spectra/io/finalize.ts; a test keeps the two equal).
  */

@@ -1,4 +1,4 @@
-import { DEFAULT_CLASSIFICATION_REGION, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../shared/grid'
+import { DEFAULT_CLASSIFICATION_REGION, LATE_TYPE_FROM, LATE_TYPE_REGION, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../shared/grid'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
 import { kthSmallest } from './prepare/stats'
@@ -59,6 +59,10 @@ export function resolutionFwhm(fwhm: number | null | undefined, resolvingPower: 
 
 /** Where emission is looked for, Å. */
 const EMISSION_RANGE = [3900, 5500] as const
+/** Red end of the span the best standard is fitted over to find emission, Å; redder, the rectified spectrum alone is searched. */
+const NOT_STAR_FIT_END = 5600
+/** The reddest wavelength a spectrum must reach for LATE_TYPE_REGION to be used, Å: past Hα (6563 Å). */
+const LATE_TYPE_NEEDS = 6600
 
 /**
  * The values minus their running median over ±`halfWidth` Å (plus 1), sampled every tenth pixel
@@ -169,13 +173,26 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   steps.analyseRest = (performance.now() - t) / 1000
 
   t = performance.now()
-  let suggestion = matchSpectrum(library, matchInput(analysis, resolution.level!), matchOptions)
+  // Cool stars (the nearest standard G0 or later) that reach Hα are matched over the red as well,
+  // unless the campaign chose a region of its own.
+  let usedOptions = matchOptions
+  let reddest = 0
+  for (const w of input.spectrum.wavelength) if (w > reddest) reddest = w
+  const nearestType = library.standards[located.level.rows[bestRow]!]!.typeCode
+  const defaultRegion = region[0] === DEFAULT_CLASSIFICATION_REGION[0] && region[1] === DEFAULT_CLASSIFICATION_REGION[1]
+  if (defaultRegion && nearestType >= LATE_TYPE_FROM && reddest >= LATE_TYPE_NEEDS) {
+    usedOptions = { ...matchOptions, region: LATE_TYPE_REGION }
+    notes.push(
+      `The nearest standard is G or later, so matched over ${LATE_TYPE_REGION[0]}–${LATE_TYPE_REGION[1]} Å rather than ${DEFAULT_CLASSIFICATION_REGION[0]}–${DEFAULT_CLASSIFICATION_REGION[1]} Å: Mg b, Na D and Hα carry the temperature of cool stars.`,
+    )
+  }
+  let suggestion = matchSpectrum(library, matchInput(analysis, resolution.level!), usedOptions)
   const types = library.level(resolution.level!).typeCodes
   if (suggestion.typeCode <= types[0]! + 2 || suggestion.typeCode >= types[types.length - 1]! - 2) {
     const beyond = coarserLevelBeyond(library, resolution.level!, suggestion.typeCode)
     if (beyond !== null) {
       const wide = analyseSpectrum(rest.spectrum, { ...atLevel(base, fwhm, beyond), ...(input.region ? { rvRegion: input.region } : {}) })
-      const other = matchSpectrum(library, matchInput(wide, beyond), matchOptions)
+      const other = matchSpectrum(library, matchInput(wide, beyond), usedOptions)
       const edge = library.level(resolution.level!).typeCodes
       if (other.typeCode < edge[0]! || other.typeCode > edge[edge.length - 1]!) {
         notes.push(`The standards at ${resolution.level} Å end at ${suggestion.spectralType.split(' ')[0]}; matched at ${beyond} Å, where the library reaches further.`)
@@ -316,7 +333,10 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
     sy = 0,
     sxx = 0,
     sxy = 0
-  for (let i = 0; i < pixels; i++) {
+  // The standard is fitted over the blue span only: across the red as well, one level and depth no longer fit both.
+  let fitEnd = 0
+  while (fitEnd < pixels && library.wavelength[fitEnd]! <= NOT_STAR_FIT_END) fitEnd++
+  for (let i = 0; i < fitEnd; i++) {
     const x = template[i]!
     const y = p.rectified[i + offset]!
     if (p.mask[i + offset] !== 0 || !Number.isFinite(x) || !Number.isFinite(y)) continue
@@ -344,12 +364,12 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
     const emission = notStarEvidence(library.wavelength, ownPlusOne, subtractRunningMedian(residual, library.wavelength, 150), sigma, level, suggestion.typeCode)
     if (emission) return emission.reason
   }
-  // Beyond the standards' span only the rectified spectrum speaks: strong emission there (Hβ and
+  // Beyond the fitted span only the rectified spectrum speaks: strong emission there (Hβ and
   // [O III] of a galaxy at z ≈ 0.1–0.3) away from Hα and He I.
   const wavelength = gridWavelengths(p.grid)
   // A loop: TypedArray.from with a mapping function is many times slower.
   const red = new Float64Array(p.rectified.length)
-  const redFrom = library.wavelength[library.pixels - 1]!
+  const redFrom = library.wavelength[Math.max(0, fitEnd - 1)]!
   for (let i = 0; i < red.length; i++) red[i] = p.mask[i] !== 0 || wavelength[i]! < redFrom ? Number.NaN : p.rectified[i]!
   const far = notStarEvidence(wavelength, red, red, Math.max(sigma, 0.05), level, suggestion.typeCode)
   if (far) return far.reason

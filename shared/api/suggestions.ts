@@ -50,6 +50,8 @@ export const SuggestionDetails = z
       bound: z.enum(['within', 'sharpest', 'coarsest']).nullable(),
       level: z.number().nullable(),
     }),
+    /** Wavelength range the spectrum was matched over, Å (absent before it was recorded). */
+    region: z.tuple([z.number(), z.number()]).optional(),
     /** Rms residual of the best fit and the largest that normal stars of the type show, continuum units. */
     residual: z.object({ rms: z.number(), typical: z.number().nullable() }),
     /** How the suggestion was reached, in words (another level used, not a star). */

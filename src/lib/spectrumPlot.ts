@@ -48,6 +48,8 @@ export const NAMED_REGIONS: readonly NamedRegion[] = [
   { id: 'helium', name: 'He I, Mg II', lines: 'He I 4471 · Mg II 4481 · He II 4542 · Si III 4553', region: [4420, 4580] },
   { id: 'beta', name: 'He II 4686, Hβ', lines: 'He II 4686 · TiO 4762 · MgH · Hβ', region: [4660, 4940] },
   { id: 'green', name: 'Green bands', lines: 'TiO 4954 · Mg b · TiO 5167', region: [4940, 5220] },
+  { id: 'yellow', name: 'Na D, TiO', lines: 'Fe I 5270 · Na D · TiO 6159', region: [5220, 6200] },
+  { id: 'alpha', name: 'Around Hα', lines: 'Ca I 6439 · Hα · TiO 6651', region: [6380, 6800] },
 ]
 
 /** The named regions that lie (at least three quarters) inside [lo, hi]. */

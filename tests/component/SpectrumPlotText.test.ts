@@ -72,6 +72,8 @@ describe('plot defaults', () => {
   it('offers the named regions the spectrum covers', () => {
     expect(regionsWithin(3850, 5000).map((r) => r.id)).toEqual(['violet', 'delta', 'gamma', 'helium', 'beta'])
     expect(regionsWithin(4300, 4600).map((r) => r.id)).toEqual(['helium'])
+    // The wider region cool stars are matched over adds the red: Na D and Hα.
+    expect(regionsWithin(3850, 6800).map((r) => r.id)).toEqual(['violet', 'delta', 'gamma', 'helium', 'beta', 'green', 'yellow', 'alpha'])
   })
 })
 

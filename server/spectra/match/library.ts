@@ -57,7 +57,7 @@ export interface MatchLibraryOptions {
    * 20 Å, with each standard's own resolution as a level (see resolutionLadder)
    */
   resolutions?: readonly number[]
-  /** Wavelength span kept, Å; every campaign region must lie inside it. @default [3750, 5600] */
+  /** Wavelength span kept, Å; every campaign region must lie inside it. @default [3750, 6950] (LATE_TYPE_REGION and a margin) */
   span?: readonly [number, number]
   /** Decimation of the coarse blocks used to screen standards, pixels. @default 4 */
   coarseStep?: number
@@ -147,7 +147,7 @@ export function resolutionLadder(own: readonly number[], max = 20): number[] {
  * @throws when no standard is given, or a standard's array does not match the grid
  */
 export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], options: MatchLibraryOptions): PreparedMatchLibrary {
-  const { grid, span = [3750, 5600], coarseStep = 4 } = options
+  const { grid, span = [3750, 6950], coarseStep = 4 } = options
   const kept = replaceModelsByObserved(inputs)
   if (kept.length === 0) throw new Error('a library needs at least one standard')
   for (const s of kept) if (s.rectified.length !== grid.length) throw new Error(`standard ${s.spectralType} has ${s.rectified.length} pixels, the grid ${grid.length}`)

@@ -122,6 +122,8 @@ export interface MatchResult {
   libraryVersion: { id: number; name: string }
   /** Resolution level used, FWHM Å. */
   levelFwhm: number
+  /** Wavelength range matched over, Å (the region asked for). */
+  region: readonly [number, number]
   reducedChi2: number
   /** Rms residual of the best fit in the region (continuum units), and what is usual for a normal star of this type. */
   residual: { rms: number; typical: number | null }

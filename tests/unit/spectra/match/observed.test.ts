@@ -91,6 +91,27 @@ describe('the class and type of named reference stars', () => {
     expect(Math.abs(p.logg!.value - s.logg!)).toBeLessThan(0.4)
     expect(Math.abs(p.feh!.value - s.feh!)).toBeLessThan(0.3)
   }, 60_000)
+
+  it('matches cool stars that reach past Hα over 3850–6800 Å, and keeps the default or a campaign’s own region otherwise', () => {
+    // HD 17382, K1 V, and HD 160762, B3 IV (MILES, which covers 3525–7500 Å).
+    const cool = classify(star('HD017382'))
+    expect(cool.suggestion!.region).toEqual([3850, 6800])
+    expect(cool.notes.join(' ')).toMatch(/matched over 3850–6800 Å/)
+    expect(classify(star('HD160762')).suggestion!.region).toEqual([3850, 5000])
+    // Cut at 6400 Å (short of Hα) the same K dwarf keeps the default region.
+    const s = star('HD017382')
+    const blue = s.spectrum.wavelength.findIndex((w) => w > 6400)
+    const cut = s.spectrum
+    const short: Spectrum1D = {
+      wavelength: cut.wavelength.slice(0, blue),
+      flux: cut.flux.slice(0, blue),
+      ...(cut.error ? { error: cut.error.slice(0, blue) } : {}),
+      ...(cut.mask ? { mask: cut.mask.slice(0, blue) } : {}),
+    }
+    expect(classify(s, short).suggestion!.region).toEqual([3850, 5000])
+    // A campaign region of its own is used as it is.
+    expect(runPipeline({ spectrum: s.spectrum, inputFwhm: s.fwhm, exclude: s.exclude, region: [4000, 5200] }, library).suggestion!.region).toEqual([4000, 5200])
+  }, 60_000)
 })
 
 describe('the resolution estimate', () => {
