@@ -16,7 +16,15 @@ export type { SuggestionSummary }
  * and which standards decided it (the instrument's own or the general library's).
  */
 export async function suggestionDetails(r: MatchResult, resolution: PipelineResolution, notes: readonly string[], used: StandardsUsed | null, transaction?: Transaction): Promise<SuggestionDetails> {
-  const details: SuggestionDetails = { parameters: r.parameters, classShares: r.classShares, classNote: r.classNote, resolution, region: [r.region[0], r.region[1]], residual: r.residual, notes: [...notes] }
+  const details: SuggestionDetails = {
+    parameters: r.parameters,
+    classShares: r.classShares,
+    classNote: r.classNote,
+    resolution,
+    region: [r.region[0], r.region[1]],
+    residual: r.residual,
+    notes: [...notes],
+  }
   if (used) {
     const instrument = used.instrumentId !== null ? await Instrument.findByPk(used.instrumentId, { attributes: ['id', 'name'], transaction }) : null
     // The instrument is told by id and name; the bare id is not part of the answer's shape.
