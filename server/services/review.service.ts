@@ -1,5 +1,5 @@
 import type { SuggestionDetails } from '../../shared/api/suggestions'
-import { Op, UniqueConstraintError, type Transaction } from 'sequelize'
+import { Op, UniqueConstraintError, type InferAttributes, type Transaction } from 'sequelize'
 import { parseMK } from '../../shared/mk'
 import type { AppContext } from '../context'
 import { HttpError } from '../lib/http-error'
@@ -74,7 +74,7 @@ export function toCallView(c: ReviewCall, names: Map<number, string>): CallView 
   }
 }
 
-export function toFinalClassification(c: Classification, names: Map<number, string>): FinalClassification {
+export function toFinalClassification(c: InferAttributes<Classification>, names: Map<number, string>): FinalClassification {
   return {
     id: c.id,
     spectrumId: c.spectrumId,
@@ -103,7 +103,7 @@ export function toFinalClassification(c: Classification, names: Map<number, stri
 export async function namesOf(ids: Iterable<number | null>): Promise<Map<number, string>> {
   const unique = [...new Set([...ids].filter((id): id is number => id !== null))]
   if (unique.length === 0) return new Map()
-  const users = await User.findAll({ where: { id: { [Op.in]: unique } }, attributes: ['id', 'name'] })
+  const users = await User.findAll({ where: { id: { [Op.in]: unique } }, attributes: ['id', 'name'], raw: true })
   return new Map(users.map((u) => [u.id, u.name]))
 }
 
@@ -114,8 +114,9 @@ export async function namesOf(ids: Iterable<number | null>): Promise<Map<number,
 export async function finalClassificationsFor(spectrumIds: number[]): Promise<Map<number, FinalClassification>> {
   const ids = [...new Set(spectrumIds)]
   if (ids.length === 0) return new Map()
-  const rows = await Classification.findAll({ where: { spectrumId: { [Op.in]: ids } }, order: [['id', 'ASC']] })
-  const latest = new Map<number, Classification>()
+  // Plain rows: lists ask for a page of these on every request.
+  const rows = (await Classification.findAll({ where: { spectrumId: { [Op.in]: ids } }, order: [['id', 'ASC']], raw: true })) as InferAttributes<Classification>[]
+  const latest = new Map<number, InferAttributes<Classification>>()
   for (const r of rows) latest.set(r.spectrumId, r)
   const names = await namesOf([...latest.values()].map((r) => r.decidedBy))
   return new Map([...latest].map(([id, r]) => [id, toFinalClassification(r, names)]))
