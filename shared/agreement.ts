@@ -152,11 +152,15 @@ export function fleissKappa(counts: readonly (readonly number[])[]): number {
 export function agreementFraction(a: readonly number[], b: readonly number[], tolerance = 0): number {
   checkPair(a, b)
   if (!(tolerance >= 0)) throw new RangeError(`tolerance must be ≥ 0, got ${tolerance}`)
-  // A small allowance keeps ±0.5 from failing on codes such as 51.5 − 51.0 computed in binary.
-  const limit = tolerance + 1e-9
   let n = 0
-  for (let i = 0; i < a.length; i++) if (Math.abs(a[i]! - b[i]!) <= limit) n++
+  for (let i = 0; i < a.length; i++) if (codesWithin(a[i]!, b[i]!, tolerance)) n++
   return n / a.length
+}
+
+/** Whether two codes differ by at most `tolerance`, as {@link agreementFraction} counts one pair. */
+export function codesWithin(a: number, b: number, tolerance: number): boolean {
+  // A small allowance keeps ±0.5 from failing on codes such as 51.5 − 51.0 computed in binary.
+  return Math.abs(a - b) <= tolerance + 1e-9
 }
 
 /**

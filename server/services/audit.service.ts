@@ -1,5 +1,5 @@
 import { Op, QueryTypes } from 'sequelize'
-import { agreementFraction, classAgreementFraction, cohenKappa, fleissKappa, meanOffset, reconcileClasses, weightedKappa } from '../../shared/agreement'
+import { agreementFraction, classAgreementFraction, classesAgree, codesWithin, cohenKappa, fleissKappa, meanOffset, reconcileClasses, weightedKappa } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { sqlTime } from '../lib/sql-time'
@@ -156,20 +156,25 @@ const classLabel = (code: number) => {
   return best.text
 }
 
+/** Distinct values of a list of ids, ascending. */
+function distinctSorted(ids: readonly number[]): number[] {
+  const sorted = Float64Array.from(ids).sort()
+  const out: number[] = []
+  for (let i = 0; i < sorted.length; i++) if (i === 0 || sorted[i] !== sorted[i - 1]) out.push(sorted[i]!)
+  return out
+}
+
 /** A confusion matrix of labelled pairs, keeping the spectrum ids behind each cell. */
 export function labelledMatrix(pairs: Array<{ row: string; column: string; spectrumId: number }>, order: readonly string[], rowsAre: string, columnsAre: string): ConfusionMatrix {
-  const used = new Set(pairs.flatMap((p) => [p.row, p.column]))
+  const used = new Set<string>()
+  for (const p of pairs) used.add(p.row).add(p.column)
   const labels = order.filter((l) => used.has(l))
   const index = new Map(labels.map((l, i) => [l, i]))
-  const cells = labels.map(() => labels.map((): MatrixCell => ({ count: 0, spectrumIds: [] })))
-  const seen = labels.map(() => labels.map(() => new Set<number>()))
-  for (const p of pairs) {
-    const r = index.get(p.row)!
-    const c = index.get(p.column)!
-    cells[r]![c]!.count++
-    seen[r]![c]!.add(p.spectrumId)
-  }
-  cells.forEach((row, r) => row.forEach((cell, c) => (cell.spectrumIds = [...seen[r]![c]!].sort((x, y) => x - y))))
+  const k = labels.length
+  // One flat list of ids per cell; a spectrum called alike by two people counts twice but is listed once.
+  const ids = Array.from({ length: k * k }, (): number[] => [])
+  for (const p of pairs) ids[index.get(p.row)! * k + index.get(p.column)!]!.push(p.spectrumId)
+  const cells = labels.map((_, r) => labels.map((__, c): MatrixCell => ({ count: ids[r * k + c]!.length, spectrumIds: distinctSorted(ids[r * k + c]!) })))
   return { rowsAre, columnsAre, labels, cells, n: pairs.length }
 }
 
@@ -193,20 +198,42 @@ function typeAndClassMatrices(pairs: Array<{ a: { typeCode: number; classCode: n
   }
 }
 
-function fractions(pairs: Array<{ a: { typeCode: number; classCode: number }; b: { typeCode: number; classCode: number } }>) {
-  const a = pairs.map((p) => p.a)
-  const b = pairs.map((p) => p.b)
-  const n = pairs.length
-  const at = a.map((x) => x.typeCode)
-  const bt = b.map((x) => x.typeCode)
-  const ac = a.map((x) => x.classCode)
-  const bc = b.map((x) => x.classCode)
-  return {
-    exactType: safe(n, () => agreementFraction(at, bt, 0)),
-    withinOneSubtype: safe(n, () => agreementFraction(at, bt, 1)),
-    exactClass: safe(n, () => classAgreementFraction(ac, bc)),
-    withinOneClass: safe(n, () => agreementFraction(ac, bc, 1)),
+interface Codes {
+  typeCode: number
+  classCode: number
+}
+
+/** Exact and ±1 agreement of type and class, counted pair by pair (no arrays: audits add up hundreds of thousands). */
+class AgreementTally {
+  private n = 0
+  private exactType = 0
+  private withinOneSubtype = 0
+  private exactClass = 0
+  private withinOneClass = 0
+
+  add(a: Codes, b: Codes): void {
+    this.n++
+    if (codesWithin(a.typeCode, b.typeCode, 0)) this.exactType++
+    if (codesWithin(a.typeCode, b.typeCode, 1)) this.withinOneSubtype++
+    if (classesAgree(a.classCode, b.classCode)) this.exactClass++
+    if (codesWithin(a.classCode, b.classCode, 1)) this.withinOneClass++
   }
+
+  figures() {
+    const n = this.n
+    return {
+      exactType: safe(n, () => this.exactType / n),
+      withinOneSubtype: safe(n, () => this.withinOneSubtype / n),
+      exactClass: safe(n, () => this.exactClass / n),
+      withinOneClass: safe(n, () => this.withinOneClass / n),
+    }
+  }
+}
+
+function fractions(pairs: Iterable<{ a: Codes; b: Codes }>) {
+  const tally = new AgreementTally()
+  for (const { a, b } of pairs) tally.add(a, b)
+  return tally.figures()
 }
 
 /**
@@ -315,22 +342,21 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
   const suggestionConsensusPairs = [...consensus.entries()].filter(([id]) => info.get(id)?.suggestion).map(([id, c]) => ({ a: info.get(id)!.suggestion!, b: c, spectrumId: id }))
 
   const groupFigures = (keyOf: (c: AuditCall) => string | null): GroupFigures[] => {
-    const groups = new Map<string, AuditCall[]>()
+    const groups = new Map<string, { calls: number; vsConsensus: AgreementTally; vsSuggestion: AgreementTally }>()
     for (const c of calls) {
       const k = keyOf(c)
       if (k === null) continue
-      const list = groups.get(k)
-      if (list) list.push(c)
-      else groups.set(k, [c])
+      let group = groups.get(k)
+      if (!group) groups.set(k, (group = { calls: 0, vsConsensus: new AgreementTally(), vsSuggestion: new AgreementTally() }))
+      group.calls++
+      const agreed = consensus.get(c.spectrumId)
+      if (agreed) group.vsConsensus.add(c, agreed)
+      const suggested = info.get(c.spectrumId)?.suggestion
+      if (suggested) group.vsSuggestion.add(c, suggested)
     }
     return [...groups.entries()]
       .sort((x, y) => (x[0] < y[0] ? -1 : x[0] > y[0] ? 1 : 0))
-      .map(([key, list]) => ({
-        key,
-        calls: list.length,
-        vsConsensus: fractions(list.filter((c) => consensus.has(c.spectrumId)).map((c) => ({ a: c, b: consensus.get(c.spectrumId)! }))),
-        vsSuggestion: fractions(list.filter((c) => info.get(c.spectrumId)?.suggestion).map((c) => ({ a: c, b: info.get(c.spectrumId)!.suggestion! }))),
-      }))
+      .map(([key, g]) => ({ key, calls: g.calls, vsConsensus: g.vsConsensus.figures(), vsSuggestion: g.vsSuggestion.figures() }))
   }
 
   const sameAsSuggestion = (c: AuditCall) => {
@@ -494,15 +520,55 @@ async function rows<T>(sql: string, values: Record<string, Date | number | null>
   }
 }
 
+let packetLimit: Promise<number> | null = null
+
+/**
+ * Numeric rows read as one text per query: the server joins each row's numbers with commas and
+ * the rows into one JSON array, which JSON.parse reads at once. Decoding a hundred thousand rows
+ * one at a time in the driver took most of a cold audit; this takes a fraction of it. Each row is
+ * the values of `columns` (numeric SQL expressions; NULL comes back as null) in their order; `from`
+ * is the FROM … WHERE … text. Rows come in no particular order. A result too long for one packet
+ * (max_allowed_packet) is read again in parts, split by the first column.
+ */
+async function numericRows(columns: readonly string[], from: string, values: Record<string, Date | number | null>): Promise<Array<Array<number | null>>> {
+  const joined = columns.map((c) => `IFNULL(${c}, 'null')`).join(', ')
+  // Room for the rest of the reply beside the text.
+  const limit = await (packetLimit ??= rows<{ p: number | bigint }>('SELECT @@max_allowed_packet AS p', {}).then(([r]) => Number(r!.p) - 4096))
+  for (let parts = 1; parts <= 1 << 16; parts *= 4) {
+    const out: Array<Array<number | null>> = []
+    let whole = true
+    for (let part = 0; part < parts && whole; part++) {
+      const [r] = await rows<{ j: string | null; n: number | bigint }>(
+        `SET STATEMENT group_concat_max_len = ${limit} FOR
+         SELECT GROUP_CONCAT(CONCAT_WS(',', ${joined}) SEPARATOR '],[') AS j, COUNT(*) AS n ${from}
+         ${parts > 1 ? `AND MOD(${columns[0]}, ${parts}) = ${part}` : ''}`,
+        values,
+      )
+      const n = Number(r?.n ?? 0)
+      if (n === 0) continue
+      // A text cut at the length limit parses to fewer rows than were counted, or not at all.
+      const list = r!.j !== null && r!.j.length < limit ? (JSON.parse(`[[${r!.j}]]`) as Array<Array<number | null>>) : []
+      if (list.length !== n) whole = false
+      else if (parts === 1) return list
+      else for (const row of list) out.push(row)
+    }
+    if (whole) return out
+  }
+  throw new Error('the rows do not fit in the packets the database allows')
+}
+
+/** Rows in ascending order of their first value (an id). */
+const byId = <T extends Array<number | null>>(list: T[]) => list.sort((a, b) => a[0]! - b[0]!)
+
 /** The decided classification of each of the campaign's spectra: the latest row. */
 async function loadDecisions(campaignId: number): Promise<Decisions> {
-  const decided = await rows<{ spectrum_id: number; type_code: number; class_code: number }>(
-    `SELECT c.spectrum_id, c.type_code, c.class_code FROM classifications c JOIN spectra sp ON sp.id = c.spectrum_id
-     WHERE sp.campaign_id = :campaign ORDER BY c.id`,
-    { campaign: campaignId },
+  const decided = byId(
+    await numericRows(['c.id', 'c.spectrum_id', 'c.type_code', 'c.class_code'], 'FROM classifications c JOIN spectra sp ON sp.id = c.spectrum_id WHERE sp.campaign_id = :campaign', {
+      campaign: campaignId,
+    }),
   )
   const latest: Decisions = new Map()
-  for (const d of decided) latest.set(Number(d.spectrum_id), { typeCode: Number(d.type_code), classCode: Number(d.class_code) })
+  for (const [, spectrumId, typeCode, classCode] of decided) latest.set(spectrumId!, { typeCode: typeCode!, classCode: classCode! })
   return latest
 }
 
@@ -515,14 +581,22 @@ async function accuracyItems(campaignId: number, range: { from?: Date | undefine
   const [decision, suggestions, selfStandards] = await Promise.all([
     decisions,
     // suggestions_audit (migration 0031) covers every column read here, the share included.
-    rows<{ spectrum_id: number; library_version_id: number; type_code: number; class_code: number; created_us: number | bigint; own_share: string | number | null; instrument_id: number | null }>(
-      `SELECT sg.spectrum_id, sg.library_version_id, sg.type_code, sg.class_code, ${microseconds('sg.created_at')} AS created_us,
-              sg.own_share, sp.instrument_id
-       FROM suggestions sg JOIN spectra sp ON sp.id = sg.spectrum_id
+    numericRows(
+      ['sg.id', 'sg.spectrum_id', 'sg.library_version_id', 'sg.type_code', 'sg.class_code', microseconds('sg.created_at'), 'sg.own_share', 'sp.instrument_id'],
+      `FROM suggestions sg JOIN spectra sp ON sp.id = sg.spectrum_id
        WHERE sp.campaign_id = :campaign AND EXISTS (SELECT 1 FROM classifications c WHERE c.spectrum_id = sg.spectrum_id)
-         ${range.from ? 'AND sg.created_at >= :from' : ''} ${range.to ? 'AND sg.created_at < :to' : ''}
-       ORDER BY sg.id`,
+         ${range.from ? 'AND sg.created_at >= :from' : ''} ${range.to ? 'AND sg.created_at < :to' : ''}`,
       r,
+    ).then((list) =>
+      byId(list).map(([, spectrum_id, library_version_id, type_code, class_code, created_us, own_share, instrument_id]) => ({
+        spectrum_id: spectrum_id!,
+        library_version_id: library_version_id!,
+        type_code: type_code!,
+        class_code: class_code!,
+        created_us: created_us!,
+        own_share: own_share ?? null,
+        instrument_id: instrument_id ?? null,
+      })),
     ),
     rows<{ spectrum_id: number; version_id: number }>(
       `SELECT st.spectrum_id, l.version_id FROM standards st JOIN spectra sp ON sp.id = st.spectrum_id
@@ -609,23 +683,67 @@ export async function loadAuditInputs(query: AuditQuery, decisions?: Promise<Dec
   const [all, users, versions, latestDecision] = await Promise.all([
     // The named suggestion is read through suggestions_audit (migration 0031), which holds every
     // column used here: by its primary key the large row itself would be read, from disk at scale.
-    rows<CallRow>(
-      `SELECT rc.id, rc.spectrum_id, rc.user_id, rc.type_code, rc.class_code, ${microseconds('rc.created_at')} AS created_us, rc.seconds_spent,
-              rc.suggestion_shown, rc.accepted_suggestion, rc.suggestion_id,
-              sg.type_code AS shown_type_code, sg.class_code AS shown_class_code, sg.library_version_id AS shown_version_id
-       FROM review_calls rc JOIN spectra sp ON sp.id = rc.spectrum_id
+    numericRows(
+      [
+        'rc.id',
+        'rc.spectrum_id',
+        'rc.user_id',
+        'rc.type_code',
+        'rc.class_code',
+        microseconds('rc.created_at'),
+        'rc.seconds_spent',
+        'rc.suggestion_shown',
+        'rc.accepted_suggestion',
+        'rc.suggestion_id',
+        'sg.type_code',
+        'sg.class_code',
+        'sg.library_version_id',
+      ],
+      `FROM review_calls rc JOIN spectra sp ON sp.id = rc.spectrum_id
        LEFT JOIN suggestions sg FORCE INDEX (suggestions_audit) ON sg.spectrum_id = rc.spectrum_id AND sg.id = rc.suggestion_id
-       WHERE sp.campaign_id = :campaign ${query.from ? 'AND rc.created_at >= :from' : ''} ${query.to ? 'AND rc.created_at < :to' : ''}
-       ORDER BY rc.id`,
+       WHERE sp.campaign_id = :campaign ${query.from ? 'AND rc.created_at >= :from' : ''} ${query.to ? 'AND rc.created_at < :to' : ''}`,
       r,
+    ).then((list) =>
+      byId(list).map(
+        ([
+          id,
+          spectrum_id,
+          user_id,
+          type_code,
+          class_code,
+          created_us,
+          seconds_spent,
+          suggestion_shown,
+          accepted_suggestion,
+          suggestion_id,
+          shown_type_code,
+          shown_class_code,
+          shown_version_id,
+        ]): CallRow => ({
+          id: id!,
+          spectrum_id: spectrum_id!,
+          user_id: user_id!,
+          type_code: type_code!,
+          class_code: class_code!,
+          created_us: created_us!,
+          seconds_spent: seconds_spent ?? null,
+          suggestion_shown: suggestion_shown!,
+          accepted_suggestion: accepted_suggestion!,
+          suggestion_id: suggestion_id ?? null,
+          shown_type_code: shown_type_code ?? null,
+          shown_class_code: shown_class_code ?? null,
+          shown_version_id: shown_version_id ?? null,
+        }),
+      ),
     ),
     User.findAll({ attributes: ['id', 'name'], raw: true }),
     LibraryVersion.findAll({ attributes: ['id', 'name'], raw: true }),
     decisions ?? loadDecisions(query.campaignId),
   ])
   // The standing call of each person on each spectrum: the latest row.
-  const standing = new Map<string, CallRow>()
-  for (const row of all) standing.set(`${row.spectrum_id}:${row.user_id}`, row)
+  const standing = new Map<number, CallRow>()
+  // One number per spectrum and person (user ids stay far below 2^20; the product stays below 2^53).
+  for (const row of all) standing.set(row.spectrum_id * 1_048_576 + row.user_id, row)
   const calls = [...standing.values()]
   // The suggestion the calls were made against (the first standing call that names one), else the current one.
   const shownOf = new Map<number, CallRow>()
@@ -634,12 +752,15 @@ export async function loadAuditInputs(query: AuditQuery, decisions?: Promise<Dec
   const withoutShown = called.filter((id) => shownOf.get(id)?.shown_type_code == null)
   const current = new Map<number, SuggestionRef>()
   if (withoutShown.length > 0) {
-    const currentRows = await rows<SuggestionRef & { spectrum_id: number }>(
-      `SELECT sg.spectrum_id, sg.type_code, sg.class_code, sg.library_version_id FROM suggestions sg JOIN spectra sp ON sp.id = sg.spectrum_id
-       WHERE sp.campaign_id = :campaign AND sg.is_current = 1 ORDER BY sg.id`,
-      r,
+    const currentRows = byId(
+      await numericRows(
+        ['sg.id', 'sg.spectrum_id', 'sg.type_code', 'sg.class_code', 'sg.library_version_id'],
+        'FROM suggestions sg JOIN spectra sp ON sp.id = sg.spectrum_id WHERE sp.campaign_id = :campaign AND sg.is_current = 1',
+        r,
+      ),
     )
-    for (const s of currentRows) current.set(Number(s.spectrum_id), s)
+    for (const [, spectrumId, type_code, class_code, library_version_id] of currentRows)
+      current.set(spectrumId!, { type_code: type_code!, class_code: class_code!, library_version_id: library_version_id! })
   }
   const names = new Map(users.map((u) => [u.id, u.name]))
   const versionName = new Map(versions.map((v) => [v.id, v.name]))
@@ -701,15 +822,17 @@ export function setAuditRunner(runner: AuditRunner | null): void {
 }
 
 /**
- * What the stored review data looks like right now: the newest call, decision and suggestion and
- * the library versions, people and instruments (by name). Rows are only ever added (calls, decisions and suggestions are never
- * edited), so an unchanged stamp means unchanged figures.
+ * What the stored review data looks like right now: the newest call, decision and suggestion, the
+ * library versions, and the names of people and instruments (only the names: every sign-in updates
+ * its user's row, and must not throw the figures away). Rows are only ever added (calls, decisions
+ * and suggestions are never edited), so an unchanged stamp means unchanged figures.
  */
 async function dataStamp(): Promise<string> {
   const [row] = await ReviewCall.sequelize!.query<Record<string, unknown>>(
     `SELECT (SELECT MAX(id) FROM review_calls) AS calls, (SELECT MAX(id) FROM classifications) AS decisions,
             (SELECT MAX(id) FROM suggestions) AS suggestions, (SELECT COUNT(*) FROM library_versions) AS versions,
-            (SELECT MAX(updated_at) FROM users) AS people, (SELECT MAX(updated_at) FROM instruments) AS instruments`,
+            (SELECT MD5(GROUP_CONCAT(id, ':', name ORDER BY id)) FROM users) AS people,
+            (SELECT MD5(GROUP_CONCAT(id, ':', name ORDER BY id)) FROM instruments) AS instruments`,
     { type: QueryTypes.SELECT },
   )
   return JSON.stringify(row)

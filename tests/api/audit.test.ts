@@ -1,7 +1,19 @@
 import { randomBytes } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Campaign, Classification, LibraryVersion, Measurement, ReviewCall, Spectrum, Suggestion, type User } from '../../server/models'
-import { agreementFigures, auditFigures, isoWeek, suggestionAccuracy, typeScale, type AccuracyItem, type AuditCall, type AuditSpectrum } from '../../server/services/audit.service'
+import {
+  agreementFigures,
+  auditFigures,
+  auditReportJson,
+  getAuditJson,
+  isoWeek,
+  setAuditRunner,
+  suggestionAccuracy,
+  typeScale,
+  type AccuracyItem,
+  type AuditCall,
+  type AuditSpectrum,
+} from '../../server/services/audit.service'
 import { weightedKappa } from '../../shared/agreement'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
 
@@ -400,6 +412,30 @@ describe('GET /api/audit', () => {
     expect(res.body.audit.calls).toBe(2)
     expect(res.body.audit.from).toBe('2025-02-01T00:00:00.000Z')
     expect(res.body.audit.to).toBe('2025-02-04T00:00:00.000Z')
+  })
+
+  it('keeps a computed report through sign-ins, and computes it again when a name it shows changes', async () => {
+    let computed = 0
+    setAuditRunner((query, ref) => {
+      computed++
+      return auditReportJson(query, ref)
+    })
+    try {
+      const query = { campaignId: campaign.id, from: new Date('2025-01-01T00:00:00Z') }
+      await getAuditJson(query)
+      expect(computed).toBe(1)
+      // A sign-in writes the person's row (last sign-in time); the figures do not change.
+      await people[0]!.update({ lastLoginAt: new Date() })
+      await getAuditJson(query)
+      expect(computed).toBe(1)
+      await people[0]!.update({ name: 'Audit A.' })
+      const renamed = JSON.parse(await getAuditJson(query)) as { audit: { pairs: Array<{ a: { name: string } }> } }
+      expect(computed).toBe(2)
+      expect(renamed.audit.pairs[0]!.a.name).toBe('Audit A.')
+    } finally {
+      setAuditRunner(null)
+      await people[0]!.update({ name: 'Audit A' })
+    }
   })
 
   it('refuses classifiers, a missing campaign and a range that ends before it starts', async () => {
