@@ -1,4 +1,4 @@
-import { Op, type Sequelize, type Transaction } from 'sequelize'
+import { Op, type InferAttributes, type Sequelize, type Transaction } from 'sequelize'
 import { CLASSIFICATION_LINES } from '../../shared/lines'
 import { gridWavelength } from '../../shared/grid'
 import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
@@ -17,7 +17,7 @@ export type { LineRow, MeasurementSummary }
 
 const LINE_INFO = new Map(CLASSIFICATION_LINES.map((l) => [l.id, l]))
 
-function toSummary(m: Measurement, lines: LineMeasurementRow[]): MeasurementSummary {
+function toSummary(m: Measurement, lines: InferAttributes<LineMeasurementRow>[]): MeasurementSummary {
   return {
     id: m.id,
     pipelineVersion: m.pipelineVersion,
@@ -37,7 +37,7 @@ function toSummary(m: Measurement, lines: LineMeasurementRow[]): MeasurementSumm
         name: info?.name ?? l.lineId,
         wavelength: info?.wavelength ?? 0,
         family: info?.family ?? '',
-        measured: l.measured,
+        measured: Boolean(l.measured),
         reason: l.reason,
         ew: l.ew,
         ewError: l.ewError,
@@ -61,7 +61,8 @@ export async function measurementsOf(spectrumId: number): Promise<SpectrumMeasur
     order: [['id', 'DESC']],
   })
   const current = all.find((m) => m.isCurrent) ?? null
-  const lines = current ? await LineMeasurementRow.findAll({ where: { measurementId: current.id }, order: [['id', 'ASC']] }) : []
+  // Plain rows: some forty lines on every detail and review screen.
+  const lines = current ? ((await LineMeasurementRow.findAll({ where: { measurementId: current.id }, order: [['id', 'ASC']], raw: true })) as InferAttributes<LineMeasurementRow>[]) : []
   return {
     current: current ? toSummary(current, lines) : null,
     history: all.map((m) => {
