@@ -530,10 +530,16 @@ let packetLimit: Promise<number> | null = null
  * is the FROM … WHERE … text. Rows come in no particular order. A result too long for one packet
  * (max_allowed_packet) is read again in parts, split by the first column.
  */
-async function numericRows(columns: readonly string[], from: string, values: Record<string, Date | number | null>): Promise<Array<Array<number | null>>> {
+export async function numericRows(
+  columns: readonly string[],
+  from: string,
+  values: Record<string, Date | number | null>,
+  /** The longest text read at once; by default what fits in one packet. */
+  maxText?: number,
+): Promise<Array<Array<number | null>>> {
   const joined = columns.map((c) => `IFNULL(${c}, 'null')`).join(', ')
   // Room for the rest of the reply beside the text.
-  const limit = await (packetLimit ??= rows<{ p: number | bigint }>('SELECT @@max_allowed_packet AS p', {}).then(([r]) => Number(r!.p) - 4096))
+  const limit = maxText ?? (await (packetLimit ??= rows<{ p: number | bigint }>('SELECT @@max_allowed_packet AS p', {}).then(([r]) => Number(r!.p) - 4096)))
   for (let parts = 1; parts <= 1 << 16; parts *= 4) {
     const out: Array<Array<number | null>> = []
     let whole = true

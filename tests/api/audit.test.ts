@@ -7,6 +7,7 @@ import {
   auditReportJson,
   getAuditJson,
   isoWeek,
+  numericRows,
   setAuditRunner,
   suggestionAccuracy,
   typeScale,
@@ -412,6 +413,19 @@ describe('GET /api/audit', () => {
     expect(res.body.audit.calls).toBe(2)
     expect(res.body.audit.from).toBe('2025-02-01T00:00:00.000Z')
     expect(res.body.audit.to).toBe('2025-02-04T00:00:00.000Z')
+  })
+
+  it('reads numeric rows whole, or in parts when the text would be longer than one reply may carry', async () => {
+    const columns = ['rc.id', 'rc.type_code', 'rc.class_code', 'rc.seconds_spent', 'rc.type_code / 8', 'NULL']
+    const from = 'FROM review_calls rc JOIN spectra sp ON sp.id = rc.spectrum_id WHERE sp.campaign_id = :campaign'
+    // The same rows read through the ORM.
+    const spectra = await Spectrum.findAll({ where: { campaignId: campaign.id }, attributes: ['id'] })
+    const stored = await ReviewCall.findAll({ where: { spectrumId: spectra.map((x) => x.id) }, order: [['id', 'ASC']] })
+    const expected = stored.map((c) => [c.id, c.typeCode, c.classCode, c.secondsSpent, c.typeCode / 8, null])
+    const sorted = (list: Array<Array<number | null>>) => [...list].sort((a, b) => a[0]! - b[0]!)
+    expect(sorted(await numericRows(columns, from, { campaign: campaign.id }))).toEqual(expected)
+    // 40 characters hold one row of these, not two: the rows come in parts.
+    expect(sorted(await numericRows(columns, from, { campaign: campaign.id }, 40))).toEqual(expected)
   })
 
   it('keeps a computed report through sign-ins, and computes it again when a name it shows changes', async () => {
