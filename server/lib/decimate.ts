@@ -1,3 +1,8 @@
+import { lowerBound } from '../spectra/prepare/stats'
+
+/** Re-exported for the series endpoints, which cut arrays by wavelength. */
+export { lowerBound }
+
 /**
  * Min–max decimation for plotting: keeps, per bucket, the pixels with the lowest and highest
  * value of `primary`, so absorption cores and emission peaks survive an overview.
@@ -26,16 +31,4 @@ export function decimateMinMax(primary: ArrayLike<number>, from: number, to: num
     else out.push(Math.min(iMin, iMax), Math.max(iMin, iMax))
   }
   return Int32Array.from(out)
-}
-
-/** First index with wl[i] >= value (binary search on an ascending array). */
-export function lowerBound(wl: ArrayLike<number>, value: number): number {
-  let lo = 0
-  let hi = wl.length
-  while (lo < hi) {
-    const mid = (lo + hi) >>> 1
-    if (wl[mid]! < value) lo = mid + 1
-    else hi = mid
-  }
-  return lo
 }

@@ -250,7 +250,7 @@ export function residualSnr(library: PreparedMatchLibrary, level: LibraryLevel, 
   const a = (sy - b * sx) / m
   const steps = new Float64Array(spectrum.wavelength.length - 1)
   for (let i = 1; i < spectrum.wavelength.length; i++) steps[i - 1] = spectrum.wavelength[i]! - spectrum.wavelength[i - 1]!
-  const inputStep = medianOf(Array.from(steps))
+  const inputStep = medianOf(steps)
   const centre = (region[0] + region[1]) / 2
   const lag = Math.max(2, Math.round((2 * inputStep) / (centre * library.grid.step)))
   const r = new Float64Array(pixels).fill(Number.NaN)
@@ -271,9 +271,10 @@ export function residualSnr(library: PreparedMatchLibrary, level: LibraryLevel, 
   return noise > 0 ? medianOf(flux) / noise : null
 }
 
-function medianOf(values: number[]): number {
-  const sorted = values.filter(Number.isFinite).sort((x, y) => x - y)
-  return sorted.length === 0 ? Number.NaN : sorted[sorted.length >> 1]!
+/** The upper median of the finite values (the value a sort puts at n/2), by selection. */
+function medianOf(values: ArrayLike<number>): number {
+  const finite = Float64Array.from(values).filter(Number.isFinite)
+  return finite.length === 0 ? Number.NaN : kthSmallest(finite, finite.length >> 1)
 }
 
 /** Narrowest classification region the matcher accepts, Å. */

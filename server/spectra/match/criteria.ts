@@ -5,6 +5,7 @@
  * classification (Morgan, Keenan & Kellman 1943; Gray & Corbally, *Stellar Spectral
  * Classification*, 2009, ch. 3–5, from memory).
  */
+import { lowerBound } from '../prepare/stats'
 
 export interface Criterion {
   id: string
@@ -57,18 +58,6 @@ export const CRITERIA: readonly Criterion[] = [
     centres: [4770], offsets: [0, 20], risesWithLuminosity: false, scatter: 0.022,
   },
 ]
-
-/** First index with wavelength[i] ≥ λ (binary search on an ascending array). */
-export function lowerBound(wavelength: ArrayLike<number>, lambda: number): number {
-  let lo = 0
-  let hi = wavelength.length
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1
-    if (wavelength[mid]! < lambda) lo = mid + 1
-    else hi = mid
-  }
-  return lo
-}
 
 function meanDepth(flux: ArrayLike<number>, wavelength: ArrayLike<number>, a: number, b: number): number {
   const i0 = lowerBound(wavelength, a)

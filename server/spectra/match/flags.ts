@@ -5,7 +5,7 @@
  */
 import type { LineMeasurement } from '../measure/types'
 import { smoothPairChiSquare } from './chi2'
-import { lowerBound } from './criteria'
+import { lowerBound } from '../prepare/stats'
 import type { LevelFit } from './classify'
 import type { LibraryLevel, MatchStandardInfo, PreparedMatchLibrary } from './library'
 

@@ -1,6 +1,7 @@
 import type { ClassificationLine, WavelengthRange } from '../../../shared/lines'
 import type { Spectrum1D } from '../../../shared/spectrum'
 import { assertSpectrum } from '../prepare/guards'
+import { lowerBound } from '../prepare/stats'
 import type { LineMeasurement } from './types'
 
 export interface LineOptions {
@@ -205,18 +206,6 @@ function bandMean(spectrum: Spectrum1D, range: WavelengthRange): BandMean {
 /** First and last pixel whose box can touch the range (binary search; pixels are ascending). */
 function pixelSpan(w: Float64Array, range: WavelengthRange): [number, number] {
   return [Math.max(0, lowerBound(w, range[0]) - 1), Math.min(w.length - 1, lowerBound(w, range[1]))]
-}
-
-/** Index of the first wavelength ≥ x. */
-function lowerBound(w: Float64Array, x: number): number {
-  let lo = 0
-  let hi = w.length
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1
-    if (w[mid]! < x) lo = mid + 1
-    else hi = mid
-  }
-  return lo
 }
 
 /** Length (Å) of pixel i's box inside the range. */

@@ -1,6 +1,7 @@
 import type { ClassificationLine, WavelengthRange } from '../../../shared/lines'
 import type { Spectrum1D } from '../../../shared/spectrum'
 import { assertSpectrum } from '../prepare/guards'
+import { lowerBound } from '../prepare/stats'
 import { fitLevenbergMarquardt } from './lm'
 import type { VoigtFit } from './types'
 import { gaussianFwhm, voigtFwhmApproximation, voigtProfile, voigtWithDerivatives, type VoigtDerivatives } from './voigt'
@@ -141,16 +142,4 @@ export function fitCheckedSpectrumVoigtLine(spectrum: Spectrum1D, line: Classifi
       window,
     },
   }
-}
-
-/** Index of the first wavelength ≥ x (binary search). */
-function lowerBound(w: Float64Array, x: number): number {
-  let lo = 0
-  let hi = w.length
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1
-    if (w[mid]! < x) lo = mid + 1
-    else hi = mid
-  }
-  return lo
 }

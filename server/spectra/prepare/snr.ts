@@ -1,7 +1,7 @@
 import type { WavelengthRange } from '../../../shared/lines'
 import type { Spectrum1D } from '../../../shared/spectrum'
 import { assertSpectrum, isGoodPixel } from './guards'
-import { medianInPlace } from './stats'
+import { lowerBound, medianInPlace } from './stats'
 
 /** 1.482602 / √6: turns the median absolute second difference into a Gaussian σ (Stoehr et al. 2008). */
 const DER_SNR_SCALE = 1.482602 / Math.sqrt(6)
@@ -69,12 +69,11 @@ export function estimateSpectrumSnrByWindow(spectrum: Spectrum1D, options: SnrBy
 
 function derSnr(spectrum: Spectrum1D, region: WavelengthRange | undefined, good: Float64Array, scratch: Float64Array): number | null {
   const { wavelength, flux } = spectrum
-  const lo = region ? region[0] : -Infinity
   const hi = region ? region[1] : Infinity
   let m = 0
-  for (let i = 0; i < wavelength.length; i++) {
-    const w = wavelength[i]!
-    if (w < lo || w > hi || !isGoodPixel(spectrum, i) || flux[i] === 0) continue
+  // Wavelengths ascend (assertSpectrum): only the window's pixels are visited, not the whole spectrum per window.
+  for (let i = region ? lowerBound(wavelength, region[0]) : 0; i < wavelength.length && wavelength[i]! <= hi; i++) {
+    if (!isGoodPixel(spectrum, i) || flux[i] === 0) continue
     good[m++] = flux[i]!
   }
   if (m < 5) return null

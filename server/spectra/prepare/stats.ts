@@ -1,3 +1,15 @@
+/** First index with values[i] ≥ x in an ascending array (binary search); the length when none is. */
+export function lowerBound(values: ArrayLike<number>, x: number): number {
+  let lo = 0
+  let hi = values.length
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1
+    if (values[mid]! < x) lo = mid + 1
+    else hi = mid
+  }
+  return lo
+}
+
 /**
  * Median of the first n values of a scratch array, by quickselect (Hoare). Reorders the scratch
  * array in place; no allocation. For even n the mean of the two middle values, as numpy does.
