@@ -1,8 +1,3 @@
-import { lowerBound } from '../spectra/prepare/stats'
-
-/** Re-exported for the series endpoints, which cut arrays by wavelength. */
-export { lowerBound }
-
 /**
  * Min–max decimation for plotting: keeps, per bucket, the pixels with the lowest and highest
  * value of `primary`, so absorption cores and emission peaks survive an overview.

@@ -747,10 +747,13 @@ export async function loadAuditInputs(query: AuditQuery, decisions?: Promise<Dec
     decisions ?? loadDecisions(query.campaignId),
   ])
   // The standing call of each person on each spectrum: the latest row.
-  const standing = new Map<number, CallRow>()
-  // One number per spectrum and person (user ids stay far below 2^20; the product stays below 2^53).
-  for (const row of all) standing.set(row.spectrum_id * 1_048_576 + row.user_id, row)
-  const calls = [...standing.values()]
+  const standing = new Map<number, Map<number, CallRow>>()
+  for (const row of all) {
+    let people = standing.get(row.spectrum_id)
+    if (!people) standing.set(row.spectrum_id, (people = new Map()))
+    people.set(row.user_id, row)
+  }
+  const calls = [...standing.values()].flatMap((people) => [...people.values()])
   // The suggestion the calls were made against (the first standing call that names one), else the current one.
   const shownOf = new Map<number, CallRow>()
   for (const c of calls) if (c.suggestion_id !== null && !shownOf.has(c.spectrum_id)) shownOf.set(c.spectrum_id, c)
