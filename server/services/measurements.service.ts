@@ -2,6 +2,7 @@ import { Op, type InferAttributes, type Sequelize, type Transaction } from 'sequ
 import { CLASSIFICATION_LINES } from '../../shared/lines'
 import { gridWavelength } from '../../shared/grid'
 import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
+import { executeInTransaction } from '../db/execute'
 import { decimateMinMax } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { sqlTime } from '../lib/sql-time'
@@ -185,16 +186,17 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
   if (earlier.length > 0) await Measurement.update({ isCurrent: false }, { where: { id: { [Op.in]: earlier.map((m) => m.id) } }, transaction })
   // The arrays (80 KB and more) and the line rows go through the driver's binary protocol on the
   // transaction's connection: raw bytes instead of escaped text, and no model instance per row.
-  const connection = (transaction as unknown as { connection: { execute(sql: string, values: unknown[]): Promise<{ insertId: number | bigint }> } }).connection
-  const inserted = await connection.execute(
+  const inserted = await executeInTransaction(
+    transaction,
     `INSERT INTO measurements (spectrum_id, pipeline_version, is_current, snr, rv, rv_error, pseudo_continuum, warnings, ratios,
        grid_start, grid_step, grid_length, flux, continuum, rectified, mask, seconds, created_at)
      VALUES (${measurement.map(() => '?').join(', ')})`,
     measurement,
   )
-  const m = { id: Number(inserted.insertId) }
+  const m = { id: inserted.insertId }
   if (lines.length > 0) {
-    await connection.execute(
+    await executeInTransaction(
+      transaction,
       `INSERT INTO line_measurements (measurement_id, line_id, measured, reason, ew, ew_error, depth, fwhm, centroid, snr, gaussian_fwhm, lorentzian_fwhm, lorentzian_error)
        VALUES ${lines.map(() => '(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)').join(', ')}`,
       lines.flatMap((l) => [m.id, l.lineId, l.measured ? 1 : 0, l.reason, l.ew, l.ewError, l.depth, l.fwhm, l.centroid, l.snr, l.gaussianFwhm, l.lorentzianFwhm, l.lorentzianError]),

@@ -9,6 +9,8 @@ import { decimateMinMax } from '../lib/decimate'
 import { lowerBound } from '../spectra/prepare/stats'
 import { HttpError, notFound } from '../lib/http-error'
 import { sha256Hex } from '../lib/tokens'
+import { sqlTime } from '../lib/sql-time'
+import { executeInTransaction } from '../db/execute'
 import { rawFileKey } from '../storage'
 import {
   Campaign,
@@ -225,8 +227,20 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
       },
       { transaction },
     )
-    await SpectrumBlob.create({ spectrumId: spectrum.id, raw: null, rawKey: file.key, ...columns.blob }, { transaction })
-    await ProcessingJob.create({ spectrumId: spectrum.id, error: null, requestedBy: user.id, startedAt: null, finishedAt: null }, { transaction })
+    const { wavelength, flux, error, mask } = columns.blob
+    await executeInTransaction(transaction, 'INSERT INTO spectrum_blobs (spectrum_id, raw, raw_key, wavelength, flux, error, mask) VALUES (?, NULL, ?, ?, ?, ?, ?)', [
+      spectrum.id,
+      file.key,
+      wavelength,
+      flux,
+      error,
+      mask,
+    ])
+    await executeInTransaction(transaction, "INSERT INTO processing_jobs (spectrum_id, status, attempts, requested_by, created_at) VALUES (?, 'queued', 0, ?, ?)", [
+      spectrum.id,
+      user.id,
+      sqlTime(new Date()),
+    ])
     return spectrum
   })
   ctx.jobs?.enqueue(row.id)
