@@ -1,7 +1,7 @@
 import { DEFAULT_CLASSIFICATION_REGION, LATE_TYPE_FROM, LATE_TYPE_REGION, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../shared/grid'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
-import { kthSmallest } from './prepare/stats'
+import { SortedWindow, kthSmallest } from './prepare/stats'
 import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
 import { fitSpectrumAtLevel } from './match/classify'
 import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type StandardsUsed } from './match/instrument'
@@ -68,18 +68,27 @@ const LATE_TYPE_NEEDS = 6600
  * The values minus their running median over ±`halfWidth` Å (plus 1), sampled every tenth pixel
  * and interpolated: removes what is left of a continuum mismatch on scales wider than the lines.
  */
-function subtractRunningMedian(values: Float64Array, wavelength: Float64Array, halfWidth: number): Float64Array {
+export function subtractRunningMedian(values: Float64Array, wavelength: Float64Array, halfWidth: number): Float64Array {
   const n = values.length
   const stride = 10
   const anchors: { i: number; m: number }[] = []
-  // Every third pixel of the window: the median moves slowly.
-  const window = new Float64Array(Math.ceil(n / 3) + 2)
+  // Every third pixel of the window (j ≡ i mod 3): the median moves slowly. Anchors 30 pixels
+  // apart share their pixels' residue, so each residue keeps one sorted window that slides.
+  const windows = [0, 1, 2].map((r) => ({ sorted: new SortedWindow(Math.ceil(n / 3) + 2), lo: r, hi: r - 3 }))
+  const finite = (j: number) => Number.isFinite(values[j]!)
   for (let i = 0; i < n; i += stride) {
-    if (!Number.isFinite(values[i]!)) continue
-    let w = 0
-    for (let j = i; j >= 0 && wavelength[i]! - wavelength[j]! <= halfWidth; j -= 3) if (Number.isFinite(values[j]!)) window[w++] = values[j]!
-    for (let j = i + 3; j < n && wavelength[j]! - wavelength[i]! <= halfWidth; j += 3) if (Number.isFinite(values[j]!)) window[w++] = values[j]!
-    anchors.push({ i, m: kthSmallest(window.subarray(0, w), w >> 1) })
+    const w = windows[i % 3]!
+    // The window is j = lo, lo+3, … hi with |λj − λi| ≤ halfWidth; both ends only move up.
+    while (w.hi + 3 < n && wavelength[w.hi + 3]! - wavelength[i]! <= halfWidth) {
+      w.hi += 3
+      if (finite(w.hi)) w.sorted.add(values[w.hi]!)
+    }
+    while (w.lo <= w.hi && wavelength[i]! - wavelength[w.lo]! > halfWidth) {
+      if (finite(w.lo)) w.sorted.remove(values[w.lo]!)
+      w.lo += 3
+    }
+    if (!finite(i)) continue
+    anchors.push({ i, m: w.sorted.kth(w.sorted.size >> 1) })
   }
   const out = new Float64Array(n).fill(Number.NaN)
   let k = 0
@@ -273,8 +282,10 @@ export function residualSnr(library: PreparedMatchLibrary, level: LibraryLevel, 
 
 /** The upper median of the finite values (the value a sort puts at n/2), by selection. */
 function medianOf(values: ArrayLike<number>): number {
-  const finite = Float64Array.from(values).filter(Number.isFinite)
-  return finite.length === 0 ? Number.NaN : kthSmallest(finite, finite.length >> 1)
+  const finite = new Float64Array(values.length)
+  let m = 0
+  for (let i = 0; i < values.length; i++) if (Number.isFinite(values[i]!)) finite[m++] = values[i]!
+  return m === 0 ? Number.NaN : kthSmallest(finite.subarray(0, m), m >> 1)
 }
 
 /** Narrowest classification region the matcher accepts, Å. */

@@ -66,3 +66,60 @@ export function kthSmallest(a: Float64Array, k: number): number {
   }
   return k - below < negativeZeros ? -0 : 0
 }
+
+/** a before b in the order a typed-array sort gives (−0 before +0). */
+const before = (a: number, b: number) => a < b || (a === 0 && b === 0 && Object.is(a, -0) && Object.is(b, 0))
+
+/**
+ * A multiset of finite numbers kept in ascending order (as a typed-array sort orders them, −0
+ * before +0), for medians of a sliding window: each step adds and removes a few values instead of
+ * selecting over the whole window again.
+ */
+export class SortedWindow {
+  private values: Float64Array
+  size = 0
+
+  constructor(capacity = 64) {
+    this.values = new Float64Array(Math.max(1, capacity))
+  }
+
+  /** First index whose value is not before v. */
+  private position(v: number): number {
+    let lo = 0
+    let hi = this.size
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1
+      if (before(this.values[mid]!, v)) lo = mid + 1
+      else hi = mid
+    }
+    return lo
+  }
+
+  add(v: number): void {
+    if (this.size === this.values.length) {
+      const grown = new Float64Array(this.values.length * 2)
+      grown.set(this.values)
+      this.values = grown
+    }
+    const at = this.position(v)
+    this.values.copyWithin(at + 1, at, this.size)
+    this.values[at] = v
+    this.size++
+  }
+
+  /** Removes one copy of v, which must be present. */
+  remove(v: number): void {
+    const at = this.position(v)
+    this.values.copyWithin(at, at + 1, this.size)
+    this.size--
+  }
+
+  /** The value a sort puts at index k. */
+  kth(k: number): number {
+    return this.values[k]!
+  }
+
+  clear(): void {
+    this.size = 0
+  }
+}

@@ -1,6 +1,6 @@
 // Selection against the plain sort it replaces (Float64Array.prototype.sort, the reference here).
 import { describe, expect, it } from 'vitest'
-import { kthSmallest, medianInPlace } from '../../../../server/spectra/prepare/stats'
+import { SortedWindow, kthSmallest, medianInPlace } from '../../../../server/spectra/prepare/stats'
 
 function random(seed: number): () => number {
   let s = seed >>> 0
@@ -28,5 +28,28 @@ describe('medianInPlace', () => {
     expect(medianInPlace(Float64Array.from([4, 1, 3, 2]), 4)).toBe(2.5)
     expect(medianInPlace(Float64Array.from([9, 9, 1, 7, 7, 0]), 6)).toBe(7)
     expect(Number.isNaN(medianInPlace(new Float64Array(0), 0))).toBe(true)
+  })
+})
+
+describe('SortedWindow', () => {
+  it('holds what a sort of the current values holds, at every index, as values come and go (ties and signed zeros)', () => {
+    const next = random(11)
+    const window = new SortedWindow(2)
+    const held: number[] = []
+    for (let step = 0; step < 1500; step++) {
+      if (held.length > 0 && next() < 0.45) {
+        const [v] = held.splice(Math.floor(next() * held.length), 1)
+        window.remove(v!)
+      } else {
+        const r = next()
+        const v = r < 0.15 ? 0 : r < 0.3 ? -0 : Math.round((next() - 0.5) * 10) / 2
+        held.push(v)
+        window.add(v)
+      }
+      const sorted = Float64Array.from(held).sort()
+      expect(window.size).toBe(held.length)
+      const differing = [...sorted].findIndex((v, k) => !Object.is(window.kth(k), v))
+      expect(differing, `step ${step}`).toBe(-1)
+    }
   })
 })
