@@ -34,6 +34,8 @@ export class JobRunner implements ProcessingQueue {
   private readonly executor: JobExecutor
   private inflight = 0
   private readonly capacity: number
+  /** Free slots that make a claim worth its round trips. */
+  private readonly batch: number
   private stopped = false
   private pumping = false
   /** The latest pass of claiming, so that stopping can wait for a claim in flight. */
@@ -46,6 +48,7 @@ export class JobRunner implements ProcessingQueue {
   constructor(private readonly options: RunnerOptions) {
     this.executor = new JobExecutor(options)
     this.capacity = options.inline ? 1 : this.executor.threads * 2
+    this.batch = options.inline ? 1 : this.executor.threads
     this.pollMs = (options.pollSeconds ?? 5) * 1000
   }
 
@@ -95,7 +98,9 @@ export class JobRunner implements ProcessingQueue {
     try {
       do {
         this.again = false
-        while (!this.stopped && this.inflight < this.capacity) {
+        // Claims wait until a thread's worth of slots is free: one claim (a transaction of four
+        // statements) then serves several jobs, and the jobs still in hand keep the threads busy.
+        while (!this.stopped && this.capacity - this.inflight >= this.batch) {
           const jobs = await claimJobs(this.options.sequelize, this.capacity - this.inflight, this.executor.leaseMs)
           if (jobs.length === 0) break
           for (const job of jobs) {
