@@ -148,7 +148,9 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
     const [lo, hi] = lineSpan(line)
     return [Math.min(lo, line.wavelength - 50), Math.max(hi, line.wavelength + 50)]
   })
-  const snrs = estimateSpectrumSnrByWindow(rest, { windows })
+  // An infinite floor turns every line down whatever its window's S/N (the pipeline's first,
+  // quick look), so the windows are not measured.
+  const snrs = snr !== null && snrFloor === Infinity ? windows.map(() => null) : estimateSpectrumSnrByWindow(rest, { windows })
   const snrByLine: Record<string, number | null> = {}
   CLASSIFICATION_LINES.forEach((line, i) => {
     snrByLine[line.id] = snrs[i] ?? null
