@@ -98,7 +98,7 @@ export class JobRunner implements ProcessingQueue {
     try {
       do {
         this.again = false
-        // Claims wait until a thread's worth of slots is free: one claim (a transaction of four
+        // Claims wait until a thread's worth of slots is free: one claim (a transaction of five
         // statements) then serves several jobs, and the jobs still in hand keep the threads busy.
         while (!this.stopped && this.capacity - this.inflight >= this.batch) {
           const jobs = await claimJobs(this.options.sequelize, this.capacity - this.inflight, this.executor.leaseMs)

@@ -118,8 +118,4 @@ export class SortedWindow {
   kth(k: number): number {
     return this.values[k]!
   }
-
-  clear(): void {
-    this.size = 0
-  }
 }
