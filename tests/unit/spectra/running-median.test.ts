@@ -1,12 +1,8 @@
 // The running median that the not-a-star check subtracts, against its plain definition: at every
 // tenth pixel, the sorted middle of the finite values at every third pixel within ±halfWidth Å.
 import { describe, expect, it } from 'vitest'
+import { seededRandom as random } from '../../helpers/random'
 import { subtractRunningMedian } from '../../../server/spectra/pipeline'
-
-function random(seed: number): () => number {
-  let s = seed >>> 0
-  return () => (s = (1664525 * s + 1013904223) >>> 0) / 2 ** 32
-}
 
 describe('subtractRunningMedian', () => {
   it('takes 1 + value − the window median at each anchor pixel, across NaN gaps and uneven windows', () => {

@@ -1,11 +1,7 @@
 // Selection against the plain sort it replaces (Float64Array.prototype.sort, the reference here).
 import { describe, expect, it } from 'vitest'
+import { seededRandom as random } from '../../../helpers/random'
 import { SortedWindow, kthSmallest, medianInPlace } from '../../../../server/spectra/prepare/stats'
-
-function random(seed: number): () => number {
-  let s = seed >>> 0
-  return () => (s = (1664525 * s + 1013904223) >>> 0) / 2 ** 32
-}
 
 describe('kthSmallest', () => {
   it('gives what a full sort puts at every index, with ties and signed zeros', () => {
