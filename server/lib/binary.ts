@@ -6,9 +6,11 @@ import { endianness } from 'node:os'
 const LITTLE = endianness() === 'LE'
 
 /** The bytes of `b` in an ArrayBuffer of its own when its offset does not suit `size`-byte elements. */
-function aligned(b: Buffer, size: number): { buffer: ArrayBufferLike; offset: number } {
-  if (b.byteOffset % size === 0) return { buffer: b.buffer, offset: b.byteOffset }
-  return { buffer: b.buffer.slice(b.byteOffset, b.byteOffset + b.length), offset: 0 }
+function aligned(b: Buffer, size: number): { buffer: ArrayBuffer; offset: number } {
+  // Buffers from Node and the database driver sit on plain ArrayBuffers, never shared ones.
+  const buffer = b.buffer as ArrayBuffer
+  if (b.byteOffset % size === 0) return { buffer, offset: b.byteOffset }
+  return { buffer: buffer.slice(b.byteOffset, b.byteOffset + b.length), offset: 0 }
 }
 
 export function float64ToBuffer(a: Float64Array): Buffer {
@@ -26,23 +28,20 @@ export function float32ToBuffer(a: ArrayLike<number>): Buffer {
 }
 
 export function bufferToFloat64(b: Buffer): Float64Array {
-  const n = b.length / 8
-  if (LITTLE) {
-    const { buffer, offset } = aligned(b, 8)
-    return Float64Array.from(new Float64Array(buffer, offset, n))
-  }
-  const out = new Float64Array(n)
-  for (let i = 0; i < n; i++) out[i] = b.readDoubleLE(i * 8)
-  return out
+  return fromBytes(b, Float64Array, (i) => b.readDoubleLE(i * 8))
 }
 
 export function bufferToFloat32(b: Buffer): Float64Array {
-  const n = b.length / 4
+  return fromBytes(b, Float32Array, (i) => b.readFloatLE(i * 4))
+}
+
+function fromBytes(b: Buffer, View: Float64ArrayConstructor | Float32ArrayConstructor, read: (i: number) => number): Float64Array {
+  const n = b.length / View.BYTES_PER_ELEMENT
   if (LITTLE) {
-    const { buffer, offset } = aligned(b, 4)
-    return Float64Array.from(new Float32Array(buffer, offset, n))
+    const { buffer, offset } = aligned(b, View.BYTES_PER_ELEMENT)
+    return Float64Array.from(new View(buffer, offset, n))
   }
   const out = new Float64Array(n)
-  for (let i = 0; i < n; i++) out[i] = b.readFloatLE(i * 4)
+  for (let i = 0; i < n; i++) out[i] = read(i)
   return out
 }
