@@ -1,10 +1,15 @@
-/** First index with values[i] ≥ x in an ascending array (binary search); the length when none is. */
-export function lowerBound(values: ArrayLike<number>, x: number): number {
+const ascending = (a: number, b: number) => a < b
+
+/**
+ * First index i < n with values[i] not before x in an array ascending by `before` (binary search);
+ * n when there is none. By default the whole array and plain `<`.
+ */
+export function lowerBound(values: ArrayLike<number>, x: number, n = values.length, before = ascending): number {
   let lo = 0
-  let hi = values.length
+  let hi = n
   while (lo < hi) {
     const mid = (lo + hi) >>> 1
-    if (values[mid]! < x) lo = mid + 1
+    if (before(values[mid]!, x)) lo = mid + 1
     else hi = mid
   }
   return lo
@@ -68,7 +73,7 @@ export function kthSmallest(a: Float64Array, k: number): number {
 }
 
 /** a before b in the order a typed-array sort gives (−0 before +0). */
-const before = (a: number, b: number) => a < b || (a === 0 && b === 0 && Object.is(a, -0) && Object.is(b, 0))
+const sortOrder = (a: number, b: number) => a < b || (a === 0 && b === 0 && Object.is(a, -0) && Object.is(b, 0))
 
 /**
  * A multiset of finite numbers kept in ascending order (as a typed-array sort orders them, −0
@@ -83,25 +88,13 @@ export class SortedWindow {
     this.values = new Float64Array(Math.max(1, capacity))
   }
 
-  /** First index whose value is not before v. */
-  private position(v: number): number {
-    let lo = 0
-    let hi = this.size
-    while (lo < hi) {
-      const mid = (lo + hi) >> 1
-      if (before(this.values[mid]!, v)) lo = mid + 1
-      else hi = mid
-    }
-    return lo
-  }
-
   add(v: number): void {
     if (this.size === this.values.length) {
       const grown = new Float64Array(this.values.length * 2)
       grown.set(this.values)
       this.values = grown
     }
-    const at = this.position(v)
+    const at = lowerBound(this.values, v, this.size, sortOrder)
     this.values.copyWithin(at + 1, at, this.size)
     this.values[at] = v
     this.size++
@@ -109,7 +102,7 @@ export class SortedWindow {
 
   /** Removes one copy of v, which must be present. */
   remove(v: number): void {
-    const at = this.position(v)
+    const at = lowerBound(this.values, v, this.size, sortOrder)
     this.values.copyWithin(at, at + 1, this.size)
     this.size--
   }
