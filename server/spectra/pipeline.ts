@@ -134,7 +134,16 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   }
   // The instrument's own standards where it has them, the general ones elsewhere; standards of other instruments never.
   library = libraryForInstrument(library, input.instrumentId ?? null, { ...input.instrumentOptions, ...(input.exclude ? { exclude: input.exclude } : {}) })
-  const region = classificationRegion(library, input.region, notes)
+  const reach = coverage(input.spectrum)
+  // Next to the spectrum's own ends its continuum rests on one side only: regions keep clear of them.
+  const covered = inset(reach, EDGE_MARGIN)
+  const chosen = classificationRegion(library, input.region, reach, notes)
+  const region = chosen.region
+  // A region other than the default one is also where the velocity and the headline S/N are measured.
+  if (chosen.own) {
+    base.snrRegion = region
+    base.rvRegion = region
+  }
   const exclude = input.exclude ? { exclude: input.exclude } : {}
   const matchOptions = { region, ...exclude }
   // An infinite S/N floor skips the line measurements: only the prepared arrays are used before the rest frame.
@@ -185,14 +194,12 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   // Cool stars (the nearest standard G0 or later) that reach Hα are matched over the red as well,
   // unless the campaign chose a region of its own.
   let usedOptions = matchOptions
-  let reddest = 0
-  for (const w of input.spectrum.wavelength) if (w > reddest) reddest = w
   const nearestType = library.standards[located.level.rows[bestRow]!]!.typeCode
-  const defaultRegion = region[0] === DEFAULT_CLASSIFICATION_REGION[0] && region[1] === DEFAULT_CLASSIFICATION_REGION[1]
-  if (defaultRegion && nearestType >= LATE_TYPE_FROM && reddest >= LATE_TYPE_NEEDS) {
-    usedOptions = { ...matchOptions, region: LATE_TYPE_REGION }
+  const late = overlap(LATE_TYPE_REGION, covered)
+  if (chosen.fromDefault && nearestType >= LATE_TYPE_FROM && reach[1] >= LATE_TYPE_NEEDS && late[1] - late[0] > region[1] - region[0]) {
+    usedOptions = { ...matchOptions, region: late }
     notes.push(
-      `The nearest standard is G or later, so matched over ${LATE_TYPE_REGION[0]}–${LATE_TYPE_REGION[1]} Å rather than ${DEFAULT_CLASSIFICATION_REGION[0]}–${DEFAULT_CLASSIFICATION_REGION[1]} Å: Mg b, Na D and Hα carry the temperature of cool stars.`,
+      `The nearest standard is G or later, so matched over ${Math.round(late[0])}–${Math.round(late[1])} Å rather than ${Math.round(region[0])}–${Math.round(region[1])} Å: Mg b, Na D and Hα carry the temperature of cool stars.`,
     )
   }
   let suggestion = matchSpectrum(library, matchInput(analysis, resolution.level!), usedOptions)
@@ -200,7 +207,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   if (suggestion.typeCode <= types[0]! + 2 || suggestion.typeCode >= types[types.length - 1]! - 2) {
     const beyond = coarserLevelBeyond(library, resolution.level!, suggestion.typeCode)
     if (beyond !== null) {
-      const wide = analyseSpectrum(rest.spectrum, { ...atLevel(base, fwhm, beyond), ...(input.region ? { rvRegion: input.region } : {}) })
+      const wide = analyseSpectrum(rest.spectrum, atLevel(base, fwhm, beyond))
       const other = matchSpectrum(library, matchInput(wide, beyond), usedOptions)
       const edge = library.level(resolution.level!).typeCodes
       if (other.typeCode < edge[0]! || other.typeCode > edge[edge.length - 1]!) {
@@ -291,22 +298,64 @@ function medianOf(values: ArrayLike<number>): number {
 /** Narrowest classification region the matcher accepts, Å. */
 const MIN_REGION = 300
 
-/**
- * The campaign's classification region as far as the standards reach (their stored span); the
- * default region, with a note, when less than MIN_REGION Å of it is left.
- */
-function classificationRegion(library: PreparedMatchLibrary, wanted: readonly [number, number] | undefined, notes: string[]): readonly [number, number] {
-  if (!wanted) return DEFAULT_CLASSIFICATION_REGION
-  const lo = Math.max(wanted[0], library.wavelength[0]!)
-  const hi = Math.min(wanted[1], library.wavelength[library.pixels - 1]!)
-  if (hi - lo < MIN_REGION) {
-    notes.push(
-      `The campaign's region ${wanted[0]}–${wanted[1]} Å lies outside the standards (${Math.round(library.wavelength[0]!)}–${Math.round(library.wavelength[library.pixels - 1]!)} Å); classified over ${DEFAULT_CLASSIFICATION_REGION[0]}–${DEFAULT_CLASSIFICATION_REGION[1]} Å.`,
-    )
-    return DEFAULT_CLASSIFICATION_REGION
+/** How far a classification region keeps from the ends of the spectrum, Å. */
+const EDGE_MARGIN = 50
+
+/** First and last wavelength with a finite, unmasked flux, Å. */
+function coverage(spectrum: Spectrum1D): readonly [number, number] {
+  const { wavelength, flux, mask } = spectrum
+  let lo = Infinity
+  let hi = -Infinity
+  for (let i = 0; i < wavelength.length; i++) {
+    if (mask?.[i] || !Number.isFinite(flux[i]!)) continue
+    lo = Math.min(lo, wavelength[i]!)
+    hi = Math.max(hi, wavelength[i]!)
   }
-  if (lo > wanted[0] || hi < wanted[1]) notes.push(`Classified over ${Math.round(lo)}–${Math.round(hi)} Å, the part of the campaign's region ${wanted[0]}–${wanted[1]} Å the standards cover.`)
   return [lo, hi]
+}
+
+const inset = (r: readonly [number, number], margin: number): readonly [number, number] => [r[0] + margin, r[1] - margin]
+
+function overlap(a: readonly [number, number], b: readonly [number, number]): readonly [number, number] {
+  return [Math.max(a[0], b[0]), Math.min(a[1], b[1])]
+}
+
+const span = (r: readonly [number, number]) => `${Math.round(r[0])}–${Math.round(r[1])} Å`
+
+/**
+ * Where the spectrum is classified: the campaign's region, else the default one, as far as both
+ * the standards (their stored span) and the spectrum (EDGE_MARGIN inside its ends) reach, when at
+ * least MIN_REGION Å of it is left; otherwise all that the spectrum and the standards share, so
+ * that a spectrum of the red alone is still classified (with a note). `own` when that is not the
+ * default region; `fromDefault` when no campaign region was used.
+ */
+function classificationRegion(
+  library: PreparedMatchLibrary,
+  wanted: readonly [number, number] | undefined,
+  reach: readonly [number, number],
+  notes: string[],
+): { region: readonly [number, number]; own: boolean; fromDefault: boolean } {
+  const standards: readonly [number, number] = [library.wavelength[0]!, library.wavelength[library.pixels - 1]!]
+  const shared = overlap(standards, inset(reach, EDGE_MARGIN))
+  if (wanted) {
+    const [lo, hi] = overlap(wanted, shared)
+    if (hi - lo >= MIN_REGION) {
+      if (lo > wanted[0] || hi < wanted[1]) notes.push(`Classified over ${span([lo, hi])}, the part of the campaign's region ${span(wanted)} that the standards and the spectrum cover.`)
+      return { region: [lo, hi], own: true, fromDefault: false }
+    }
+    notes.push(`The campaign's region ${span(wanted)} lies outside what the standards (${span(standards)}) and the spectrum (${span(reach)}) share; the default region is used.`)
+  }
+  const fallback = DEFAULT_CLASSIFICATION_REGION
+  const [lo, hi] = overlap(fallback, shared)
+  if (lo <= fallback[0] && hi >= fallback[1]) return { region: fallback, own: false, fromDefault: true }
+  if (hi - lo >= MIN_REGION) {
+    notes.push(`The spectrum (${span(reach)}) covers ${span([lo, hi])} of the classification region ${span(fallback)}; classified over that part.`)
+    return { region: [lo, hi], own: true, fromDefault: true }
+  }
+  notes.push(
+    `The spectrum (${span(reach)}) does not reach the MK classification region ${span(fallback)}; classified over ${span(shared)}, where it overlaps the standards, from other lines than the MK criteria.`,
+  )
+  return { region: shared, own: true, fromDefault: true }
 }
 
 /** Options that bring a spectrum of resolution `fwhm` to `level` (smoothing only when the level is coarser). */
@@ -395,10 +444,10 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
  * pixels give the headline S/N.
  */
 function analyseAtRest(input: PipelineInput, options: AnalyseOptions, first: AnalysisResult, reference: Spectrum1D): { analysis: AnalysisResult; spectrum: Spectrum1D } {
-  const rvRegion = input.region ?? DEFAULT_CLASSIFICATION_REGION
+  const rvRegion = options.rvRegion ?? input.region ?? DEFAULT_CLASSIFICATION_REGION
   const p = first.prepared
   const result = measureSpectrumRadialVelocity({ wavelength: gridWavelengths(p.grid), flux: p.rectified, mask: p.mask }, reference, { grid: p.grid, region: rvRegion })
-  const restOptions: AnalyseOptions = { ...options, ...(input.region ? { rvRegion: input.region } : {}) }
+  const restOptions: AnalyseOptions = { ...options, ...(options.rvRegion || input.region ? { rvRegion } : {}) }
   if (!result.found) {
     const analysis = analyseSpectrum(input.spectrum, restOptions)
     // Where analyseSpectrum puts it: before the pseudo-continuum note.

@@ -1,10 +1,10 @@
-import { DEFAULT_CLASSIFICATION_REGION } from '../../../shared/grid'
+import { DEFAULT_CLASSIFICATION_REGION, LATE_TYPE_REGION } from '../../../shared/grid'
 import { formatMK, formatTypeCode, parseMK, typeFromCode } from '../../../shared/mk'
 import { roundTo as round } from '../../../shared/rounding'
 import { depthScaledChiSquareSelected, depthScaledPairChiSquare } from './chi2'
 import { lowerBound } from '../prepare/stats'
 import { balmerHalfDepthWidth, compositeEvidence, hasBalmerEmission, isBeyondDwarfs, typicalResidual } from './flags'
-import { levelFor, type LibraryLevel, type PreparedMatchLibrary } from './library'
+import { levelFor, neighbourResidualsOver, type LibraryLevel, type PreparedMatchLibrary } from './library'
 import { classText, type Candidate, type MatchInput, type MatchOptions, type MatchResult, type SuggestionFlag } from './types'
 import { classCounts, criteriaVotes, describeClassChoice, parameterEstimate } from './vote'
 
@@ -321,7 +321,9 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   if (emission) flags.push('emission')
   const rms = bestResidual(s.flux, s.weights, level.flux, library.pixels, best, from, to)
   const noise = input.snr !== null && input.snr > 0 ? 1 / input.snr : 0
-  const typical = typicalResidual(level, library.standards, typeCode)
+  // The default regions are judged against the residuals stored with the level; any other against residuals over itself.
+  const standardRegion = [DEFAULT_CLASSIFICATION_REGION, LATE_TYPE_REGION].some((r) => r[0] === region[0] && r[1] === region[1])
+  const typical = typicalResidual(level, library.standards, typeCode, standardRegion ? level.neighbourResidual : neighbourResidualsOver(library, level, region))
   if (typical !== null && Math.sqrt(Math.max(0, rms * rms - noise * noise)) > typical) flags.push('poor-fit')
   const earliest = level.typeCodes[0]!
   const latest = level.typeCodes[level.typeCodes.length - 1]!

@@ -31,14 +31,14 @@ export function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined,
  * The residual beyond which a fit counts as poor for a star of `typeCode`: 1.15 × the 95th
  * percentile of the standards' residuals against their nearest neighbour (LibraryLevel
  * neighbourResidual) within ±4 subtypes (±8, then the whole level, where fewer than five standards
- * are that close), and at least 0.005 of the continuum, so that a library of near-identical
+ * are that close; `residuals` when measured over another region), and at least 0.005 of the continuum, so that a library of near-identical
  * standards does not call every small difference poor. Null when the level has fewer than five standards.
  */
-export function typicalResidual(level: LibraryLevel, standards: readonly MatchStandardInfo[], typeCode: number): number | null {
+export function typicalResidual(level: LibraryLevel, standards: readonly MatchStandardInfo[], typeCode: number, residuals: Float64Array = level.neighbourResidual): number | null {
   for (const width of [4, 8, Infinity]) {
     const values: number[] = []
     level.rows.forEach((k, r) => {
-      const v = level.neighbourResidual[r]!
+      const v = residuals[r]!
       if (Math.abs(standards[k]!.typeCode - typeCode) <= width && Number.isFinite(v)) values.push(v)
     })
     if (values.length >= 5) {

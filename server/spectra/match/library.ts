@@ -235,13 +235,50 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
   }
 }
 
+/** Where LibraryLevel.neighbourResidual is measured, Å. */
+export const NEIGHBOUR_RESIDUAL_RANGE: readonly [number, number] = [3900, 5500]
+
 /** Residual of each row against its nearest other row (another star), on the coarse pixels of 3900–5500 Å. */
 export function fillNeighbourResiduals(level: LibraryLevel, standards: readonly MatchStandardInfo[], wavelength: Float64Array, step: number, cp: number): void {
-  const n = level.rows.length
   let from = 0
-  while (from < cp && wavelength[from * step]! < 3900) from++
+  while (from < cp && wavelength[from * step]! < NEIGHBOUR_RESIDUAL_RANGE[0]) from++
   let to = from
-  while (to < cp && wavelength[to * step]! < 5500) to++
+  while (to < cp && wavelength[to * step]! < NEIGHBOUR_RESIDUAL_RANGE[1]) to++
+  level.neighbourResidual.set(neighbourResiduals(level, standards, cp, from, to))
+}
+
+const regionResiduals = new WeakMap<LibraryLevel, Map<string, Float64Array>>()
+
+/**
+ * The neighbour residuals of a level over another region than NEIGHBOUR_RESIDUAL_RANGE (a
+ * campaign's, or the part of the default one a spectrum covers), so that a fit is judged against
+ * fits over the same lines: the blue holds more lines than 3900–5500 Å, and every fit there
+ * leaves more residual. Ends are rounded to 8 coarse pixels and the result is kept per level.
+ */
+export function neighbourResidualsOver(library: PreparedMatchLibrary, level: LibraryLevel, region: readonly [number, number]): Float64Array {
+  const { wavelength, coarseStep: step, coarsePixels: cp } = library
+  let from = 0
+  while (from < cp && wavelength[from * step]! < region[0]) from++
+  let to = from
+  while (to < cp && wavelength[to * step]! < region[1]) to++
+  from = Math.floor(from / 8) * 8
+  to = Math.min(cp, Math.ceil(to / 8) * 8)
+  let cache = regionResiduals.get(level)
+  if (!cache) regionResiduals.set(level, (cache = new Map()))
+  const key = `${from}-${to}`
+  let residuals = cache.get(key)
+  if (!residuals) {
+    residuals = neighbourResiduals(level, library.standards, cp, from, to)
+    if (cache.size >= 32) cache.delete(cache.keys().next().value!)
+    cache.set(key, residuals)
+  }
+  return residuals
+}
+
+/** Residual of each row against its nearest other row (another star), on coarse pixels from..to. */
+function neighbourResiduals(level: LibraryLevel, standards: readonly MatchStandardInfo[], cp: number, from: number, to: number): Float64Array {
+  const n = level.rows.length
+  const out = new Float64Array(n)
   const c = level.coarse
   for (let a = 0; a < n; a++) {
     let best = Infinity
@@ -271,8 +308,9 @@ export function fillNeighbourResiduals(level: LibraryLevel, standards: readonly 
       const r = (syy - (sy * sy) / m - (vx > 0 ? (cxy * cxy) / vx : 0)) / m
       if (r < best) best = r
     }
-    level.neighbourResidual[a] = Number.isFinite(best) ? Math.sqrt(Math.max(0, best)) : Number.NaN
+    out[a] = Number.isFinite(best) ? Math.sqrt(Math.max(0, best)) : Number.NaN
   }
+  return out
 }
 
 /**

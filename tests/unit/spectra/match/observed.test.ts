@@ -112,6 +112,32 @@ describe('the class and type of named reference stars', () => {
     // A campaign region of its own is used as it is.
     expect(runPipeline({ spectrum: s.spectrum, inputFwhm: s.fwhm, exclude: s.exclude, region: [4000, 5200] }, library).suggestion!.region).toEqual([4000, 5200])
   }, 60_000)
+
+  // Many spectrographs record only the red, or only the blue: such spectra are classified over what
+  // they cover, with a note, instead of failing. Published types as above; within ±2 subtypes.
+  it.each([
+    ['HD017382', 'K1 V', 51, 5000, 7400],
+    ['HD207130', 'K0 III', 50, 5000, 7400],
+    ['HD004307', 'G0 V', 40, 5600, 6800],
+    ['HD160762', 'B3 IV', 13, 3900, 4600],
+  ])(
+    'classifies %s (%s) from %i–%i Å alone',
+    (name, _type, code, lo, hi) => {
+      const s = star(name)
+      const w = s.spectrum.wavelength
+      const keep = Array.from(w.keys()).filter((i) => w[i]! >= lo && w[i]! <= hi)
+      const part: Spectrum1D = { wavelength: Float64Array.from(keep, (i) => w[i]!), flux: Float64Array.from(keep, (i) => s.spectrum.flux[i]!) }
+      const out = classify(s, part)
+      const [from, to] = out.suggestion!.region
+      // 50 Å clear of the spectrum's own ends, inside the standards' span.
+      expect(from).toBeGreaterThanOrEqual(lo + 50)
+      expect(to).toBeLessThanOrEqual(hi - 50)
+      expect(to - from).toBeGreaterThanOrEqual(300)
+      expect(out.notes.join(' ')).toMatch(lo >= 5000 ? /does not reach the MK classification region 3850–5000 Å/ : /covers \d+–\d+ Å of the classification region/)
+      expect(Math.abs(out.suggestion!.typeCode - code)).toBeLessThanOrEqual(2)
+    },
+    60_000,
+  )
 })
 
 describe('the resolution estimate', () => {
