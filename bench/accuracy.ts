@@ -20,6 +20,7 @@
  * ACCURACY_EVERY=k classifies every k-th star only (quick looks).
  */
 import { mkdirSync, writeFileSync } from 'node:fs'
+import type { Spectrum1D } from '../shared/spectrum'
 import { fileURLToPath } from 'node:url'
 import { defaultLibrary, DEFAULT_OBSERVED_DIR, observedLibraryAt } from '../server/spectra/match/load'
 import { runPipeline } from '../server/spectra/pipeline'
@@ -46,6 +47,18 @@ export interface Condition {
   snr?: number
   /** Whether the resolution is given to the pipeline. */
   given: boolean
+  /** Only this part of the spectrum is kept, Å. */
+  range?: readonly [number, number]
+}
+
+/** The part of a spectrum between `range[0]` and `range[1]` Å. */
+export function cutSpectrum(spectrum: Spectrum1D, range: readonly [number, number]): Spectrum1D {
+  const w = spectrum.wavelength
+  const keep = Array.from(w.keys()).filter((i) => w[i]! >= range[0] && w[i]! <= range[1])
+  const take = <T extends Float64Array | Uint8Array>(a: T | undefined) => (a ? (a.constructor as { from(x: number[]): T }).from(keep.map((i) => a[i]!)) : undefined)
+  const error = take(spectrum.error)
+  const mask = take(spectrum.mask)
+  return { wavelength: take(w)!, flux: take(spectrum.flux)!, ...(error ? { error } : {}), ...(mask ? { mask } : {}) }
 }
 
 export const CONDITIONS: Condition[] = [
@@ -55,6 +68,8 @@ export const CONDITIONS: Condition[] = [
   { name: 'degraded to 15 Å FWHM', applies: () => true, fwhm: () => 15, given: true },
   { name: 'native resolution, noise to S/N 50', applies: () => true, fwhm: (s) => s.fwhm, snr: 50, given: true },
   { name: 'native resolution, noise to S/N 20', applies: () => true, fwhm: (s) => s.fwhm, snr: 20, given: true },
+  // A blue classification spectrum: what the reader still admits (80 % of 3900–4900 Å).
+  { name: 'native resolution and S/N, cut to 3900–4700 Å (MILES stars)', applies: (s) => s.source === 'miles', fwhm: (s) => s.fwhm, given: true, range: [3900, 4700] },
 ]
 
 export interface StarResult extends Scored {
@@ -67,7 +82,8 @@ export interface StarResult extends Scored {
 /** Classifies one reference star under a condition, leaving out every spectrum of it. */
 export function classifyReference(library: ReturnType<typeof defaultLibrary>, star: ReferenceStar, condition: Condition, seed: number): StarResult {
   const fwhm = condition.fwhm(star)
-  const spectrum = degradeSpectrum(star.spectrum, { from: star.fwhm, to: fwhm, ...(condition.snr ? { snr: condition.snr } : {}), seed })
+  const degraded = degradeSpectrum(star.spectrum, { from: star.fwhm, to: fwhm, ...(condition.snr ? { snr: condition.snr } : {}), seed })
+  const spectrum = condition.range ? cutSpectrum(degraded, condition.range) : degraded
   const output = runPipeline({ spectrum, ...(condition.given ? { inputFwhm: fwhm } : {}), exclude: star.exclude }, library)
   const s = output.suggestion!
   return {

@@ -132,9 +132,10 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     const resolution: PipelineResolution = { fwhm: input.inputFwhm ?? null, source: input.inputFwhm !== undefined ? 'given' : 'unknown', bound: null, level: null }
     return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion: null, standards: null, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
   }
-  // The instrument's own standards where it has them, the general ones elsewhere; standards of other instruments never.
-  library = libraryForInstrument(library, input.instrumentId ?? null, { ...input.instrumentOptions, ...(input.exclude ? { exclude: input.exclude } : {}) })
   const reach = coverage(input.spectrum)
+  // The standards rectified over what the spectrum covers, as it is itself; then the instrument's
+  // own standards where it has them, the general ones elsewhere, standards of other instruments never.
+  library = libraryForInstrument(library.rectifiedOver(reach), input.instrumentId ?? null, { ...input.instrumentOptions, ...(input.exclude ? { exclude: input.exclude } : {}) })
   // Next to the spectrum's own ends its continuum rests on one side only: regions keep clear of them.
   const covered = inset(reach, EDGE_MARGIN)
   const chosen = classificationRegion(library, input.region, reach, notes)

@@ -110,6 +110,14 @@ export interface PreparedMatchLibrary {
   coarseStep: number
   /** Pixels per standard in a coarse block: ⌈pixels / coarseStep⌉. */
   coarsePixels: number
+  /**
+   * The library as a spectrum that covers only `range` (Å) sees it: every standard with a known
+   * continuum smoothed, cut to the range and rectified there again, as the spectrum was (a
+   * continuum fitted over part of a spectrum differs from one fitted over all of it, most near the
+   * ends and in cool stars). Ranges are rounded to 25 Å; this library itself when the range
+   * reaches both ends of the grid; eight views are kept.
+   */
+  rectifiedOver(range: readonly [number, number]): PreparedMatchLibrary
 }
 
 /**
@@ -161,9 +169,7 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
   const sources = kept.map((s) => Float64Array.from(s.rectified))
   const continua = kept.map((s) => (s.continuum && s.continuum.length === grid.length ? s.continuum : null))
   const standards = kept.map(({ rectified: _r, continuum: _c, ...info }) => info)
-  const levels = new Map<number, LibraryLevel>()
-
-  const prepareLevel = (fwhm: number): LibraryLevel => {
+  const prepareLevel = (fwhm: number, range: readonly [number, number] | null): LibraryLevel => {
     const rowList: number[] = []
     standards.forEach((s, k) => {
       // A standard up to 30 % coarser than the level still serves it: an estimated resolution may fall just short of the level where the only standards of some types (the O stars, at 15 Å) are.
@@ -185,8 +191,9 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
       const flux = sources[k]!
       const own = standards[k]!.resolutionFwhm
       let smoothed: Float64Array = flux
-      if (fwhm > own * 1.001) {
-        const continuum = continua[k]
+      const continuum = continua[k]
+      if (range && continuum) smoothed = rectifyOver(flux, continuum, fwhm > own * 1.001 ? { targetFwhm: fwhm, inputFwhm: own } : null, range)
+      else if (fwhm > own * 1.001) {
         const mask = new Uint8Array(flux.length)
         for (let i = 0; i < flux.length; i++) if (!Number.isFinite(flux[i]!) || (continuum && !Number.isFinite(continuum[i]!))) mask[i] = 1
         if (continuum) {
@@ -212,28 +219,60 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
     return level
   }
 
-  return {
-    versionId: options.versionId,
-    versionName: options.versionName,
-    grid,
-    offset,
-    pixels,
-    wavelength,
-    standards,
-    resolutions,
-    level(fwhm: number): LibraryLevel {
-      let level = levels.get(fwhm)
-      if (!level) {
-        if (!resolutions.includes(fwhm)) throw new Error(`${fwhm} Å is not a level of this library (${resolutions.join(', ')})`)
-        level = prepareLevel(fwhm)
-        levels.set(fwhm, level)
-      }
-      return level
-    },
-    coarseStep,
-    coarsePixels,
+  /** Standards (their flux times their continuum) smoothed to a level, cut to `range` and rectified again there. */
+  const rectifyOver = (flux: Float64Array, continuum: Float64Array, smoothing: { targetFwhm: number; inputFwhm: number } | null, range: readonly [number, number]) => {
+    const mask = new Uint8Array(flux.length)
+    for (let i = 0; i < flux.length; i++) if (!Number.isFinite(flux[i]!) || !Number.isFinite(continuum[i]!)) mask[i] = 1
+    const raw = Float64Array.from(flux, (v, i) => (mask[i] ? 0 : v * continuum[i]!))
+    const blurred = smoothing ? smoothSpectrumToFwhm({ wavelength: all, flux: raw, mask }, { grid, ...smoothing }) : { wavelength: all, flux: raw, mask }
+    const cut = Uint8Array.from(blurred.mask!, (m, i) => (m || all[i]! < range[0] || all[i]! > range[1] ? 1 : 0))
+    const fit = fitSpectrumContinuum({ wavelength: all, flux: blurred.flux, mask: cut }, { space: 'log' })
+    return Float64Array.from(fit.rectified, (v, i) => (cut[i] ? Number.NaN : v))
   }
+
+  const views = new Map<string, PreparedMatchLibrary>()
+  const view = (range: readonly [number, number] | null): PreparedMatchLibrary => {
+    const levels = new Map<number, LibraryLevel>()
+    return {
+      versionId: options.versionId,
+      versionName: options.versionName,
+      grid,
+      offset,
+      pixels,
+      wavelength,
+      standards,
+      resolutions,
+      level(fwhm: number): LibraryLevel {
+        let level = levels.get(fwhm)
+        if (!level) {
+          if (!resolutions.includes(fwhm)) throw new Error(`${fwhm} Å is not a level of this library (${resolutions.join(', ')})`)
+          level = prepareLevel(fwhm, range)
+          levels.set(fwhm, level)
+        }
+        return level
+      },
+      coarseStep,
+      coarsePixels,
+      rectifiedOver(wanted: readonly [number, number]): PreparedMatchLibrary {
+        const lo = Math.max(all[0]!, Math.round(wanted[0] / RANGE_STEP) * RANGE_STEP)
+        const hi = Math.min(all[all.length - 1]!, Math.round(wanted[1] / RANGE_STEP) * RANGE_STEP)
+        if (lo - all[0]! < RANGE_STEP && all[all.length - 1]! - hi < RANGE_STEP) return full
+        const key = `${lo}-${hi}`
+        let hit = views.get(key)
+        if (!hit) {
+          if (views.size >= 8) views.delete(views.keys().next().value!)
+          views.set(key, (hit = view([lo, hi])))
+        }
+        return hit
+      },
+    }
+  }
+  const full = view(null)
+  return full
 }
+
+/** Ranges the standards are rectified over are rounded to this many Å, so that spectra of one setting share them. */
+const RANGE_STEP = 25
 
 /** Where LibraryLevel.neighbourResidual is measured, Å. */
 export const NEIGHBOUR_RESIDUAL_RANGE: readonly [number, number] = [3900, 5500]
