@@ -135,7 +135,10 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   const reach = coverage(input.spectrum)
   // The standards rectified over what the spectrum covers, as it is itself; then the instrument's
   // own standards where it has them, the general ones elsewhere, standards of other instruments never.
-  library = libraryForInstrument(library.rectifiedOver(reach), input.instrumentId ?? null, { ...input.instrumentOptions, ...(input.exclude ? { exclude: input.exclude } : {}) })
+  const instrumentOptions = { ...input.instrumentOptions, ...(input.exclude ? { exclude: input.exclude } : {}) }
+  // The resolution estimate fits every level: against the library as it is, so that a new range costs one level, not all.
+  const wholeRange = libraryForInstrument(library, input.instrumentId ?? null, instrumentOptions)
+  library = libraryForInstrument(library.rectifiedOver(reach), input.instrumentId ?? null, instrumentOptions)
   // Next to the spectrum's own ends its continuum rests on one side only: regions keep clear of them.
   const covered = inset(reach, EDGE_MARGIN)
   const chosen = classificationRegion(library, input.region, reach, notes)
@@ -168,7 +171,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
       region,
     })
     const atRest = velocity.found && Math.abs(velocity.velocity) > 15 ? analyseSpectrum(shiftSpectrumToRest(input.spectrum, { velocity: velocity.velocity }), quick) : unsmoothed
-    const estimate = estimateResolution(library, matchInput(atRest, undefined), { region, ...exclude })
+    const estimate = estimateResolution(wholeRange, matchInput(atRest, undefined), { region, ...exclude })
     fwhm = estimate.fwhm
     const level = levelFor(library, fwhm)
     resolution = { fwhm, source: 'estimated', bound: estimate.bound, level }
