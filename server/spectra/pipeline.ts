@@ -133,10 +133,10 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion: null, standards: null, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
   }
   const reach = coverage(input.spectrum)
-  // The standards rectified over what the spectrum covers, as it is itself; then the instrument's
-  // own standards where it has them, the general ones elsewhere, standards of other instruments never.
+  // The instrument's own standards where it has them, the general ones elsewhere, standards of
+  // other instruments never; matched rectified over the range the spectrum covers, as it is itself.
+  // The resolution estimate fits every level, so it uses the library as it is: a new range costs one level, not all.
   const instrumentOptions = { ...input.instrumentOptions, ...(input.exclude ? { exclude: input.exclude } : {}) }
-  // The resolution estimate fits every level: against the library as it is, so that a new range costs one level, not all.
   const wholeRange = libraryForInstrument(library, input.instrumentId ?? null, instrumentOptions)
   library = libraryForInstrument(library.rectifiedOver(reach), input.instrumentId ?? null, instrumentOptions)
   // Next to the spectrum's own ends its continuum rests on one side only: regions keep clear of them.

@@ -30,9 +30,10 @@ export function hasBalmerEmission(lines: readonly LineMeasurement[] | undefined,
 /**
  * The residual beyond which a fit counts as poor for a star of `typeCode`: 1.15 × the 95th
  * percentile of the standards' residuals against their nearest neighbour (LibraryLevel
- * neighbourResidual) within ±4 subtypes (±8, then the whole level, where fewer than five standards
- * are that close; `residuals` when measured over another region), and at least 0.005 of the continuum, so that a library of near-identical
- * standards does not call every small difference poor. Null when the level has fewer than five standards.
+ * neighbourResidual, or `residuals` measured over another region) within ±4 subtypes (±8, then
+ * the whole level, where fewer than five standards are that close), and at least 0.005 of the
+ * continuum, so that a library of near-identical standards does not call every small difference
+ * poor. Null when the level has fewer than five standards.
  */
 export function typicalResidual(level: LibraryLevel, standards: readonly MatchStandardInfo[], typeCode: number, residuals: Float64Array = level.neighbourResidual): number | null {
   for (const width of [4, 8, Infinity]) {
