@@ -55,10 +55,9 @@ export interface Condition {
 export function cutSpectrum(spectrum: Spectrum1D, range: readonly [number, number]): Spectrum1D {
   const w = spectrum.wavelength
   const keep = Array.from(w.keys()).filter((i) => w[i]! >= range[0] && w[i]! <= range[1])
-  const take = <T extends Float64Array | Uint8Array>(a: T | undefined) => (a ? (a.constructor as { from(x: number[]): T }).from(keep.map((i) => a[i]!)) : undefined)
-  const error = take(spectrum.error)
-  const mask = take(spectrum.mask)
-  return { wavelength: take(w)!, flux: take(spectrum.flux)!, ...(error ? { error } : {}), ...(mask ? { mask } : {}) }
+  const take = (a: ArrayLike<number>) => Float64Array.from(keep, (i) => a[i]!)
+  const { error, mask } = spectrum
+  return { wavelength: take(w), flux: take(spectrum.flux), ...(error ? { error: take(error) } : {}), ...(mask ? { mask: Uint8Array.from(keep, (i) => mask[i]!) } : {}) }
 }
 
 export const CONDITIONS: Condition[] = [

@@ -220,7 +220,7 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
   }
 
   /** Standards (their flux times their continuum) smoothed to a level, cut to `range` and rectified again there. */
-  const rectifyOver = (flux: Float64Array, continuum: Float64Array, smoothing: { targetFwhm: number; inputFwhm: number } | null, range: readonly [number, number]) => {
+  const rectifyOver = (flux: Float64Array, continuum: ArrayLike<number>, smoothing: { targetFwhm: number; inputFwhm: number } | null, range: readonly [number, number]) => {
     const mask = new Uint8Array(flux.length)
     for (let i = 0; i < flux.length; i++) if (!Number.isFinite(flux[i]!) || !Number.isFinite(continuum[i]!)) mask[i] = 1
     const raw = Float64Array.from(flux, (v, i) => (mask[i] ? 0 : v * continuum[i]!))
