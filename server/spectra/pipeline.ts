@@ -137,8 +137,9 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   // other instruments never; matched rectified over the range the spectrum covers, as it is itself.
   // The resolution estimate fits every level, so it uses the library as it is: a new range costs one level, not all.
   const instrumentOptions = { ...input.instrumentOptions, ...(input.exclude ? { exclude: input.exclude } : {}) }
+  const over = library.rectifiedOver(reach)
   const wholeRange = libraryForInstrument(library, input.instrumentId ?? null, instrumentOptions)
-  library = libraryForInstrument(library.rectifiedOver(reach), input.instrumentId ?? null, instrumentOptions)
+  library = over === library ? wholeRange : libraryForInstrument(over, input.instrumentId ?? null, instrumentOptions)
   // Next to the spectrum's own ends its continuum rests on one side only: regions keep clear of them.
   const covered = inset(reach, EDGE_MARGIN)
   const chosen = classificationRegion(library, input.region, reach, notes)

@@ -279,11 +279,17 @@ export const NEIGHBOUR_RESIDUAL_RANGE: readonly [number, number] = [3900, 5500]
 
 /** Residual of each row against its nearest other row (another star), on the coarse pixels of 3900–5500 Å. */
 export function fillNeighbourResiduals(level: LibraryLevel, standards: readonly MatchStandardInfo[], wavelength: Float64Array, step: number, cp: number): void {
-  let from = 0
-  while (from < cp && wavelength[from * step]! < NEIGHBOUR_RESIDUAL_RANGE[0]) from++
-  let to = from
-  while (to < cp && wavelength[to * step]! < NEIGHBOUR_RESIDUAL_RANGE[1]) to++
+  const [from, to] = coarseSpan(wavelength, step, cp, NEIGHBOUR_RESIDUAL_RANGE)
   level.neighbourResidual.set(neighbourResiduals(level, standards, cp, from, to))
+}
+
+/** The coarse pixels from..to (exclusive) of `range`, Å. */
+function coarseSpan(wavelength: Float64Array, step: number, cp: number, range: readonly [number, number]): [number, number] {
+  let from = 0
+  while (from < cp && wavelength[from * step]! < range[0]) from++
+  let to = from
+  while (to < cp && wavelength[to * step]! < range[1]) to++
+  return [from, to]
 }
 
 const regionResiduals = new WeakMap<LibraryLevel, Map<string, Float64Array>>()
@@ -295,13 +301,10 @@ const regionResiduals = new WeakMap<LibraryLevel, Map<string, Float64Array>>()
  * leaves more residual. Ends are rounded to 8 coarse pixels and the result is kept per level.
  */
 export function neighbourResidualsOver(library: PreparedMatchLibrary, level: LibraryLevel, region: readonly [number, number]): Float64Array {
-  const { wavelength, coarseStep: step, coarsePixels: cp } = library
-  let from = 0
-  while (from < cp && wavelength[from * step]! < region[0]) from++
-  let to = from
-  while (to < cp && wavelength[to * step]! < region[1]) to++
-  from = Math.floor(from / 8) * 8
-  to = Math.min(cp, Math.ceil(to / 8) * 8)
+  const cp = library.coarsePixels
+  const span = coarseSpan(library.wavelength, library.coarseStep, cp, region)
+  const from = Math.floor(span[0] / 8) * 8
+  const to = Math.min(cp, Math.ceil(span[1] / 8) * 8)
   let cache = regionResiduals.get(level)
   if (!cache) regionResiduals.set(level, (cache = new Map()))
   const key = `${from}-${to}`
