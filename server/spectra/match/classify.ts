@@ -224,7 +224,8 @@ export function windowMode(values: ArrayLike<number>, weights: ArrayLike<number>
  *    standard of the library level for the spectrum's resolution (levelFor), over the
  *    classification region; weights from the errors or the S/N with a model-error floor.
  * 2. The best `neighbours` standards vote, each with w = exp(−(χ²/χ²_min − 1)/temperature),
- *    divided by (standards of its class at the level)^classBalance.
+ *    divided by (standards of its class at the level)^classBalance for the class; at levels of
+ *    `coarseFwhm` and coarser only the best `coarseTypeNeighbours` of them vote on the type.
  * 3. Spectral type: the type, in half subtypes, that gathers the most vote within ±1 subtype
  *    (windowMode); luminosity class: the class, in half classes, that gathers the most vote within
  *    ±½ class, so that an even split between neighbours gives the intermediate class (IV-V).
@@ -237,7 +238,18 @@ export function windowMode(values: ArrayLike<number>, weights: ArrayLike<number>
  * @throws when the spectrum has no usable pixel in the region
  */
 export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, options: MatchOptions = {}): MatchResult {
-  const { region = DEFAULT_CLASSIFICATION_REGION, modelError = 0.01, neighbours = 16, temperature = 1.5, classBalance = 0.5, lowSnr = 20, exhaustive = false, exclude } = options
+  const {
+    region = DEFAULT_CLASSIFICATION_REGION,
+    modelError = 0.01,
+    neighbours = 16,
+    coarseTypeNeighbours = 5,
+    coarseFwhm = 12,
+    temperature = 1.5,
+    classBalance = 0.5,
+    lowSnr = 20,
+    exhaustive = false,
+    exclude,
+  } = options
   const refineCount = Math.max(options.refineCount ?? 48, 2 * neighbours, 5)
   const levelFwhm = levelFor(library, input.fwhm)
   const { level, fit, from, to, scratch: s } = fitSpectrumAtLevel(library, input, levelFwhm, { region, modelError, exhaustive, refineCount, ...(exclude ? { exclude } : {}) })
@@ -259,7 +271,8 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
     const t = w.reduce((a, b) => a + b, 0)
     return w.map((x) => x / t)
   }
-  const typeWeights = norm(raw)
+  const typeVoters = level.fwhm >= coarseFwhm ? Math.min(coarseTypeNeighbours, voters.length) : voters.length
+  const typeWeights = norm(raw.map((w, q) => (q < typeVoters ? w : 0)))
   const classWeights = norm(balanced)
   const types = voters.map((r) => std(r).typeCode)
   const classes = voters.map((r) => std(r).classCode)
@@ -312,7 +325,7 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   const bestStd = std(best)
   const classNote = describeClassChoice(classCode, bestStd.classCode, bestStd.spectralType, classShares, voters.length)
 
-  const parameters = parameterEstimate(voters.map(std), typeWeights)
+  const parameters = parameterEstimate(voters.slice(0, typeVoters).map(std), typeWeights.slice(0, typeVoters))
 
   // Flags.
   const flags: SuggestionFlag[] = []

@@ -30,6 +30,14 @@ export interface MatchOptions {
   /** Standards that vote on type and class: the best this many by χ². @default 16 */
   neighbours?: number
   /**
+   * At levels of `coarseFwhm` Å and coarser, only the best this many of them vote on the type (all
+   * still vote on the class): once the metal lines blend, χ² tells neighbouring types apart only
+   * weakly, and a wide vote drifts toward the types the library has most of. @default 5
+   */
+  coarseTypeNeighbours?: number
+  /** FWHM, Å, from which {@link coarseTypeNeighbours} applies. @default 12 */
+  coarseFwhm?: number
+  /**
    * Width of the vote weights, w = exp(−(χ²/χ²_min − 1)/temperature): standards whose χ² is
    * within a factor (1 + temperature) of the best still carry weight e⁻¹. A temperature tied to
    * the best fit rather than to the photon noise, because among real stars the published types

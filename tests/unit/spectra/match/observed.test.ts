@@ -85,6 +85,19 @@ describe('the class and type of named reference stars', () => {
     60_000,
   )
 
+  it('lets the best 5 standards vote on the type at 12 Å and coarser, and all 16 on the class', () => {
+    // HD 10307, G2 V (MILES), as recorded and degraded to 15 Å.
+    const s = star('HD010307')
+    const sharp = classify(s).suggestion!
+    const coarse = runPipeline({ spectrum: degradeSpectrum(s.spectrum, { from: s.fwhm, to: 15, seed: 7 }), inputFwhm: 15, exclude: s.exclude }, library).suggestion!
+    expect(coarse.levelFwhm).toBeGreaterThanOrEqual(12)
+    const typeVoters = (r: typeof sharp) => r.voters.filter((v) => v.typeShare > 0).length
+    expect(typeVoters(coarse)).toBeLessThanOrEqual(5)
+    expect(coarse.voters.filter((v) => v.classShare > 0)).toHaveLength(16)
+    expect(typeVoters(sharp)).toBeGreaterThan(5)
+    expect(Math.abs(coarse.typeCode - s.typeCode)).toBeLessThanOrEqual(2)
+  }, 60_000)
+
   it('reports Teff, log g and [Fe/H] near the published values of a solar-type dwarf (HD 10307, G2 V; MILES parameter table)', () => {
     const s = star('HD010307')
     const p = classify(s).suggestion!.parameters
