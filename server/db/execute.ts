@@ -11,3 +11,9 @@ export async function executeInTransaction(transaction: Transaction, sql: string
   const result = await connection.execute(sql, values)
   return { insertId: Number(result.insertId), affectedRows: Number(result.affectedRows) }
 }
+
+/** Runs one SELECT on the transaction's own connection through the binary protocol; its rows as plain objects. */
+export async function selectInTransaction<T>(transaction: Transaction, sql: string, values: unknown[]): Promise<T[]> {
+  const { connection } = transaction as unknown as { connection: { execute(sql: string, values: unknown[]): Promise<T[]> } }
+  return Array.from(await connection.execute(sql, values))
+}

@@ -3,7 +3,9 @@
 // database queue (runner.ts) and the Redis worker (redis.ts) differ only in how they learn that
 // there is work.
 import { Op, QueryTypes, Transaction, type Sequelize } from 'sequelize'
+import { executeInTransaction } from '../db/execute'
 import { bufferToFloat32, bufferToFloat64 } from '../lib/binary'
+import { sqlTime } from '../lib/sql-time'
 import { isDatabaseUnavailable } from '../lib/db-errors'
 import { ProcessingJob, Spectrum } from '../models'
 import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
@@ -147,7 +149,7 @@ export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output:
   await withRetry(() =>
     sequelize.transaction(READ_COMMITTED, async (transaction) => {
       await storePipelineOutput(sequelize, job.spectrumId, output, libraryVersionId, transaction)
-      await ProcessingJob.update({ status: 'done', error: null, finishedAt: new Date(), leaseExpiresAt: null }, { where: { id: job.id }, transaction })
+      await executeInTransaction(transaction, "UPDATE processing_jobs SET status = 'done', error = NULL, finished_at = ?, lease_expires_at = NULL WHERE id = ?", [sqlTime(new Date()), job.id])
     }),
   )
 }

@@ -1,15 +1,15 @@
-import { Op, type InferAttributes, type Sequelize, type Transaction } from 'sequelize'
+import { type InferAttributes, type Sequelize, type Transaction } from 'sequelize'
 import { CLASSIFICATION_LINES } from '../../shared/lines'
 import { gridWavelength } from '../../shared/grid'
 import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
-import { executeInTransaction } from '../db/execute'
+import { executeInTransaction, selectInTransaction } from '../db/execute'
 import { decimateMinMax } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { sqlTime } from '../lib/sql-time'
 import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, type User } from '../models'
 import type { AppContext } from '../context'
 import type { PipelineOutput } from '../spectra/pipeline'
-import { indexSuggestionFlags, storeSuggestion, suggestionDetails } from './suggestions.service'
+import { flagRows, storeSuggestion, suggestionDetails } from './suggestions.service'
 import { findVisibleSpectrum } from './visibility'
 import type { LineRow, MeasurementSummary, SpectrumMeasurements } from '../../shared/api/measurements'
 import type { SeriesQuery } from '../../shared/api/spectra'
@@ -182,8 +182,17 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
   const suggestion = output.suggestion && libraryVersionId !== undefined ? output.suggestion : null
   const details = suggestion ? await suggestionDetails(suggestion, output.resolution, output.notes, output.standards, transaction) : null
   const instrumentId = output.standards && output.standards.instrumentStandards > 0 ? output.standards.instrumentId : null
-  const earlier = await Measurement.findAll({ where: { spectrumId, isCurrent: true }, attributes: ['id'], transaction })
-  if (earlier.length > 0) await Measurement.update({ isCurrent: false }, { where: { id: { [Op.in]: earlier.map((m) => m.id) } }, transaction })
+  // What a new spectrum has none of, found in one read: earlier current rows, updated by key.
+  const [state] = await selectInTransaction<{ measurements: string | null; suggestions: string | null; flags: number | bigint }>(
+    transaction,
+    `SELECT (SELECT GROUP_CONCAT(id) FROM measurements WHERE spectrum_id = ? AND is_current = 1) AS measurements,
+            (SELECT GROUP_CONCAT(id) FROM suggestions WHERE spectrum_id = ? AND is_current = 1) AS suggestions,
+            (SELECT COUNT(*) FROM spectrum_flags WHERE spectrum_id = ?) AS flags`,
+    [spectrumId, spectrumId, spectrumId],
+  )
+  const ids = (list: string | null | undefined) => (list ? list.split(',').map(Number) : [])
+  const earlier = ids(state?.measurements)
+  if (earlier.length > 0) await executeInTransaction(transaction, `UPDATE measurements SET is_current = 0 WHERE id IN (${earlier.map(() => '?').join(', ')})`, earlier)
   // The arrays (80 KB and more) and the line rows go through the driver's binary protocol on the
   // transaction's connection: raw bytes instead of escaped text, and no model instance per row.
   const inserted = await executeInTransaction(
@@ -202,13 +211,34 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
       lines.flatMap((l) => [m.id, l.lineId, l.measured ? 1 : 0, l.reason, l.ew, l.ewError, l.depth, l.fwhm, l.centroid, l.snr, l.gaussianFwhm, l.lorentzianFwhm, l.lorentzianError]),
     )
   }
+  const from = suggestion && details && libraryVersionId !== undefined ? PRE_REVIEW_SUGGESTED : PRE_REVIEW
+  let flagCount: number | null = null
   if (suggestion && details && libraryVersionId !== undefined) {
-    await storeSuggestion({ spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion, details, instrumentId }, transaction)
-    await indexSuggestionFlags(sequelize, spectrumId, suggestion.flags, transaction)
-    await Spectrum.update({ status: 'suggested', statusReason: null }, { where: { id: spectrumId, status: { [Op.in]: PRE_REVIEW_SUGGESTED } }, transaction })
-    return
+    await storeSuggestion(
+      { spectrumId, measurementId: m.id, libraryVersionId, pipelineVersion: output.pipelineVersion, result: suggestion, details, instrumentId },
+      ids(state?.suggestions),
+      transaction,
+    )
+    // The queue filters and orders by these (indexSuggestionFlags, in the statements this path already makes).
+    const flags = flagRows(suggestion.flags)
+    if (Number(state?.flags ?? 0) > 0) await executeInTransaction(transaction, 'DELETE FROM spectrum_flags WHERE spectrum_id = ?', [spectrumId])
+    if (flags.length > 0)
+      await executeInTransaction(
+        transaction,
+        `INSERT INTO spectrum_flags (spectrum_id, flag) VALUES ${flags.map(() => '(?, ?)').join(', ')}`,
+        flags.flatMap((f) => [spectrumId, f]),
+      )
+    flagCount = Math.min(255, flags.length)
   }
-  await Spectrum.update({ status: 'measured', statusReason: null }, { where: { id: spectrumId, status: { [Op.in]: PRE_REVIEW } }, transaction })
+  // The spectrum moves on only from the statuses before review; MariaDB assigns left to right, so
+  // the reason and the time are set before the status they are judged by.
+  const moving = `status IN (${from.map(() => '?').join(', ')})`
+  await executeInTransaction(
+    transaction,
+    `UPDATE spectra SET ${flagCount === null ? '' : 'flag_count = ?, '}status_reason = IF(${moving}, NULL, status_reason), updated_at = IF(${moving}, ?, updated_at),
+       status = IF(${moving}, ?, status) WHERE id = ?`,
+    [...(flagCount === null ? [] : [flagCount]), ...from, ...from, sqlTime(new Date()), ...from, flagCount === null ? 'measured' : 'suggested', spectrumId],
+  )
 }
 
 /** Puts a spectrum back in the queue: after a failure, or to re-measure with a newer pipeline. */

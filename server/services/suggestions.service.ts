@@ -1,6 +1,8 @@
 import { Op, type Sequelize, type Transaction } from 'sequelize'
 import type { AppContext } from '../context'
+import { executeInTransaction } from '../db/execute'
 import { HttpError, notFound } from '../lib/http-error'
+import { sqlTime } from '../lib/sql-time'
 import { Campaign, Instrument, ProcessingJob, ReviewCall, Spectrum, Suggestion, type User } from '../models'
 import { isBlindFor } from '../review/consensus'
 import type { MatchResult } from '../spectra/match'
@@ -34,39 +36,51 @@ export async function suggestionDetails(r: MatchResult, resolution: PipelineReso
   return details
 }
 
-/** Stores a matcher result as the spectrum's current suggestion; earlier ones stay with is_current = false. */
+/**
+ * Stores a matcher result as the spectrum's current suggestion; the earlier current ones (their ids
+ * found by the caller) stay with is_current = false. Raw statements on the transaction's connection:
+ * this runs once per processed spectrum, and a model instance per insert cost more than the insert.
+ */
 export async function storeSuggestion(
   input: { spectrumId: number; measurementId: number; libraryVersionId: number; pipelineVersion: string; result: MatchResult; details: SuggestionDetails; instrumentId?: number | null },
+  earlier: readonly number[],
   transaction: Transaction,
-): Promise<Suggestion> {
+): Promise<number> {
   const r = input.result
-  await Suggestion.update({ isCurrent: false }, { where: { spectrumId: input.spectrumId, isCurrent: true }, transaction })
-  return Suggestion.create(
-    {
-      spectrumId: input.spectrumId,
-      measurementId: input.measurementId,
-      libraryVersionId: input.libraryVersionId,
-      pipelineVersion: input.pipelineVersion,
-      isCurrent: true,
-      spectralType: r.spectralType,
-      letter: r.letter,
-      subtype: r.subtype,
-      typeCode: r.typeCode,
-      luminosityClass: r.luminosityClass,
-      classCode: r.classCode,
-      uncertaintySubtypes: r.uncertainty.subtypes,
-      uncertaintyClasses: r.uncertainty.classes,
-      bestStandardId: r.bestStandardId > 0 ? r.bestStandardId : null,
-      candidates: JSON.stringify(r.candidates),
-      votes: JSON.stringify(r.votes),
-      flags: JSON.stringify(r.flags),
-      probabilities: JSON.stringify(r.probabilities),
-      details: JSON.stringify(input.details),
-      instrumentId: input.instrumentId ?? null,
-    },
-    { transaction },
+  if (earlier.length > 0) await executeInTransaction(transaction, `UPDATE suggestions SET is_current = 0 WHERE id IN (${earlier.map(() => '?').join(', ')})`, [...earlier])
+  const row: Array<[string, unknown]> = [
+    ['spectrum_id', input.spectrumId],
+    ['measurement_id', input.measurementId],
+    ['library_version_id', input.libraryVersionId],
+    ['pipeline_version', input.pipelineVersion],
+    ['is_current', 1],
+    ['spectral_type', r.spectralType],
+    ['letter', r.letter],
+    ['subtype', r.subtype],
+    ['type_code', r.typeCode],
+    ['luminosity_class', r.luminosityClass],
+    ['class_code', r.classCode],
+    ['uncertainty_subtypes', r.uncertainty.subtypes],
+    ['uncertainty_classes', r.uncertainty.classes],
+    ['best_standard_id', r.bestStandardId > 0 ? r.bestStandardId : null],
+    ['candidates', JSON.stringify(r.candidates)],
+    ['votes', JSON.stringify(r.votes)],
+    ['flags', JSON.stringify(r.flags)],
+    ['probabilities', JSON.stringify(r.probabilities)],
+    ['details', JSON.stringify(input.details)],
+    ['instrument_id', input.instrumentId ?? null],
+    ['created_at', sqlTime(new Date())],
+  ]
+  const inserted = await executeInTransaction(
+    transaction,
+    `INSERT INTO suggestions (${row.map(([c]) => c).join(', ')}) VALUES (${row.map(() => '?').join(', ')})`,
+    row.map(([, v]) => v),
   )
+  return inserted.insertId
 }
+
+/** The flags a suggestion is indexed by: each once, as long as the column holds. */
+export const flagRows = (flags: readonly string[]): string[] => [...new Set(flags)].map((f) => f.slice(0, 40))
 
 /**
  * Writes what the queue orders and filters by for a spectrum's new current suggestion: the flag
@@ -74,12 +88,12 @@ export async function storeSuggestion(
  * the suggestion.
  */
 export async function indexSuggestionFlags(sequelize: Sequelize, spectrumId: number, flags: readonly string[], transaction?: Transaction): Promise<void> {
-  const unique = [...new Set(flags)]
+  const unique = flagRows(flags)
   await sequelize.query('UPDATE spectra SET flag_count = :n WHERE id = :id', { replacements: { n: Math.min(255, unique.length), id: spectrumId }, transaction })
   await sequelize.query('DELETE FROM spectrum_flags WHERE spectrum_id = :id', { replacements: { id: spectrumId }, transaction })
   if (unique.length > 0) {
     await sequelize.query(`INSERT INTO spectrum_flags (spectrum_id, flag) VALUES ${unique.map(() => '(?, ?)').join(', ')}`, {
-      replacements: unique.flatMap((f) => [spectrumId, f.slice(0, 40)]),
+      replacements: unique.flatMap((f) => [spectrumId, f]),
       transaction,
     })
   }
