@@ -354,8 +354,12 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
     const f = input.rectified[g]!
     spectrumSpan[i] = (input.mask !== undefined && input.mask[g] !== 0) || !Number.isFinite(f) ? Number.NaN : f
   }
-  const votes = criteriaVotes(library, level, spectrumSpan, typeCode, input.snr, centre, exclude)
-  votes.unshift({ criterion: 'neighbours', name: `vote of the ${voters.length} nearest standards`, value: round(classShares[0]?.p ?? 0, 4), vote: classShares[0]?.luminosityClass ?? null })
+  // A new array rather than unshift on the one returned: its elements kind (so its map) differs as
+  // criteriaVotes runs optimised or not, and the optimised matchSpectrum was thrown away each time.
+  const votes = [
+    { criterion: 'neighbours', name: `vote of the ${voters.length} nearest standards`, value: round(classShares[0]?.p ?? 0, 4), vote: classShares[0]?.luminosityClass ?? null },
+    ...criteriaVotes(library, level, spectrumSpan, typeCode, input.snr, centre, exclude),
+  ]
   const width = balmerHalfDepthWidth(spectrumSpan, library.wavelength)
   if (typeCode < 35 && isBeyondDwarfs(level, library.standards, width)) flags.push('not-mk')
 
