@@ -10,7 +10,7 @@ import { lowerBound } from '../spectra/prepare/stats'
 import { HttpError, notFound } from '../lib/http-error'
 import { sha256Hex } from '../lib/tokens'
 import { sqlTime } from '../lib/sql-time'
-import { executeInTransaction } from '../db/execute'
+import { executeInTransaction, insertModelRow } from '../db/execute'
 import { rawFileKey } from '../storage'
 import {
   Campaign,
@@ -170,7 +170,8 @@ export async function knownFiles(user: User, input: KnownFilesInput): Promise<Kn
   return { known: rows.map((r) => ({ sha256: r.fileSha256, spectrumId: visible.has(r.id) ? r.id : null })) }
 }
 
-async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: UploadedFile, opts: SubmitOptions): Promise<FileResult> {
+async function storeOne(ctx: AppContext, user: User, batch: Batch, file: UploadedFile, opts: SubmitOptions): Promise<FileResult> {
+  const { campaign } = batch
   const choices = choicesOf(opts)
   const answer = await readingOf(ctx).read(file.name, sourceOf(file), readOptionsFor(ctx.config, choices))
   const sha = answer.sha256
@@ -191,7 +192,7 @@ async function storeOne(ctx: AppContext, user: User, campaign: Campaign, file: U
     if ('path' in file) await ctx.files.putFile(key, file.path)
     else await ctx.files.put(key, Buffer.from(answer.bytes!.buffer, answer.bytes!.byteOffset, answer.bytes!.byteLength))
   }
-  return insertSpectrum(ctx, user, campaign, { name: file.name, size: answer.size, key }, sha, read, opts, choices).catch(async (error: unknown) => {
+  return insertSpectrum(ctx, user, batch, { name: file.name, size: answer.size, key }, sha, read, opts, choices).catch(async (error: unknown) => {
     if (error instanceof UniqueConstraintError) return duplicate((await findDuplicate(user, campaign.id, sha))?.id ?? null)
     throw error
   })
@@ -206,30 +207,27 @@ interface StoredFile {
 /** What a successful read gives the spectrum row and its blob. */
 type ReadColumns = Extract<ReadOutcome, { ok: true }>
 
-async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, file: StoredFile, sha: string, columns: ReadColumns, opts: SubmitOptions, choices: ReadChoices): Promise<FileResult> {
+async function insertSpectrum(ctx: AppContext, user: User, batch: Batch, file: StoredFile, sha: string, columns: ReadColumns, opts: SubmitOptions, choices: ReadChoices): Promise<FileResult> {
   const { meta } = columns
   const metadata = resolveMetadata(opts, meta, file.name)
-  const row = await ctx.sequelize.transaction(async (transaction) => {
-    const instrument = await instrumentForSpectrum(campaign.id, opts.instrumentId, metadata.instrument, transaction)
-    const spectrum = await Spectrum.create(
-      {
-        campaignId: campaign.id,
-        submittedBy: user.id,
-        batchId: opts.batchId ?? null,
-        statusReason: null,
-        ...metadata,
-        instrumentId: instrument?.id ?? null,
-        fileName: fitText(file.name, 255),
-        fileSha256: sha,
-        fileSize: file.size,
-        ...columns.row,
-        readChoices: JSON.stringify(choices),
-      },
-      { transaction },
-    )
+  const instrument = await batch.instrumentFor(metadata.instrument)
+  const id = await ctx.sequelize.transaction(async (transaction) => {
+    const spectrumId = await insertModelRow(transaction, Spectrum, {
+      campaignId: batch.campaign.id,
+      submittedBy: user.id,
+      batchId: opts.batchId ?? null,
+      statusReason: null,
+      ...metadata,
+      instrumentId: instrument?.id ?? null,
+      fileName: fitText(file.name, 255),
+      fileSha256: sha,
+      fileSize: file.size,
+      ...columns.row,
+      readChoices: JSON.stringify(choices),
+    })
     const { wavelength, flux, error, mask } = columns.blob
     await executeInTransaction(transaction, 'INSERT INTO spectrum_blobs (spectrum_id, raw, raw_key, wavelength, flux, error, mask) VALUES (?, NULL, ?, ?, ?, ?, ?)', [
-      spectrum.id,
+      spectrumId,
       file.key,
       wavelength,
       flux,
@@ -237,24 +235,52 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
       mask,
     ])
     await executeInTransaction(transaction, "INSERT INTO processing_jobs (spectrum_id, status, attempts, requested_by, created_at) VALUES (?, 'queued', 0, ?, ?)", [
-      spectrum.id,
+      spectrumId,
       user.id,
       sqlTime(new Date()),
     ])
-    return spectrum
+    return spectrumId
   })
-  ctx.jobs?.enqueue(row.id)
+  ctx.jobs?.enqueue(id)
+  const row = columns.row
   return {
     file: file.name,
     outcome: 'accepted',
-    spectrumId: row.id,
+    spectrumId: id,
     pixels: row.pixels,
     wavelengthRange: [row.wlMin, row.wlMax],
     dispersion: row.dispersion,
     snr: row.snr,
-    objectName: row.objectName,
+    objectName: metadata.objectName,
     notes: meta.notes,
     decisions: meta.decisions!,
+  }
+}
+
+/**
+ * What the files of one request share: their campaign, and the instrument each setup names (looked
+ * up once per request, not once per file).
+ */
+interface Batch {
+  campaign: Campaign
+  instrumentFor(setup: string): Promise<Instrument | null>
+}
+
+function batchOf(campaign: Campaign, chosen: number | null | undefined): Batch {
+  const found = new Map<string, Promise<Instrument | null>>()
+  return {
+    campaign,
+    instrumentFor(setup) {
+      const key = setup.trim().toLowerCase()
+      let instrument = found.get(key)
+      if (!instrument) {
+        instrument = instrumentForSpectrum(campaign.id, chosen, setup)
+        found.set(key, instrument)
+        // A failed lookup is the file's alone: the next file asks again.
+        instrument.catch(() => found.delete(key))
+      }
+      return instrument
+    },
   }
 }
 
@@ -262,9 +288,9 @@ async function insertSpectrum(ctx: AppContext, user: User, campaign: Campaign, f
 const isServerTrouble = (error: unknown) => error instanceof ConnectionError || error instanceof HttpError
 
 /** One file's own result, whatever goes wrong with it. */
-async function storeSafely(ctx: AppContext, user: User, campaign: Campaign, file: UploadedFile, opts: SubmitOptions): Promise<FileResult> {
+async function storeSafely(ctx: AppContext, user: User, batch: Batch, file: UploadedFile, opts: SubmitOptions): Promise<FileResult> {
   try {
-    return await storeOne(ctx, user, campaign, file, opts)
+    return await storeOne(ctx, user, batch, file, opts)
   } catch (error) {
     if (isServerTrouble(error)) throw error
     ctx.logger.error({ err: error, file: file.name }, 'storing an uploaded file failed')
@@ -287,6 +313,7 @@ export async function submitFiles(ctx: AppContext, user: User, files: UploadedFi
   const campaign = await campaignForSubmission(user, opts.campaignId)
   // A wrong instrument is the batch's mistake, not each file's: refuse before reading any.
   if (opts.instrumentId !== undefined && opts.instrumentId !== null) await instrumentForSpectrum(campaign.id, opts.instrumentId, undefined)
+  const batch = batchOf(campaign, opts.instrumentId)
   const results: FileResult[] = []
   let budget = ctx.config.UPLOAD_MAX_FILES
   for (const file of files) {
@@ -299,7 +326,7 @@ export async function submitFiles(ctx: AppContext, user: User, files: UploadedFi
       }
       for (const entry of unzipped.entries) {
         budget--
-        results.push(await storeSafely(ctx, user, campaign, { name: `${file.name}/${entry.name}`, bytes: entry.bytes }, opts))
+        results.push(await storeSafely(ctx, user, batch, { name: `${file.name}/${entry.name}`, bytes: entry.bytes }, opts))
       }
       for (const name of unzipped.skipped) {
         const line = skippedEntry(file.name, name)
@@ -312,7 +339,7 @@ export async function submitFiles(ctx: AppContext, user: User, files: UploadedFi
       results.push({ file: file.name, outcome: 'refused', code: 'TOO_MANY_FILES', message: `${file.name}: a batch holds at most ${ctx.config.UPLOAD_MAX_FILES} files` })
       continue
     }
-    results.push(await storeSafely(ctx, user, campaign, file, opts))
+    results.push(await storeSafely(ctx, user, batch, file, opts))
   }
   return results
 }

@@ -1,8 +1,7 @@
 import { Op, type Sequelize, type Transaction } from 'sequelize'
 import type { AppContext } from '../context'
-import { executeInTransaction } from '../db/execute'
+import { executeInTransaction, insertModelRow } from '../db/execute'
 import { HttpError, notFound } from '../lib/http-error'
-import { sqlTime } from '../lib/sql-time'
 import { Campaign, Instrument, ProcessingJob, ReviewCall, Spectrum, Suggestion, type User } from '../models'
 import { isBlindFor } from '../review/consensus'
 import type { MatchResult } from '../spectra/match'
@@ -48,35 +47,28 @@ export async function storeSuggestion(
 ): Promise<number> {
   const r = input.result
   if (earlier.length > 0) await executeInTransaction(transaction, `UPDATE suggestions SET is_current = 0 WHERE id IN (${earlier.map(() => '?').join(', ')})`, [...earlier])
-  const row: Array<[string, unknown]> = [
-    ['spectrum_id', input.spectrumId],
-    ['measurement_id', input.measurementId],
-    ['library_version_id', input.libraryVersionId],
-    ['pipeline_version', input.pipelineVersion],
-    ['is_current', 1],
-    ['spectral_type', r.spectralType],
-    ['letter', r.letter],
-    ['subtype', r.subtype],
-    ['type_code', r.typeCode],
-    ['luminosity_class', r.luminosityClass],
-    ['class_code', r.classCode],
-    ['uncertainty_subtypes', r.uncertainty.subtypes],
-    ['uncertainty_classes', r.uncertainty.classes],
-    ['best_standard_id', r.bestStandardId > 0 ? r.bestStandardId : null],
-    ['candidates', JSON.stringify(r.candidates)],
-    ['votes', JSON.stringify(r.votes)],
-    ['flags', JSON.stringify(r.flags)],
-    ['probabilities', JSON.stringify(r.probabilities)],
-    ['details', JSON.stringify(input.details)],
-    ['instrument_id', input.instrumentId ?? null],
-    ['created_at', sqlTime(new Date())],
-  ]
-  const inserted = await executeInTransaction(
-    transaction,
-    `INSERT INTO suggestions (${row.map(([c]) => c).join(', ')}) VALUES (${row.map(() => '?').join(', ')})`,
-    row.map(([, v]) => v),
-  )
-  return inserted.insertId
+  return insertModelRow(transaction, Suggestion, {
+    spectrumId: input.spectrumId,
+    measurementId: input.measurementId,
+    libraryVersionId: input.libraryVersionId,
+    pipelineVersion: input.pipelineVersion,
+    isCurrent: true,
+    spectralType: r.spectralType,
+    letter: r.letter,
+    subtype: r.subtype,
+    typeCode: r.typeCode,
+    luminosityClass: r.luminosityClass,
+    classCode: r.classCode,
+    uncertaintySubtypes: r.uncertainty.subtypes,
+    uncertaintyClasses: r.uncertainty.classes,
+    bestStandardId: r.bestStandardId > 0 ? r.bestStandardId : null,
+    candidates: JSON.stringify(r.candidates),
+    votes: JSON.stringify(r.votes),
+    flags: JSON.stringify(r.flags),
+    probabilities: JSON.stringify(r.probabilities),
+    details: JSON.stringify(input.details),
+    instrumentId: input.instrumentId ?? null,
+  })
 }
 
 /** The flags a suggestion is indexed by: each once, as long as the column holds. */
