@@ -219,7 +219,7 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
       ids(state?.suggestions),
       transaction,
     )
-    // The queue filters and orders by these (indexSuggestionFlags, in the statements this path already makes).
+    // The rows the queue filters and orders by, as indexSuggestionFlags writes them.
     const flags = flagRows(suggestion.flags)
     if (Number(state?.flags ?? 0) > 0) await executeInTransaction(transaction, 'DELETE FROM spectrum_flags WHERE spectrum_id = ?', [spectrumId])
     if (flags.length > 0)
