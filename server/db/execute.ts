@@ -8,16 +8,17 @@ import { sqlTime } from '../lib/sql-time'
  * model instance, for inserts that need only the new id.
  */
 export async function executeInTransaction(transaction: Transaction, sql: string, values: unknown[]): Promise<{ insertId: number; affectedRows: number }> {
-  const { connection } = transaction as unknown as { connection: { execute(sql: string, values: unknown[]): Promise<{ insertId: number | bigint; affectedRows: number }> } }
-  const result = await connection.execute(sql, values)
+  const result = (await connectionOf(transaction).execute(sql, values)) as { insertId: number | bigint; affectedRows: number }
   return { insertId: Number(result.insertId), affectedRows: Number(result.affectedRows) }
 }
 
 /** Runs one SELECT on the transaction's own connection through the binary protocol; its rows as plain objects. */
 export async function selectInTransaction<T>(transaction: Transaction, sql: string, values: unknown[]): Promise<T[]> {
-  const { connection } = transaction as unknown as { connection: { execute(sql: string, values: unknown[]): Promise<T[]> } }
-  return Array.from(await connection.execute(sql, values))
+  return Array.from((await connectionOf(transaction).execute(sql, values)) as T[])
 }
+
+/** The driver connection a Sequelize transaction holds. */
+const connectionOf = (transaction: Transaction) => (transaction as unknown as { connection: { execute(sql: string, values: unknown[]): Promise<unknown> } }).connection
 
 interface Column {
   attribute: string
@@ -32,7 +33,9 @@ function modelColumns(model: ModelStatic<Model>): Column[] {
   let columns = columnsOf.get(model)
   if (!columns) {
     const o = model.options
-    const stamps = new Set(o.timestamps === false ? [] : [o.createdAt === false ? '' : 'createdAt', o.updatedAt === false ? '' : 'updatedAt'])
+    const stamps = new Set<string>()
+    if (o.timestamps !== false && o.createdAt !== false) stamps.add('createdAt')
+    if (o.timestamps !== false && o.updatedAt !== false) stamps.add('updatedAt')
     columns = Object.entries(model.getAttributes())
       .filter(([, a]) => !a.autoIncrement)
       .map(([attribute, a]) => {

@@ -9,7 +9,7 @@ import { sqlTime } from '../lib/sql-time'
 import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, type User } from '../models'
 import type { AppContext } from '../context'
 import type { PipelineOutput } from '../spectra/pipeline'
-import { flagRows, storeSuggestion, suggestionDetails } from './suggestions.service'
+import { replaceFlagRows, storeSuggestion, suggestionDetails } from './suggestions.service'
 import { findVisibleSpectrum } from './visibility'
 import type { LineRow, MeasurementSummary, SpectrumMeasurements } from '../../shared/api/measurements'
 import type { SeriesQuery } from '../../shared/api/spectra'
@@ -211,7 +211,6 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
       lines.flatMap((l) => [m.id, l.lineId, l.measured ? 1 : 0, l.reason, l.ew, l.ewError, l.depth, l.fwhm, l.centroid, l.snr, l.gaussianFwhm, l.lorentzianFwhm, l.lorentzianError]),
     )
   }
-  const from = suggestion && details && libraryVersionId !== undefined ? PRE_REVIEW_SUGGESTED : PRE_REVIEW
   let flagCount: number | null = null
   if (suggestion && details && libraryVersionId !== undefined) {
     await storeSuggestion(
@@ -219,17 +218,9 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
       ids(state?.suggestions),
       transaction,
     )
-    // The rows the queue filters and orders by, as indexSuggestionFlags writes them.
-    const flags = flagRows(suggestion.flags)
-    if (Number(state?.flags ?? 0) > 0) await executeInTransaction(transaction, 'DELETE FROM spectrum_flags WHERE spectrum_id = ?', [spectrumId])
-    if (flags.length > 0)
-      await executeInTransaction(
-        transaction,
-        `INSERT INTO spectrum_flags (spectrum_id, flag) VALUES ${flags.map(() => '(?, ?)').join(', ')}`,
-        flags.flatMap((f) => [spectrumId, f]),
-      )
-    flagCount = Math.min(255, flags.length)
+    flagCount = await replaceFlagRows(transaction, spectrumId, suggestion.flags, Number(state?.flags ?? 0) > 0)
   }
+  const from = flagCount === null ? PRE_REVIEW : PRE_REVIEW_SUGGESTED
   // The spectrum moves on only from the statuses before review; MariaDB assigns left to right, so
   // the reason and the time are set before the status they are judged by.
   const moving = `status IN (${from.map(() => '?').join(', ')})`

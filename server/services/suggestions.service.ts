@@ -71,24 +71,32 @@ export async function storeSuggestion(
   })
 }
 
-/** The flags a suggestion is indexed by: each once, as long as the column holds. */
-export const flagRows = (flags: readonly string[]): string[] => [...new Set(flags)].map((f) => f.slice(0, 40))
+/**
+ * Replaces a spectrum's flag rows (each flag once, as long as the column holds) in the caller's
+ * transaction and returns the flag count the spectrum row keeps. `clear` is false when the caller
+ * knows the spectrum has none, which saves the DELETE.
+ */
+export async function replaceFlagRows(transaction: Transaction, spectrumId: number, flags: readonly string[], clear = true): Promise<number> {
+  const unique = [...new Set(flags)].map((f) => f.slice(0, 40))
+  if (clear) await executeInTransaction(transaction, 'DELETE FROM spectrum_flags WHERE spectrum_id = ?', [spectrumId])
+  if (unique.length > 0) {
+    await executeInTransaction(
+      transaction,
+      `INSERT INTO spectrum_flags (spectrum_id, flag) VALUES ${unique.map(() => '(?, ?)').join(', ')}`,
+      unique.flatMap((f) => [spectrumId, f]),
+    )
+  }
+  return Math.min(255, unique.length)
+}
 
 /**
- * Writes what the queue orders and filters by for a spectrum's new current suggestion: the flag
- * count on the spectrum and one spectrum_flags row per flag. Called in the transaction that stores
- * the suggestion.
+ * Writes what the queue orders and filters by for a spectrum's current suggestion: the flag count
+ * on the spectrum and one spectrum_flags row per flag, in the given transaction or one of its own.
  */
 export async function indexSuggestionFlags(sequelize: Sequelize, spectrumId: number, flags: readonly string[], transaction?: Transaction): Promise<void> {
-  const unique = flagRows(flags)
-  await sequelize.query('UPDATE spectra SET flag_count = :n WHERE id = :id', { replacements: { n: Math.min(255, unique.length), id: spectrumId }, transaction })
-  await sequelize.query('DELETE FROM spectrum_flags WHERE spectrum_id = :id', { replacements: { id: spectrumId }, transaction })
-  if (unique.length > 0) {
-    await sequelize.query(`INSERT INTO spectrum_flags (spectrum_id, flag) VALUES ${unique.map(() => '(?, ?)').join(', ')}`, {
-      replacements: unique.flatMap((f) => [spectrumId, f]),
-      transaction,
-    })
-  }
+  if (!transaction) return sequelize.transaction((own) => indexSuggestionFlags(sequelize, spectrumId, flags, own))
+  const count = await replaceFlagRows(transaction, spectrumId, flags)
+  await executeInTransaction(transaction, 'UPDATE spectra SET flag_count = ? WHERE id = ?', [count, spectrumId])
 }
 
 export function toSuggestionSummary(s: Suggestion): SuggestionSummary {
