@@ -31,10 +31,12 @@ function categoriesOf(a: readonly number[], b: readonly number[], given?: readon
     const sorted = [...given].sort((x, y) => x - y)
     for (let i = 1; i < sorted.length; i++) if (sorted[i] === sorted[i - 1]) throw new RangeError(`category ${sorted[i]} is listed twice`)
     const known = new Set(sorted)
-    for (const x of [...a, ...b]) if (!known.has(x)) throw new RangeError(`rating ${x} is not one of the categories`)
+    for (const list of [a, b]) for (const x of list) if (!known.has(x)) throw new RangeError(`rating ${x} is not one of the categories`)
     return sorted
   }
-  return [...new Set([...a, ...b])].sort((x, y) => x - y)
+  const seen = new Set(a)
+  for (const x of b) seen.add(x)
+  return [...seen].sort((x, y) => x - y)
 }
 
 /**
@@ -102,7 +104,11 @@ export function cohenKappa(a: readonly number[], b: readonly number[], options: 
  * @returns κ_w (dimensionless, ≤ 1), or NaN when both raters use a single category.
  */
 export function weightedKappa(a: readonly number[], b: readonly number[], weights: KappaWeights, options: KappaOptions = {}): number {
-  const { counts } = confusionMatrix(a, b, options)
+  return weightedKappaOfCounts(confusionMatrix(a, b, options).counts, weights)
+}
+
+/** {@link weightedKappa} from a confusion matrix already counted (one table serves both weightings). */
+export function weightedKappaOfCounts(counts: number[][], weights: KappaWeights): number {
   return kappaWithWeights(counts, weights === 'linear' ? (i, j) => Math.abs(i - j) : (i, j) => (i - j) * (i - j))
 }
 

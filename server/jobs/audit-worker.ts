@@ -1,12 +1,13 @@
 // Runs in a worker thread of its own: the agreement audit reads every call of a campaign and its
 // figures grow with them, so the whole report — reading, computing, writing the JSON — is made
 // away from the thread that answers requests. The thread keeps its own database connection.
-import type { Sequelize } from 'sequelize'
 import { loadConfig } from '../config'
 import { createSequelize } from '../db'
 import { auditReportJson, type AuditCampaignRef } from '../services/audit.service'
 
-let sequelize: Sequelize | null = null
+// Made when the thread starts (defining the models takes a noticeable part of a first audit); it
+// connects on the first query.
+createSequelize({ ...loadConfig(process.env), DB_POOL_MAX: 3 })
 
 export interface AuditTask {
   campaign: AuditCampaignRef
@@ -16,6 +17,5 @@ export interface AuditTask {
 }
 
 export default async function report(task: AuditTask): Promise<string> {
-  sequelize ??= createSequelize({ ...loadConfig(process.env), DB_POOL_MAX: 3 })
   return auditReportJson({ campaignId: task.campaignId, from: task.from ? new Date(task.from) : undefined, to: task.to ? new Date(task.to) : undefined }, task.campaign)
 }

@@ -14,6 +14,7 @@ import * as m0014 from './0014-instrument-standards'
 import * as m0020 from './0020-lists-at-scale'
 import * as m0030 from './0030-api-tokens'
 import * as m0031 from './0031-audit-index'
+import * as m0032 from './0032-audit-covering'
 
 export interface Migration {
   name: string
@@ -38,4 +39,5 @@ export const migrations: Migration[] = [
   { name: '0020-lists-at-scale', ...m0020 },
   { name: '0030-api-tokens', ...m0030 },
   { name: '0031-audit-index', ...m0031 },
+  { name: '0032-audit-covering', ...m0032 },
 ]

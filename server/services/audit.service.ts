@@ -1,5 +1,5 @@
 import { Op, QueryTypes } from 'sequelize'
-import { agreementFraction, classAgreementFraction, classesAgree, codesWithin, cohenKappa, fleissKappa, meanOffset, reconcileClasses, weightedKappa } from '../../shared/agreement'
+import { agreementFraction, classAgreementFraction, classesAgree, codesWithin, cohenKappa, fleissKappa, reconcileClasses, weightedKappaOfCounts, confusionMatrix } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
 import { sqlTime } from '../lib/sql-time'
@@ -113,7 +113,9 @@ export function typeScale(values: readonly number[]): number[] {
 /** Exact and ±1 agreement, κ for class, and weighted κ for type, of two aligned rating lists. */
 export function agreementFigures(a: { type: number[]; cls: number[] }, b: { type: number[]; cls: number[] }): AgreementFigures {
   const n = a.type.length
-  const scale = typeScale([...a.type, ...b.type])
+  let counts: number[][] | null = null
+  // Counted once for both weightings, on the scale of both raters' types.
+  const typeCounts = () => (counts ??= confusionMatrix(a.type, b.type, { categories: typeScale(a.type.concat(b.type)) }).counts)
   return {
     n,
     exactType: safe(n, () => agreementFraction(a.type, b.type, 0)),
@@ -126,13 +128,14 @@ export function agreementFigures(a: { type: number[]; cls: number[] }, b: { type
       const r = reconcileClasses(a.cls, b.cls)
       return cohenKappa(r.a, r.b)
     }),
-    weightedKappaTypeLinear: safe(n, () => weightedKappa(a.type, b.type, 'linear', { categories: scale })),
-    weightedKappaTypeQuadratic: safe(n, () => weightedKappa(a.type, b.type, 'quadratic', { categories: scale })),
+    weightedKappaTypeLinear: safe(n, () => weightedKappaOfCounts(typeCounts(), 'linear')),
+    weightedKappaTypeQuadratic: safe(n, () => weightedKappaOfCounts(typeCounts(), 'quadratic')),
   }
 }
 
 function median(values: number[]): number {
-  const s = [...values].sort((x, y) => x - y)
+  // A typed array sorts numerically without a comparator call per step (tens of thousands of times per audit).
+  const s = Float64Array.from(values).sort()
   const m = s.length >> 1
   return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2
 }
@@ -164,37 +167,60 @@ function distinctSorted(ids: readonly number[]): number[] {
   return out
 }
 
+/** A confusion matrix of labels in a fixed order, counted pair by pair, keeping the spectrum ids behind each cell. */
+class MatrixTally {
+  private readonly index: Map<string, number>
+  // One flat list of ids per cell of the full order; a spectrum called alike by two people counts twice but is listed once.
+  private readonly ids: number[][]
+  private n = 0
+
+  constructor(private readonly order: readonly string[]) {
+    this.index = new Map(order.map((l, i) => [l, i]))
+    this.ids = Array.from({ length: order.length * order.length }, (): number[] => [])
+  }
+
+  add(row: string, column: string, spectrumId: number): void {
+    this.ids[this.index.get(row)! * this.order.length + this.index.get(column)!]!.push(spectrumId)
+    this.n++
+  }
+
+  matrix(rowsAre: string, columnsAre: string): ConfusionMatrix {
+    const k = this.order.length
+    const used = this.order.map((_, i) => {
+      for (let j = 0; j < k; j++) if (this.ids[i * k + j]!.length > 0 || this.ids[j * k + i]!.length > 0) return true
+      return false
+    })
+    const at = this.order.map((_, i) => i).filter((i) => used[i])
+    const cells = at.map((r) => at.map((c): MatrixCell => ({ count: this.ids[r * k + c]!.length, spectrumIds: distinctSorted(this.ids[r * k + c]!) })))
+    return { rowsAre, columnsAre, labels: at.map((i) => this.order[i]!), cells, n: this.n }
+  }
+}
+
 /** A confusion matrix of labelled pairs, keeping the spectrum ids behind each cell. */
 export function labelledMatrix(pairs: Array<{ row: string; column: string; spectrumId: number }>, order: readonly string[], rowsAre: string, columnsAre: string): ConfusionMatrix {
-  const used = new Set<string>()
-  for (const p of pairs) used.add(p.row).add(p.column)
-  const labels = order.filter((l) => used.has(l))
-  const index = new Map(labels.map((l, i) => [l, i]))
-  const k = labels.length
-  // One flat list of ids per cell; a spectrum called alike by two people counts twice but is listed once.
-  const ids = Array.from({ length: k * k }, (): number[] => [])
-  for (const p of pairs) ids[index.get(p.row)! * k + index.get(p.column)!]!.push(p.spectrumId)
-  const cells = labels.map((_, r) => labels.map((__, c): MatrixCell => ({ count: ids[r * k + c]!.length, spectrumIds: distinctSorted(ids[r * k + c]!) })))
-  return { rowsAre, columnsAre, labels, cells, n: pairs.length }
+  const tally = new MatrixTally(order)
+  for (const p of pairs) tally.add(p.row, p.column, p.spectrumId)
+  return tally.matrix(rowsAre, columnsAre)
 }
 
 const LETTER_ORDER = MK_LETTERS.map((l) => l.letter)
 const CLASS_ORDER = LUMINOSITY_CLASSES.map((c) => c.text)
 
-function typeAndClassMatrices(pairs: Array<{ a: { typeCode: number; classCode: number }; b: { typeCode: number; classCode: number }; spectrumId: number }>, rowsAre: string, columnsAre: string) {
-  return {
-    type: labelledMatrix(
-      pairs.map((p) => ({ row: letterOf(p.a.typeCode), column: letterOf(p.b.typeCode), spectrumId: p.spectrumId })),
-      LETTER_ORDER,
-      `${rowsAre} (type letter)`,
-      `${columnsAre} (type letter)`,
-    ),
-    class: labelledMatrix(
-      pairs.map((p) => ({ row: classLabel(p.a.classCode), column: classLabel(p.b.classCode), spectrumId: p.spectrumId })),
-      CLASS_ORDER,
-      `${rowsAre} (luminosity class)`,
-      `${columnsAre} (luminosity class)`,
-    ),
+/** The type-letter and luminosity-class matrices of one rater against another. */
+class TypeAndClassTally {
+  private readonly type = new MatrixTally(LETTER_ORDER)
+  private readonly cls = new MatrixTally(CLASS_ORDER)
+
+  add(a: Codes, b: Codes, spectrumId: number): void {
+    this.type.add(letterOf(a.typeCode), letterOf(b.typeCode), spectrumId)
+    this.cls.add(classLabel(a.classCode), classLabel(b.classCode), spectrumId)
+  }
+
+  matrices(rowsAre: string, columnsAre: string) {
+    return {
+      type: this.type.matrix(`${rowsAre} (type letter)`, `${columnsAre} (type letter)`),
+      class: this.cls.matrix(`${rowsAre} (luminosity class)`, `${columnsAre} (luminosity class)`),
+    }
   }
 }
 
@@ -270,109 +296,119 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
   const info = new Map(spectra.map((s) => [s.spectrumId, s]))
   const bySpectrum = new Map<number, AuditCall[]>()
   for (const c of calls) {
-    const list = bySpectrum.get(c.spectrumId) ?? []
-    list.push(c)
-    bySpectrum.set(c.spectrumId, list)
-  }
-  const consensus = new Map<number, { typeCode: number; classCode: number }>()
-  for (const [id, list] of bySpectrum) {
-    const c = consensusOf(info.get(id), list)
-    if (c) consensus.set(id, c)
+    const list = bySpectrum.get(c.spectrumId)
+    if (list) list.push(c)
+    else bySpectrum.set(c.spectrumId, [c])
   }
   const people = new Map<number, string>()
   for (const c of calls) people.set(c.classifierId, c.classifierName)
   const ids = [...people.keys()].sort((a, b) => a - b)
+  const rank = new Map(ids.map((id, i) => [id, i]))
   const ref = (id: number): RaterRef => ({ kind: 'classifier', id, name: people.get(id)! })
   const suggestionRef: RaterRef = { kind: 'suggestion', id: null, name: 'Suggestion' }
-  const byPerson = new Map(ids.map((id) => [id, new Map<number, AuditCall>()]))
-  for (const c of calls) byPerson.get(c.classifierId)!.set(c.spectrumId, c)
+
+  // Everything is counted in one walk over the spectra, each looked up once: with a hundred thousand
+  // calls, a Map lookup per call for every figure was most of the work.
+  const ratings = () => ({ type: [] as number[], cls: [] as number[] })
+  const pairRatings = new Map<number, { a: ReturnType<typeof ratings>; b: ReturnType<typeof ratings> }>()
+  const person = ids.map(() => ({ calls: 0, judged: 0, typeOffset: 0, classOffset: 0, seconds: [] as number[], mine: ratings(), suggested: ratings() }))
+  const callsVsConsensus = new TypeAndClassTally()
+  const suggestionVsConsensus = new TypeAndClassTally()
+  const group = () => new Map<string, { calls: number; vsConsensus: AgreementTally; vsSuggestion: AgreementTally }>()
+  const byWeek = group()
+  const byVersion = group()
+  const addTo = (groups: ReturnType<typeof group>, key: string, c: AuditCall, agreed: Codes | null, suggested: Codes | null | undefined) => {
+    let g = groups.get(key)
+    if (!g) groups.set(key, (g = { calls: 0, vsConsensus: new AgreementTally(), vsSuggestion: new AgreementTally() }))
+    g.calls++
+    if (agreed) g.vsConsensus.add(c, agreed)
+    if (suggested) g.vsSuggestion.add(c, suggested)
+  }
+  const shown = { calls: 0, accepted: 0, sameJudged: 0, same: 0, exactJudged: 0, exact: 0 }
+  const blind = { calls: 0, accepted: 0, sameJudged: 0, same: 0, exactJudged: 0, exact: 0 }
+  // Each person's standing call on the spectrum at hand (the last in the list, as a person's later call replaces the earlier).
+  const latest: AuditCall[] = []
+
+  for (const [id, list] of bySpectrum) {
+    const spectrum = info.get(id)
+    const agreed = consensusOf(spectrum, list)
+    const suggested = spectrum?.suggestion
+    if (agreed && suggested) suggestionVsConsensus.add(suggested, agreed, id)
+    latest.length = 0
+    for (const c of list) {
+      const k = latest.findIndex((x) => x.classifierId === c.classifierId)
+      if (k >= 0) latest[k] = c
+      else latest.push(c)
+
+      if (agreed) callsVsConsensus.add(c, agreed, id)
+      addTo(byWeek, weekOf(c.at), c, agreed, suggested)
+      if (suggested) addTo(byVersion, suggested.libraryVersion, c, agreed, suggested)
+      const way = c.suggestionShown ? shown : blind
+      way.calls++
+      if (c.acceptedSuggestion) way.accepted++
+      if (suggested) {
+        way.sameJudged++
+        if (Math.abs(suggested.typeCode - c.typeCode) < 1e-9 && Math.abs(suggested.classCode - c.classCode) < 1e-9) way.same++
+      }
+      if (agreed) {
+        way.exactJudged++
+        if (Math.abs(agreed.typeCode - c.typeCode) < 1e-9) way.exact++
+      }
+    }
+    if (latest.length > 1) latest.sort((x, y) => x.classifierId - y.classifierId)
+    for (let i = 0; i < latest.length; i++) {
+      const c = latest[i]!
+      const p = person[rank.get(c.classifierId)!]!
+      p.calls++
+      if (c.secondsSpent !== null) p.seconds.push(c.secondsSpent)
+      if (agreed) {
+        p.judged++
+        p.typeOffset += c.typeCode - agreed.typeCode
+        p.classOffset += c.classCode - agreed.classCode
+      }
+      if (suggested) {
+        p.mine.type.push(c.typeCode)
+        p.mine.cls.push(c.classCode)
+        p.suggested.type.push(suggested.typeCode)
+        p.suggested.cls.push(suggested.classCode)
+      }
+      for (let j = i + 1; j < latest.length; j++) {
+        const d = latest[j]!
+        const key = rank.get(c.classifierId)! * ids.length + rank.get(d.classifierId)!
+        let pair = pairRatings.get(key)
+        if (!pair) pairRatings.set(key, (pair = { a: ratings(), b: ratings() }))
+        pair.a.type.push(c.typeCode)
+        pair.a.cls.push(c.classCode)
+        pair.b.type.push(d.typeCode)
+        pair.b.cls.push(d.classCode)
+      }
+    }
+  }
 
   const pairs: PairFigures[] = []
   for (let i = 0; i < ids.length; i++) {
     for (let j = i + 1; j < ids.length; j++) {
-      const a = byPerson.get(ids[i]!)!
-      const b = byPerson.get(ids[j]!)!
-      const common = [...a.keys()].filter((s) => b.has(s)).sort((x, y) => x - y)
-      const A = common.map((s) => a.get(s)!)
-      const B = common.map((s) => b.get(s)!)
-      pairs.push({
-        a: ref(ids[i]!),
-        b: ref(ids[j]!),
-        ...agreementFigures({ type: A.map((c) => c.typeCode), cls: A.map((c) => c.classCode) }, { type: B.map((c) => c.typeCode), cls: B.map((c) => c.classCode) }),
-      })
+      const r = pairRatings.get(i * ids.length + j) ?? { a: ratings(), b: ratings() }
+      pairs.push({ a: ref(ids[i]!), b: ref(ids[j]!), ...agreementFigures(r.a, r.b) })
     }
   }
-
-  const vsSuggestion: PairFigures[] = ids.map((id) => {
-    const mine = [...byPerson.get(id)!.values()].filter((c) => info.get(c.spectrumId)?.suggestion).sort((x, y) => x.spectrumId - y.spectrumId)
-    const sug = mine.map((c) => info.get(c.spectrumId)!.suggestion!)
-    return {
-      a: ref(id),
-      b: suggestionRef,
-      ...agreementFigures({ type: mine.map((c) => c.typeCode), cls: mine.map((c) => c.classCode) }, { type: sug.map((s) => s.typeCode), cls: sug.map((s) => s.classCode) }),
-    }
-  })
-
-  const classifiers: ClassifierFigures[] = ids.map((id) => {
-    const mine = [...byPerson.get(id)!.values()]
-    const judged = mine.filter((c) => consensus.has(c.spectrumId))
-    const ref = judged.map((c) => consensus.get(c.spectrumId)!)
-    const seconds = mine.map((c) => c.secondsSpent).filter((s): s is number => s !== null)
+  const vsSuggestion: PairFigures[] = ids.map((id, i) => ({ a: ref(id), b: suggestionRef, ...agreementFigures(person[i]!.mine, person[i]!.suggested) }))
+  const classifiers: ClassifierFigures[] = ids.map((id, i) => {
+    const p = person[i]!
     return {
       id,
       name: people.get(id)!,
-      calls: mine.length,
-      typeOffset: safe(judged.length, () =>
-        meanOffset(
-          judged.map((c) => c.typeCode),
-          ref.map((r) => r.typeCode),
-        ),
-      ),
-      classOffset: safe(judged.length, () =>
-        meanOffset(
-          judged.map((c) => c.classCode),
-          ref.map((r) => r.classCode),
-        ),
-      ),
-      medianSecondsPerCall: safe(seconds.length, () => median(seconds)),
+      calls: p.calls,
+      typeOffset: safe(p.judged, () => p.typeOffset / p.judged),
+      classOffset: safe(p.judged, () => p.classOffset / p.judged),
+      medianSecondsPerCall: safe(p.seconds.length, () => median(p.seconds)),
     }
   })
-
-  const callConsensusPairs = calls.filter((c) => consensus.has(c.spectrumId)).map((c) => ({ a: c, b: consensus.get(c.spectrumId)!, spectrumId: c.spectrumId }))
-  const suggestionConsensusPairs = [...consensus.entries()].filter(([id]) => info.get(id)?.suggestion).map(([id, c]) => ({ a: info.get(id)!.suggestion!, b: c, spectrumId: id }))
-
-  const groupFigures = (keyOf: (c: AuditCall) => string | null): GroupFigures[] => {
-    const groups = new Map<string, { calls: number; vsConsensus: AgreementTally; vsSuggestion: AgreementTally }>()
-    for (const c of calls) {
-      const k = keyOf(c)
-      if (k === null) continue
-      let group = groups.get(k)
-      if (!group) groups.set(k, (group = { calls: 0, vsConsensus: new AgreementTally(), vsSuggestion: new AgreementTally() }))
-      group.calls++
-      const agreed = consensus.get(c.spectrumId)
-      if (agreed) group.vsConsensus.add(c, agreed)
-      const suggested = info.get(c.spectrumId)?.suggestion
-      if (suggested) group.vsSuggestion.add(c, suggested)
-    }
-    return [...groups.entries()]
+  const groupFigures = (groups: ReturnType<typeof group>): GroupFigures[] =>
+    [...groups.entries()]
       .sort((x, y) => (x[0] < y[0] ? -1 : x[0] > y[0] ? 1 : 0))
       .map(([key, g]) => ({ key, calls: g.calls, vsConsensus: g.vsConsensus.figures(), vsSuggestion: g.vsSuggestion.figures() }))
-  }
-
-  const sameAsSuggestion = (c: AuditCall) => {
-    const s = info.get(c.spectrumId)?.suggestion
-    return s ? Math.abs(s.typeCode - c.typeCode) < 1e-9 && Math.abs(s.classCode - c.classCode) < 1e-9 : null
-  }
-  const share = (list: AuditCall[], test: (c: AuditCall) => boolean | null) => {
-    const judged = list.map(test).filter((v): v is boolean => v !== null)
-    return safe(judged.length, () => judged.filter(Boolean).length / judged.length)
-  }
-  const exactVsConsensus = (c: AuditCall) => {
-    const k = consensus.get(c.spectrumId)
-    return k ? Math.abs(k.typeCode - c.typeCode) < 1e-9 : null
-  }
-  const shown = calls.filter((c) => c.suggestionShown)
-  const blind = calls.filter((c) => !c.suggestionShown)
+  const share = (yes: number, judged: number) => safe(judged, () => yes / judged)
 
   return {
     spectra: bySpectrum.size,
@@ -382,19 +418,19 @@ export function auditFigures(calls: readonly AuditCall[], spectra: readonly Audi
     vsSuggestion,
     fleiss: fleissFigures(bySpectrum),
     confusion: {
-      callsVsConsensus: typeAndClassMatrices(callConsensusPairs, 'call', 'consensus'),
-      suggestionVsConsensus: typeAndClassMatrices(suggestionConsensusPairs, 'suggestion', 'consensus'),
+      callsVsConsensus: callsVsConsensus.matrices('call', 'consensus'),
+      suggestionVsConsensus: suggestionVsConsensus.matrices('suggestion', 'consensus'),
     },
-    byWeek: groupFigures((c) => weekOf(c.at)),
-    byLibraryVersion: groupFigures((c) => info.get(c.spectrumId)?.suggestion?.libraryVersion ?? null),
+    byWeek: groupFigures(byWeek),
+    byLibraryVersion: groupFigures(byVersion),
     blind: {
       shown: {
-        calls: shown.length,
-        acceptedSuggestion: share(shown, (c) => c.acceptedSuggestion),
-        agreeWithSuggestion: share(shown, sameAsSuggestion),
-        exactTypeVsConsensus: share(shown, exactVsConsensus),
+        calls: shown.calls,
+        acceptedSuggestion: share(shown.accepted, shown.calls),
+        agreeWithSuggestion: share(shown.same, shown.sameJudged),
+        exactTypeVsConsensus: share(shown.exact, shown.exactJudged),
       },
-      blind: { calls: blind.length, agreeWithSuggestion: share(blind, sameAsSuggestion), exactTypeVsConsensus: share(blind, exactVsConsensus) },
+      blind: { calls: blind.calls, agreeWithSuggestion: share(blind.same, blind.sameJudged), exactTypeVsConsensus: share(blind.exact, blind.exactJudged) },
     },
     notes: [
       `Figures with fewer than ${SMALL_SAMPLE} items are marked smallSample.`,
@@ -656,28 +692,9 @@ async function accuracyItems(campaignId: number, range: { from?: Date | undefine
 /** The audit query as parsed: a campaign id and a half-open range of instants (shared/api/audit.ts). */
 export type { AuditQuery }
 
-interface CallRow {
-  id: number
-  spectrum_id: number
-  user_id: number
-  type_code: number
-  class_code: number
-  created_us: number | bigint
-  seconds_spent: number | null
-  suggestion_shown: number
-  accepted_suggestion: number
-  suggestion_id: number | null
-  /** The suggestion the call names, when it belongs to the same spectrum. */
-  shown_type_code: number | null
-  shown_class_code: number | null
-  shown_version_id: number | null
-}
-
-interface SuggestionRef {
-  type_code: number
-  class_code: number
-  library_version_id: number
-}
+/** The columns of a call row as read below, by position. */
+const CALL = { id: 0, spectrum: 1, user: 2, type: 3, cls: 4, createdUs: 5, seconds: 6, shown: 7, accepted: 8, suggestion: 9, shownType: 10, shownClass: 11, shownVersion: 12 } as const
+type Row = Array<number | null>
 
 /**
  * The rows the audit needs, read by campaign through indexes (no per-spectrum lookups and no
@@ -709,58 +726,33 @@ export async function loadAuditInputs(query: AuditQuery, decisions?: Promise<Dec
        LEFT JOIN suggestions sg FORCE INDEX (suggestions_audit) ON sg.spectrum_id = rc.spectrum_id AND sg.id = rc.suggestion_id
        WHERE sp.campaign_id = :campaign ${query.from ? 'AND rc.created_at >= :from' : ''} ${query.to ? 'AND rc.created_at < :to' : ''}`,
       r,
-    ).then((list) =>
-      byId(list).map(
-        ([
-          id,
-          spectrum_id,
-          user_id,
-          type_code,
-          class_code,
-          created_us,
-          seconds_spent,
-          suggestion_shown,
-          accepted_suggestion,
-          suggestion_id,
-          shown_type_code,
-          shown_class_code,
-          shown_version_id,
-        ]): CallRow => ({
-          id: id!,
-          spectrum_id: spectrum_id!,
-          user_id: user_id!,
-          type_code: type_code!,
-          class_code: class_code!,
-          created_us: created_us!,
-          seconds_spent: seconds_spent ?? null,
-          suggestion_shown: suggestion_shown!,
-          accepted_suggestion: accepted_suggestion!,
-          suggestion_id: suggestion_id ?? null,
-          shown_type_code: shown_type_code ?? null,
-          shown_class_code: shown_class_code ?? null,
-          shown_version_id: shown_version_id ?? null,
-        }),
-      ),
-    ),
+    ).then(byId),
     User.findAll({ attributes: ['id', 'name'], raw: true }),
     LibraryVersion.findAll({ attributes: ['id', 'name'], raw: true }),
     decisions ?? loadDecisions(query.campaignId),
   ])
-  // The standing call of each person on each spectrum: the latest row.
-  const standing = new Map<number, Map<number, CallRow>>()
+  // The standing call of each person on each spectrum: the latest row. Rows stay as read (arrays of
+  // numbers): a hundred thousand calls copied into objects twice over kept the collector busy.
+  const standing = new Map<number, Map<number, Row>>()
   for (const row of all) {
-    let people = standing.get(row.spectrum_id)
-    if (!people) standing.set(row.spectrum_id, (people = new Map()))
-    people.set(row.user_id, row)
+    const spectrumId = row[CALL.spectrum]!
+    let people = standing.get(spectrumId)
+    if (!people) standing.set(spectrumId, (people = new Map()))
+    people.set(row[CALL.user]!, row)
   }
-  const calls = [...standing.values()].flatMap((people) => [...people.values()])
   // The suggestion the calls were made against (the first standing call that names one), else the current one.
-  const shownOf = new Map<number, CallRow>()
-  for (const c of calls) if (c.suggestion_id !== null && !shownOf.has(c.spectrum_id)) shownOf.set(c.spectrum_id, c)
-  const called = [...new Set(calls.map((c) => c.spectrum_id))]
-  const withoutShown = called.filter((id) => shownOf.get(id)?.shown_type_code == null)
-  const current = new Map<number, SuggestionRef>()
-  if (withoutShown.length > 0) {
+  const shownOf = new Map<number, Row>()
+  let withoutShown = false
+  for (const [spectrumId, people] of standing) {
+    for (const row of people.values())
+      if (row[CALL.suggestion] !== null) {
+        shownOf.set(spectrumId, row)
+        break
+      }
+    if (shownOf.get(spectrumId)?.[CALL.shownType] == null) withoutShown = true
+  }
+  const current = new Map<number, Row>()
+  if (withoutShown) {
     const currentRows = byId(
       await numericRows(
         ['sg.id', 'sg.spectrum_id', 'sg.type_code', 'sg.class_code', 'sg.library_version_id'],
@@ -768,33 +760,40 @@ export async function loadAuditInputs(query: AuditQuery, decisions?: Promise<Dec
         r,
       ),
     )
-    for (const [, spectrumId, type_code, class_code, library_version_id] of currentRows)
-      current.set(spectrumId!, { type_code: type_code!, class_code: class_code!, library_version_id: library_version_id! })
+    for (const row of currentRows) current.set(row[1]!, row)
   }
   const names = new Map(users.map((u) => [u.id, u.name]))
   const versionName = new Map(versions.map((v) => [v.id, v.name]))
 
-  const spectra: AuditSpectrum[] = called.map((id) => {
+  const spectra: AuditSpectrum[] = []
+  const auditCalls: AuditCall[] = []
+  for (const [id, people] of standing) {
     const shown = shownOf.get(id)
-    const s: SuggestionRef | undefined =
-      shown && shown.shown_type_code != null ? { type_code: shown.shown_type_code, class_code: shown.shown_class_code!, library_version_id: shown.shown_version_id! } : current.get(id)
-    return {
+    const named = shown && shown[CALL.shownType] != null
+    const cur = named ? null : current.get(id)
+    const typeCode = named ? shown[CALL.shownType] : cur?.[2]
+    const classCode = named ? shown[CALL.shownClass] : cur?.[3]
+    const versionId = named ? shown[CALL.shownVersion] : cur?.[4]
+    spectra.push({
       spectrumId: id,
-      suggestion: s ? { typeCode: Number(s.type_code), classCode: Number(s.class_code), libraryVersion: versionName.get(Number(s.library_version_id)) ?? `#${s.library_version_id}` } : null,
+      suggestion: typeCode != null ? { typeCode: Number(typeCode), classCode: Number(classCode), libraryVersion: versionName.get(Number(versionId)) ?? `#${versionId}` } : null,
       decision: latestDecision.get(id) ?? null,
+    })
+    for (const c of people.values()) {
+      const userId = c[CALL.user]!
+      auditCalls.push({
+        spectrumId: id,
+        classifierId: userId,
+        classifierName: names.get(userId) ?? `#${userId}`,
+        typeCode: Number(c[CALL.type]),
+        classCode: Number(c[CALL.cls]),
+        at: dateOf(c[CALL.createdUs]!),
+        secondsSpent: c[CALL.seconds] === null ? null : Number(c[CALL.seconds]),
+        suggestionShown: Boolean(Number(c[CALL.shown])),
+        acceptedSuggestion: Boolean(Number(c[CALL.accepted])),
+      })
     }
-  })
-  const auditCalls: AuditCall[] = calls.map((c) => ({
-    spectrumId: c.spectrum_id,
-    classifierId: c.user_id,
-    classifierName: names.get(c.user_id) ?? `#${c.user_id}`,
-    typeCode: Number(c.type_code),
-    classCode: Number(c.class_code),
-    at: dateOf(c.created_us),
-    secondsSpent: c.seconds_spent === null ? null : Number(c.seconds_spent),
-    suggestionShown: Boolean(Number(c.suggestion_shown)),
-    acceptedSuggestion: Boolean(Number(c.accepted_suggestion)),
-  }))
+  }
   return { calls: auditCalls, spectra }
 }
 
@@ -809,12 +808,13 @@ export interface AuditCampaignRef {
 export async function auditReportJson(query: AuditQuery, campaign: AuditCampaignRef): Promise<string> {
   // Read once for both parts, at the same time as the rest.
   const decisions = loadDecisions(query.campaignId)
-  const [{ calls, spectra }, accuracy] = await Promise.all([loadAuditInputs(query, decisions), accuracyItems(campaign.id, query, decisions)])
+  // The figures are worked out while the database still reads the suggestions to score.
+  const [figures, accuracy] = await Promise.all([loadAuditInputs(query, decisions).then(({ calls, spectra }) => auditFigures(calls, spectra)), accuracyItems(campaign.id, query, decisions)])
   const report: AuditReport = {
     campaign: { id: campaign.id, code: campaign.code, name: campaign.name },
     from: query.from?.toISOString() ?? null,
     to: query.to?.toISOString() ?? null,
-    ...auditFigures(calls, spectra),
+    ...figures,
     suggestionAccuracy: suggestionAccuracy(accuracy),
   }
   return JSON.stringify({ audit: report })

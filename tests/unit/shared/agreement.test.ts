@@ -1,7 +1,18 @@
 import { readFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
 import { describe, expect, it } from 'vitest'
-import { agreementFraction, classAgreementFraction, classesAgree, cohenKappa, confusionMatrix, fleissKappa, meanOffset, reconcileClasses, weightedKappa } from '../../../shared/agreement'
+import {
+  agreementFraction,
+  classAgreementFraction,
+  classesAgree,
+  cohenKappa,
+  confusionMatrix,
+  fleissKappa,
+  meanOffset,
+  reconcileClasses,
+  weightedKappa,
+  weightedKappaOfCounts,
+} from '../../../shared/agreement'
 
 // Textbook worked example (from memory, a common textbook example, as in the project's reference
 // sheet): 50 items, 20 yes–yes, 5 yes–no, 10 no–yes, 15 no–no → p_o = 0.70, p_e = 0.50, κ = 0.40.
@@ -83,6 +94,13 @@ describe('weightedKappa', () => {
   it(`matches scikit-learn ${sklearn.sklearn_version} with quadratic weights to 1e-12`, () => {
     for (const c of sklearn.cases) {
       expect(Math.abs(weightedKappa(c.a, c.b, 'quadratic', { categories: c.labels }) - c.quadratic), c.name).toBeLessThan(1e-12)
+    }
+  })
+  it('gives the same scikit-learn values from a confusion matrix counted once for both weightings', () => {
+    for (const c of sklearn.cases) {
+      const { counts } = confusionMatrix(c.a, c.b, { categories: c.labels })
+      expect(Math.abs(weightedKappaOfCounts(counts, 'linear') - c.linear), c.name).toBeLessThan(1e-12)
+      expect(Math.abs(weightedKappaOfCounts(counts, 'quadratic') - c.quadratic), c.name).toBeLessThan(1e-12)
     }
   })
   it('weighs near misses less than far ones', () => {
