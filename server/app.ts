@@ -14,6 +14,7 @@ import { csrfProtection } from './middleware/csrf'
 import { apiNotFound, errorHandler } from './middleware/error'
 import { sessionLifetime } from './middleware/session-lifetime'
 import { HttpError } from './lib/http-error'
+import { selectRows } from './db/execute'
 import { User } from './models'
 import { apiRoutes } from './routes'
 import { verifyCredentials } from './services/users.service'
@@ -79,6 +80,16 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): Express {
   // The session row's expiry moves with the last-seen time (sessionLifetime writes it at most once a
   // minute); touching the row on every other request would be a write per GET.
   store.touch = (_sid: string, _session: unknown, callback?: (err?: unknown) => void) => callback?.()
+  // Every signed-in request reads its session row: one prepared statement, where the store's findOne
+  // builds a model instance each time.
+  store.get = (sid: string, callback: (err: unknown, session?: session.SessionData | null) => void) => {
+    selectRows<{ data: string }>(ctx.sequelize, 'SELECT data FROM sessions WHERE sid = ?', [sid])
+      .then(([row]) => (row ? (JSON.parse(row.data) as session.SessionData) : null))
+      .then(
+        (found) => callback(null, found),
+        (err: unknown) => callback(err),
+      )
+  }
 
   passport.use(
     new LocalStrategy({ usernameField: 'email', passwordField: 'password' }, (email, password, done) => {

@@ -1,4 +1,4 @@
-import { UniqueConstraintError, type Model, type ModelStatic, type Transaction } from 'sequelize'
+import { UniqueConstraintError, type Model, type ModelStatic, type Sequelize, type Transaction } from 'sequelize'
 import { sqlTime } from '../lib/sql-time'
 
 /**
@@ -15,6 +15,24 @@ export async function executeInTransaction(transaction: Transaction, sql: string
 /** Runs one SELECT on the transaction's own connection through the binary protocol; its rows as plain objects. */
 export async function selectInTransaction<T>(transaction: Transaction, sql: string, values: unknown[]): Promise<T[]> {
   return Array.from((await connectionOf(transaction).execute(sql, values)) as T[])
+}
+
+interface PooledConnection {
+  execute(sql: string, values: unknown[]): Promise<unknown>
+}
+
+/**
+ * Runs one SELECT on a pooled connection through the binary protocol; its rows as plain objects,
+ * with no query building and no model instances (for statements run on every request).
+ */
+export async function selectRows<T>(sequelize: Sequelize, sql: string, values: unknown[]): Promise<T[]> {
+  const manager = sequelize.connectionManager as unknown as { getConnection(options: object): Promise<PooledConnection>; releaseConnection(connection: PooledConnection): void }
+  const connection = await manager.getConnection({ type: 'read' })
+  try {
+    return Array.from((await connection.execute(sql, values)) as T[])
+  } finally {
+    manager.releaseConnection(connection)
+  }
 }
 
 /** The driver connection a Sequelize transaction holds. */
