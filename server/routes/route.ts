@@ -11,9 +11,15 @@ export type Access = 'public' | 'signed-in' | readonly Role[]
 /** The request without its unparsed parts: handlers read body, query and params from their typed input. */
 export type PlainRequest = Omit<Request, 'body' | 'query' | 'params'>
 
-/** A reply already written as JSON (e.g. by a worker thread), sent as it is. */
+/**
+ * A reply already written as JSON (e.g. by a worker thread), sent as it is. A large reply sent
+ * many times comes as bytes with its entity tag, so neither is worked out again per request.
+ */
 export class JsonText {
-  constructor(readonly text: string) {}
+  constructor(
+    readonly text: string | Buffer,
+    readonly etag?: string,
+  ) {}
 }
 
 export interface RouteImpl<E extends Endpoint, A extends Access> {
@@ -64,8 +70,11 @@ export function route<E extends Endpoint, const A extends Access>(endpoint: E, i
     if (res.headersSent) return
     if (endpoint.status && res.statusCode === 200) res.status(endpoint.status)
     if (reply === undefined) res.end()
-    else if (reply instanceof JsonText) res.type('application/json').send(reply.text)
-    else res.json(reply)
+    else if (reply instanceof JsonText) {
+      // With the tag set, Express answers 304 to a matching If-None-Match and hashes nothing.
+      if (reply.etag) res.set('ETag', reply.etag)
+      res.type('application/json').send(reply.text)
+    } else res.json(reply)
   }
   return { method: endpoint.method, path: endpoint.path, access: impl.access, endpoint, before: impl.before ?? [], handler }
 }

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto'
 import { Op, QueryTypes } from 'sequelize'
 import { agreementFraction, classAgreementFraction, classesAgree, codesWithin, cohenKappa, fleissKappa, reconcileClasses, weightedKappaOfCounts, confusionMatrix } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
@@ -848,7 +849,18 @@ async function dataStamp(): Promise<string> {
 }
 
 const AUDIT_CACHE_SIZE = 32
-const auditCache = new Map<string, { stamp: string; json: Promise<string> }>()
+interface CachedAudit {
+  stamp: string
+  json: Promise<string>
+  reply?: Promise<AuditReply>
+}
+const auditCache = new Map<string, CachedAudit>()
+
+/** The audit as bytes to send and their entity tag (a strong one: the SHA-1 of the bytes). */
+export interface AuditReply {
+  body: Buffer
+  etag: string
+}
 
 /**
  * The audit of one campaign over a date range, as the JSON the API sends. Reports are kept per
@@ -857,21 +869,41 @@ const auditCache = new Map<string, { stamp: string; json: Promise<string> }>()
  * report is built off the request thread when a runner is set (the server sets a worker thread).
  */
 export async function getAuditJson(query: AuditQuery): Promise<string> {
+  return (await cachedAudit(query)).json
+}
+
+/**
+ * getAuditJson as the bytes the API sends, with their entity tag: both are worked out once per
+ * cached report (at 100 000 spectra the report is 1.5 MB, and encoding and hashing it for every
+ * request cost more than the rest of answering from the cache).
+ */
+export async function getAuditReply(query: AuditQuery): Promise<AuditReply> {
+  const entry = await cachedAudit(query)
+  entry.reply ??= entry.json.then((text) => {
+    const body = Buffer.from(text)
+    return { body, etag: `"${createHash('sha1').update(body).digest('base64url')}"` }
+  })
+  return entry.reply
+}
+
+/** The cache entry of the report asked for, made (and the report started) when there is none for the current data. */
+async function cachedAudit(query: AuditQuery): Promise<CachedAudit> {
   const campaign = await Campaign.findByPk(query.campaignId, { attributes: ['id', 'code', 'name'] })
   if (!campaign) throw notFound('The campaign')
   const ref = { id: campaign.id, code: campaign.code, name: campaign.name }
   const key = JSON.stringify([ref, query.from?.toISOString() ?? null, query.to?.toISOString() ?? null])
   const stamp = await dataStamp()
   const cached = auditCache.get(key)
-  if (cached && cached.stamp === stamp) return cached.json
+  if (cached && cached.stamp === stamp) return cached
   const json = auditRunner ? auditRunner(query, ref) : auditReportJson(query, ref)
+  const entry: CachedAudit = { stamp, json }
   auditCache.delete(key)
-  auditCache.set(key, { stamp, json })
+  auditCache.set(key, entry)
   if (auditCache.size > AUDIT_CACHE_SIZE) auditCache.delete(auditCache.keys().next().value!)
   json.catch(() => {
-    if (auditCache.get(key)?.json === json) auditCache.delete(key)
+    if (auditCache.get(key) === entry) auditCache.delete(key)
   })
-  return json
+  return entry
 }
 
 /** The audit of one campaign over a date range, from the stored calls, suggestions and decisions. */

@@ -452,6 +452,23 @@ describe('GET /api/audit', () => {
     }
   })
 
+  it('tags the report, answers 304 while it stands (RFC 9110 conditional GET), and a new tag once a name in it changes', async () => {
+    const url = `/api/audit?campaign=${campaign.id}`
+    const first = await lead.agent.get(url).expect(200)
+    const tag = first.headers.etag as string
+    expect(tag).toMatch(/^"[\w-]+"$/)
+    const again = await lead.agent.get(url).set('If-None-Match', tag).expect(304)
+    expect(again.text).toBe('')
+    try {
+      await people[0]!.update({ name: 'Audit A. R.' })
+      const renamed = await lead.agent.get(url).set('If-None-Match', tag).expect(200)
+      expect(renamed.headers.etag).not.toBe(tag)
+      expect(JSON.stringify(renamed.body)).toContain('Audit A. R.')
+    } finally {
+      await people[0]!.update({ name: 'Audit A' })
+    }
+  })
+
   it('refuses classifiers, a missing campaign and a range that ends before it starts', async () => {
     await classifier.agent.get(`/api/audit?campaign=${campaign.id}`).expect(403)
     const missing = await lead.agent.get('/api/audit').expect(422)
