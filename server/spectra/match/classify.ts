@@ -265,22 +265,38 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   const voters = order.slice(0, Math.min(neighbours, order.length))
   const least = Math.max(chi2[best]!, 1e-12 * used[best]!)
   const classCount = classCounts(library, level)
-  const raw = voters.map((r) => Math.exp(-(chi2[r]! / least - 1) / temperature))
-  const balanced = voters.map((r, q) => raw[q]! / (classCount.get(std(r).classCode) ?? 1) ** classBalance)
-  const norm = (w: number[]) => {
-    const t = w.reduce((a, b) => a + b, 0)
-    return w.map((x) => x / t)
-  }
   const typeVoters = level.fwhm >= coarseFwhm ? Math.min(coarseTypeNeighbours, voters.length) : voters.length
-  const typeWeights = norm(raw.map((w, q) => (q < typeVoters ? w : 0)))
-  const classWeights = norm(balanced)
-  const types = voters.map((r) => std(r).typeCode)
-  const classes = voters.map((r) => std(r).classCode)
+  // Typed arrays: as plain arrays their elements kind changed with the values (whole or fractional
+  // type codes, a weight of exactly 1), and each change threw the optimised code away.
+  const m = voters.length
+  const typeWeights = new Float64Array(m)
+  const classWeights = new Float64Array(m)
+  const types = new Float64Array(m)
+  const classes = new Float64Array(m)
+  for (let q = 0; q < m; q++) {
+    const st = std(voters[q]!)
+    const raw = Math.exp(-(chi2[voters[q]!]! / least - 1) / temperature)
+    typeWeights[q] = q < typeVoters ? raw : 0
+    classWeights[q] = raw / (classCount.get(st.classCode) ?? 1) ** classBalance
+    types[q] = st.typeCode
+    classes[q] = st.classCode
+  }
+  const normalise = (w: Float64Array) => {
+    let t = 0
+    for (let q = 0; q < w.length; q++) t += w[q]!
+    for (let q = 0; q < w.length; q++) w[q] = w[q]! / t
+  }
+  normalise(typeWeights)
+  normalise(classWeights)
 
   const voted = windowMode(types, typeWeights, 1, 0.5, Math.max(0, Math.floor(Math.min(...types)) - 1), Math.min(69.5, Math.ceil(Math.max(...types)) + 1))
   const typeCode = interpolateSparseType(library, level, s, from, to, voters, chi2, voted)
   const classCode = windowMode(classes, classWeights, 0.5, 0.5, 1, 6)
-  const spread = (values: number[], w: number[], centre: number) => Math.sqrt(values.reduce((a, v, q) => a + w[q]! * (v - centre) ** 2, 0))
+  const spread = (values: Float64Array, w: Float64Array, centre: number) => {
+    let a = 0
+    for (let q = 0; q < values.length; q++) a += w[q]! * (values[q]! - centre) ** 2
+    return Math.sqrt(a)
+  }
   const uncertainty = { subtypes: round(Math.max(0.5, spread(types, typeWeights, typeCode)), 2), classes: round(Math.max(0.25, spread(classes, classWeights, classCode)), 2) }
 
   // Shares of the vote per class and per (type, class) point.

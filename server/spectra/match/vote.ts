@@ -38,7 +38,7 @@ export function describeClassChoice(classCode: number, bestClass: number, bestTy
 }
 
 /** Vote-weighted mean and spread of the voters' published parameters (Teff averaged in log). */
-export function parameterEstimate(voters: readonly { teff: number | null; logg: number | null; feh: number | null }[], w: readonly number[]): ParameterEstimate {
+export function parameterEstimate(voters: readonly { teff: number | null; logg: number | null; feh: number | null }[], w: ArrayLike<number>): ParameterEstimate {
   const one = (get: (v: (typeof voters)[number]) => number | null, log: boolean): { e: Estimate; n: number } | null => {
     let sw = 0
     let sx = 0
