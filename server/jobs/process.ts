@@ -74,7 +74,9 @@ export async function claimJobs(sequelize: Sequelize, count: number, leaseMs: nu
 /** Renews the leases of jobs still being worked on. */
 export async function renewLeases(ids: number[], leaseMs: number): Promise<void> {
   if (ids.length === 0) return
-  await ProcessingJob.update({ leaseExpiresAt: new Date(Date.now() + leaseMs) }, { where: { id: { [Op.in]: ids }, status: 'running' } })
+  // It can deadlock with a job's own store transaction (both write job rows): tried again at once,
+  // rather than skipping this tick's claims.
+  await withRetry(() => ProcessingJob.update({ leaseExpiresAt: new Date(Date.now() + leaseMs) }, { where: { id: { [Op.in]: ids }, status: 'running' } }), { tries: 3, baseMs: 20 })
 }
 
 /** Returns running jobs whose lease lapsed (their runner died or lost the database) to the queue. */
