@@ -17,8 +17,21 @@ export async function selectInTransaction<T>(transaction: Transaction, sql: stri
   return Array.from((await connectionOf(transaction).execute(sql, values)) as T[])
 }
 
-interface PooledConnection {
+/** The mariadb driver's connection, as far as these helpers use it. */
+export interface DriverConnection {
   execute(sql: string, values: unknown[]): Promise<unknown>
+  query(options: object, values: object): Promise<unknown>
+}
+
+/** Runs `work` on a driver connection taken from Sequelize's pool, and gives it back. */
+export async function onPooledConnection<T>(sequelize: Sequelize, work: (connection: DriverConnection) => Promise<T>): Promise<T> {
+  const manager = sequelize.connectionManager as unknown as { getConnection(options: object): Promise<DriverConnection>; releaseConnection(connection: DriverConnection): void }
+  const connection = await manager.getConnection({ type: 'read' })
+  try {
+    return await work(connection)
+  } finally {
+    manager.releaseConnection(connection)
+  }
 }
 
 /**
@@ -26,17 +39,11 @@ interface PooledConnection {
  * with no query building and no model instances (for statements run on every request).
  */
 export async function selectRows<T>(sequelize: Sequelize, sql: string, values: unknown[]): Promise<T[]> {
-  const manager = sequelize.connectionManager as unknown as { getConnection(options: object): Promise<PooledConnection>; releaseConnection(connection: PooledConnection): void }
-  const connection = await manager.getConnection({ type: 'read' })
-  try {
-    return Array.from((await connection.execute(sql, values)) as T[])
-  } finally {
-    manager.releaseConnection(connection)
-  }
+  return onPooledConnection(sequelize, async (connection) => Array.from((await connection.execute(sql, values)) as T[]))
 }
 
 /** The driver connection a Sequelize transaction holds. */
-const connectionOf = (transaction: Transaction) => (transaction as unknown as { connection: { execute(sql: string, values: unknown[]): Promise<unknown> } }).connection
+const connectionOf = (transaction: Transaction) => (transaction as unknown as { connection: DriverConnection }).connection
 
 interface Column {
   attribute: string

@@ -3,6 +3,7 @@ import { Op, QueryTypes } from 'sequelize'
 import { agreementFraction, classAgreementFraction, classesAgree, codesWithin, cohenKappa, fleissKappa, reconcileClasses, weightedKappaOfCounts, confusionMatrix } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
+import { onPooledConnection } from '../db/execute'
 import { sqlTime } from '../lib/sql-time'
 import { Campaign, Instrument, LibraryVersion, ReviewCall, User } from '../models'
 import type {
@@ -195,13 +196,6 @@ class MatrixTally {
     const cells = at.map((r) => at.map((c): MatrixCell => ({ count: this.ids[r * k + c]!.length, spectrumIds: distinctSorted(this.ids[r * k + c]!) })))
     return { rowsAre, columnsAre, labels: at.map((i) => this.order[i]!), cells, n: this.n }
   }
-}
-
-/** A confusion matrix of labelled pairs, keeping the spectrum ids behind each cell. */
-export function labelledMatrix(pairs: Array<{ row: string; column: string; spectrumId: number }>, order: readonly string[], rowsAre: string, columnsAre: string): ConfusionMatrix {
-  const tally = new MatrixTally(order)
-  for (const p of pairs) tally.add(p.row, p.column, p.spectrumId)
-  return tally.matrix(rowsAre, columnsAre)
 }
 
 const LETTER_ORDER = MK_LETTERS.map((l) => l.letter)
@@ -547,14 +541,8 @@ const dateOf = (us: number | bigint) => new Date(Number(us) / 1000)
  * times come as microseconds and go in as UTC text, so no date handling is involved.
  */
 async function rows<T>(sql: string, values: Record<string, Date | number | null>): Promise<T[]> {
-  const manager = ReviewCall.sequelize!.connectionManager
-  const connection = (await manager.getConnection({ type: 'read' })) as unknown as { query(options: object, values: object): Promise<T[]> }
-  try {
-    const plain = Object.fromEntries(Object.entries(values).map(([k, v]) => [k, v instanceof Date ? sqlTime(v) : v]))
-    return await connection.query({ sql, namedPlaceholders: true, typeCast: undefined }, plain)
-  } finally {
-    manager.releaseConnection(connection as never)
-  }
+  const plain = Object.fromEntries(Object.entries(values).map(([k, v]) => [k, v instanceof Date ? sqlTime(v) : v]))
+  return onPooledConnection(ReviewCall.sequelize!, async (connection) => (await connection.query({ sql, namedPlaceholders: true, typeCast: undefined }, plain)) as T[])
 }
 
 let packetLimit: Promise<number> | null = null
