@@ -47,6 +47,8 @@ export function themeOverrides(mode: ThemeMode): GlobalThemeOverrides {
     DataTable: { thFontWeight: '600', tdPaddingSmall: '7px 10px', thPaddingSmall: '7px 10px' },
     Card: { titleFontWeight: '600', borderColor: s.border },
     Button: { fontWeight: '500' },
+    // Help under a field a little smaller than the field, and a little room before the next label.
+    Form: { feedbackFontSizeMedium: '12.5px', feedbackFontSizeSmall: '12px', feedbackHeightMedium: '28px' },
   }
 }
 
