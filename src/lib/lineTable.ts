@@ -3,7 +3,8 @@ import { formatWithUncertainty } from '@shared/rounding'
 /** How the line tables read the measurements: one place for the words and the checks. */
 
 /** The sign convention printed with every equivalent-width column. */
-export const EW_CONVENTION = 'EW > 0 is absorption (the line dips below the continuum, depth > 0); EW < 0 is emission.'
+export const EW_CONVENTION =
+  'EW > 0 is absorption (the line dips below the continuum, depth > 0); EW < 0 means the window lies above its side bands: emission, or in G–M stars side bands pulled down by metal lines and bands.'
 
 /** What a masked pixel is, printed under the line tables. */
 export const MASKED_NOTE =
