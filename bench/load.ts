@@ -14,7 +14,7 @@ import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { availableParallelism, loadavg, tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { QueryTypes, type Sequelize } from 'sequelize'
-import { ensureDatabase, freePort, startMariaDB, startRedis } from '../scripts/lib/setup.mjs'
+import { ensureDatabase, ensureDebianPackages, freePort, startMariaDB, startRedis } from '../scripts/lib/setup.mjs'
 import { loadConfig } from '../server/config'
 import { createSequelize } from '../server/db'
 import { migrateUp } from '../server/db/migrate'
@@ -38,6 +38,7 @@ const say = (m: string) => console.log(`[bench:load] ${m}`)
 // Services
 // ---------------------------------------------------------------------------------------------
 
+ensureDebianPackages({ mariadbd: 'mariadb-server', mariadb: 'mariadb-client', 'redis-server': 'redis-server' })
 const loadAtStart = loadavg()[0]!
 const dir = mkdtempSync(join(tmpdir(), 'lineweight-bench-'))
 const dbPort = Number(process.env.BENCH_DB_PORT ?? (await freePort()))
