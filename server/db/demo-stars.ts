@@ -5,6 +5,7 @@
 import { DEFAULT_OBSERVED_DIR } from '../spectra/match/load'
 import { loadObservedLibrary, type ObservedStandard } from '../../templates/observed/library'
 import { parseMK } from '../../shared/mk'
+import { solveLinearInPlace } from '../spectra/linear'
 
 /** The source whose standards carry the parameters the interpolation runs over. */
 const SOURCE = 'miles'
@@ -72,25 +73,6 @@ export function typicalParameters(mkType: string): { teff: number; logg: number 
   throw new Error(`too few standards near ${mkType}`)
 }
 
-/** Solves the symmetric system a·x = b (Gauss–Jordan with partial pivoting); a is n×n, row-major. */
-function solve(a: number[][], b: number[]): number[] {
-  const n = b.length
-  const m = a.map((row, i) => [...row, b[i]!])
-  for (let c = 0; c < n; c++) {
-    let p = c
-    for (let r = c + 1; r < n; r++) if (Math.abs(m[r]![c]!) > Math.abs(m[p]![c]!)) p = r
-    ;[m[c], m[p]] = [m[p]!, m[c]!]
-    const d = m[c]![c]!
-    for (let j = c; j <= n; j++) m[c]![j]! /= d
-    for (let r = 0; r < n; r++) {
-      if (r === c) continue
-      const f = m[r]![c]!
-      for (let j = c; j <= n; j++) m[r]![j]! -= f * m[c]![j]!
-    }
-  }
-  return m.map((row) => row[n]!)
-}
-
 /**
  * ln F at (Teff, log g, [Fe/H]) by locally weighted regression over the source's standards:
  * Gaussian weights in (log Teff, log g, [Fe/H]), a model linear in each parameter and quadratic in
@@ -106,15 +88,21 @@ function blendAt(teff: number, logg: number, feh: number, widen: number): { weig
   })
   const kernel = rows.map((r) => Math.exp(-0.5 * ((r[1]! / (widen * WIDTHS[0])) ** 2 + (r[2]! / (widen * WIDTHS[1])) ** 2 + (r[3]! / (widen * WIDTHS[2])) ** 2)))
   const q = rows[0]!.length
-  const normal = Array.from({ length: q }, () => new Array<number>(q).fill(0))
+  const normal = new Float64Array(q * q)
   rows.forEach((r, k) => {
-    for (let a = 0; a < q; a++) for (let b = 0; b < q; b++) normal[a]![b]! += kernel[k]! * r[a]! * r[b]!
+    for (let a = 0; a < q; a++) for (let b = 0; b < q; b++) normal[a * q + b] = normal[a * q + b]! + kernel[k]! * r[a]! * r[b]!
   })
   // The intercept's row of (XᵀWX)⁻¹ gives each standard's weight in the prediction at the point itself.
-  const unit = solve(
-    normal,
-    Array.from({ length: q }, (_, i) => (i === 0 ? 1 : 0)),
+  const unit = new Float64Array(q)
+  if (
+    !solveLinearInPlace(
+      normal,
+      Float64Array.from({ length: q }, (_, i) => (i === 0 ? 1 : 0)),
+      unit,
+      q,
+    )
   )
+    throw new Error('the standards do not constrain the blend')
   const weights = Float64Array.from(rows, (r, k) => kernel[k]! * r.reduce((sum, x, j) => sum + unit[j]! * x, 0))
   let abs = 0
   let most = 0
