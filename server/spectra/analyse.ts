@@ -66,7 +66,8 @@ export const SNR_CAP = 1000
 export interface AnalysisResult {
   /**
    * S/N per input pixel over `snrRegion` (the whole spectrum if that has too few pixels): from the
-   * file's errors when it has them, else DER_SNR; at most SNR_CAP.
+   * file's errors when it has them, else the residual from the best standard when the caller gives
+   * one (AnalyseOptions.residualSnr), else DER_SNR; at most SNR_CAP.
    */
   snr: number | null
   /** How the S/N was measured; 'capped' when it reached SNR_CAP. */

@@ -1,7 +1,8 @@
 import { DEFAULT_CLASSIFICATION_REGION, LATE_TYPE_FROM, LATE_TYPE_REGION, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../shared/grid'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
-import { SortedWindow, kthSmallest } from './prepare/stats'
+import { solveLinearInPlace } from './linear'
+import { SortedWindow, kthSmallest, lowerBound } from './prepare/stats'
 import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
 import { fitSpectrumAtLevel } from './match/classify'
 import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type StandardsUsed } from './match/instrument'
@@ -187,11 +188,11 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   for (let r = 1; r < located.fit.chi2.length; r++) if (located.fit.chi2[r]! < located.fit.chi2[bestRow]!) bestRow = r
   steps.match = (performance.now() - t) / 1000
 
-  const residual = first.snrMethod === 'der-snr' ? residualSnr(library, located.level, bestRow, first, input.spectrum, region) : null
-  if (residual !== null) options.residualSnr = residual
-
   t = performance.now()
-  const rest = analyseAtRest(input, options, first, standardOnGrid(library, located.level, bestRow))
+  const velocity = velocityAgainst(input, options, first, standardOnGrid(library, located.level, bestRow))
+  const residual = first.snrMethod === 'der-snr' ? residualSnr(library, located.level, bestRow, first, input.spectrum, region, velocity.found ? velocity.velocity : 0) : null
+  if (residual !== null) options.residualSnr = residual
+  const rest = analyseAtRest(input, options, velocity)
   let analysis = rest.analysis
   steps.analyseRest = (performance.now() - t) / 1000
 
@@ -240,56 +241,71 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
 
 /**
  * S/N per input pixel from the residual of the best standard's fit over the region: DER_SNR's
- * noise formula (Stoehr et al. 2008) applied to spectrum − (a + b · standard), with the lag of the
- * second differences stretched to about two input pixels, since the grid oversamples the input and
- * its neighbouring pixels share noise. The lines of star and standard cancel, so what DER_SNR
- * reads as noise in a spectrum sampled at a few pixels per resolution element (every line) is gone.
+ * noise formula (Stoehr et al. 2008) applied to the input pixels themselves, rectified by the
+ * prepared continuum, minus a + b · standard + c · its second difference (the standard shifted to
+ * the spectrum's velocity). The lines of star
+ * and standard cancel, so what DER_SNR reads as noise in a spectrum sampled at a few pixels per
+ * resolution element (every line) is gone; the input pixels carry their own noise, where the
+ * smoothed and resampled grid would carry less of it.
+ * @param velocity the spectrum's radial velocity against the standard, km/s
  */
-export function residualSnr(library: PreparedMatchLibrary, level: LibraryLevel, row: number, first: AnalysisResult, spectrum: Spectrum1D, region: readonly [number, number]): number | null {
+export function residualSnr(
+  library: PreparedMatchLibrary,
+  level: LibraryLevel,
+  row: number,
+  first: AnalysisResult,
+  spectrum: Spectrum1D,
+  region: readonly [number, number],
+  velocity = 0,
+): number | null {
   const p = first.prepared
-  const { offset, pixels, wavelength } = library
+  const { pixels, wavelength: span } = library
   const template = level.flux.subarray(row * pixels, (row + 1) * pixels)
-  const used: number[] = []
-  let m = 0,
-    sx = 0,
-    sy = 0,
-    sxx = 0,
-    sxy = 0
-  for (let i = 0; i < pixels; i++) {
-    const x = template[i]!
-    const y = p.rectified[i + offset]!
-    if (wavelength[i]! < region[0] || wavelength[i]! > region[1] || p.mask[i + offset] !== 0 || !Number.isFinite(x) || !Number.isFinite(y)) continue
-    used.push(i)
-    m++
-    sx += x
-    sy += y
-    sxx += x * x
-    sxy += x * y
+  const doppler = 1 + velocity / SPEED_OF_LIGHT_KMS
+  // The standard's second difference over a step well inside its lines' width: fitted with it, a
+  // difference of resolution between spectrum and standard (a line a little wider or narrower) cancels too.
+  const h = level.fwhm / 2.5
+  const at = (values: ArrayLike<number>, start: number, step: number, count: number, lambda: number) => {
+    const x = Math.log(lambda / start) / step
+    const j = Math.floor(x)
+    if (j < 0 || j >= count - 1) return Number.NaN
+    return values[j]! + (values[j + 1]! - values[j]!) * (x - j)
   }
+  const y: number[] = []
+  const t: number[] = []
+  const t2: number[] = []
+  const { wavelength, flux, mask } = spectrum
+  for (let i = lowerBound(wavelength, region[0]); i < wavelength.length && wavelength[i]! <= region[1]; i++) {
+    if (mask?.[i] || !Number.isFinite(flux[i]!)) continue
+    const c = at(p.continuum, p.grid.start, p.grid.step, p.grid.length, wavelength[i]!)
+    const x = at(template, span[0]!, library.grid.step, pixels, wavelength[i]! / doppler)
+    const lo = at(template, span[0]!, library.grid.step, pixels, (wavelength[i]! - h) / doppler)
+    const hi = at(template, span[0]!, library.grid.step, pixels, (wavelength[i]! + h) / doppler)
+    if (!(c > 0) || !Number.isFinite(x) || !Number.isFinite(lo) || !Number.isFinite(hi)) continue
+    y.push(flux[i]! / c)
+    t.push(x)
+    t2.push(lo + hi - 2 * x)
+  }
+  const m = y.length
   if (m < 50) return null
-  const b = (m * sxy - sx * sy) / (m * sxx - sx * sx)
-  const a = (sy - b * sx) / m
-  const steps = new Float64Array(spectrum.wavelength.length - 1)
-  for (let i = 1; i < spectrum.wavelength.length; i++) steps[i - 1] = spectrum.wavelength[i]! - spectrum.wavelength[i - 1]!
-  const inputStep = medianOf(steps)
-  const centre = (region[0] + region[1]) / 2
-  const lag = Math.max(2, Math.round((2 * inputStep) / (centre * library.grid.step)))
-  const r = new Float64Array(pixels).fill(Number.NaN)
-  const flux: number[] = []
-  for (const i of used) {
-    r[i] = p.rectified[i + offset]! - (a + b * template[i]!)
-    flux.push(p.rectified[i + offset]!)
+  // Least squares for y ≈ a + b·t + c·t2 (normal equations, 3×3).
+  const normal = new Float64Array(9)
+  const rhs = new Float64Array(3)
+  const coef = new Float64Array(3)
+  for (let k = 0; k < m; k++) {
+    const v = [1, t[k]!, t2[k]!]
+    for (let u = 0; u < 3; u++) {
+      rhs[u] = rhs[u]! + v[u]! * y[k]!
+      for (let w = 0; w < 3; w++) normal[3 * u + w] = normal[3 * u + w]! + v[u]! * v[w]!
+    }
   }
-  const d: number[] = []
-  for (const i of used) {
-    const lo = r[i - lag]
-    const hi = r[i + lag]
-    if (lo === undefined || hi === undefined || !Number.isFinite(lo) || !Number.isFinite(hi)) continue
-    d.push(Math.abs(2 * r[i]! - lo - hi))
-  }
-  if (d.length < 20) return null
+  if (!solveLinearInPlace(normal, rhs, coef, 3)) return null
+  const [a, b, c] = coef as unknown as [number, number, number]
+  const r = y.map((v, k) => v - (a + b * t[k]! + c * t2[k]!))
+  const d = new Float64Array(m - 4)
+  for (let k = 2; k < m - 2; k++) d[k - 2] = Math.abs(2 * r[k]! - r[k - 2]! - r[k + 2]!)
   const noise = (1.482602 / Math.sqrt(6)) * medianOf(d)
-  return noise > 0 ? medianOf(flux) / noise : null
+  return noise > 0 ? medianOf(y) / noise : null
 }
 
 /** The upper median of the finite values (the value a sort puts at n/2), by selection. */
@@ -442,16 +458,22 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
   return null
 }
 
-/**
- * analyseSpectrum(spectrum, { ...options, rvReference }) from an observed-frame preparation
- * already made: the velocity is measured on `first` as analyseSpectrum would, and the spectrum
- * shifted to rest is analysed once. The S/N region is shifted with it so the same observed
- * pixels give the headline S/N.
- */
-function analyseAtRest(input: PipelineInput, options: AnalyseOptions, first: AnalysisResult, reference: Spectrum1D): { analysis: AnalysisResult; spectrum: Spectrum1D } {
-  const rvRegion = options.rvRegion ?? input.region ?? DEFAULT_CLASSIFICATION_REGION
+/** The radial velocity of an observed-frame preparation against a standard, measured as analyseSpectrum would with it as rvReference. */
+function velocityAgainst(input: PipelineInput, options: AnalyseOptions, first: AnalysisResult, reference: Spectrum1D): ReturnType<typeof measureSpectrumRadialVelocity> {
   const p = first.prepared
-  const result = measureSpectrumRadialVelocity({ wavelength: gridWavelengths(p.grid), flux: p.rectified, mask: p.mask }, reference, { grid: p.grid, region: rvRegion })
+  return measureSpectrumRadialVelocity({ wavelength: gridWavelengths(p.grid), flux: p.rectified, mask: p.mask }, reference, {
+    grid: p.grid,
+    region: options.rvRegion ?? input.region ?? DEFAULT_CLASSIFICATION_REGION,
+  })
+}
+
+/**
+ * analyseSpectrum(spectrum, { ...options, rvReference }) with the velocity already measured
+ * (velocityAgainst): the spectrum shifted to rest is analysed once. The S/N region is shifted with
+ * it so the same observed pixels give the headline S/N.
+ */
+function analyseAtRest(input: PipelineInput, options: AnalyseOptions, result: ReturnType<typeof measureSpectrumRadialVelocity>): { analysis: AnalysisResult; spectrum: Spectrum1D } {
+  const rvRegion = options.rvRegion ?? input.region ?? DEFAULT_CLASSIFICATION_REGION
   const restOptions: AnalyseOptions = { ...options, ...(options.rvRegion || input.region ? { rvRegion } : {}) }
   if (!result.found) {
     const analysis = analyseSpectrum(input.spectrum, restOptions)

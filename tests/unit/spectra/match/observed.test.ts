@@ -258,6 +258,29 @@ describe('the flags on real spectra', () => {
     }
   }, 60_000)
 
+  it('reads back the S/N of spectra without errors at the resolution they come in, sharper or broader than a library level', () => {
+    // Noise of a known σ added to real stars (the MILES spectra's own noise is small beside S/N 40);
+    // the truth is the median flux over the classification region (3850–5000 Å) over σ.
+    const sample = stars.filter((s, i) => s.source === 'miles' && i % 24 === 0)
+    for (const fwhm of [2.5, 3.2, 6]) {
+      const ratios = sample.map((s, k) => {
+        const noisy = degradeSpectrum(s.spectrum, { from: 2.5, to: fwhm, snr: 40, seed: 50 + k })
+        const sigma = noisy.error![0]!
+        delete noisy.error
+        const inRegion = Array.from(noisy.wavelength.keys())
+          .filter((i) => noisy.wavelength[i]! >= 3850 && noisy.wavelength[i]! <= 5000)
+          .map((i) => s.spectrum.flux[i]!)
+          .sort((a, b) => a - b)
+        const truth = inRegion[inRegion.length >> 1]! / sigma
+        return runPipeline({ spectrum: noisy, inputFwhm: fwhm, exclude: s.exclude }, library).analysis.snr! / truth
+      })
+      ratios.sort((a, b) => a - b)
+      const median = ratios[ratios.length >> 1]!
+      expect(Math.abs(median - 1), `${fwhm} Å: ${ratios.map((r) => r.toFixed(2)).join(' ')}`).toBeLessThan(0.2)
+      expect(ratios[ratios.length - 1]!, `${fwhm} Å`).toBeLessThan(1.3)
+    }
+  }, 120_000)
+
   it('caps the S/N of a noiseless spectrum and says so', () => {
     const s = star('HD207130')
     const wl = gridWavelengths(DEFAULT_GRID)

@@ -9,6 +9,7 @@ import { analyseSpectrum } from '../../../../server/spectra/analyse'
 import { standardOnGrid } from '../../../../server/spectra/match'
 import { fitSpectrumAtLevel } from '../../../../server/spectra/match/classify'
 import { residualSnr, runPipeline } from '../../../../server/spectra/pipeline'
+import { measureSpectrumRadialVelocity } from '../../../../server/spectra/prepare/rv'
 
 const library = defaultLibrary()
 const { library: observed, inputs } = observedLibraryAt(DEFAULT_OBSERVED_DIR)
@@ -45,9 +46,12 @@ describe('runPipeline', () => {
       const { level, fit } = fitSpectrumAtLevel(matched, { rectified: first.prepared.rectified, mask: first.prepared.mask, snr: first.snr, fwhm: 2.5 }, 2.5)
       let best = 0
       for (let r = 1; r < fit.chi2.length; r++) if (fit.chi2[r]! < fit.chi2[best]!) best = r
-      const residual = residualSnr(matched, level, best, first, spectrum, [3850, 5000])
+      const reference = standardOnGrid(matched, level, best)
+      const p = first.prepared
+      const velocity = measureSpectrumRadialVelocity({ wavelength: gridWavelengths(p.grid), flux: p.rectified, mask: p.mask }, reference, { grid: p.grid, region: [3850, 5000] })
+      const residual = residualSnr(matched, level, best, first, spectrum, [3850, 5000], velocity.found ? velocity.velocity : 0)
       expect(residual).not.toBeNull()
-      const direct = analyseSpectrum(spectrum, { inputFwhm: 2.5, rvReference: standardOnGrid(matched, level, best), residualSnr: residual! })
+      const direct = analyseSpectrum(spectrum, { inputFwhm: 2.5, rvReference: reference, residualSnr: residual! })
       expect(out.analysis.rv!.v).toBe(direct.rv!.v)
       // The standards are at rest only to about ±10 km/s each (from memory of the MILES papers), so the
       // velocity against another star carries that too.
