@@ -222,13 +222,15 @@ export async function storePipelineOutput(sequelize: Sequelize, spectrumId: numb
   }
   const from = flagCount === null ? PRE_REVIEW : PRE_REVIEW_SUGGESTED
   // The spectrum moves on only from the statuses before review; MariaDB assigns left to right, so
-  // the reason and the time are set before the status they are judged by.
+  // the reason and the time are set before the status they are judged by. Its S/N becomes the
+  // pipeline's (from the errors, or the residual of the best standard), which lists, the queue and
+  // the detail then all show; the quick estimate made when the file was read stays only until then.
   const moving = `status IN (${from.map(() => '?').join(', ')})`
   await executeInTransaction(
     transaction,
-    `UPDATE spectra SET ${flagCount === null ? '' : 'flag_count = ?, '}status_reason = IF(${moving}, NULL, status_reason), updated_at = IF(${moving}, ?, updated_at),
+    `UPDATE spectra SET ${flagCount === null ? '' : 'flag_count = ?, '}snr = COALESCE(?, snr), status_reason = IF(${moving}, NULL, status_reason), updated_at = IF(${moving}, ?, updated_at),
        status = IF(${moving}, ?, status) WHERE id = ?`,
-    [...(flagCount === null ? [] : [flagCount]), ...from, ...from, sqlTime(new Date()), ...from, flagCount === null ? 'measured' : 'suggested', spectrumId],
+    [...(flagCount === null ? [] : [flagCount]), finiteOrNull(analysis.snr), ...from, ...from, sqlTime(new Date()), ...from, flagCount === null ? 'measured' : 'suggested', spectrumId],
   )
 }
 

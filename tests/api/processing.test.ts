@@ -5,6 +5,8 @@ import { Campaign, CampaignMember, LineMeasurementRow, Measurement, ProcessingJo
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
 import { startProcessing, type TestProcessing } from '../helpers/processing'
 import { syntheticTextSpectrum } from '../helpers/spectra'
+import { DEMO_ENTRIES, demoFits, demoObservation } from '../../server/db/demo-spectra'
+import { ensureDefaultLibrary } from '../../server/services/standards.service'
 
 let t: TestContext
 let runner: TestProcessing
@@ -45,6 +47,22 @@ describe(`processing off the request path (${process.env.QUEUE ?? 'database'} qu
     expect(detail.body.measurements.current.lines.find((l: { id: string }) => l.id.startsWith('h'))).toBeDefined()
     const prepared = await client.agent.get(`/api/spectra/${id}/prepared?maxPoints=1000`).expect(200)
     expect(JSON.parse(String(prepared.headers['x-series-layout'])).columns).toEqual(['wavelength', 'flux', 'continuum', 'rectified'])
+  })
+
+  it("shows the pipeline's S/N everywhere once measured: a FITS file without errors, at a known S/N", async () => {
+    // Noise added at S/N 60 per 1.1 Å pixel over 4000–5000 Å (demoObservation); the file carries no errors,
+    // so the S/N comes from the residual of the best standard.
+    await ensureDefaultLibrary(t.ctx.sequelize)
+    const target = { ...DEMO_ENTRIES.find((e) => e.mkType === 'G5 III')!, snr: 60 }
+    const bytes = demoFits(target, demoObservation(target, seed++), '2026-03-01T02:00:00')
+    const id = await submit(bytes, 'known-snr.fits')
+    await runner.idle()
+    const m = await Measurement.findOne({ where: { spectrumId: id, isCurrent: true } })
+    const s = await Spectrum.findByPk(id)
+    expect(s!.snr).toBeCloseTo(m!.snr!, 6)
+    expect(Math.abs(m!.snr! / 60 - 1)).toBeLessThan(0.25)
+    const list = await client.agent.get(`/api/spectra?q=${encodeURIComponent(target.objectName)}`).expect(200)
+    expect(list.body.items.find((i: { id: number }) => i.id === id).snr).toBeCloseTo(m!.snr!, 6)
   })
 
   it('keeps the old measurement in history when a spectrum is measured again', async () => {
