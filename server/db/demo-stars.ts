@@ -23,7 +23,7 @@ export interface DemoStar {
   feh: number
   /** Resolution of the source, FWHM Å. */
   fwhm: number
-  /** The largest share of one standard in the blend (|weight| / Σ|weight|), and the blend's effective number of standards (Σw)²/Σw². */
+  /** The largest share of one standard in the blend (|weight| / Σ|weight|), and the effective number of standards under its kernel, (Σk)²/Σk². */
   maxShare: number
   effectiveStandards: number
 }

@@ -243,10 +243,9 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
  * S/N per input pixel from the residual of the best standard's fit over the region: DER_SNR's
  * noise formula (Stoehr et al. 2008) applied to the input pixels themselves, rectified by the
  * prepared continuum, minus a + b · standard + c · its second difference (the standard shifted to
- * the spectrum's velocity). The lines of star
- * and standard cancel, so what DER_SNR reads as noise in a spectrum sampled at a few pixels per
- * resolution element (every line) is gone; the input pixels carry their own noise, where the
- * smoothed and resampled grid would carry less of it.
+ * the spectrum's velocity). The lines of star and standard cancel, so what DER_SNR reads as noise
+ * in a spectrum sampled at a few pixels per resolution element (every line) is gone; the input
+ * pixels carry their own noise, where the smoothed and resampled grid would carry less of it.
  * @param velocity the spectrum's radial velocity against the standard, km/s
  */
 export function residualSnr(
@@ -300,8 +299,7 @@ export function residualSnr(
     }
   }
   if (!solveLinearInPlace(normal, rhs, coef, 3)) return null
-  const [a, b, c] = coef as unknown as [number, number, number]
-  const r = y.map((v, k) => v - (a + b * t[k]! + c * t2[k]!))
+  const r = y.map((v, k) => v - (coef[0]! + coef[1]! * t[k]! + coef[2]! * t2[k]!))
   const d = new Float64Array(m - 4)
   for (let k = 2; k < m - 2; k++) d[k - 2] = Math.abs(2 * r[k]! - r[k - 2]! - r[k + 2]!)
   const noise = (1.482602 / Math.sqrt(6)) * medianOf(d)
