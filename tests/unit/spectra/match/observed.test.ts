@@ -259,7 +259,8 @@ describe('the flags on real spectra', () => {
   }, 60_000)
 
   it('reads back the S/N of spectra without errors at the resolution they come in, sharper or broader than a library level', () => {
-    // Noise of a known σ added to real stars (the MILES spectra's own noise is small beside S/N 40);
+    // Noise of a known σ added to real stars (MILES spectra are well above S/N 40 per pixel on their own:
+    // Sánchez-Blázquez et al. 2006, from memory);
     // the truth is the median flux over the classification region (3850–5000 Å) over σ.
     const sample = stars.filter((s, i) => s.source === 'miles' && i % 24 === 0)
     for (const fwhm of [2.5, 3.2, 6]) {
