@@ -55,7 +55,13 @@ function lineweight(args: string[], stopWhen?: RegExp): Promise<Run> {
     if (stopWhen?.test(stdout) && child.pid) process.kill(-child.pid, 'SIGKILL')
   })
   child.stderr.on('data', (d: Buffer) => (stderr += d.toString()))
-  return new Promise((resolve) => child.on('close', (code) => resolve({ code, stdout, stderr })))
+  return new Promise((resolve) =>
+    child.on('close', (code) => {
+      // Once seen in a full run and never alone: if the server is gone, say what it printed before it went.
+      if (stderr.includes('Cannot reach')) console.error(`the server is unreachable (exit code ${server.process.exitCode}); its output:\n${server.output()}`)
+      resolve({ code, stdout, stderr })
+    }),
+  )
 }
 
 const stored = () => Spectrum.count({ where: { campaignId: campaign.id } })
