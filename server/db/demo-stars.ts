@@ -2,10 +2,11 @@
 // shipped observed standards of one source (MILES, with published Teff, log g and [Fe/H]) at the
 // parameters typical of the star's MK type. A star of the library never stands in for a demo star:
 // the blend is widened until no standard carries more than a quarter of its weight.
-import { DEFAULT_OBSERVED_DIR } from '../spectra/match/load'
-import { loadObservedLibrary, type ObservedStandard } from '../../templates/observed/library'
+import { DEFAULT_OBSERVED_DIR, observedLibraryAt } from '../spectra/match/load'
+import type { ObservedStandard } from '../../templates/observed/library'
 import { parseMK } from '../../shared/mk'
 import { solveLinearInPlace } from '../spectra/linear'
+import { medianInPlace } from '../spectra/prepare/stats'
 
 /** The source whose standards carry the parameters the interpolation runs over. */
 const SOURCE = 'miles'
@@ -39,7 +40,8 @@ let source: Source | null = null
 
 function loadSource(): Source {
   if (source) return source
-  const library = loadObservedLibrary(DEFAULT_OBSERVED_DIR, { verify: false })
+  // The copy the matcher loads (once per thread), not a second read of the file.
+  const { library } = observedLibraryAt(DEFAULT_OBSERVED_DIR)
   const pixels = library.grid.length
   const stars = library.standards.filter((s) => s.entry.source === SOURCE && s.entry.teff !== null && s.entry.logg !== null && s.flux.every((f) => f > 0))
   const lnFlux = new Float64Array(stars.length * pixels)
@@ -50,10 +52,7 @@ function loadSource(): Source {
   return (source = { stars, lnFlux, pixels, fwhm })
 }
 
-const median = (values: number[]) => {
-  const v = [...values].sort((a, b) => a - b)
-  return v.length % 2 ? v[v.length >> 1]! : (v[v.length / 2 - 1]! + v[v.length / 2]!) / 2
-}
+const median = (values: number[]) => medianInPlace(Float64Array.from(values), values.length)
 
 /** Teff and log g typical of an MK type and class: the medians over the source's standards of that class within a subtype, widened until three are found. */
 export function typicalParameters(mkType: string): { teff: number; logg: number } {

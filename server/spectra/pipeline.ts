@@ -1,4 +1,4 @@
-import { DEFAULT_CLASSIFICATION_REGION, LATE_TYPE_FROM, LATE_TYPE_REGION, SPEED_OF_LIGHT_KMS, gridWavelengths } from '../../shared/grid'
+import { DEFAULT_CLASSIFICATION_REGION, LATE_TYPE_FROM, LATE_TYPE_REGION, SPEED_OF_LIGHT_KMS, gridIndex, gridWavelengths, type LogGrid } from '../../shared/grid'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
 import { solveLinearInPlace } from './linear'
@@ -264,10 +264,11 @@ export function residualSnr(
   // The standard's second difference over a step well inside its lines' width: fitted with it, a
   // difference of resolution between spectrum and standard (a line a little wider or narrower) cancels too.
   const h = level.fwhm / 2.5
-  const at = (values: ArrayLike<number>, start: number, step: number, count: number, lambda: number) => {
-    const x = Math.log(lambda / start) / step
+  const spanGrid = { start: span[0]!, step: library.grid.step, length: pixels }
+  const at = (values: ArrayLike<number>, grid: LogGrid, lambda: number) => {
+    const x = gridIndex(grid, lambda)
     const j = Math.floor(x)
-    if (j < 0 || j >= count - 1) return Number.NaN
+    if (j < 0 || j >= grid.length - 1) return Number.NaN
     return values[j]! + (values[j + 1]! - values[j]!) * (x - j)
   }
   const y: number[] = []
@@ -276,10 +277,10 @@ export function residualSnr(
   const { wavelength, flux, mask } = spectrum
   for (let i = lowerBound(wavelength, region[0]); i < wavelength.length && wavelength[i]! <= region[1]; i++) {
     if (mask?.[i] || !Number.isFinite(flux[i]!)) continue
-    const c = at(p.continuum, p.grid.start, p.grid.step, p.grid.length, wavelength[i]!)
-    const x = at(template, span[0]!, library.grid.step, pixels, wavelength[i]! / doppler)
-    const lo = at(template, span[0]!, library.grid.step, pixels, (wavelength[i]! - h) / doppler)
-    const hi = at(template, span[0]!, library.grid.step, pixels, (wavelength[i]! + h) / doppler)
+    const c = at(p.continuum, p.grid, wavelength[i]!)
+    const x = at(template, spanGrid, wavelength[i]! / doppler)
+    const lo = at(template, spanGrid, (wavelength[i]! - h) / doppler)
+    const hi = at(template, spanGrid, (wavelength[i]! + h) / doppler)
     if (!(c > 0) || !Number.isFinite(x) || !Number.isFinite(lo) || !Number.isFinite(hi)) continue
     y.push(flux[i]! / c)
     t.push(x)
