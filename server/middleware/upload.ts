@@ -128,8 +128,9 @@ export function multipartToDisk(dir: string, config: Pick<Config, 'UPLOAD_MAX_BY
   }).array('files')
   return (req, res, next) => {
     res.once('close', () => {
-      const files = (req.files as Express.Multer.File[] | undefined) ?? []
-      for (const f of files) void rm(f.path, { force: true })
+      // A file still arriving when the client went away, or one multer already removed, has no path.
+      const files = (req.files as Partial<Express.Multer.File>[] | undefined) ?? []
+      for (const f of files) if (f.path) rm(f.path, { force: true }).catch(() => undefined)
     })
     parse(req, res, (error?: unknown) => {
       if (error instanceof MulterError || error instanceof HttpError) return next(error)
