@@ -44,6 +44,7 @@ const BOTH_MODES = [
   'tests/api/spectra.test.ts',
   'tests/api/upload-memory.test.ts',
   'tests/api/upload-budget.test.ts',
+  'tests/api/upload-abort.test.ts',
   'tests/api/input-hardening.test.ts',
   'tests/api/reading.test.ts',
 ]
