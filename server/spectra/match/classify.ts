@@ -3,9 +3,9 @@ import { formatMK, formatTypeCode, parseMK, typeFromCode } from '../../../shared
 import { roundTo as round } from '../../../shared/rounding'
 import { depthScaledChiSquareSelected, depthScaledPairChiSquare } from './chi2'
 import { lowerBound } from '../prepare/stats'
-import { balmerHalfDepthWidth, compositeEvidence, hasBalmerEmission, isBeyondDwarfs, typicalResidual } from './flags'
+import { balmerHalfDepthWidth, compositeEvidence, hasBalmerEmission, isBeyondDwarfs, SUPERGIANT_WIDTH_TYPES, supergiantByWidth, typicalResidual, type WidthEvidence } from './flags'
 import { levelFor, neighbourResidualsOver, type LibraryLevel, type PreparedMatchLibrary } from './library'
-import { classText, type Candidate, type MatchInput, type MatchOptions, type MatchResult, type SuggestionFlag } from './types'
+import { classText, type Candidate, type MatchInput, type MatchOptions, type MatchResult, type SuggestionFlag, type Vote } from './types'
 import { classCounts, criteriaVotes, describeClassChoice, parameterEstimate } from './vote'
 
 /** Scratch arrays reused across calls of the same library and level (one spectrum at a time per thread). */
@@ -228,7 +228,9 @@ export function windowMode(values: ArrayLike<number>, weights: ArrayLike<number>
  *    `coarseFwhm` and coarser only the best `coarseTypeNeighbours` of them vote on the type.
  * 3. Spectral type: the type, in half subtypes, that gathers the most vote within ±1 subtype
  *    (windowMode); luminosity class: the class, in half classes, that gathers the most vote within
- *    ±½ class, so that an even split between neighbours gives the intermediate class (IV-V).
+ *    ±½ class, so that an even split between neighbours gives the intermediate class (IV-V); for
+ *    B0–A9, a supergiant class instead when the Balmer lines are as narrow as only supergiants'
+ *    are (supergiantByWidth), with a note that says so.
  * 4. Uncertainties: the vote-weighted spread of the voters' types and classes about the estimate
  *    (at least 0.5 subtype and 0.25 class).
  * 5. Teff, log g and [Fe/H]: the vote-weighted mean and spread of the voters' published values.
@@ -291,13 +293,12 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
 
   const voted = windowMode(types, typeWeights, 1, 0.5, Math.max(0, Math.floor(Math.min(...types)) - 1), Math.min(69.5, Math.ceil(Math.max(...types)) + 1))
   const typeCode = interpolateSparseType(library, level, s, from, to, voters, chi2, voted)
-  const classCode = windowMode(classes, classWeights, 0.5, 0.5, 1, 6)
+  const votedClass = windowMode(classes, classWeights, 0.5, 0.5, 1, 6)
   const spread = (values: Float64Array, w: Float64Array, centre: number) => {
     let a = 0
     for (let q = 0; q < values.length; q++) a += w[q]! * (values[q]! - centre) ** 2
     return Math.sqrt(a)
   }
-  const uncertainty = { subtypes: round(Math.max(0.5, spread(types, typeWeights, typeCode)), 2), classes: round(Math.max(0.25, spread(classes, classWeights, classCode)), 2) }
 
   // Shares of the vote per class and per (type, class) point.
   const shareByClass = new Map<number, number>()
@@ -337,16 +338,28 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
     }
   })
 
+  const spectrumSpan = new Float64Array(library.pixels)
+  for (let i = 0; i < library.pixels; i++) {
+    const g = i + library.offset
+    const f = input.rectified[g]!
+    spectrumSpan[i] = (input.mask !== undefined && input.mask[g] !== 0) || !Number.isFinite(f) ? Number.NaN : f
+  }
+  const width = balmerHalfDepthWidth(spectrumSpan, library.wavelength)
+  const emission = hasBalmerEmission(input.lines, typeCode)
+  // The vote leans to dwarfs and giants, of which the library has most; B–A supergiants show
+  // themselves by their narrow Balmer lines (unless emission fills them in).
+  const byWidth = votedClass > 2 && !emission ? supergiantByWidth(level, library.standards, typeCode, width, exclude) : null
+  const classCode = byWidth?.supergiant?.classCode ?? votedClass
+  const uncertainty = { subtypes: round(Math.max(0.5, spread(types, typeWeights, typeCode)), 2), classes: round(Math.max(0.25, spread(classes, classWeights, classCode)), 2) }
   const luminosityClass = classText(classCode)
   const bestStd = std(best)
-  const classNote = describeClassChoice(classCode, bestStd.classCode, bestStd.spectralType, classShares, voters.length)
+  const classNote = byWidth?.supergiant ? widthClassNote(width, byWidth, luminosityClass) : describeClassChoice(classCode, bestStd.classCode, bestStd.spectralType, classShares, voters.length)
 
   const parameters = parameterEstimate(voters.slice(0, typeVoters).map(std), typeWeights.slice(0, typeVoters))
 
   // Flags.
   const flags: SuggestionFlag[] = []
   if (input.snr === null || input.snr < lowSnr) flags.push('low-snr')
-  const emission = hasBalmerEmission(input.lines, typeCode)
   if (emission) flags.push('emission')
   const rms = bestResidual(s.flux, s.weights, level.flux, library.pixels, best, from, to)
   const noise = input.snr !== null && input.snr > 0 ? 1 / input.snr : 0
@@ -364,19 +377,13 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   }
   if (compositeEvidence(library, level, s.coarseFlux, s.coarseWeights, fit, Math.ceil(from / step), Math.ceil(to / step), best) !== null) flags.push('possible-composite')
 
-  const spectrumSpan = new Float64Array(library.pixels)
-  for (let i = 0; i < library.pixels; i++) {
-    const g = i + library.offset
-    const f = input.rectified[g]!
-    spectrumSpan[i] = (input.mask !== undefined && input.mask[g] !== 0) || !Number.isFinite(f) ? Number.NaN : f
-  }
   // A new array rather than unshift on the one returned: its elements kind (so its map) differs as
   // criteriaVotes runs optimised or not, and the optimised matchSpectrum was thrown away each time.
   const votes = [
     { criterion: 'neighbours', name: `vote of the ${voters.length} nearest standards`, value: round(classShares[0]?.p ?? 0, 4), vote: classShares[0]?.luminosityClass ?? null },
     ...criteriaVotes(library, level, spectrumSpan, typeCode, input.snr, centre, exclude),
+    widthVote(byWidth, typeCode),
   ]
-  const width = balmerHalfDepthWidth(spectrumSpan, library.wavelength)
   if (typeCode < 35 && isBeyondDwarfs(level, library.standards, width)) flags.push('not-mk')
 
   const typeText = formatTypeCode(typeCode)
@@ -406,6 +413,24 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
     residual: { rms: round(rms, 5), typical: typical === null ? null : round(typical, 5) },
     voters: voters.map((r, q) => ({ standardId: std(r).id, typeShare: round(typeWeights[q]!, 5), classShare: round(classWeights[q]!, 5) })),
   }
+}
+
+const WIDTH_CRITERION = { criterion: 'balmer-width', name: 'Hδ, Hγ, Hβ width at half depth over the narrowest class II–V standard within 3 subtypes' }
+
+/** The Balmer-width evidence as one of the criteria shown with a suggestion. */
+function widthVote(evidence: WidthEvidence | null, typeCode: number): Vote {
+  if (typeCode < SUPERGIANT_WIDTH_TYPES[0] || typeCode >= SUPERGIANT_WIDTH_TYPES[1])
+    return { ...WIDTH_CRITERION, value: null, vote: null, note: `not used for this type (applies to ${formatTypeCode(SUPERGIANT_WIDTH_TYPES[0])}–${formatTypeCode(SUPERGIANT_WIDTH_TYPES[1] - 1)})` }
+  if (!evidence) return { ...WIDTH_CRITERION, value: null, vote: null, note: 'not measurable on this spectrum' }
+  const note = evidence.threshold === null ? 'the supergiant standards of the library do not stand apart in width' : `supergiants fall below ${round(evidence.threshold, 2)}`
+  return { ...WIDTH_CRITERION, value: round(evidence.ratio, 3), vote: evidence.supergiant ? classText(evidence.supergiant.classCode) : null, note }
+}
+
+/** Why a class comes from the Balmer width rather than from the nearest standards. */
+function widthClassNote(width: number, evidence: WidthEvidence, luminosityClass: string): string {
+  const st = evidence.supergiant?.standard
+  const like = st ? `, as in ${st.star ?? st.spectralType} (${st.spectralType}), the supergiant standard nearest in width` : ''
+  return `Class ${luminosityClass} from the Balmer lines: ${round(width, 1)} Å wide at half depth, ${Math.round(100 * evidence.ratio)} % of the narrowest giant's or dwarf's within 3 subtypes, where supergiant standards stay below ${Math.round(100 * evidence.threshold!)} %${like}. The nearest standards are mostly giants and dwarfs, so their vote is set aside.`
 }
 
 /**

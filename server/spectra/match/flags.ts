@@ -100,6 +100,90 @@ export function isBeyondDwarfs(level: LibraryLevel, standards: readonly MatchSta
   return Number.isFinite(max) && width > 1.3 * max
 }
 
+/** Type codes where the Balmer line width carries luminosity (B0 up to F0). */
+export const SUPERGIANT_WIDTH_TYPES: readonly [number, number] = [10, 30]
+
+/**
+ * A Balmer half-depth width over the narrowest of the class II–V standards within ±3 subtypes of
+ * `typeCode` (leaving out row `self`, every row of its star, and `exclude`); below 1 the lines are
+ * narrower than any giant's or dwarf's of that type. NaN with fewer than three such standards.
+ */
+export function balmerWidthRatio(level: LibraryLevel, standards: readonly MatchStandardInfo[], typeCode: number, width: number, exclude?: ReadonlySet<number>, self = -1): number {
+  const star = self >= 0 ? standards[level.rows[self]!]!.star : null
+  let narrowest = Infinity
+  let count = 0
+  level.rows.forEach((k, r) => {
+    const st = standards[k]!
+    const v = level.balmerWidth[r]!
+    if (r === self || (star !== null && st.star === star) || exclude?.has(st.id) || st.classCode < 3 || Math.abs(st.typeCode - typeCode) > 3 || !Number.isFinite(v)) return
+    count++
+    narrowest = Math.min(narrowest, v)
+  })
+  return count >= 3 && Number.isFinite(width) ? width / narrowest : Number.NaN
+}
+
+const thresholdByLevel = new WeakMap<LibraryLevel, number | null>()
+
+/**
+ * The width ratio (balmerWidthRatio) below which a B–A spectrum is a supergiant's, learnt from the
+ * level itself: midway between the largest ratio of a supergiant standard (Ib or brighter) and the
+ * smallest of any class II–V standard, each measured at its own type against the rest. Null when
+ * the two overlap or either is missing. Standards in `exclude` take no part.
+ */
+export function supergiantWidthThreshold(level: LibraryLevel, standards: readonly MatchStandardInfo[], exclude?: ReadonlySet<number>): number | null {
+  const cached = exclude && exclude.size > 0 ? undefined : thresholdByLevel.get(level)
+  if (cached !== undefined) return cached
+  let supergiants = -Infinity
+  let others = Infinity
+  level.rows.forEach((k, r) => {
+    const st = standards[k]!
+    if (exclude?.has(st.id) || st.typeCode < SUPERGIANT_WIDTH_TYPES[0] || st.typeCode >= SUPERGIANT_WIDTH_TYPES[1] || (st.classCode > 2 && st.classCode < 3)) return
+    const ratio = balmerWidthRatio(level, standards, st.typeCode, level.balmerWidth[r]!, exclude, r)
+    if (!Number.isFinite(ratio)) return
+    if (st.classCode <= 2) supergiants = Math.max(supergiants, ratio)
+    else others = Math.min(others, ratio)
+  })
+  const threshold = Number.isFinite(supergiants) && Number.isFinite(others) && supergiants < others ? (supergiants + others) / 2 : null
+  if (!exclude || exclude.size === 0) thresholdByLevel.set(level, threshold)
+  return threshold
+}
+
+/** What the Balmer width says of a B–A spectrum's luminosity (supergiantByWidth). */
+export interface WidthEvidence {
+  /** balmerWidthRatio of the spectrum, and the level's supergiantWidthThreshold. */
+  ratio: number
+  threshold: number | null
+  /** When the ratio is below the threshold: the class of the supergiant standard within ±5 subtypes whose width is nearest (Iab when there is none), and that standard. */
+  supergiant: { classCode: number; standard: MatchStandardInfo | null } | null
+}
+
+/**
+ * Luminosity from the width of the Balmer lines at half depth, for types in SUPERGIANT_WIDTH_TYPES:
+ * the lines of B–A supergiants are far narrower than those of giants and dwarfs, whose
+ * pressure-broadened wings widen them (common practice in MK classification). Null outside those
+ * types or when the width cannot be compared.
+ */
+export function supergiantByWidth(level: LibraryLevel, standards: readonly MatchStandardInfo[], typeCode: number, width: number, exclude?: ReadonlySet<number>): WidthEvidence | null {
+  if (typeCode < SUPERGIANT_WIDTH_TYPES[0] || typeCode >= SUPERGIANT_WIDTH_TYPES[1]) return null
+  const ratio = balmerWidthRatio(level, standards, typeCode, width, exclude)
+  if (!Number.isFinite(ratio)) return null
+  const threshold = supergiantWidthThreshold(level, standards, exclude)
+  if (threshold === null || ratio >= threshold) return { ratio, threshold, supergiant: null }
+  let nearest: MatchStandardInfo | null = null
+  let distance = Infinity
+  level.rows.forEach((k, r) => {
+    const st = standards[k]!
+    const v = level.balmerWidth[r]!
+    if (exclude?.has(st.id) || st.classCode > 2 || Math.abs(st.typeCode - typeCode) > 5 || !Number.isFinite(v)) return
+    if (Math.abs(v - width) < distance) {
+      distance = Math.abs(v - width)
+      nearest = st
+    }
+  })
+  const found = nearest as MatchStandardInfo | null
+  return { ratio, threshold, supergiant: { classCode: found?.classCode ?? 1.5, standard: found } }
+}
+
 /** Type bins from which one standard each enters the two-star fits. */
 const COMPOSITE_BINS: readonly [number, number][] = [
   [0, 15],

@@ -85,6 +85,23 @@ describe('the class and type of named reference stars', () => {
     60_000,
   )
 
+  it.each([
+    ['HD087737', 'A0 Ib (MILES)'],
+    ['HD164353', 'B5 Ib (MILES)'],
+  ])(
+    '%s, published %s, is a supergiant by its narrow Balmer lines, though its nearest standards are giants and dwarfs',
+    (name) => {
+      // Balmer lines far narrower in B–A supergiants than in giants and dwarfs of the same type: common practice in MK classification.
+      const r = classify(star(name)).suggestion!
+      expect(r.classCode, `${name}: ${r.spectralType}`).toBeLessThanOrEqual(2)
+      expect(r.classNote).toMatch(/from the Balmer lines/)
+      const width = r.votes.find((v) => v.criterion === 'balmer-width')!
+      expect(width.vote).toBe(r.luminosityClass)
+      expect(r.classShares[0]!.classCode, 'the vote alone says giant or fainter').toBeGreaterThan(2)
+    },
+    60_000,
+  )
+
   it('lets the best 5 standards vote on the type at 12 Å and coarser, and all 16 on the class', () => {
     // HD 10307, G2 V (MILES), as recorded and degraded to 15 Å.
     const s = star('HD010307')
