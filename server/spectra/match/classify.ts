@@ -423,7 +423,9 @@ function widthVote(evidence: WidthEvidence | null, typeCode: number): Vote {
     return { ...WIDTH_CRITERION, value: null, vote: null, note: `not used for this type (applies to ${formatTypeCode(SUPERGIANT_WIDTH_TYPES[0])}–${formatTypeCode(SUPERGIANT_WIDTH_TYPES[1] - 1)})` }
   if (!evidence) return { ...WIDTH_CRITERION, value: null, vote: null, note: 'not measurable on this spectrum' }
   const note = evidence.threshold === null ? 'the supergiant standards of the library do not stand apart in width' : `supergiants fall below ${round(evidence.threshold, 2)}`
-  return { ...WIDTH_CRITERION, value: round(evidence.ratio, 3), vote: evidence.supergiant ? classText(evidence.supergiant.classCode) : null, note }
+  // Lines as wide as a giant's or dwarf's say only that the star is not a supergiant.
+  const vote = evidence.supergiant ? classText(evidence.supergiant.classCode) : evidence.threshold === null ? null : 'II–V'
+  return { ...WIDTH_CRITERION, value: round(evidence.ratio, 3), vote, note }
 }
 
 /** Why a class comes from the Balmer width rather than from the nearest standards. */
