@@ -348,12 +348,14 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   const emission = hasBalmerEmission(input.lines, typeCode)
   // The vote leans to dwarfs and giants, of which the library has most; B–A supergiants show
   // themselves by their narrow Balmer lines (unless emission fills them in).
-  const byWidth = votedClass > 2 && !emission ? supergiantByWidth(level, library.standards, typeCode, width, exclude) : null
-  const classCode = byWidth?.supergiant?.classCode ?? votedClass
+  const byWidth = emission ? null : supergiantByWidth(level, library.standards, typeCode, width, exclude)
+  const overruled = votedClass > 2 && byWidth?.supergiant ? byWidth.supergiant.classCode : null
+  const classCode = overruled ?? votedClass
   const uncertainty = { subtypes: round(Math.max(0.5, spread(types, typeWeights, typeCode)), 2), classes: round(Math.max(0.25, spread(classes, classWeights, classCode)), 2) }
   const luminosityClass = classText(classCode)
   const bestStd = std(best)
-  const classNote = byWidth?.supergiant ? widthClassNote(width, byWidth, luminosityClass) : describeClassChoice(classCode, bestStd.classCode, bestStd.spectralType, classShares, voters.length)
+  const classNote =
+    overruled !== null && byWidth ? widthClassNote(width, byWidth, luminosityClass) : describeClassChoice(classCode, bestStd.classCode, bestStd.spectralType, classShares, voters.length)
 
   const parameters = parameterEstimate(voters.slice(0, typeVoters).map(std), typeWeights.slice(0, typeVoters))
 
@@ -382,7 +384,7 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   const votes = [
     { criterion: 'neighbours', name: `vote of the ${voters.length} nearest standards`, value: round(classShares[0]?.p ?? 0, 4), vote: classShares[0]?.luminosityClass ?? null },
     ...criteriaVotes(library, level, spectrumSpan, typeCode, input.snr, centre, exclude),
-    widthVote(byWidth, typeCode),
+    widthVote(byWidth, typeCode, emission),
   ]
   if (typeCode < 35 && isBeyondDwarfs(level, library.standards, width)) flags.push('not-mk')
 
@@ -418,10 +420,10 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
 const WIDTH_CRITERION = { criterion: 'balmer-width', name: 'Hδ, Hγ, Hβ width at half depth over the narrowest class II–V standard within 3 subtypes' }
 
 /** The Balmer-width evidence as one of the criteria shown with a suggestion. */
-function widthVote(evidence: WidthEvidence | null, typeCode: number): Vote {
+function widthVote(evidence: WidthEvidence | null, typeCode: number, emission: boolean): Vote {
   if (typeCode < SUPERGIANT_WIDTH_TYPES[0] || typeCode >= SUPERGIANT_WIDTH_TYPES[1])
     return { ...WIDTH_CRITERION, value: null, vote: null, note: `not used for this type (applies to ${formatTypeCode(SUPERGIANT_WIDTH_TYPES[0])}–${formatTypeCode(SUPERGIANT_WIDTH_TYPES[1] - 1)})` }
-  if (!evidence) return { ...WIDTH_CRITERION, value: null, vote: null, note: 'not measurable on this spectrum' }
+  if (!evidence) return { ...WIDTH_CRITERION, value: null, vote: null, note: emission ? 'not used: emission fills the Balmer lines' : 'not measurable on this spectrum' }
   const note = evidence.threshold === null ? 'the supergiant standards of the library do not stand apart in width' : `supergiants fall below ${round(evidence.threshold, 2)}`
   // Lines as wide as a giant's or dwarf's say only that the star is not a supergiant.
   const vote = evidence.supergiant ? classText(evidence.supergiant.classCode) : evidence.threshold === null ? null : 'II–V'
@@ -432,7 +434,7 @@ function widthVote(evidence: WidthEvidence | null, typeCode: number): Vote {
 function widthClassNote(width: number, evidence: WidthEvidence, luminosityClass: string): string {
   const st = evidence.supergiant?.standard
   const like = st ? `, as in ${st.star ?? st.spectralType} (${st.spectralType}), the supergiant standard nearest in width` : ''
-  return `Class ${luminosityClass} from the Balmer lines: ${round(width, 1)} Å wide at half depth, ${Math.round(100 * evidence.ratio)} % of the narrowest giant's or dwarf's within 3 subtypes, where supergiant standards stay below ${Math.round(100 * evidence.threshold!)} %${like}. The nearest standards are mostly giants and dwarfs, so their vote is set aside.`
+  return `Class ${luminosityClass} from the Balmer lines: ${round(width, 1)} Å wide at half depth, ${Math.round(100 * evidence.ratio)} % of the narrowest giant's or dwarf's within 3 subtypes, where the standards of this resolution part at ${Math.round(100 * evidence.threshold!)} % between supergiants and the rest${like}. The nearest standards are mostly giants and dwarfs, so their vote is set aside.`
 }
 
 /**
