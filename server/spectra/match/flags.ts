@@ -1,7 +1,7 @@
 /**
  * The quality flags of a suggestion that need more than one number: emission, a fit worse than
  * normal stars get, two stars in one spectrum, Balmer wings no normal star has, and spectra that
- * are not of a star at all.
+ * are not of a star at all; and the Balmer width that marks B–A supergiants.
  */
 import type { LineMeasurement } from '../measure/types'
 import { smoothPairChiSquare } from './chi2'
