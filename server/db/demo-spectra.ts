@@ -1,5 +1,5 @@
 // Invented demo spectra: demo stars (demo-stars.ts) observed through a made-up spectrograph.
-import { DEFAULT_GRID, SPEED_OF_LIGHT_KMS, gridWavelength } from '../../shared/grid'
+import { DEFAULT_GRID, SPEED_OF_LIGHT_KMS, gridIndex, gridWavelengths } from '../../shared/grid'
 import { seededRandom } from '../../shared/random'
 import { smoothSpectrumToFwhm } from '../spectra/prepare/smooth'
 import { demoStar } from './demo-stars'
@@ -33,10 +33,7 @@ const PIXELS = 1200
 export function demoObservation(target: DemoTarget, seed: number): { wavelength: Float64Array; flux: Float64Array; error: Float64Array } {
   const star = demoStar(target.mkType)
   const grid = DEFAULT_GRID
-  const shape = star.flux
-  const wl = new Float64Array(grid.length)
-  for (let i = 0; i < grid.length; i++) wl[i] = gridWavelength(grid, i)
-  const smooth = smoothSpectrumToFwhm({ wavelength: wl, flux: shape }, { grid, targetFwhm: RESOLUTION_FWHM, inputFwhm: star.fwhm })
+  const smooth = smoothSpectrumToFwhm({ wavelength: gridWavelengths(grid), flux: star.flux }, { grid, targetFwhm: RESOLUTION_FWHM, inputFwhm: star.fwhm })
   const rand = seededRandom(seed)
   const doppler = 1 + target.rv / SPEED_OF_LIGHT_KMS
   const wavelength = new Float64Array(PIXELS)
@@ -47,7 +44,7 @@ export function demoObservation(target: DemoTarget, seed: number): { wavelength:
   let counted = 0
   for (let i = 0; i < PIXELS; i++) {
     const lam = START + i * STEP
-    const x = Math.log(lam / doppler / grid.start) / grid.step
+    const x = gridIndex(grid, lam / doppler)
     const j = Math.min(grid.length - 2, Math.max(0, Math.floor(x)))
     const t = x - j
     const f = smooth.flux[j]! * (1 - t) + smooth.flux[j + 1]! * t
