@@ -385,11 +385,12 @@ function atLevel(options: AnalyseOptions, fwhm: number, level: number): AnalyseO
 
 /** The sharpest level coarser than `level` whose standards reach beyond `typeCode`'s end of `level`'s types. */
 function coarserLevelBeyond(library: PreparedMatchLibrary, level: number, typeCode: number): number | null {
-  const types = library.level(level).typeCodes
+  // Type codes only: preparing each coarser level to learn its reach costs about a second apiece.
+  const types = library.typeCodesAt(level)
   const early = typeCode - types[0]! < types[types.length - 1]! - typeCode
   for (const l of library.resolutions) {
     if (l <= level) continue
-    const other = library.level(l).typeCodes
+    const other = library.typeCodesAt(l)
     if (early ? other[0]! < types[0]! : other[other.length - 1]! > types[types.length - 1]!) return l
   }
   return null

@@ -106,6 +106,8 @@ export interface PreparedMatchLibrary {
   resolutions: number[]
   /** The level of resolution `fwhm` (one of `resolutions`), prepared on first use. */
   level(fwhm: number): LibraryLevel
+  /** The type codes of the standards that serve level `fwhm`, ascending, without preparing it (an instrument's view of the library may hold fewer). */
+  typeCodesAt(fwhm: number): number[]
   /** Decimation of the coarse blocks, pixels. */
   coarseStep: number
   /** Pixels per standard in a coarse block: ⌈pixels / coarseStep⌉. */
@@ -169,12 +171,17 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
   const sources = kept.map((s) => Float64Array.from(s.rectified))
   const continua = kept.map((s) => (s.continuum && s.continuum.length === grid.length ? s.continuum : null))
   const standards = kept.map(({ rectified: _r, continuum: _c, ...info }) => info)
-  const prepareLevel = (fwhm: number, range: readonly [number, number] | null): LibraryLevel => {
+  const rowsAt = (fwhm: number): number[] => {
     const rowList: number[] = []
     standards.forEach((s, k) => {
       // A standard up to 30 % coarser than the level still serves it: an estimated resolution may fall just short of the level where the only standards of some types (the O stars, at 15 Å) are.
       if (s.resolutionFwhm <= fwhm * 1.3) rowList.push(k)
     })
+    return rowList
+  }
+  const typeCodesAt = (fwhm: number): number[] => [...new Set(rowsAt(fwhm).map((k) => standards[k]!.typeCode))].sort((a, b) => a - b)
+  const prepareLevel = (fwhm: number, range: readonly [number, number] | null): LibraryLevel => {
+    const rowList = rowsAt(fwhm)
     const rows = Int32Array.from(rowList)
     const n = rows.length
     const level: LibraryLevel = {
@@ -185,7 +192,7 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
       coarse: new Float32Array(n * coarsePixels),
       neighbourResidual: new Float64Array(n),
       balmerWidth: new Float64Array(n),
-      typeCodes: [...new Set(rowList.map((k) => standards[k]!.typeCode))].sort((a, b) => a - b),
+      typeCodes: typeCodesAt(fwhm),
     }
     rows.forEach((k, r) => {
       const flux = sources[k]!
@@ -251,6 +258,7 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
         }
         return level
       },
+      typeCodesAt,
       coarseStep,
       coarsePixels,
       rectifiedOver(wanted: readonly [number, number]): PreparedMatchLibrary {

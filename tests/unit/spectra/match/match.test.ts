@@ -137,6 +137,17 @@ describe('replaceModelsByObserved', () => {
   })
 })
 
+describe('typeCodesAt', () => {
+  it('names the types a level reaches, as the prepared level does, standards up to 30 % coarser included', () => {
+    // The x30 standards are observed at 3 Å: too coarse for the 1.5 Å level (3 > 1.3 × 1.5), in the 3 Å one.
+    const mixed = toyLibrary().map((s) => (s.typeCode === 30 ? { ...s, resolutionFwhm: 3 } : s))
+    const lib = prepareMatchLibrary(mixed, { versionId: 8, versionName: 'toy-mixed', grid: DEFAULT_GRID, resolutions: [1.5, 3] })
+    expect(lib.typeCodesAt(1.5)).toEqual([10, 15, 20, 25])
+    expect(lib.typeCodesAt(3)).toEqual([10, 15, 20, 25, 30])
+    for (const fwhm of lib.resolutions) expect(lib.level(fwhm).typeCodes).toEqual(lib.typeCodesAt(fwhm))
+  })
+})
+
 describe('hasBalmerEmission', () => {
   const line = (id: string, ew: number, depth: number): LineMeasurement => ({
     id,
