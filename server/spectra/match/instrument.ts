@@ -112,10 +112,18 @@ export function libraryForInstrument(library: PreparedMatchLibrary, instrumentId
     }
     return entry
   }
+  // Without standards of its own, a view holds the library's general standards as they are.
+  const hasOwn = instrumentId !== null && library.standards.some((s) => isOwn(s, instrumentId))
   const view: InstrumentLibrary = {
     ...library,
     instrumentId,
     level: (fwhm: number) => derive(fwhm).level,
+    standardFlux: (fwhm: number, k: number) => {
+      if (!hasOwn && !levels.has(fwhm)) return isGeneral(library.standards[k]!) ? library.standardFlux(fwhm, k) : null
+      const { level } = derive(fwhm)
+      const r = level.rows.indexOf(k)
+      return r < 0 ? null : level.flux.subarray(r * library.pixels, (r + 1) * library.pixels)
+    },
     levelInfo: (fwhm: number) => derive(fwhm).info,
   }
   if (views.size >= CACHE_SIZE) views.delete(views.keys().next().value!)

@@ -108,6 +108,12 @@ export interface PreparedMatchLibrary {
   level(fwhm: number): LibraryLevel
   /** The type codes of the standards that serve level `fwhm`, ascending, without preparing it (an instrument's view of the library may hold fewer). */
   typeCodesAt(fwhm: number): number[]
+  /**
+   * Standard `k`'s flux at level `fwhm` over the span, as the level holds it (null when it is not in
+   * the level): from the level when it is prepared, else smoothed alone, so that a few standards at
+   * every level cost no level's preparation.
+   */
+  standardFlux(fwhm: number, k: number): Float32Array | null
   /** Decimation of the coarse blocks, pixels. */
   coarseStep: number
   /** Pixels per standard in a coarse block: ⌈pixels / coarseStep⌉. */
@@ -171,15 +177,39 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
   const sources = kept.map((s) => Float64Array.from(s.rectified))
   const continua = kept.map((s) => (s.continuum && s.continuum.length === grid.length ? s.continuum : null))
   const standards = kept.map(({ rectified: _r, continuum: _c, ...info }) => info)
+  // A standard up to 30 % coarser than the level still serves it: an estimated resolution may fall just short of the level where the only standards of some types (the O stars, at 15 Å) are.
+  const servesLevel = (s: MatchStandardInfo, fwhm: number) => s.resolutionFwhm <= fwhm * 1.3
   const rowsAt = (fwhm: number): number[] => {
     const rowList: number[] = []
     standards.forEach((s, k) => {
-      // A standard up to 30 % coarser than the level still serves it: an estimated resolution may fall just short of the level where the only standards of some types (the O stars, at 15 Å) are.
-      if (s.resolutionFwhm <= fwhm * 1.3) rowList.push(k)
+      if (servesLevel(s, fwhm)) rowList.push(k)
     })
     return rowList
   }
   const typeCodesAt = (fwhm: number): number[] => [...new Set(rowsAt(fwhm).map((k) => standards[k]!.typeCode))].sort((a, b) => a - b)
+  /** Standard `k` at level `fwhm` over the span: smoothed where it is sharper, and rectified over `range` again when one is given. */
+  const smoothedAt = (k: number, fwhm: number, range: readonly [number, number] | null): Float64Array => {
+    const flux = sources[k]!
+    const own = standards[k]!.resolutionFwhm
+    let smoothed: Float64Array = flux
+    const continuum = continua[k]
+    if (range && continuum) smoothed = rectifyOver(flux, continuum, fwhm > own * 1.001 ? { targetFwhm: fwhm, inputFwhm: own } : null, range)
+    else if (fwhm > own * 1.001) {
+      const mask = new Uint8Array(flux.length)
+      for (let i = 0; i < flux.length; i++) if (!Number.isFinite(flux[i]!) || (continuum && !Number.isFinite(continuum[i]!))) mask[i] = 1
+      if (continuum) {
+        // Smoothed as flux and rectified again, as a spectrum of this resolution is: blended lines
+        // move a fitted continuum, so smoothing the rectified flux would not give what a spectrum shows.
+        const raw = Float64Array.from(flux, (v, i) => (mask[i] ? 0 : v * continuum[i]!))
+        const blurred = smoothSpectrumToFwhm({ wavelength: all, flux: raw, mask }, { grid, targetFwhm: fwhm, inputFwhm: own })
+        const fit = fitSpectrumContinuum(blurred, { space: 'log' })
+        smoothed = Float64Array.from(fit.rectified, (v, i) => (blurred.mask![i] ? Number.NaN : v))
+      } else {
+        smoothed = smoothSpectrumToFwhm({ wavelength: all, flux, mask }, { grid, targetFwhm: fwhm, inputFwhm: own }).flux
+      }
+    }
+    return smoothed.subarray(offset, end)
+  }
   const prepareLevel = (fwhm: number, range: readonly [number, number] | null): LibraryLevel => {
     const rowList = rowsAt(fwhm)
     const rows = Int32Array.from(rowList)
@@ -195,26 +225,7 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
       typeCodes: typeCodesAt(fwhm),
     }
     rows.forEach((k, r) => {
-      const flux = sources[k]!
-      const own = standards[k]!.resolutionFwhm
-      let smoothed: Float64Array = flux
-      const continuum = continua[k]
-      if (range && continuum) smoothed = rectifyOver(flux, continuum, fwhm > own * 1.001 ? { targetFwhm: fwhm, inputFwhm: own } : null, range)
-      else if (fwhm > own * 1.001) {
-        const mask = new Uint8Array(flux.length)
-        for (let i = 0; i < flux.length; i++) if (!Number.isFinite(flux[i]!) || (continuum && !Number.isFinite(continuum[i]!))) mask[i] = 1
-        if (continuum) {
-          // Smoothed as flux and rectified again, as a spectrum of this resolution is: blended lines
-          // move a fitted continuum, so smoothing the rectified flux would not give what a spectrum shows.
-          const raw = Float64Array.from(flux, (v, i) => (mask[i] ? 0 : v * continuum[i]!))
-          const blurred = smoothSpectrumToFwhm({ wavelength: all, flux: raw, mask }, { grid, targetFwhm: fwhm, inputFwhm: own })
-          const fit = fitSpectrumContinuum(blurred, { space: 'log' })
-          smoothed = Float64Array.from(fit.rectified, (v, i) => (blurred.mask![i] ? Number.NaN : v))
-        } else {
-          smoothed = smoothSpectrumToFwhm({ wavelength: all, flux, mask }, { grid, targetFwhm: fwhm, inputFwhm: own }).flux
-        }
-      }
-      const slice = smoothed.subarray(offset, end)
+      const slice = smoothedAt(k, fwhm, range)
       level.flux.set(slice, r * pixels)
       for (let j = 0; j < coarsePixels; j++) level.coarse[r * coarsePixels + j] = slice[j * coarseStep]!
       CRITERIA.forEach((c, ci) => {
@@ -240,6 +251,18 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
   const views = new Map<string, PreparedMatchLibrary>()
   const view = (range: readonly [number, number] | null): PreparedMatchLibrary => {
     const levels = new Map<number, LibraryLevel>()
+    // Standards smoothed one at a time, per level, until so many are asked for that the whole level is prepared.
+    const loose = new Map<number, Map<number, Float32Array>>()
+    const levelOf = (fwhm: number): LibraryLevel => {
+      let level = levels.get(fwhm)
+      if (!level) {
+        if (!resolutions.includes(fwhm)) throw new Error(`${fwhm} Å is not a level of this library (${resolutions.join(', ')})`)
+        level = prepareLevel(fwhm, range)
+        levels.set(fwhm, level)
+        loose.delete(fwhm)
+      }
+      return level
+    }
     return {
       versionId: options.versionId,
       versionName: options.versionName,
@@ -249,16 +272,21 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
       wavelength,
       standards,
       resolutions,
-      level(fwhm: number): LibraryLevel {
-        let level = levels.get(fwhm)
-        if (!level) {
-          if (!resolutions.includes(fwhm)) throw new Error(`${fwhm} Å is not a level of this library (${resolutions.join(', ')})`)
-          level = prepareLevel(fwhm, range)
-          levels.set(fwhm, level)
-        }
-        return level
-      },
+      level: levelOf,
       typeCodesAt,
+      standardFlux(fwhm: number, k: number): Float32Array | null {
+        if (!servesLevel(standards[k]!, fwhm)) return null
+        if (!levels.has(fwhm)) {
+          let rows = loose.get(fwhm)
+          if (!rows) loose.set(fwhm, (rows = new Map()))
+          let flux = rows.get(k)
+          if (!flux && rows.size < LOOSE_STANDARDS) rows.set(k, (flux = Float32Array.from(smoothedAt(k, fwhm, range))))
+          if (flux) return flux
+        }
+        const level = levelOf(fwhm)
+        const r = level.rows.indexOf(k)
+        return level.flux.subarray(r * pixels, (r + 1) * pixels)
+      },
       coarseStep,
       coarsePixels,
       rectifiedOver(wanted: readonly [number, number]): PreparedMatchLibrary {
@@ -278,6 +306,9 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
   const full = view(null)
   return full
 }
+
+/** Standards a view smooths one at a time at a level (standardFlux) before it prepares the whole level. */
+const LOOSE_STANDARDS = 36
 
 /** Ranges the standards are rectified over are rounded to this many Å, so that spectra of one setting share them. */
 const RANGE_STEP = 25

@@ -37,14 +37,31 @@ export function estimateResolution(
     .sort((a, b) => first.fit.chi2[a]! - first.fit.chi2[b]!)
   const followed = order.slice(0, count).map((r) => first.level.rows[r]!)
   const s = first.scratch
+  const { pixels } = library
+  const rows = new Float32Array(followed.length * pixels)
   const curve = levels.map((fwhm) => {
-    const level = library.level(fwhm)
-    const list = Int32Array.from(followed.map((k) => level.rows.indexOf(k)).filter((r) => r >= 0))
-    const n = level.rows.length
-    const chi2 = new Float64Array(n).fill(Infinity)
-    depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, first.from, first.to, list, list.length, chi2, new Float64Array(n), new Float64Array(n))
+    // The followed standards alone: preparing whole levels for them would cost a second or more each.
+    let m = 0
+    for (const k of followed) {
+      const flux = library.standardFlux(fwhm, k)
+      if (flux) rows.set(flux, m++ * pixels)
+    }
+    const chi2 = new Float64Array(m).fill(Infinity)
+    depthScaledChiSquareSelected(
+      s.flux,
+      s.weights,
+      rows,
+      pixels,
+      first.from,
+      first.to,
+      Int32Array.from({ length: m }, (_, q) => q),
+      m,
+      chi2,
+      new Float64Array(m),
+      new Float64Array(m),
+    )
     let least = Infinity
-    for (const r of list) least = Math.min(least, chi2[r]!)
+    for (let q = 0; q < m; q++) least = Math.min(least, chi2[q]!)
     return { fwhm, chi2: least }
   })
   let j = 0

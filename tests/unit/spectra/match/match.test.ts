@@ -148,6 +148,21 @@ describe('typeCodesAt', () => {
   })
 })
 
+describe('standardFlux', () => {
+  it('gives a standard smoothed to a level exactly as the prepared level holds it, and null where it does not serve', () => {
+    const inputs = toyLibrary().map((s) => (s.typeCode === 30 ? { ...s, resolutionFwhm: 3 } : s))
+    const alone = prepareMatchLibrary(inputs, { versionId: 9, versionName: 'toy-alone', grid: DEFAULT_GRID, resolutions: [1.5, 3] })
+    const whole = prepareMatchLibrary(inputs, { versionId: 10, versionName: 'toy-whole', grid: DEFAULT_GRID, resolutions: [1.5, 3] })
+    const level = whole.level(3)
+    for (const k of [0, 5, 9]) {
+      const r = level.rows.indexOf(k)
+      // Standard 9 is at its own 3 Å, the others smoothed from 1.5 Å to 3 Å.
+      expect(Array.from(alone.standardFlux(3, k)!)).toEqual(Array.from(level.flux.subarray(r * whole.pixels, (r + 1) * whole.pixels)))
+    }
+    expect(alone.standardFlux(1.5, 9)).toBeNull()
+  })
+})
+
 describe('hasBalmerEmission', () => {
   const line = (id: string, ew: number, depth: number): LineMeasurement => ({
     id,
