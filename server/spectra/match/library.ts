@@ -253,10 +253,13 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
     const levels = new Map<number, LibraryLevel>()
     // Standards smoothed one at a time, per level, until so many are asked for that the whole level is prepared.
     const loose = new Map<number, Map<number, Float32Array>>()
+    const mustBeLevel = (fwhm: number) => {
+      if (!resolutions.includes(fwhm)) throw new Error(`${fwhm} Å is not a level of this library (${resolutions.join(', ')})`)
+    }
     const levelOf = (fwhm: number): LibraryLevel => {
       let level = levels.get(fwhm)
       if (!level) {
-        if (!resolutions.includes(fwhm)) throw new Error(`${fwhm} Å is not a level of this library (${resolutions.join(', ')})`)
+        mustBeLevel(fwhm)
         level = prepareLevel(fwhm, range)
         levels.set(fwhm, level)
         loose.delete(fwhm)
@@ -275,6 +278,7 @@ export function prepareMatchLibrary(inputs: readonly MatchStandardInput[], optio
       level: levelOf,
       typeCodesAt,
       standardFlux(fwhm: number, k: number): Float32Array | null {
+        mustBeLevel(fwhm)
         if (!servesLevel(standards[k]!, fwhm)) return null
         if (!levels.has(fwhm)) {
           let rows = loose.get(fwhm)

@@ -160,6 +160,7 @@ describe('standardFlux', () => {
       expect(Array.from(alone.standardFlux(3, k)!)).toEqual(Array.from(level.flux.subarray(r * whole.pixels, (r + 1) * whole.pixels)))
     }
     expect(alone.standardFlux(1.5, 9)).toBeNull()
+    expect(() => alone.standardFlux(2, 0)).toThrow(/not a level/)
   })
 })
 
