@@ -224,6 +224,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
       }
     }
   }
+  if (suggestion.typeNote) notes.push(suggestion.typeNote)
   const notStar = notStarReason(library, analysis, resolution.level!, suggestion)
   if (notStar) {
     notes.push(`Not a star: ${notStar}.`)

@@ -53,6 +53,17 @@ export interface MatchOptions {
   classBalance?: number
   /** S/N below which 'low-snr' is set. @default 20 */
   lowSnr?: number
+  /**
+   * Subtypes by which the local model of the voters (localModelFit: linear in type, class and
+   * [Fe/H]) must differ from the vote before its type is taken instead. Chosen from 1.5, 2, 3 and 4
+   * on the MILES stars at native resolution (leave one star out). @default 3
+   */
+  typeModelLead?: number
+  /**
+   * Classes by which the local model's class must differ from the vote before it is taken instead.
+   * Chosen from 0.75, 1 and 1.5 on the MILES stars at native resolution (leave one star out). @default 1.5
+   */
+  classModelLead?: number
   /** Full χ² for every standard instead of screening on every `coarseStep`-th pixel first. @default false */
   exhaustive?: boolean
   /** Standards refined with the full χ² after screening (at least twice `neighbours`). @default 48 */
@@ -125,6 +136,8 @@ export interface MatchResult {
   classShares: { luminosityClass: string; classCode: number; p: number }[]
   /** Why the class differs from the best candidate's, when it does. */
   classNote: string | null
+  /** Why the type differs from the vote of the nearest standards, when it does. */
+  typeNote: string | null
   /** Teff, log g, [Fe/H] from the voting standards' published parameters (a spectroscopic estimate). */
   parameters: ParameterEstimate
   libraryVersion: { id: number; name: string }
