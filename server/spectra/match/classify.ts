@@ -20,6 +20,8 @@ interface Scratch {
 }
 /** Voter weights of the local model, exp(−(χ²/χ²_min − 1)/T): broader than the vote's, as a fit needs spread. */
 const LOCAL_MODEL_TEMPERATURE = 3
+/** Width in type (subtypes) of the weight that reads the parameters off the voters nearest the model's type. */
+const MODEL_PARAMETER_SUBTYPES = 2
 
 const scratchByLibrary = new WeakMap<PreparedMatchLibrary, Scratch>()
 
@@ -392,7 +394,9 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   const classNote =
     overruled !== null && byWidth ? widthClassNote(width, byWidth, luminosityClass) : describeClassChoice(classCode, bestStd.classCode, bestStd.spectralType, classShares, voters.length)
 
-  const parameters = parameterEstimate(voters.slice(0, typeVoters).map(std), typeWeights.slice(0, typeVoters))
+  // With the model's type shown, the parameters are read off the voters nearest that type, so that Teff agrees with it.
+  const parameterWeights = typeWeights.slice(0, typeVoters).map((w, q) => (modelLeads ? w * Math.exp(-0.5 * ((types[q]! - typeCode) / MODEL_PARAMETER_SUBTYPES) ** 2) : w))
+  const parameters = parameterEstimate(voters.slice(0, typeVoters).map(std), parameterWeights)
 
   // Flags.
   const flags: SuggestionFlag[] = []
