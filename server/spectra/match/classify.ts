@@ -241,7 +241,8 @@ export function windowMode(values: ArrayLike<number>, weights: ArrayLike<number>
  *    from the vote by more than `typeModelLead` subtypes, again with a note.
  * 4. Uncertainties: the vote-weighted spread of the voters' types and classes about the estimate
  *    (at least 0.5 subtype and 0.25 class).
- * 5. Teff, log g and [Fe/H]: the vote-weighted mean and spread of the voters' published values.
+ * 5. Teff, log g and [Fe/H]: the vote-weighted mean and spread of the voters' published values
+ *    (weighted toward the shown type when it is the local model's).
  * Flags: 'low-snr', 'emission', 'poor-fit' (best-fit residual beyond what normal stars of the type
  * show against their nearest standard), 'outside-grid' (the type sits at an end of the level's
  * types), 'possible-composite' (flags.ts), 'not-mk' (Balmer wings broader than any dwarf's).
