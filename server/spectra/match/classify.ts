@@ -329,7 +329,7 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   const modelLeads = model !== null && Math.abs(model.typeCode - sparse) > typeModelLead
   const typeCode = modelLeads ? Math.round(model.typeCode) : sparse
   const typeNote = modelLeads
-    ? `The type comes from a linear model of the ${voters.length} nearest standards in type, class and [Fe/H], which fits the spectrum as ${formatTypeCode(typeCode)} at [Fe/H] ${model.feh.toFixed(1)}; their vote, ${formatTypeCode(sparse)}, leans to the types of which the library holds most.`
+    ? `The type comes from a linear model of the ${voters.length} nearest standards in type, class and [Fe/H], which fits the spectrum as ${formatTypeCode(typeCode)} at [Fe/H] ${(Math.round(model.feh * 10) / 10 || 0).toFixed(1)}; their vote alone says ${formatTypeCode(sparse)}.`
     : null
   const votedClass = windowMode(classes, classWeights, 0.5, 0.5, 1, 6)
   const spread = (values: Float64Array, w: Float64Array, centre: number) => {
