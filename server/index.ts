@@ -12,7 +12,7 @@ import { JobRunner } from './jobs/runner'
 import { RedisPublisher } from './jobs/redis'
 import { moveRawFilesToStore } from './services/spectra.service'
 import { ensureDefaultLibrary } from './services/standards.service'
-import { setAuditRunner } from './services/audit.service'
+import { auditFromWorker, setAuditRunner, type AuditWorkerResult } from './services/audit.service'
 import { Piscina } from 'piscina'
 import { createFileStore } from './storage'
 
@@ -61,7 +61,9 @@ const mailer = createMailer({ ...config, SMTP_PORT: fakeSmtp?.port ?? config.SMT
 // The audit grows with the stored calls: a thread of its own keeps requests answered meanwhile.
 // Kept started, so the first audit does not wait for a thread to load the code and connect.
 const auditPool = new Piscina({ filename: new URL('./jobs/audit-worker.ts', import.meta.url).href, maxThreads: 1, minThreads: 1, idleTimeout: Number.POSITIVE_INFINITY })
-setAuditRunner((query, campaign) => auditPool.run({ campaign, campaignId: query.campaignId, from: query.from?.toISOString() ?? null, to: query.to?.toISOString() ?? null }))
+setAuditRunner(async (query, campaign) =>
+  auditFromWorker((await auditPool.run({ campaign, campaignId: query.campaignId, from: query.from?.toISOString() ?? null, to: query.to?.toISOString() ?? null })) as AuditWorkerResult),
+)
 // Uploaded files are read and archives unpacked in threads of their own, not on the request thread.
 const reading = new ReadPool({ threads: config.READ_THREADS })
 // QUEUE=redis: this process only publishes; `npm run worker` processes run the pipeline.

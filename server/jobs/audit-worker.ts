@@ -3,7 +3,8 @@
 // away from the thread that answers requests. The thread keeps its own database connection.
 import { loadConfig } from '../config'
 import { createSequelize } from '../db'
-import { auditReportJson, type AuditCampaignRef } from '../services/audit.service'
+import { isDatabaseUnavailable, withRetry } from '../lib/db-errors'
+import { auditReportJson, type AuditCampaignRef, type AuditWorkerResult } from '../services/audit.service'
 
 // Made when the thread starts (defining the models takes a noticeable part of a first audit); it
 // connects on the first query.
@@ -16,6 +17,13 @@ export interface AuditTask {
   to: string | null
 }
 
-export default async function report(task: AuditTask): Promise<string> {
-  return auditReportJson({ campaignId: task.campaignId, from: task.from ? new Date(task.from) : undefined, to: task.to ? new Date(task.to) : undefined }, task.campaign)
+export default async function report(task: AuditTask): Promise<AuditWorkerResult> {
+  const query = { campaignId: task.campaignId, from: task.from ? new Date(task.from) : undefined, to: task.to ? new Date(task.to) : undefined }
+  try {
+    // A connection dropped or refused for a moment is tried again before the lead is told.
+    return await withRetry(() => auditReportJson(query, task.campaign), { tries: 3, baseMs: 100 })
+  } catch (error) {
+    if (isDatabaseUnavailable(error)) return { databaseUnavailable: (error as Error).message }
+    throw error
+  }
 }

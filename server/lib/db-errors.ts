@@ -31,3 +31,30 @@ export function isDatabaseUnavailable(error: unknown): boolean {
   }
   return false
 }
+
+/** MariaDB errors that a second try usually gets past: deadlock (1213) and lock wait timeout (1205). */
+export function isTransient(error: unknown): boolean {
+  for (let e = error as { errno?: number; parent?: unknown; original?: unknown } | undefined, depth = 0; e && depth < 4; depth++) {
+    if (e.errno === 1213 || e.errno === 1205) return true
+    e = (e.parent ?? e.original) as typeof e
+  }
+  return isDatabaseUnavailable(error)
+}
+
+/**
+ * Runs `work` again after a deadlock, a lock wait timeout or a lost connection, waiting a little
+ * longer each time with some randomness so that two writers that collided do not collide again.
+ */
+export async function withRetry<T>(work: () => Promise<T>, options: { tries?: number; baseMs?: number } = {}): Promise<T> {
+  const tries = options.tries ?? 5
+  const base = options.baseMs ?? 50
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await work()
+    } catch (error) {
+      if (attempt >= tries || !isTransient(error)) throw error
+      const wait = base * 2 ** (attempt - 1) * (0.5 + Math.random())
+      await new Promise((r) => setTimeout(r, wait))
+    }
+  }
+}

@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto'
-import { Op, QueryTypes } from 'sequelize'
+import { ConnectionError, Op, QueryTypes } from 'sequelize'
 import { agreementFraction, classAgreementFraction, classesAgree, codesWithin, cohenKappa, fleissKappa, reconcileClasses, weightedKappaOfCounts, confusionMatrix } from '../../shared/agreement'
 import { LUMINOSITY_CLASSES, MK_LETTERS } from '../../shared/mk'
 import { notFound } from '../lib/http-error'
@@ -814,6 +814,18 @@ export async function auditReportJson(query: AuditQuery, campaign: AuditCampaign
  * computing the figures and writing the JSON all grow with the stored data. Unset, it is built in place.
  */
 export type AuditRunner = (query: AuditQuery, campaign: AuditCampaignRef) => Promise<string>
+
+/**
+ * What the audit's worker thread sends back: the report, or why the database could not give it (an
+ * error's class and code do not survive the way between threads).
+ */
+export type AuditWorkerResult = string | { databaseUnavailable: string }
+
+/** The report from a worker's answer; a database it could not reach is thrown as such, so the API answers 503 with Retry-After. */
+export function auditFromWorker(result: AuditWorkerResult): string {
+  if (typeof result === 'string') return result
+  throw new ConnectionError(new Error(result.databaseUnavailable))
+}
 let auditRunner: AuditRunner | null = null
 export function setAuditRunner(runner: AuditRunner | null): void {
   auditRunner = runner

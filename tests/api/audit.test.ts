@@ -4,6 +4,7 @@ import { Campaign, Classification, LibraryVersion, Measurement, ReviewCall, Spec
 import {
   agreementFigures,
   auditFigures,
+  auditFromWorker,
   auditReportJson,
   getAuditJson,
   isoWeek,
@@ -449,6 +450,22 @@ describe('GET /api/audit', () => {
     } finally {
       setAuditRunner(null)
       await people[0]!.update({ name: 'Audit A' })
+    }
+  })
+
+  it('answers 503 with Retry-After when the report’s thread could not reach the database, and the report once it can', async () => {
+    // The worker thread's answer when its own connection fails (an error's class does not cross threads).
+    setAuditRunner(async () => auditFromWorker({ databaseUnavailable: 'connect ECONNREFUSED 127.0.0.1:1' }))
+    try {
+      const url = `/api/audit?campaign=${campaign.id}&from=2025-01-02`
+      const down = await lead.agent.get(url).expect(503)
+      expect(down.headers['retry-after']).toBeDefined()
+      expect(down.body.error.code).toBe('database_unavailable')
+      // The failed report is not kept: the next request computes it.
+      setAuditRunner(auditReportJson)
+      await lead.agent.get(url).expect(200)
+    } finally {
+      setAuditRunner(null)
     }
   })
 

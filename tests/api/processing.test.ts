@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { claimJobs, loadJob, storeOutput, withRetry } from '../../server/jobs/process'
+import { claimJobs, loadJob, storeOutput } from '../../server/jobs/process'
+import { withRetry } from '../../server/lib/db-errors'
 import runTask from '../../server/jobs/worker'
 import { Campaign, CampaignMember, LineMeasurementRow, Measurement, ProcessingJob, Spectrum } from '../../server/models'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'

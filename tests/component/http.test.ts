@@ -47,6 +47,28 @@ describe('http', () => {
     expect(headersOf(fetch.mock.calls[2] as unknown[])['x-csrf-token']).toBe('tok-1')
   })
 
+  it('sends a GET again after a 503, waiting its Retry-After, and gives up after two more tries', async () => {
+    const unavailable = () =>
+      new Response(JSON.stringify({ error: { code: 'database_unavailable', message: 'The database is unavailable at the moment.', details: null } }), {
+        status: 503,
+        headers: { 'content-type': 'application/json', 'retry-after': '0' },
+      })
+    const fetch = mockFetch(unavailable(), jsonResponse(200, { users: [1] }))
+    await expect(http.get('/users')).resolves.toEqual({ users: [1] })
+    expect(fetch).toHaveBeenCalledTimes(2)
+
+    const again = mockFetch(unavailable(), unavailable(), unavailable())
+    await expect(http.get('/users')).rejects.toMatchObject({ status: 503, code: 'database_unavailable' })
+    expect(again).toHaveBeenCalledTimes(3)
+  })
+
+  it('does not send a POST again after a 503: it may have changed something', async () => {
+    setCsrfToken('tok')
+    const fetch = mockFetch(new Response(JSON.stringify({ error: { code: 'database_unavailable', message: 'Later.', details: null } }), { status: 503, headers: { 'retry-after': '0' } }))
+    await expect(http.post('/users', { name: 'C' })).rejects.toMatchObject({ status: 503 })
+    expect(fetch).toHaveBeenCalledTimes(1)
+  })
+
   it('sends no CSRF token with GET requests', async () => {
     const fetch = mockFetch(jsonResponse(200, { users: [] }))
     await http.get('/users', { query: { page: 2, q: undefined } })
