@@ -120,10 +120,29 @@ async function send(method: Method, url: string, body: unknown, options: Request
   }
 }
 
+/** Seconds a 429 or 503 asks to wait (Retry-After in seconds; an HTTP date is read too). */
+export function retryAfterSeconds(header: string | null): number | null {
+  if (!header) return null
+  const seconds = Number(header)
+  if (Number.isFinite(seconds) && seconds >= 0) return seconds
+  const at = Date.parse(header)
+  return Number.isNaN(at) ? null : Math.max(0, (at - Date.now()) / 1000)
+}
+
+/** Times a GET answered 503 (the database away for a moment) is sent again, each after its Retry-After, capped. */
+const GET_RETRIES_ON_503 = 2
+const GET_RETRY_MAX_SECONDS = 3
+
 async function request<T>(method: Method, path: string, body: unknown, options: RequestOptions = {}): Promise<T> {
   const url = buildUrl(path, options.query)
   try {
     let response = await send(method, url, body, options)
+    // Reading changes nothing, so a short outage costs a short wait rather than an error on the screen.
+    for (let attempt = 0; method === 'GET' && response.status === 503 && attempt < GET_RETRIES_ON_503 && !options.signal?.aborted; attempt++) {
+      const seconds = Math.min(retryAfterSeconds(response.headers.get('retry-after')) ?? 1, GET_RETRY_MAX_SECONDS)
+      await new Promise((resolve) => setTimeout(resolve, seconds * 1000))
+      response = await send(method, url, body, options)
+    }
     if (response.status === 403 && method !== 'GET') {
       const error = await errorFrom(response.clone())
       if (error.code === 'csrf_failed') {

@@ -12,7 +12,7 @@ import {
   type SubmitReply,
 } from '@shared/api/spectra'
 import type { SuggestionSummary } from '@shared/api/suggestions'
-import { ApiError, NETWORK_ERROR, NETWORK_MESSAGE, call, currentCsrfToken, setCsrfToken, type ApiErrorDetails } from './http'
+import { ApiError, NETWORK_ERROR, NETWORK_MESSAGE, call, currentCsrfToken, retryAfterSeconds, setCsrfToken, type ApiErrorDetails } from './http'
 import { getSeries } from './series'
 
 export type { SpectrumHistory }
@@ -133,15 +133,6 @@ export function submitFormData(fields: SubmitFields, files: readonly UploadFile[
 export interface UploadHandle {
   promise: Promise<SubmitReply>
   abort: () => void
-}
-
-/** Seconds a 429 or 503 asks to wait (Retry-After in seconds; an HTTP date is read too). */
-export function retryAfterSeconds(header: string | null): number | null {
-  if (!header) return null
-  const seconds = Number(header)
-  if (Number.isFinite(seconds) && seconds >= 0) return seconds
-  const at = Date.parse(header)
-  return Number.isNaN(at) ? null : Math.max(0, (at - Date.now()) / 1000)
 }
 
 /**
