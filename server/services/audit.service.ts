@@ -814,6 +814,10 @@ export async function auditReportJson(query: AuditQuery, campaign: AuditCampaign
  * computing the figures and writing the JSON all grow with the stored data. Unset, it is built in place.
  */
 export type AuditRunner = (query: AuditQuery, campaign: AuditCampaignRef) => Promise<string>
+let auditRunner: AuditRunner | null = null
+export function setAuditRunner(runner: AuditRunner | null): void {
+  auditRunner = runner
+}
 
 /**
  * What the audit's worker thread sends back: the report, or why the database could not give it (an
@@ -825,10 +829,6 @@ export type AuditWorkerResult = string | { databaseUnavailable: string }
 export function auditFromWorker(result: AuditWorkerResult): string {
   if (typeof result === 'string') return result
   throw new ConnectionError(new Error(result.databaseUnavailable))
-}
-let auditRunner: AuditRunner | null = null
-export function setAuditRunner(runner: AuditRunner | null): void {
-  auditRunner = runner
 }
 
 /**
