@@ -14,7 +14,7 @@ import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { availableParallelism, loadavg, tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { QueryTypes, type Sequelize } from 'sequelize'
-import { ensureDatabase, ensureDebianPackages, freePort, startMariaDB, startRedis } from '../scripts/lib/setup.mjs'
+import { WORKER_NODE_FLAGS, ensureDatabase, ensureDebianPackages, freePort, startMariaDB, startRedis } from '../scripts/lib/setup.mjs'
 import { loadConfig } from '../server/config'
 import { createSequelize } from '../server/db'
 import { migrateUp } from '../server/db/migrate'
@@ -68,9 +68,9 @@ await migrateUp(sequelize)
 await ensureDefaultLibrary(sequelize)
 
 const children: ChildProcess[] = []
-function startProcess(script: string, env: NodeJS.ProcessEnv): ChildProcess {
+function startProcess(script: string, env: NodeJS.ProcessEnv, ownFlags: string[] = []): ChildProcess {
   // BENCH_NODE_FLAGS, e.g. "--cpu-prof --cpu-prof-dir=/tmp/prof", goes to every server and worker process.
-  const flags = (process.env.BENCH_NODE_FLAGS ?? '').split(' ').filter(Boolean)
+  const flags = [...ownFlags, ...(process.env.BENCH_NODE_FLAGS ?? '').split(' ').filter(Boolean)]
   const child = spawn('node_modules/.bin/tsx', [...flags, script], { env: { ...baseEnv, ...env }, detached: true, stdio: ['ignore', 'inherit', 'inherit'] })
   children.push(child)
   return child
@@ -187,7 +187,7 @@ async function ingest(
   campaign: Campaign,
 ): Promise<IngestResult> {
   const server = await startServer(serverEnv)
-  const workers = Array.from({ length: workerProcesses }, () => startProcess('server/worker.ts', { ...serverEnv, WORKERS: '1' }))
+  const workers = Array.from({ length: workerProcesses }, () => startProcess('server/worker.ts', { ...serverEnv, WORKERS: '1' }, WORKER_NODE_FLAGS))
   await sleep(workerProcesses > 0 ? 4000 : 500)
   const client = await Client.signIn(server.url, observer.email)
   let refused = 0

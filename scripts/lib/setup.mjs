@@ -11,6 +11,14 @@ export function log(message) {
   process.stdout.write(`[lineweight] ${message}\n`)
 }
 
+/**
+ * Node flags of `npm run worker` processes (QUEUE=redis), written out in package.json as well: each
+ * thread collects its own garbage, without V8's GC helper threads, which only compete with the
+ * pipeline while it keeps every core busy. Not for the web server, whose queue pages took twice as
+ * long with it (DEVELOPERS.md).
+ */
+export const WORKER_NODE_FLAGS = ['--single-threaded-gc']
+
 /** Runs a command to completion with inherited output; throws on a non-zero exit. */
 export function run(command, args, options = {}) {
   const result = spawnSync(command, args, { stdio: 'inherit', cwd: root, ...options })

@@ -1,5 +1,6 @@
 import { spawn, type ChildProcess } from 'node:child_process'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { WORKER_NODE_FLAGS } from '../../scripts/lib/setup.mjs'
 import { RedisPublisher } from '../../server/jobs/redis'
 import { createLogger } from '../../server/lib/logger'
 import { Campaign, CampaignMember, Measurement, ProcessingJob, Suggestion } from '../../server/models'
@@ -16,7 +17,7 @@ interface WorkerProcess {
 }
 
 function startWorker(): WorkerProcess {
-  const child = spawn('node_modules/.bin/tsx', ['server/worker.ts'], {
+  const child = spawn('node_modules/.bin/tsx', [...WORKER_NODE_FLAGS, 'server/worker.ts'], {
     env: { ...process.env, WORKERS: '1', LOG_LEVEL: 'info', JOB_POLL_SECONDS: '1' },
     detached: true,
     stdio: ['ignore', 'pipe', 'pipe'],
