@@ -14,8 +14,8 @@ export function log(message) {
 /**
  * Node flags of `npm run worker` processes (QUEUE=redis), written out in package.json as well: each
  * thread collects its own garbage, without V8's GC helper threads, which only compete with the
- * pipeline while it keeps every core busy. Not for the web server, whose queue pages took twice as
- * long with it (DEVELOPERS.md).
+ * pipeline while it keeps every core busy. Not for the web server, whose queue pages were slower
+ * with it (DEVELOPERS.md).
  */
 export const WORKER_NODE_FLAGS = ['--single-threaded-gc']
 
