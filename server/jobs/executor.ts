@@ -3,11 +3,10 @@ import { Piscina } from 'piscina'
 import type { Logger } from 'pino'
 import type { Sequelize } from 'sequelize'
 import { isDatabaseUnavailable } from '../lib/db-errors'
-import type { PipelineOutput } from '../spectra/pipeline'
 import { librarySpecFor } from '../services/standards.service'
 import { loadJob, recordFailure, releaseJobs, renewLeases, returnLapsed, storeOutput, type ClaimedJob } from './process'
 import type { LibrarySpec } from '../spectra/match/load'
-import runTask from './worker'
+import runTask, { type StoredPipelineOutput } from './worker'
 
 export interface ExecutorOptions {
   sequelize: Sequelize
@@ -77,7 +76,7 @@ export class JobExecutor {
       const { input, versionId } = await loadJob(job.spectrumId)
       if (versionId !== undefined) input.library = await this.specFor(versionId)
       if (this.stopped) throw new Error('stopping')
-      const output = this.pool ? ((await this.pool.run(input)) as PipelineOutput) : runTask(input)
+      const output = this.pool ? ((await this.pool.run(input)) as StoredPipelineOutput) : runTask(input)
       await storeOutput(this.options.sequelize, job, output, versionId)
       logger.info({ jobId: job.id, spectrumId: job.spectrumId, seconds: output.seconds }, 'spectrum measured')
     } catch (error) {

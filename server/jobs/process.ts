@@ -9,6 +9,7 @@ import { sqlTime } from '../lib/sql-time'
 import { withRetry } from '../lib/db-errors'
 import { ProcessingJob, Spectrum } from '../models'
 import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
+import type { StoredPipelineOutput } from './worker'
 import { PRE_REVIEW, storePipelineOutput } from '../services/measurements.service'
 import type { WorkerTask } from './worker'
 
@@ -120,7 +121,7 @@ export async function loadJob(spectrumId: number): Promise<{ input: WorkerTask; 
  * first and updated by key, so concurrent writers for other spectra never lock each other's index
  * ranges; a deadlock or lost connection is retried with back-off.
  */
-export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output: PipelineOutput, libraryVersionId: number | undefined): Promise<void> {
+export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output: PipelineOutput | StoredPipelineOutput, libraryVersionId: number | undefined): Promise<void> {
   await withRetry(() =>
     sequelize.transaction(READ_COMMITTED, async (transaction) => {
       await storePipelineOutput(sequelize, job.spectrumId, output, libraryVersionId, transaction)

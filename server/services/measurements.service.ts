@@ -9,6 +9,7 @@ import { sqlTime } from '../lib/sql-time'
 import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, type User } from '../models'
 import type { AppContext } from '../context'
 import type { PipelineOutput } from '../spectra/pipeline'
+import type { StoredPipelineOutput } from '../jobs/worker'
 import { replaceFlagRows, storeSuggestion, suggestionDetails } from './suggestions.service'
 import { findVisibleSpectrum } from './visibility'
 import type { LineRow, MeasurementSummary, SpectrumMeasurements } from '../../shared/api/measurements'
@@ -125,7 +126,13 @@ const PRE_REVIEW_SUGGESTED = [...PRE_REVIEW, 'suggested']
  * flags the queue filters by), and the spectrum's status. Earlier current rows are found first and
  * updated by key, so writers for other spectra never lock each other's index ranges.
  */
-export async function storePipelineOutput(sequelize: Sequelize, spectrumId: number, output: PipelineOutput, libraryVersionId: number | undefined, transaction: Transaction): Promise<void> {
+export async function storePipelineOutput(
+  sequelize: Sequelize,
+  spectrumId: number,
+  output: PipelineOutput | StoredPipelineOutput,
+  libraryVersionId: number | undefined,
+  transaction: Transaction,
+): Promise<void> {
   const { analysis } = output
   const p = analysis.prepared
   const lines = analysis.lines.map((l) =>
