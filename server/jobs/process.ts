@@ -9,9 +9,8 @@ import { sqlTime } from '../lib/sql-time'
 import { withRetry } from '../lib/db-errors'
 import { ProcessingJob, Spectrum } from '../models'
 import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
-import type { StoredPipelineOutput } from './worker'
 import { PRE_REVIEW, storePipelineOutput } from '../services/measurements.service'
-import type { WorkerTask } from './worker'
+import type { StoredPipelineOutput, WorkerTask } from './worker'
 
 /** Transactions here take no gap locks: rows are found by key, and concurrent inserts never wait on them. */
 const READ_COMMITTED = { isolationLevel: Transaction.ISOLATION_LEVELS.READ_COMMITTED }

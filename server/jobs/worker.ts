@@ -15,8 +15,8 @@ export type StoredPrepared = Pick<PreparedSpectrum, 'grid' | 'mask'> & { flux: F
 export type StoredPipelineOutput = Omit<PipelineOutput, 'analysis'> & { analysis: Omit<AnalysisResult, 'prepared'> & { prepared: StoredPrepared } }
 
 /**
- * The output with only what a measurement stores of the prepared spectrum, in float32: a third of
- * the bytes that were copied back to the main thread and collected there for every spectrum.
+ * The output with only what a measurement stores of the prepared spectrum, in float32: a half to a
+ * third of the bytes that were copied back to the main thread and collected there for every spectrum.
  */
 export function forStorage(output: PipelineOutput): StoredPipelineOutput {
   const { grid, mask, flux, continuum, rectified } = output.analysis.prepared
