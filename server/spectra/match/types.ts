@@ -60,11 +60,6 @@ export interface MatchOptions {
    * subtype from 79.4 to 80.2 %. @default 3
    */
   typeModelLead?: number
-  /**
-   * Classes by which the local model's class must differ from the vote before it is taken instead.
-   * Chosen from 0.75, 1 and 1.5 on the MILES stars at native resolution (leave one star out). @default 1.5
-   */
-  classModelLead?: number
   /** Full χ² for every standard instead of screening on every `coarseStep`-th pixel first. @default false */
   exhaustive?: boolean
   /** Standards refined with the full χ² after screening (at least twice `neighbours`). @default 48 */
