@@ -33,9 +33,21 @@ export interface ContinuumOptions {
    * 'log' fits the polynomial to ln F: a smooth factor on the flux (reddening, a flux calibration,
    * an instrument's response) is then a smooth term added to ln F, which the polynomial takes up,
    * so two spectra that differ by such a factor are rectified nearly alike (the weights, the
-   * inverse variance of ln F, still follow F). 'linear' fits F itself. @default 'linear'
+   * inverse variance of ln F, still follow F: F/σ² with errors, F itself without). 'linear' fits F
+   * itself. @default 'linear'
    */
   space?: 'linear' | 'log'
+  /**
+   * The weights are kept within this factor of their median. In ln F the weights (F/σ)² follow the
+   * square of any instrument response: one 20× steeper across the spectrum than the flux-calibrated
+   * standards left one end almost unweighted, and the polynomial wandered there. With the weights
+   * capped, MILES stars run through such responses (leave one star out, resolution not given) were
+   * typed within ±1 subtype 73.6 % instead of 58.9 % (λ⁴), 76.4 % instead of 74.0 % (λ⁻⁴) and
+   * 74.8 % instead of 68.2 % (a Gaussian hump of 1500 Å), and flux-calibrated ones as before.
+   * Chosen from 3, 4, 5, 7, 10 and 20: the smallest that left the tuning half and the npm test
+   * gates as they were. @default 10 in ln F, none in F
+   */
+  weightRange?: number
 }
 
 export interface ContinuumResult {
@@ -58,8 +70,8 @@ export interface ContinuumResult {
 /**
  * Fits the continuum and divides it out. Method: an iterative, asymmetric sigma-clipped polynomial
  * fit (common practice since IRAF's `continuum` task): a Chebyshev series in wavelength, fitted by
- * weighted least squares (weights 1/σ², σ floored at a tenth of the median error; uniform without
- * errors), ignoring the Balmer wings and strong bands of the line table; after each pass, pixels
+ * weighted least squares (weights 1/σ², σ floored at a tenth of the median error; without errors,
+ * uniform for F and F for ln F, as photon noise gives), ignoring the Balmer wings and strong bands of the line table; after each pass, pixels
  * more than `lowSigma` rms below or `highSigma` rms above the fit are dropped, until nothing changes.
  * The asymmetry lets the fit ride the top of the spectrum, above the absorption lines. Fitting in
  * Chebyshev form keeps the normal equations well conditioned, so steep blue continua of hot stars
@@ -83,6 +95,7 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
     space = 'linear',
   } = options
   const log = space === 'log'
+  const weightRange = options.weightRange ?? (log ? 10 : undefined)
   const { wavelength, flux, error } = spectrum
   const n = wavelength.length
   let first = -1
@@ -149,6 +162,7 @@ export function fitSpectrumContinuum(spectrum: Spectrum1D, options: ContinuumOpt
       m++
     }
   }
+  if (weightRange !== undefined) clampToMedian(ws, m, weightRange)
   const deg = Math.max(0, Math.min(degree, Math.floor(m / 3) - 1))
   if (m < 2 || deg < 0) throw new Error(`too few continuum points to fit: ${m}`)
 
@@ -271,6 +285,14 @@ function inRanges(w: number, ranges: readonly WavelengthRange[]): boolean {
 
 function scale(w: number, lo: number, hi: number): number {
   return hi > lo ? (2 * (w - lo)) / (hi - lo) - 1 : 0
+}
+
+/** Clamps the first m weights that are positive to [median / range, median × range] about their median. */
+function clampToMedian(ws: Float64Array, m: number, range: number): void {
+  const positive = Float64Array.from(ws.subarray(0, m)).filter((w) => w > 0)
+  if (positive.length === 0) return
+  const median = kthSmallest(positive, positive.length >> 1)
+  for (let k = 0; k < m; k++) if (ws[k]! > 0) ws[k] = Math.min(median * range, Math.max(median / range, ws[k]!))
 }
 
 /** Chebyshev series Σ cₖ Tₖ(x) by Clenshaw's recurrence. */

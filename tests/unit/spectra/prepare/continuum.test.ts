@@ -116,4 +116,30 @@ describe('fitSpectrumContinuum in ln F', () => {
     const inF = medianIn(fitSpectrumContinuum({ wavelength: w, flux: f }).rectified, fitSpectrumContinuum({ wavelength: w, flux: reddened }).rectified)
     expect(inF).toBeGreaterThan(2 * inLog)
   }, 30_000)
+
+  it('rectifies a real K giant alike under a response 20× steeper across the spectrum, as an unfluxed spectrum can show, because no pixel weight strays far from the median', async () => {
+    const { loadObservedLibrary } = await import('../../../../templates/observed/library')
+    const { DEFAULT_OBSERVED_DIR } = await import('../../../../server/spectra/match/load')
+    // HD 207130, K0 III (MILES v9.1), 3550–7400 Å, times (λ / 5000 Å)⁴: 0.25 at 3550 Å, 4.8 at 7400 Å.
+    const library = loadObservedLibrary(DEFAULT_OBSERVED_DIR)
+    const star = library.standards.find((s) => s.entry.star === 'HD207130')!
+    const keep = Array.from(wavelength.keys()).filter((i) => wavelength[i]! >= 3550 && wavelength[i]! <= 7400 && Number.isFinite(star.flux[i]!))
+    const w = Float64Array.from(keep, (i) => wavelength[i]!)
+    const f = Float64Array.from(keep, (i) => star.flux[i]!)
+    const steep = Float64Array.from(w, (l, k) => f[k]! * (l / 5000) ** 4)
+    // 90th percentile of |difference| of the rectified fluxes over the classification region 3850–5000 Å.
+    const p90 = (weightRange?: number) => {
+      const a = fitSpectrumContinuum({ wavelength: w, flux: f }, { space: 'log', ...(weightRange ? { weightRange } : {}) }).rectified
+      const b = fitSpectrumContinuum({ wavelength: w, flux: steep }, { space: 'log', ...(weightRange ? { weightRange } : {}) }).rectified
+      const d = Array.from(w.keys())
+        .filter((k) => w[k]! >= 3850 && w[k]! <= 5000)
+        .map((k) => Math.abs(a[k]! - b[k]!))
+        .sort((x, y) => x - y)
+      return d[Math.floor(0.9 * d.length)]!
+    }
+    // 2 %: below the few-per-cent depths of the weak metal lines that carry a type (common practice).
+    expect(p90()).toBeLessThan(0.02)
+    // Weights (F/σ)² left as they are: the blue end, 400× less weighted than the red, is where the fit strays.
+    expect(p90(Infinity)).toBeGreaterThan(5 * p90())
+  }, 30_000)
 })
