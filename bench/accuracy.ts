@@ -49,6 +49,8 @@ export interface Condition {
   given: boolean
   /** Only this part of the spectrum is kept, Å. */
   range?: readonly [number, number]
+  /** A throughput the flux is multiplied by, as an unfluxed spectrum carries its instrument's. */
+  response?: (lambda: number) => number
 }
 
 /** The part of a spectrum between `range[0]` and `range[1]` Å. */
@@ -60,6 +62,12 @@ export function cutSpectrum(spectrum: Spectrum1D, range: readonly [number, numbe
   return { wavelength: take(w), flux: take(spectrum.flux), ...(error ? { error: take(error) } : {}), ...(mask ? { mask: Uint8Array.from(keep, (i) => mask[i]!) } : {}) }
 }
 
+/** The spectrum times a throughput; errors scale with the flux. */
+export function throughResponse(spectrum: Spectrum1D, response: (lambda: number) => number): Spectrum1D {
+  const r = spectrum.wavelength.map(response)
+  return { ...spectrum, flux: spectrum.flux.map((f, i) => f * r[i]!), ...(spectrum.error ? { error: spectrum.error.map((e, i) => e * r[i]!) } : {}) }
+}
+
 export const CONDITIONS: Condition[] = [
   { name: 'native resolution and S/N, resolution given', applies: () => true, fwhm: (s) => s.fwhm, given: true },
   { name: 'native resolution and S/N, resolution not given', applies: () => true, fwhm: (s) => s.fwhm, given: false },
@@ -69,6 +77,22 @@ export const CONDITIONS: Condition[] = [
   { name: 'native resolution, noise to S/N 20', applies: () => true, fwhm: (s) => s.fwhm, snr: 20, given: true },
   // A blue classification spectrum: what the reader still admits (80 % of 3900–4900 Å).
   { name: 'native resolution and S/N, cut to 3900–4700 Å (MILES stars)', applies: (s) => s.source === 'miles', fwhm: (s) => s.fwhm, given: true, range: [3900, 4700] },
+  // Unfluxed spectra: a throughput rising 20× to the red (a red-sensitive CCD and a red-blazed
+  // grating), and one peaked at 5500 Å that falls to a quarter at 3700 and 7300 Å.
+  {
+    name: 'native resolution, times a throughput (λ / 5000 Å)⁴, resolution not given (MILES stars)',
+    applies: (s) => s.source === 'miles',
+    fwhm: (s) => s.fwhm,
+    given: false,
+    response: (lambda) => (lambda / 5000) ** 4,
+  },
+  {
+    name: 'native resolution, times a throughput exp(−((λ − 5500 Å) / 1500 Å)²), resolution not given (MILES stars)',
+    applies: (s) => s.source === 'miles',
+    fwhm: (s) => s.fwhm,
+    given: false,
+    response: (lambda) => Math.exp(-(((lambda - 5500) / 1500) ** 2)),
+  },
 ]
 
 export interface StarResult extends Scored {
@@ -82,7 +106,8 @@ export interface StarResult extends Scored {
 export function classifyReference(library: ReturnType<typeof defaultLibrary>, star: ReferenceStar, condition: Condition, seed: number): StarResult {
   const fwhm = condition.fwhm(star)
   const degraded = degradeSpectrum(star.spectrum, { from: star.fwhm, to: fwhm, ...(condition.snr ? { snr: condition.snr } : {}), seed })
-  const spectrum = condition.range ? cutSpectrum(degraded, condition.range) : degraded
+  const cut = condition.range ? cutSpectrum(degraded, condition.range) : degraded
+  const spectrum = condition.response ? throughResponse(cut, condition.response) : cut
   const output = runPipeline({ spectrum, ...(condition.given ? { inputFwhm: fwhm } : {}), exclude: star.exclude }, library)
   const s = output.suggestion!
   return {
