@@ -51,6 +51,8 @@ export interface Condition {
   range?: readonly [number, number]
   /** A throughput the flux is multiplied by, as an unfluxed spectrum carries its instrument's. */
   response?: (lambda: number) => number
+  /** One-pixel cosmic-ray hits added, evenly spaced, of 0.5–2.4 × the median flux. */
+  cosmicRays?: number
 }
 
 /** The part of a spectrum between `range[0]` and `range[1]` Å. */
@@ -66,6 +68,15 @@ export function cutSpectrum(spectrum: Spectrum1D, range: readonly [number, numbe
 export function throughResponse(spectrum: Spectrum1D, response: (lambda: number) => number): Spectrum1D {
   const r = spectrum.wavelength.map(response)
   return { ...spectrum, flux: spectrum.flux.map((f, i) => f * r[i]!), ...(spectrum.error ? { error: spectrum.error.map((e, i) => e * r[i]!) } : {}) }
+}
+
+/** The spectrum with `count` one-pixel hits of 0.5–2.4 × its median flux, evenly spaced. */
+export function withCosmicRays(spectrum: Spectrum1D, count: number): Spectrum1D {
+  const flux = Float64Array.from(spectrum.flux)
+  const level = [...flux].filter(Number.isFinite).sort((a, b) => a - b)[flux.length >> 1]!
+  const spacing = Math.floor(flux.length / (count + 1))
+  for (let k = 0; k < count; k++) flux[(k + 1) * spacing] = flux[(k + 1) * spacing]! + level * (0.5 + (1.9 * k) / Math.max(1, count - 1))
+  return { ...spectrum, flux }
 }
 
 export const CONDITIONS: Condition[] = [
@@ -93,6 +104,8 @@ export const CONDITIONS: Condition[] = [
     given: false,
     response: (lambda) => Math.exp(-(((lambda - 5500) / 1500) ** 2)),
   },
+  // An exposure whose cosmic-ray hits were not cleaned.
+  { name: 'native resolution, 20 one-pixel cosmic-ray hits, resolution not given (MILES stars)', applies: (s) => s.source === 'miles', fwhm: (s) => s.fwhm, given: false, cosmicRays: 20 },
 ]
 
 export interface StarResult extends Scored {
@@ -107,7 +120,8 @@ export function classifyReference(library: ReturnType<typeof defaultLibrary>, st
   const fwhm = condition.fwhm(star)
   const degraded = degradeSpectrum(star.spectrum, { from: star.fwhm, to: fwhm, ...(condition.snr ? { snr: condition.snr } : {}), seed })
   const cut = condition.range ? cutSpectrum(degraded, condition.range) : degraded
-  const spectrum = condition.response ? throughResponse(cut, condition.response) : cut
+  const responded = condition.response ? throughResponse(cut, condition.response) : cut
+  const spectrum = condition.cosmicRays ? withCosmicRays(responded, condition.cosmicRays) : responded
   const output = runPipeline({ spectrum, ...(condition.given ? { inputFwhm: fwhm } : {}), exclude: star.exclude }, library)
   const s = output.suggestion!
   return {

@@ -3,7 +3,7 @@ import { CLASSIFICATION_LINES, lineSpan, type WavelengthRange } from '../../shar
 import type { Spectrum1D } from '../../shared/spectrum'
 import { fitSpectrumContinuum, type ContinuumOptions } from './prepare/continuum'
 import { assertSpectrum } from './prepare/guards'
-import { countMaskedPixels, maskSpectrumBadPixels } from './prepare/mask'
+import { countMaskedPixels, maskSpectrumBadPixels, maskSpectrumSpikes } from './prepare/mask'
 import { rebinNoiseCorrelation, rebinSpectrumToLogGrid } from './prepare/rebin'
 import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
 import { smoothSpectrumToFwhm } from './prepare/smooth'
@@ -41,6 +41,8 @@ export interface AnalyseOptions {
   residualSnr?: number
   /** Per-pixel flags from the file (non-zero = bad). @default undefined */
   flagged?: ArrayLike<number>
+  /** Mask narrow spikes (cosmic-ray hits, maskSpectrumSpikes); false when the caller has done so. @default true */
+  maskSpikes?: boolean
   /** Options for the continuum fit. @default {} */
   continuum?: ContinuumOptions
 }
@@ -108,12 +110,15 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
     snrFloor = 10,
     residualSnr,
     flagged,
+    maskSpikes = true,
     continuum: continuumOptions = {},
   } = options
   const warnings: string[] = []
-  const masked = maskSpectrumBadPixels(spectrum, flagged ? { flagged } : {})
+  const bad = maskSpectrumBadPixels(spectrum, flagged ? { flagged } : {})
+  const spiked = maskSpikes ? maskSpectrumSpikes(bad) : { spectrum: bad, count: 0 }
+  const masked = spiked.spectrum
   const maskedCount = countMaskedPixels(masked)
-  if (maskedCount > 0) warnings.push(`${maskedCount} of ${spectrum.wavelength.length} pixels are masked`)
+  if (maskedCount > 0) warnings.push(`${maskedCount} of ${spectrum.wavelength.length} pixels are masked${spiked.count > 0 ? `, ${spiked.count} of them narrow spikes (cosmic-ray hits)` : ''}`)
 
   const fromErrors = spectrumSnrFromErrors(masked, { region: snrRegion }) ?? spectrumSnrFromErrors(masked)
   const derSnr = estimateSpectrumSnr(masked, { region: snrRegion }) ?? estimateSpectrumSnr(masked)

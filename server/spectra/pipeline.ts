@@ -5,6 +5,7 @@ import { solveLinearInPlace } from './linear'
 import { SortedWindow, kthSmallest, lowerBound } from './prepare/stats'
 import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
 import { fitSpectrumAtLevel } from './match/classify'
+import { maskSpectrumSpikes } from './prepare/mask'
 import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type StandardsUsed } from './match/instrument'
 import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
 
@@ -133,6 +134,13 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     const resolution: PipelineResolution = { fwhm: input.inputFwhm ?? null, source: input.inputFwhm !== undefined ? 'given' : 'unknown', bound: null, level: null }
     return { pipelineVersion: PIPELINE_VERSION, analysis, suggestion: null, standards: null, resolution, notes, seconds: (performance.now() - started) / 1000, steps }
   }
+  // Spikes once, here, rather than in each of the analyses below.
+  const spikes = maskSpectrumSpikes(input.spectrum)
+  if (spikes.count > 0) {
+    input = { ...input, spectrum: spikes.spectrum }
+    notes.push(`${spikes.count} pixel${spikes.count === 1 ? '' : 's'} masked as narrow spikes (cosmic-ray hits): each stood far above its neighbours, narrower than any resolved line.`)
+  }
+  base.maskSpikes = false
   const reach = coverage(input.spectrum)
   // The instrument's own standards where it has them, the general ones elsewhere, standards of
   // other instruments never; matched rectified over the range the spectrum covers, as it is itself.
