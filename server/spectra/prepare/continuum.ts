@@ -289,10 +289,17 @@ function scale(w: number, lo: number, hi: number): number {
 
 /** Clamps the first m weights that are positive to [median / range, median × range] about their median. */
 function clampToMedian(ws: Float64Array, m: number, range: number): void {
-  const positive = Float64Array.from(ws.subarray(0, m)).filter((w) => w > 0)
-  if (positive.length === 0) return
-  const median = kthSmallest(positive, positive.length >> 1)
-  for (let k = 0; k < m; k++) if (ws[k]! > 0) ws[k] = Math.min(median * range, Math.max(median / range, ws[k]!))
+  const positive = new Float64Array(m)
+  let k = 0
+  for (let j = 0; j < m; j++) if (ws[j]! > 0) positive[k++] = ws[j]!
+  if (k === 0) return
+  const median = kthSmallest(positive.subarray(0, k), k >> 1)
+  const lo = median / range
+  const hi = median * range
+  for (let j = 0; j < m; j++) {
+    const w = ws[j]!
+    if (w > 0) ws[j] = w < lo ? lo : w > hi ? hi : w
+  }
 }
 
 /** Chebyshev series Σ cₖ Tₖ(x) by Clenshaw's recurrence. */

@@ -99,13 +99,20 @@ function spikePass(spectrum: Spectrum1D, options: SpikeOptions): { spectrum: Spe
   }
   // A spike stands above its sides by more than prominence × threshold σ (its excess is above
   // threshold σ, and it stands above its ring by prominence of that): only such pixels are measured.
-  const side = (j: number) => (good(j) ? flux[j]! : Number.NEGATIVE_INFINITY)
-  const candidate = new Uint8Array(n)
-  for (let i = 0; i < n; i++) {
-    if (!ok[i]) continue
-    const least = prominence * threshold * sigma[Math.floor(i / SPIKE_BLOCK)]!
-    if (flux[i]! - Math.max(side(i - 1), side(i + 1)) > least) candidate[i] = 1
-    else if (good(i + 1) && Math.min(flux[i]!, flux[i + 1]!) - Math.max(side(i - 1), side(i + 2)) > least) candidate[i] = 1
+  // Flux with −∞ for unusable pixels and two of padding either side: no bounds or mask tests in the scan.
+  const padded = new Float64Array(n + 4).fill(Number.NEGATIVE_INFINITY)
+  for (let i = 0; i < n; i++) if (ok[i]) padded[i + 2] = flux[i]!
+  const candidates: number[] = []
+  for (let b = 0; b < sigma.length; b++) {
+    const least = prominence * threshold * sigma[b]!
+    if (!(least >= 0)) continue
+    for (let i = b * SPIKE_BLOCK, end = Math.min(n, (b + 1) * SPIKE_BLOCK); i < end; i++) {
+      const f = padded[i + 2]!
+      if (f === Number.NEGATIVE_INFINITY) continue
+      const left = padded[i + 1]!
+      const right = padded[i + 3]!
+      if (f - (left > right ? left : right) > least || Math.min(f, right) - Math.max(left, padded[i + 4]!) > least) candidates.push(i)
+    }
   }
   const excess = new Float64Array(n).fill(Number.NaN)
   const median = new Float64Array(n).fill(Number.NaN)
@@ -148,8 +155,9 @@ function spikePass(spectrum: Spectrum1D, options: SpikeOptions): { spectrum: Spe
   }
   const mask = spectrum.mask ? Uint8Array.from(spectrum.mask) : new Uint8Array(n)
   let count = 0
-  for (let i = 0; i < n; i++) {
-    if (!candidate[i] || !high(i)) continue
+  let last = -1
+  for (const i of candidates) {
+    if (i <= last || !high(i)) continue
     if (flux[i]! - ring(i, i) > prominence * excess[i]! && !shouldered(i, i, flux[i]!)) {
       mask[i] = 1
       count++
@@ -157,7 +165,7 @@ function spikePass(spectrum: Spectrum1D, options: SpikeOptions): { spectrum: Spe
       mask[i] = 1
       mask[i + 1] = 1
       count += 2
-      i++
+      last = i + 1
     }
   }
   return { spectrum: count > 0 ? { ...spectrum, mask } : spectrum, count }
