@@ -33,8 +33,8 @@ export interface ContinuumOptions {
    * 'log' fits the polynomial to ln F: a smooth factor on the flux (reddening, a flux calibration,
    * an instrument's response) is then a smooth term added to ln F, which the polynomial takes up,
    * so two spectra that differ by such a factor are rectified nearly alike (the weights, the
-   * inverse variance of ln F, still follow F: F/σ² with errors, F itself without). 'linear' fits F
-   * itself. @default 'linear'
+   * inverse variance of ln F, still follow F: (F/σ)² with errors, F² without, within
+   * `weightRange` of their median). 'linear' fits F itself. @default 'linear'
    */
   space?: 'linear' | 'log'
   /**
@@ -70,8 +70,8 @@ export interface ContinuumResult {
 /**
  * Fits the continuum and divides it out. Method: an iterative, asymmetric sigma-clipped polynomial
  * fit (common practice since IRAF's `continuum` task): a Chebyshev series in wavelength, fitted by
- * weighted least squares (weights 1/σ², σ floored at a tenth of the median error; without errors,
- * uniform for F and F for ln F, as photon noise gives), ignoring the Balmer wings and strong bands of the line table; after each pass, pixels
+ * weighted least squares (weights 1/σ², σ floored at a tenth of the median error; uniform without
+ * errors; in ln F, σ/F in place of σ), ignoring the Balmer wings and strong bands of the line table; after each pass, pixels
  * more than `lowSigma` rms below or `highSigma` rms above the fit are dropped, until nothing changes.
  * The asymmetry lets the fit ride the top of the spectrum, above the absorption lines. Fitting in
  * Chebyshev form keeps the normal equations well conditioned, so steep blue continua of hot stars

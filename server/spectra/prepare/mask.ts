@@ -59,7 +59,7 @@ const SPIKE_MEDIAN = 7
 const SPIKE_RING = 4
 
 /**
- * Masks cosmic-ray hits: one or two pixels far above the running median of their 15 neighbours
+ * Masks cosmic-ray hits: one or two pixels far above the running median of the 15 pixels about them
  * (more than `threshold` robust σ of the excesses in their block, and `minExcess` of the median) that
  * stand above every pixel within 4 either side by more than `prominence` of their excess. A resolved
  * line (2.5 pixels FWHM or more) has neighbours within 0.4 of its excess of its peak, and a peak of
