@@ -8,7 +8,7 @@ import { bufferToFloat32, bufferToFloat64 } from '../lib/binary'
 import { sqlTime } from '../lib/sql-time'
 import { withRetry } from '../lib/db-errors'
 import { ProcessingJob, Spectrum } from '../models'
-import { resolutionFwhm, type PipelineOutput } from '../spectra/pipeline'
+import { resolutionFwhm } from '../spectra/pipeline'
 import { PRE_REVIEW, storePipelineOutput } from '../services/measurements.service'
 import type { StoredPipelineOutput, WorkerTask } from './worker'
 
@@ -120,7 +120,7 @@ export async function loadJob(spectrumId: number): Promise<{ input: WorkerTask; 
  * first and updated by key, so concurrent writers for other spectra never lock each other's index
  * ranges; a deadlock or lost connection is retried with back-off.
  */
-export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output: PipelineOutput | StoredPipelineOutput, libraryVersionId: number | undefined): Promise<void> {
+export async function storeOutput(sequelize: Sequelize, job: ClaimedJob, output: StoredPipelineOutput, libraryVersionId: number | undefined): Promise<void> {
   await withRetry(() =>
     sequelize.transaction(READ_COMMITTED, async (transaction) => {
       await storePipelineOutput(sequelize, job.spectrumId, output, libraryVersionId, transaction)

@@ -27,6 +27,14 @@ export function float32ToBuffer(a: ArrayLike<number>): Buffer {
   return out
 }
 
+/**
+ * The bytes of a float32 array for a BLOB, without a copy where the layout allows: the Buffer shares
+ * the array's memory, so only for arrays nothing changes afterwards (a processing thread's output).
+ */
+export function float32Bytes(a: Float32Array): Buffer {
+  return LITTLE ? Buffer.from(a.buffer, a.byteOffset, a.byteLength) : float32ToBuffer(a)
+}
+
 export function bufferToFloat64(b: Buffer): Float64Array {
   return fromBytes(b, Float64Array, (i) => b.readDoubleLE(i * 8))
 }

@@ -1,14 +1,13 @@
 import { type InferAttributes, type Sequelize, type Transaction } from 'sequelize'
 import { CLASSIFICATION_LINES } from '../../shared/lines'
 import { gridWavelength } from '../../shared/grid'
-import { bufferToFloat32, float32ToBuffer } from '../lib/binary'
+import { bufferToFloat32, float32Bytes } from '../lib/binary'
 import { executeInTransaction, selectInTransaction } from '../db/execute'
 import { decimateMinMax } from '../lib/decimate'
 import { HttpError, notFound } from '../lib/http-error'
 import { sqlTime } from '../lib/sql-time'
 import { LineMeasurementRow, Measurement, ProcessingJob, Spectrum, type User } from '../models'
 import type { AppContext } from '../context'
-import type { PipelineOutput } from '../spectra/pipeline'
 import type { StoredPipelineOutput } from '../jobs/worker'
 import { replaceFlagRows, storeSuggestion, suggestionDetails } from './suggestions.service'
 import { findVisibleSpectrum } from './visibility'
@@ -126,13 +125,7 @@ const PRE_REVIEW_SUGGESTED = [...PRE_REVIEW, 'suggested']
  * flags the queue filters by), and the spectrum's status. Earlier current rows are found first and
  * updated by key, so writers for other spectra never lock each other's index ranges.
  */
-export async function storePipelineOutput(
-  sequelize: Sequelize,
-  spectrumId: number,
-  output: PipelineOutput | StoredPipelineOutput,
-  libraryVersionId: number | undefined,
-  transaction: Transaction,
-): Promise<void> {
+export async function storePipelineOutput(sequelize: Sequelize, spectrumId: number, output: StoredPipelineOutput, libraryVersionId: number | undefined, transaction: Transaction): Promise<void> {
   const { analysis } = output
   const p = analysis.prepared
   const lines = analysis.lines.map((l) =>
@@ -179,9 +172,9 @@ export async function storePipelineOutput(
     p.grid.start,
     p.grid.step,
     p.grid.length,
-    float32ToBuffer(p.flux),
-    float32ToBuffer(p.continuum),
-    float32ToBuffer(p.rectified),
+    float32Bytes(p.flux),
+    float32Bytes(p.continuum),
+    float32Bytes(p.rectified),
     Buffer.from(p.mask),
     output.seconds,
     sqlTime(new Date()),

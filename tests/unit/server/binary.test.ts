@@ -1,7 +1,7 @@
 // Stored array bytes against Node's own little-endian Buffer writers and readers (the layout the
 // BLOB columns have always had), including buffers that start at an odd offset of a larger one.
 import { describe, expect, it } from 'vitest'
-import { bufferToFloat32, bufferToFloat64, float32ToBuffer, float64ToBuffer } from '../../../server/lib/binary'
+import { bufferToFloat32, bufferToFloat64, float32Bytes, float32ToBuffer, float64ToBuffer } from '../../../server/lib/binary'
 
 const values = [0, -0, 1, -1.5, Math.PI, 1e-40, 3.4e38, 1e300, Number.NaN, Infinity, -Infinity, 123456.789]
 
@@ -15,6 +15,10 @@ describe('typed arrays ↔ little-endian bytes', () => {
     })
     expect(float64ToBuffer(Float64Array.from(values)).equals(doubles)).toBe(true)
     expect(float32ToBuffer(values).equals(singles)).toBe(true)
+    // Also from a float32 array that is a view into a larger buffer.
+    const larger = new Float32Array(values.length + 3)
+    larger.set(values, 2)
+    expect(float32Bytes(larger.subarray(2, 2 + values.length)).equals(singles)).toBe(true)
   })
 
   it('reads what Buffer.readDoubleLE / readFloatLE read, from aligned and unaligned buffers', () => {
