@@ -416,6 +416,35 @@ export function smoothPairChiSquare(
   to: number,
   steps = 10,
 ): SmoothPairChiSquare {
+  if (smoothPairMoments(flux, weights, rows, pixels, row1, row2, from, to) < 8) return { chi2: Infinity, fraction: Number.NaN }
+  const chiAt = smoothChiAt
+  const values = new Float64Array(steps + 1)
+  let bestK = 0
+  let least = Infinity
+  for (let k = 0; k <= steps; k++) {
+    const v = chiAt(k / steps)
+    values[k] = v
+    if (v < least) {
+      least = v
+      bestK = k
+    }
+  }
+  if (!Number.isFinite(least)) return { chi2: Infinity, fraction: Number.NaN }
+  let x = bestK / steps
+  if (bestK > 0 && bestK < steps) {
+    x = parabolaVertex((bestK - 1) / steps, values[bestK - 1]!, x, least, (bestK + 1) / steps, values[bestK + 1]!)
+  }
+  const c = chiAt(x)
+  return c <= least ? { chi2: c, fraction: x } : { chi2: least, fraction: bestK / steps }
+}
+
+/**
+ * The moments of smoothPairChiSquare over [from, to) into smoothScratch.q; returns the pixels used.
+ * A function of its own: optimised while in its loop (on-stack replacement), the code after the
+ * loop had never run and lacked type feedback, and the whole of smoothPairChiSquare was thrown
+ * away on leaving the loop, call after call.
+ */
+function smoothPairMoments(flux: Float64Array, weights: Float64Array, rows: Float32Array, pixels: number, row1: number, row2: number, from: number, to: number): number {
   // Moments in scalar locals: the loop then touches no array but the inputs.
   let m00 = 0,
     m01 = 0,
@@ -516,7 +545,6 @@ export function smoothPairChiSquare(
     const w6 = w * g6
     m66 += w6 * g6
   }
-  if (n < 8) return { chi2: Infinity, fraction: Number.NaN }
   // The moments leave the loop through a scratch array: a closure over them would keep them out of registers.
   const q = smoothScratch.q
   q[0] = m00
@@ -555,20 +583,7 @@ export function smoothPairChiSquare(
   q[33] = h5
   q[34] = h6
   q[35] = Sff
-  const chiAt = smoothChiAt
-  let bestK = 0
-  const values: number[] = []
-  for (let k = 0; k <= steps; k++) {
-    values.push(chiAt(k / steps))
-    if (values[k]! < values[bestK]!) bestK = k
-  }
-  if (!Number.isFinite(values[bestK]!)) return { chi2: Infinity, fraction: Number.NaN }
-  let x = bestK / steps
-  if (bestK > 0 && bestK < steps) {
-    x = parabolaVertex((bestK - 1) / steps, values[bestK - 1]!, x, values[bestK]!, (bestK + 1) / steps, values[bestK + 1]!)
-  }
-  const c = chiAt(x)
-  return c <= values[bestK]! ? { chi2: c, fraction: x } : { chi2: values[bestK]!, fraction: bestK / steps }
+  return n
 }
 
 /** χ² of smoothPairChiSquare at mixing fraction x, from the moments in smoothScratch.q. */

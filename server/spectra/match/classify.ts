@@ -4,7 +4,7 @@ import { roundTo as round } from '../../../shared/rounding'
 import { depthScaledChiSquareSelected, depthScaledPairChiSquare } from './chi2'
 import { lowerBound } from '../prepare/stats'
 import { balmerHalfDepthWidth, compositeEvidence, hasBalmerEmission, isBeyondDwarfs, SUPERGIANT_WIDTH_TYPES, supergiantByWidth, typicalResidual, type WidthEvidence } from './flags'
-import { levelFor, neighbourResidualsOver, type LibraryLevel, type PreparedMatchLibrary } from './library'
+import { levelFor, neighbourResidualsOver, type LibraryLevel, type MatchStandardInfo, type PreparedMatchLibrary } from './library'
 import { localModelFit } from './local-model'
 import { classText, type Candidate, type MatchInput, type MatchOptions, type MatchResult, type SuggestionFlag, type Vote } from './types'
 import { classCounts, criteriaVotes, describeClassChoice, parameterEstimate } from './vote'
@@ -338,22 +338,7 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
     return Math.sqrt(a)
   }
 
-  // Shares of the vote per class and per (type, class) point.
-  const shareByClass = new Map<number, number>()
-  const shareByPoint = new Map<string, { typeCode: number; classCode: number; luminosityClass: string; p: number }>()
-  voters.forEach((r, q) => {
-    const st = std(r)
-    shareByClass.set(st.classCode, (shareByClass.get(st.classCode) ?? 0) + classWeights[q]!)
-    const key = `${st.typeCode}|${st.classCode}`
-    const point = shareByPoint.get(key) ?? { typeCode: st.typeCode, classCode: st.classCode, luminosityClass: st.luminosityClass, p: 0 }
-    point.p += typeWeights[q]!
-    shareByPoint.set(key, point)
-  })
-  const classShares = [...shareByClass].map(([c, p]) => ({ luminosityClass: classText(c), classCode: c, p: round(p, 4) })).sort((a, b) => b.p - a.p)
-  const probabilities = [...shareByPoint.values()]
-    .filter((p) => p.p >= 1e-4)
-    .map((p) => ({ ...p, p: round(p.p, 5) }))
-    .sort((a, b) => b.p - a.p)
+  const { classShares, probabilities } = voteShares(voters, std, typeWeights, classWeights)
 
   const centre = (region[0] + region[1]) / 2
   const pixelsPerElement = Math.max(1, level.fwhm / (centre * library.grid.step))
@@ -414,8 +399,6 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   if ((typeCode <= earliest + 0.5 && earliest > 0) || typeCode >= latest - 0.5) flags.push('outside-grid')
   if (compositeEvidence(library, level, s.coarseFlux, s.coarseWeights, fit, coarseFrom, coarseTo, best) !== null) flags.push('possible-composite')
 
-  // A new array rather than unshift on the one returned: its elements kind (so its map) differs as
-  // criteriaVotes runs optimised or not, and the optimised matchSpectrum was thrown away each time.
   const votes = [
     { criterion: 'neighbours', name: `vote of the ${voters.length} nearest standards`, value: round(classShares[0]?.p ?? 0, 4), vote: classShares[0]?.luminosityClass ?? null },
     ...criteriaVotes(library, level, spectrumSpan, typeCode, input.snr, centre, exclude),
@@ -451,6 +434,41 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
     residual: { rms: round(rms, 5), typical: typical === null ? null : round(typical, 5) },
     voters: voters.map((r, q) => ({ standardId: std(r).id, typeShare: round(typeWeights[q]!, 5), classShare: round(classWeights[q]!, 5) })),
   }
+}
+
+/** Shares of a vote per class and per (type, class) point, largest first. */
+function voteShares(
+  voters: readonly number[],
+  std: (row: number) => MatchStandardInfo,
+  typeWeights: Float64Array,
+  classWeights: Float64Array,
+): { classShares: MatchResult['classShares']; probabilities: MatchResult['probabilities'] } {
+  // Plain loops over the voters' rows: arrays made by map or spread have one elements kind when
+  // made by optimised code and another when not, and each change threw the optimised matchSpectrum
+  // away (about a thousand times in 1 400 matches).
+  const byClass = new Map<number, number>()
+  const byPoint = new Map<string, number>()
+  const first = new Map<string, number>()
+  for (let q = 0; q < voters.length; q++) {
+    const st = std(voters[q]!)
+    byClass.set(st.classCode, (byClass.get(st.classCode) ?? 0) + classWeights[q]!)
+    const key = `${st.typeCode}|${st.classCode}`
+    byPoint.set(key, (byPoint.get(key) ?? 0) + typeWeights[q]!)
+    if (!first.has(key)) first.set(key, q)
+  }
+  const classShares: MatchResult['classShares'] = []
+  byClass.forEach((p, classCode) => {
+    classShares.push({ luminosityClass: classText(classCode), classCode, p: round(p, 4) })
+  })
+  classShares.sort((a, b) => b.p - a.p)
+  const probabilities: MatchResult['probabilities'] = []
+  byPoint.forEach((p, key) => {
+    if (!(p >= 1e-4)) return
+    const st = std(voters[first.get(key)!]!)
+    probabilities.push({ typeCode: st.typeCode, classCode: st.classCode, luminosityClass: st.luminosityClass, p: round(p, 5) })
+  })
+  probabilities.sort((a, b) => b.p - a.p)
+  return { classShares, probabilities }
 }
 
 const WIDTH_CRITERION = { criterion: 'balmer-width', name: 'Hδ, Hγ, Hβ width at half depth over the narrowest class II–V standard within 3 subtypes' }

@@ -80,6 +80,38 @@ export function localModelFit(rows: Float32Array, pixels: number, flux: Float64A
   // Normal equations for (offset, Δtype, Δclass, Δ[Fe/H]).
   const normal = new Float64Array(P * P)
   const rhs = new Float64Array(P)
+  if (sumNormalEquations(rows, pixels, flux, weights, from, to, standards, g, normal, rhs) === 0) return null
+  for (let a = 1; a < P; a++) normal[a * P + a] = normal[a * P + a]! + 1 / PRIOR_SIGMA[a - 1]! ** 2
+  const theta = new Float64Array(P)
+  if (!solveLinearInPlace(normal, rhs, theta, P)) return null
+  let lo = Infinity
+  let hi = -Infinity
+  for (const st of standards) {
+    lo = Math.min(lo, st.typeCode)
+    hi = Math.max(hi, st.typeCode)
+  }
+  return { typeCode: Math.min(hi, Math.max(lo, mean[1]! + theta[1]!)), classCode: mean[2]! + theta[2]!, feh: mean[3]! + theta[3]! }
+}
+
+/**
+ * Adds every usable pixel's row of the spectrum's normal equations into `normal` and `rhs`; returns
+ * how many pixels were used. A function of its own: optimised while in its loop (on-stack
+ * replacement), the code after the loop had never run and lacked type feedback, and localModelFit
+ * was thrown away on leaving the loop.
+ */
+function sumNormalEquations(
+  rows: Float32Array,
+  pixels: number,
+  flux: Float64Array,
+  weights: Float64Array,
+  from: number,
+  to: number,
+  standards: readonly ModelStandard[],
+  g: Float64Array,
+  normal: Float64Array,
+  rhs: Float64Array,
+): number {
+  const k = standards.length
   const beta = new Float64Array(P)
   let used = 0
   for (let i = from; i < to; i++) {
@@ -101,15 +133,5 @@ export function localModelFit(rows: Float32Array, pixels: number, flux: Float64A
     }
     used++
   }
-  if (used === 0) return null
-  for (let a = 1; a < P; a++) normal[a * P + a] = normal[a * P + a]! + 1 / PRIOR_SIGMA[a - 1]! ** 2
-  const theta = new Float64Array(P)
-  if (!solveLinearInPlace(normal, rhs, theta, P)) return null
-  let lo = Infinity
-  let hi = -Infinity
-  for (const st of standards) {
-    lo = Math.min(lo, st.typeCode)
-    hi = Math.max(hi, st.typeCode)
-  }
-  return { typeCode: Math.min(hi, Math.max(lo, mean[1]! + theta[1]!)), classCode: mean[2]! + theta[2]!, feh: mean[3]! + theta[3]! }
+  return used
 }

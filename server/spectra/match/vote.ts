@@ -2,7 +2,7 @@
 // differs from the nearest standard's, the parameters read off the voters, and the luminosity criteria.
 import { formatTypeCode } from '../../../shared/mk'
 import { roundTo as round } from '../../../shared/rounding'
-import { CRITERIA, criterionNoise, criterionValue } from './criteria'
+import { CRITERIA, criterionNoise, criterionValue, type Criterion } from './criteria'
 import type { LibraryLevel, PreparedMatchLibrary } from './library'
 import { classText, type Estimate, type ParameterEstimate, type Vote } from './types'
 
@@ -83,7 +83,7 @@ export function criteriaVotes(
   const classCodes = levelClassCodes(library, level)
     .filter((c) => Number.isInteger(c) || c === 1.5)
     .sort((a, b) => a - b)
-  return CRITERIA.map((c, ci) => {
+  const one = (c: Criterion, ci: number): Vote => {
     const value = criterionValue(c, spectrumSpan, library.wavelength)
     const vote: Vote = { criterion: c.id, name: c.name, value: Number.isFinite(value) ? round(value, 4) : null, vote: null }
     if (typeCode < c.types[0] || typeCode > c.types[1]) {
@@ -115,7 +115,12 @@ export function criteriaVotes(
     vote.standards = standards
     vote.vote = classText(bestClass)
     return vote
-  })
+  }
+  // Pushed onto an empty array rather than made by map: map's array has one elements kind when map
+  // runs optimised and another when not, and a caller optimised for one was thrown away at the other.
+  const out: Vote[] = []
+  for (let ci = 0; ci < CRITERIA.length; ci++) out.push(one(CRITERIA[ci]!, ci))
+  return out
 }
 
 /**
