@@ -65,6 +65,12 @@ const EMISSION_RANGE = [3900, 5500] as const
 const NOT_STAR_FIT_END = 5600
 /** The reddest wavelength a spectrum must reach for LATE_TYPE_REGION to be used, Å: past Hα (6563 Å). */
 const LATE_TYPE_NEEDS = 6600
+/**
+ * Where only the nearest standard is wanted (for the velocity, the S/N and the late-type region),
+ * the best this many by the screening get the full χ², not the classification's 48: on all 333
+ * reference stars the nearest standard, and so every suggestion, came out the same.
+ */
+const NEAREST_REFINE = 6
 
 /**
  * The values minus their running median over ±`halfWidth` Å (plus 1), sampled every tenth pixel
@@ -172,7 +178,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   } else {
     const unsmoothed = analyseSpectrum(input.spectrum, quick)
     // Lines out of place fit broad standards best: estimate at rest (velocity against the best sharp standard).
-    const sharp = fitSpectrumAtLevel(library, matchInput(unsmoothed, undefined), library.resolutions[0]!, { region, ...exclude })
+    const sharp = fitSpectrumAtLevel(library, matchInput(unsmoothed, undefined), library.resolutions[0]!, { region, refineCount: NEAREST_REFINE, ...exclude })
     let nearest = 0
     for (let r = 1; r < sharp.fit.chi2.length; r++) if (sharp.fit.chi2[r]! < sharp.fit.chi2[nearest]!) nearest = r
     const p0 = unsmoothed.prepared
@@ -191,7 +197,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   const options: AnalyseOptions = atLevel(base, fwhm, resolution.level!)
 
   t = performance.now()
-  const located = fitSpectrumAtLevel(library, matchInput(first, resolution.level!), resolution.level!, { region, ...exclude })
+  const located = fitSpectrumAtLevel(library, matchInput(first, resolution.level!), resolution.level!, { region, refineCount: NEAREST_REFINE, ...exclude })
   let bestRow = 0
   for (let r = 1; r < located.fit.chi2.length; r++) if (located.fit.chi2[r]! < located.fit.chi2[bestRow]!) bestRow = r
   steps.match = (performance.now() - t) / 1000

@@ -31,7 +31,8 @@ export function estimateResolution(
   const region = options.region ?? DEFAULT_CLASSIFICATION_REGION
   const count = options.standards ?? 6
   const levels = library.resolutions
-  const first = fitSpectrumAtLevel(library, input, levels[0]!, { region, ...(options.exclude ? { exclude: options.exclude } : {}) })
+  // Only the best `count` are followed: twice as many get the full χ² after the screening.
+  const first = fitSpectrumAtLevel(library, input, levels[0]!, { region, refineCount: 2 * count, ...(options.exclude ? { exclude: options.exclude } : {}) })
   const order = Array.from(first.fit.chi2.keys())
     .filter((r) => Number.isFinite(first.fit.chi2[r]!))
     .sort((a, b) => first.fit.chi2[a]! - first.fit.chi2[b]!)
