@@ -4,7 +4,7 @@ import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './ana
 import { solveLinearInPlace } from './linear'
 import { SortedWindow, kthSmallest, lowerBound } from './prepare/stats'
 import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
-import { fitSpectrumAtLevel } from './match/classify'
+import { fitSpectrumAtLevel, type LevelFit } from './match/classify'
 import { maskSpectrumSpikes } from './prepare/mask'
 import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type StandardsUsed } from './match/instrument'
 import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
@@ -67,10 +67,18 @@ const NOT_STAR_FIT_END = 5600
 const LATE_TYPE_NEEDS = 6600
 /**
  * Where only the nearest standard is wanted (for the velocity, the S/N and the late-type region),
- * the best this many by the screening get the full χ², not the classification's 48: on all 333
- * reference stars the nearest standard, and so every suggestion, came out the same.
+ * the best this many by the screening get the full χ², not the classification's 48, and the nearest
+ * is the least of them (nearestRow): on all 333 reference stars it, and so every suggestion, came
+ * out the same.
  */
 const NEAREST_REFINE = 6
+
+/** The row of least χ² among those given the full χ² (the others carry only their screening's estimate). */
+function nearestRow(fit: LevelFit): number {
+  let best = -1
+  for (let r = 0; r < fit.chi2.length; r++) if (fit.exact[r] === 1 && (best < 0 || fit.chi2[r]! < fit.chi2[best]!)) best = r
+  return best < 0 ? 0 : best
+}
 
 /**
  * The values minus their running median over ±`halfWidth` Å (plus 1), sampled every tenth pixel
@@ -179,8 +187,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     const unsmoothed = analyseSpectrum(input.spectrum, quick)
     // Lines out of place fit broad standards best: estimate at rest (velocity against the best sharp standard).
     const sharp = fitSpectrumAtLevel(library, matchInput(unsmoothed, undefined), library.resolutions[0]!, { region, refineCount: NEAREST_REFINE, ...exclude })
-    let nearest = 0
-    for (let r = 1; r < sharp.fit.chi2.length; r++) if (sharp.fit.chi2[r]! < sharp.fit.chi2[nearest]!) nearest = r
+    const nearest = nearestRow(sharp.fit)
     const p0 = unsmoothed.prepared
     const velocity = measureSpectrumRadialVelocity({ wavelength: gridWavelengths(p0.grid), flux: p0.rectified, mask: p0.mask }, standardOnGrid(library, sharp.level, nearest), {
       grid: p0.grid,
@@ -198,8 +205,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
 
   t = performance.now()
   const located = fitSpectrumAtLevel(library, matchInput(first, resolution.level!), resolution.level!, { region, refineCount: NEAREST_REFINE, ...exclude })
-  let bestRow = 0
-  for (let r = 1; r < located.fit.chi2.length; r++) if (located.fit.chi2[r]! < located.fit.chi2[bestRow]!) bestRow = r
+  const bestRow = nearestRow(located.fit)
   steps.match = (performance.now() - t) / 1000
 
   t = performance.now()
