@@ -292,40 +292,50 @@ export function residualSnr(
     if (j < 0 || j >= grid.length - 1) return Number.NaN
     return values[j]! + (values[j + 1]! - values[j]!) * (x - j)
   }
-  const y: number[] = []
-  const t: number[] = []
-  const t2: number[] = []
   const { wavelength, flux, mask } = spectrum
-  for (let i = lowerBound(wavelength, region[0]); i < wavelength.length && wavelength[i]! <= region[1]; i++) {
+  const start = lowerBound(wavelength, region[0])
+  let end = start
+  while (end < wavelength.length && wavelength[end]! <= region[1]) end++
+  // Typed arrays of the most pixels the region can hold: plain arrays grown by push, and an array per
+  // pixel in the sums, made this the pipeline's largest allocation.
+  const y = new Float64Array(end - start)
+  const t = new Float64Array(end - start)
+  const t2 = new Float64Array(end - start)
+  let m = 0
+  for (let i = start; i < end; i++) {
     if (mask?.[i] || !Number.isFinite(flux[i]!)) continue
     const c = at(p.continuum, p.grid, wavelength[i]!)
     const x = at(template, spanGrid, wavelength[i]! / doppler)
     const lo = at(template, spanGrid, (wavelength[i]! - h) / doppler)
     const hi = at(template, spanGrid, (wavelength[i]! + h) / doppler)
     if (!(c > 0) || !Number.isFinite(x) || !Number.isFinite(lo) || !Number.isFinite(hi)) continue
-    y.push(flux[i]! / c)
-    t.push(x)
-    t2.push(lo + hi - 2 * x)
+    y[m] = flux[i]! / c
+    t[m] = x
+    t2[m] = lo + hi - 2 * x
+    m++
   }
-  const m = y.length
   if (m < 50) return null
   // Least squares for y ≈ a + b·t + c·t2 (normal equations, 3×3).
   const normal = new Float64Array(9)
   const rhs = new Float64Array(3)
   const coef = new Float64Array(3)
+  const v = new Float64Array(3)
+  v[0] = 1
   for (let k = 0; k < m; k++) {
-    const v = [1, t[k]!, t2[k]!]
+    v[1] = t[k]!
+    v[2] = t2[k]!
     for (let u = 0; u < 3; u++) {
       rhs[u] = rhs[u]! + v[u]! * y[k]!
       for (let w = 0; w < 3; w++) normal[3 * u + w] = normal[3 * u + w]! + v[u]! * v[w]!
     }
   }
   if (!solveLinearInPlace(normal, rhs, coef, 3)) return null
-  const r = y.map((v, k) => v - (coef[0]! + coef[1]! * t[k]! + coef[2]! * t2[k]!))
+  const r = new Float64Array(m)
+  for (let k = 0; k < m; k++) r[k] = y[k]! - (coef[0]! + coef[1]! * t[k]! + coef[2]! * t2[k]!)
   const d = new Float64Array(m - 4)
   for (let k = 2; k < m - 2; k++) d[k - 2] = Math.abs(2 * r[k]! - r[k - 2]! - r[k + 2]!)
   const noise = (1.482602 / Math.sqrt(6)) * medianOf(d)
-  return noise > 0 ? medianOf(y) / noise : null
+  return noise > 0 ? medianOf(y.subarray(0, m)) / noise : null
 }
 
 /** The upper median of the finite values (the value a sort puts at n/2), by selection. */
