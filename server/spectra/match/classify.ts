@@ -118,12 +118,34 @@ export function fitLevel(library: PreparedMatchLibrary, level: LibraryLevel, s: 
   }
   leaveOut(level, library, chi2, exclude)
   removeStandardNoise(level, library, s, from, to, chi2, used, all)
-  const order = Array.from({ length: n }, (_, k) => k).sort((a, b) => chi2[a]! - chi2[b]!)
-  const list = Int32Array.from(order.slice(0, refineCount).filter((k) => Number.isFinite(chi2[k]!)))
+  const list = smallestFinite(chi2, refineCount)
   depthScaledChiSquareSelected(s.flux, s.weights, level.flux, library.pixels, from, to, list, list.length, chi2, scale, used)
   for (const k of list) exact[k] = 1
   removeStandardNoise(level, library, s, from, to, chi2, used, list)
   return { chi2, scale, used, exact }
+}
+
+/**
+ * Indices of the `count` least finite values, least first, equal values in index order: the head of
+ * a stable sort of every index, without sorting them all (this ran four times per spectrum).
+ */
+export function smallestFinite(values: Float64Array, count: number): Int32Array {
+  const index = new Int32Array(count)
+  const value = new Float64Array(count)
+  let m = 0
+  for (let k = 0; k < values.length; k++) {
+    const v = values[k]!
+    if (!Number.isFinite(v) || (m === count && !(v < value[m - 1]!))) continue
+    let j = m < count ? m++ : m - 1
+    while (j > 0 && value[j - 1]! > v) {
+      value[j] = value[j - 1]!
+      index[j] = index[j - 1]!
+      j--
+    }
+    value[j] = v
+    index[j] = k
+  }
+  return index.subarray(0, m)
 }
 
 /**

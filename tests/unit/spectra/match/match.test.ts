@@ -17,6 +17,7 @@ import {
   scaledChiSquare,
   type MatchStandardInput,
 } from '../../../../server/spectra/match'
+import { smallestFinite } from '../../../../server/spectra/match/classify'
 
 /** A made-up rectified spectrum: Gaussian absorption lines of the given depths at fixed places. */
 function lines(grid: typeof DEFAULT_GRID, depths: number[], width = 3): Float32Array {
@@ -324,6 +325,27 @@ describe('depthScaledChiSquareSelected', () => {
     expect([chi2[0], chi2[2], chi2[3]]).toEqual([-1, -1, -1])
     expect(chi2[1]).toBeGreaterThan(0)
     expect(chi2[4]).toBeGreaterThan(0)
+  })
+})
+
+describe('smallestFinite', () => {
+  it('gives the head of a stable sort of the finite values, ties in index order', () => {
+    // Reference: the built-in stable sort of every index (ECMAScript 2019 requires stability).
+    let seed = 3
+    const random = () => (seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648
+    for (const n of [0, 1, 5, 40, 333]) {
+      const values = Float64Array.from({ length: n }, () => {
+        const r = random()
+        return r < 0.1 ? Infinity : r < 0.15 ? Number.NaN : Math.round(r * 20) / 2
+      })
+      for (const count of [0, 1, 6, 48, 400]) {
+        const expected = Array.from(values.keys())
+          .filter((k) => Number.isFinite(values[k]!))
+          .sort((a, b) => values[a]! - values[b]!)
+          .slice(0, count)
+        expect(Array.from(smallestFinite(values, count)), `n ${n}, count ${count}`).toEqual(expected)
+      }
+    }
   })
 })
 
