@@ -5,8 +5,7 @@ import type { Sequelize } from 'sequelize'
 import { isDatabaseUnavailable } from '../lib/db-errors'
 import { librarySpecFor } from '../services/standards.service'
 import { loadJob, recordFailure, releaseJobs, renewLeases, returnLapsed, storeOutput, type ClaimedJob } from './process'
-import type { LibrarySpec } from '../spectra/match/load'
-import runTask, { type StoredPipelineOutput } from './worker'
+import runTask, { shareLibrarySpec, type SharedLibrarySpec, type StoredPipelineOutput } from './worker'
 
 export interface ExecutorOptions {
   sequelize: Sequelize
@@ -29,7 +28,7 @@ export class JobExecutor {
   readonly threads: number
   readonly leaseMs: number
   /** Library specs by version id: versions are immutable once published. */
-  private specs = new Map<number, Promise<LibrarySpec>>()
+  private specs = new Map<number, Promise<SharedLibrarySpec>>()
   readonly running = new Set<number>()
   /** Jobs given up when the database went away or the executor stopped; they go back to the queue. */
   private abandoned = new Set<number>()
@@ -99,10 +98,10 @@ export class JobExecutor {
     }
   }
 
-  private specFor(versionId: number): Promise<LibrarySpec> {
+  private specFor(versionId: number): Promise<SharedLibrarySpec> {
     let spec = this.specs.get(versionId)
     if (!spec) {
-      spec = librarySpecFor(versionId)
+      spec = librarySpecFor(versionId).then(shareLibrarySpec)
       spec.catch(() => this.specs.delete(versionId))
       this.specs.set(versionId, spec)
     }

@@ -1,11 +1,33 @@
 // Runs in a worker thread of the pool: one spectrum in, its pipeline output back. Each thread
 // keeps the prepared standards library of the versions it has seen (match/load.ts).
+import { deserialize, serialize } from 'node:v8'
 import type { AnalysisResult, PreparedSpectrum } from '../spectra/analyse'
-import { preparedLibrary, type LibrarySpec } from '../spectra/match/load'
+import { cachedPreparedLibrary, preparedLibrary, type LibrarySpec } from '../spectra/match/load'
 import { runPipeline, type PipelineInput, type PipelineOutput } from '../spectra/pipeline'
 
+/**
+ * A library version's spec as a task carries it: serialized once into shared memory. Copying a task
+ * to a thread then shares these bytes instead of cloning a spec of some thousand objects (and every
+ * uploaded standard's array) for each spectrum; a thread reads them only for a version it has not prepared.
+ */
+export interface SharedLibrarySpec {
+  versionId: number
+  bytes: SharedArrayBuffer
+}
+
+export function shareLibrarySpec(spec: LibrarySpec): SharedLibrarySpec {
+  const serialized = serialize(spec)
+  const bytes = new SharedArrayBuffer(serialized.length)
+  new Uint8Array(bytes).set(serialized)
+  return { versionId: spec.versionId, bytes }
+}
+
+export function readLibrarySpec(shared: SharedLibrarySpec): LibrarySpec {
+  return deserialize(new Uint8Array(shared.bytes)) as LibrarySpec
+}
+
 export interface WorkerTask extends PipelineInput {
-  library?: LibrarySpec
+  library?: SharedLibrarySpec
 }
 
 /** The prepared arrays a measurement stores, in the float32 it stores them in. */
@@ -25,5 +47,6 @@ export function forStorage(output: PipelineOutput): StoredPipelineOutput {
 
 export default function process(task: WorkerTask): StoredPipelineOutput {
   const { library, ...input } = task
-  return forStorage(runPipeline(input, library ? preparedLibrary(library) : undefined))
+  const prepared = library ? (cachedPreparedLibrary(library.versionId) ?? preparedLibrary(readLibrarySpec(library))) : undefined
+  return forStorage(runPipeline(input, prepared))
 }

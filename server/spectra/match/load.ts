@@ -82,6 +82,11 @@ export function observedInputByTemplate(dir: string, templateId: string): MatchS
   return inputs.find((i) => i.templateId === templateId) ?? retired.find((i) => i.templateId === templateId)
 }
 
+/** The prepared library of a version, if this thread has built it. */
+export function cachedPreparedLibrary(versionId: number): PreparedMatchLibrary | undefined {
+  return prepared.get(versionId)
+}
+
 /** Builds (or takes from this thread's cache) the prepared library of a version. */
 export function preparedLibrary(spec: LibrarySpec): PreparedMatchLibrary {
   const cached = prepared.get(spec.versionId)

@@ -2,10 +2,10 @@
 import { serialize } from 'node:v8'
 import { describe, expect, it } from 'vitest'
 import { DEMO_ENTRIES, DEMO_RESOLUTION_FWHM, demoFits, demoObservation } from '../../../server/db/demo-spectra'
-import { forStorage } from '../../../server/jobs/worker'
+import { forStorage, readLibrarySpec, shareLibrarySpec } from '../../../server/jobs/worker'
 import { readSpectrum } from '../../../server/spectra/io'
 import { toSpectrum1D } from '../../../server/spectra/io/types'
-import { defaultLibrary } from '../../../server/spectra/match/load'
+import { defaultLibrary, type LibrarySpec } from '../../../server/spectra/match/load'
 import { runPipeline } from '../../../server/spectra/pipeline'
 
 describe('forStorage', () => {
@@ -30,4 +30,45 @@ describe('forStorage', () => {
     // Each of the three arrays is 4 bytes a pixel smaller than as float64.
     expect(serialize(output).length - serialize(stored).length).toBeGreaterThanOrEqual(3 * 4 * p.flux.length)
   }, 60_000)
+})
+
+describe('shareLibrarySpec', () => {
+  const spec: LibrarySpec = {
+    versionId: 7,
+    name: 'v7',
+    modelDir: '/models',
+    models: [{ standardId: 1, modelId: 'A0 V' }],
+    observedDir: '/observed',
+    templates: [{ standardId: 2, templateId: 'star-2' }],
+    observed: [
+      {
+        standardId: 3,
+        spectralType: 'K0 III',
+        typeCode: 50,
+        luminosityClass: 'III',
+        classCode: 3,
+        teff: 4800,
+        logg: 2.6,
+        feh: null,
+        origin: 'uploaded spectrum 9',
+        rectified: Float32Array.from([0.9, 1, 0.5]),
+        resolutionFwhm: 2.5,
+        instrumentId: null,
+        star: null,
+      },
+    ],
+  }
+
+  it('reads back the spec it was given, arrays included', () => {
+    const back = readLibrarySpec(shareLibrarySpec(spec))
+    expect(back).toEqual(spec)
+    expect(back.observed[0]!.rectified).toBeInstanceOf(Float32Array)
+  })
+
+  it('is shared, not copied, when a task is cloned to a thread (HTML structured clone keeps a SharedArrayBuffer)', () => {
+    const shared = shareLibrarySpec(spec)
+    const task = structuredClone({ library: shared })
+    new Uint8Array(task.library.bytes)[0] ^= 0xff
+    expect(new Uint8Array(shared.bytes)[0]).toBe(new Uint8Array(task.library.bytes)[0])
+  })
 })
