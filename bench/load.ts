@@ -14,7 +14,7 @@ import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { availableParallelism, loadavg, tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { QueryTypes, type Sequelize } from 'sequelize'
-import { WORKER_NODE_FLAGS, ensureDatabase, ensureDebianPackages, freePort, startMariaDB, startRedis } from '../scripts/lib/setup.mjs'
+import { SERVER_NODE_FLAGS, WORKER_NODE_FLAGS, ensureDatabase, ensureDebianPackages, freePort, startMariaDB, startRedis } from '../scripts/lib/setup.mjs'
 import { loadConfig } from '../server/config'
 import { createSequelize } from '../server/db'
 import { migrateUp } from '../server/db/migrate'
@@ -84,7 +84,7 @@ async function stopProcess(child: ChildProcess): Promise<void> {
 }
 async function startServer(env: NodeJS.ProcessEnv): Promise<{ url: string; child: ChildProcess }> {
   const port = await freePort()
-  const child = startProcess('server/index.ts', { PORT: String(port), SMTP_PORT: '0', ...env })
+  const child = startProcess('server/index.ts', { PORT: String(port), SMTP_PORT: '0', ...env }, SERVER_NODE_FLAGS)
   const url = `http://127.0.0.1:${port}`
   for (let i = 0; ; i++) {
     if (child.exitCode !== null) throw new Error(`the server exited with ${child.exitCode}`)

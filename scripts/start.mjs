@@ -2,7 +2,7 @@
 import { spawn, spawnSync } from 'node:child_process'
 import { existsSync, readdirSync, statSync } from 'node:fs'
 import { join } from 'node:path'
-import { appEnv, bin, ensureDatabase, ensureDebianPackages, ensureNodeModules, ensurePortsFree, log, mariadbRunning, root, run, startMariaDB, supervise } from './lib/setup.mjs'
+import { SERVER_NODE_FLAGS, appEnv, bin, ensureDatabase, ensureDebianPackages, ensureNodeModules, ensurePortsFree, log, mariadbRunning, root, run, startMariaDB, supervise } from './lib/setup.mjs'
 
 const { env, dataDir, manageDb } = appEnv()
 /** The server's exit code for a setting it cannot work with (sysexits EX_CONFIG). */
@@ -64,7 +64,7 @@ server = supervise({
   name: 'the server',
   fatalCodes: [CONFIG_ERROR],
   onFatal: (code) => void stop(code),
-  start: () => spawn(bin('tsx'), ['server/index.ts'], { cwd: root, env, stdio: 'inherit' }),
+  start: () => spawn(bin('tsx'), [...SERVER_NODE_FLAGS, 'server/index.ts'], { cwd: root, env, stdio: 'inherit' }),
 })
 await announce()
 

@@ -19,6 +19,13 @@ export function log(message) {
  */
 export const WORKER_NODE_FLAGS = ['--single-threaded-gc']
 
+/**
+ * Node flags of the web server (`npm start`, `npm run serve`, also in package.json). With V8's
+ * concurrent marking its pipeline threads ran a full collection about four times a second and
+ * compiled their code again after each; without it, a few times a minute (DEVELOPERS.md).
+ */
+export const SERVER_NODE_FLAGS = ['--no-concurrent-marking']
+
 /** Runs a command to completion with inherited output; throws on a non-zero exit. */
 export function run(command, args, options = {}) {
   const result = spawnSync(command, args, { stdio: 'inherit', cwd: root, ...options })

@@ -2,6 +2,7 @@ import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
 import { setTimeout as sleep } from 'node:timers/promises'
 import type { TestProject } from 'vitest/node'
 import { Sequelize } from 'sequelize'
+import { SERVER_NODE_FLAGS } from '../../scripts/lib/setup.mjs'
 
 const E2E_DB = 'lineweight_e2e'
 
@@ -22,7 +23,7 @@ export default async function setup(project: TestProject) {
   const migrate = spawnSync('node_modules/.bin/tsx', ['server/db/migrate-cli.ts', 'up', '--seed'], { env, encoding: 'utf8' })
   if (migrate.status !== 0) throw new Error(`seeding the browser-test database failed:\n${migrate.stderr}`)
 
-  const server: ChildProcess = spawn('node_modules/.bin/tsx', ['server/index.ts'], { env, detached: true, stdio: ['ignore', 'inherit', 'inherit'] })
+  const server: ChildProcess = spawn('node_modules/.bin/tsx', [...SERVER_NODE_FLAGS, 'server/index.ts'], { env, detached: true, stdio: ['ignore', 'inherit', 'inherit'] })
   const baseUrl = `http://127.0.0.1:${port}`
   for (let i = 0; ; i++) {
     if (server.exitCode !== null) throw new Error(`the server exited with ${server.exitCode}`)
