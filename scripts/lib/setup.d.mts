@@ -1,6 +1,7 @@
 // Types for the plain-Node set-up helpers, so tests can start their own MariaDB with them.
 export const root: string
 export const WORKER_NODE_FLAGS: string[]
+export const SERVER_NODE_FLAGS: string[]
 export function log(message: string): void
 export function run(command: string, args: string[], options?: object): void
 export function ensureNodeModules(): void

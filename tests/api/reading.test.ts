@@ -8,7 +8,7 @@ import { createLogger } from '../../server/lib/logger'
 import { Campaign, CampaignMember, Measurement, ProcessingJob, ReviewCall, Spectrum, SpectrumBlob, SpectrumEvent, Suggestion } from '../../server/models'
 import { activeVersionId, ensureDefaultLibrary, librarySpecFor } from '../../server/services/standards.service'
 import { indexSuggestionFlags } from '../../server/services/suggestions.service'
-import runTask from '../../server/jobs/worker'
+import runTask, { shareLibrarySpec } from '../../server/jobs/worker'
 import { readSpectrum, toSpectrum1D } from '../../server/spectra/io'
 import { closeDatabase, createTestContext, makeUser, signedInAgent, type TestContext } from '../helpers/context'
 
@@ -44,7 +44,7 @@ beforeAll(async () => {
   // seconds of CPU on a busy machine): done here, so it never lands inside a test's own time.
   const warm = readSpectrum(readFileSync(join(CORPUS, 'txt-plain.txt')), 'txt-plain.txt')
   if (!warm.ok) throw new Error(warm.message)
-  runTask({ spectrum: toSpectrum1D(warm.spectrum), library: await librarySpecFor((await activeVersionId())!) })
+  runTask({ spectrum: toSpectrum1D(warm.spectrum), library: shareLibrarySpec(await librarySpecFor((await activeVersionId())!)) })
   runner = new JobRunner({ sequelize: t.ctx.sequelize, logger: createLogger('silent'), threads: 1, inline: true })
   t.ctx.jobs = runner
   await runner.start()
