@@ -7,7 +7,7 @@ import { runPipeline, type PipelineInput, type PipelineOutput } from '../spectra
 
 /**
  * A library version's spec as a task carries it: serialized once into shared memory. Copying a task
- * to a thread then shares these bytes instead of cloning a spec of some thousand objects (and every
+ * to a thread then shares these bytes instead of cloning a spec of several hundred objects (and every
  * uploaded standard's array) for each spectrum; a thread reads them only for a version it has not prepared.
  */
 export interface SharedLibrarySpec {
