@@ -127,7 +127,8 @@ export function fitLevel(library: PreparedMatchLibrary, level: LibraryLevel, s: 
 
 /**
  * Indices of the `count` least finite values, least first, equal values in index order: the head of
- * a stable sort of every index, without sorting them all (this ran four times per spectrum).
+ * a stable sort of every index, without sorting them all (the level fits, the vote and the
+ * resolution estimate each took the head of such a sort, several times per spectrum).
  */
 export function smallestFinite(values: Float64Array, count: number): Int32Array {
   const index = new Int32Array(count)
@@ -288,12 +289,10 @@ export function matchSpectrum(library: PreparedMatchLibrary, input: MatchInput, 
   const levelFwhm = levelFor(library, input.fwhm)
   const { level, fit, from, to, scratch: s } = fitSpectrumAtLevel(library, input, levelFwhm, { region, modelError, exhaustive, refineCount, ...(exclude ? { exclude } : {}) })
   const { chi2, scale, used } = fit
-  const n = level.rows.length
   const std = (r: number) => library.standards[level.rows[r]!]!
 
-  const order = Array.from({ length: n }, (_, r) => r)
-    .filter((r) => Number.isFinite(chi2[r]!))
-    .sort((a, b) => chi2[a]! - chi2[b]!)
+  // The nearest, least first: the voters and the five candidates shown.
+  const order = Array.from(smallestFinite(chi2, Math.max(neighbours, 5)))
   if (order.length === 0) throw new Error('no standard overlaps the spectrum in the classification region')
   const best = order[0]!
   const voters = order.slice(0, Math.min(neighbours, order.length))

@@ -1,6 +1,6 @@
 import { DEFAULT_CLASSIFICATION_REGION } from '../../../shared/grid'
 import { depthScaledChiSquareSelected, parabolaVertex } from './chi2'
-import { fitSpectrumAtLevel } from './classify'
+import { fitSpectrumAtLevel, smallestFinite } from './classify'
 import type { MatchInput } from './types'
 import type { PreparedMatchLibrary } from './library'
 
@@ -33,10 +33,7 @@ export function estimateResolution(
   const levels = library.resolutions
   // Only the best `count` are followed: twice as many get the full χ² after the screening.
   const first = fitSpectrumAtLevel(library, input, levels[0]!, { region, refineCount: 2 * count, ...(options.exclude ? { exclude: options.exclude } : {}) })
-  const order = Array.from(first.fit.chi2.keys())
-    .filter((r) => Number.isFinite(first.fit.chi2[r]!))
-    .sort((a, b) => first.fit.chi2[a]! - first.fit.chi2[b]!)
-  const followed = order.slice(0, count).map((r) => first.level.rows[r]!)
+  const followed = Array.from(smallestFinite(first.fit.chi2, count), (r) => first.level.rows[r]!)
   const s = first.scratch
   const { pixels } = library
   const rows = new Float32Array(followed.length * pixels)
