@@ -10,7 +10,7 @@ import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type 
 import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
 
 /** Version of the numeric pipeline; stored with every measurement and suggestion it makes. */
-export const PIPELINE_VERSION = '2.3.0'
+export const PIPELINE_VERSION = '2.3.1'
 
 export interface PipelineInput {
   spectrum: Spectrum1D
