@@ -1,11 +1,12 @@
-import { DEFAULT_CLASSIFICATION_REGION, DEFAULT_GRID, gridWavelength, type LogGrid } from '../../shared/grid'
+import { DEFAULT_CLASSIFICATION_REGION, DEFAULT_GRID, gridWavelength, gridWavelengths, type LogGrid } from '../../shared/grid'
 import { CLASSIFICATION_LINES, lineSpan, type WavelengthRange } from '../../shared/lines'
 import type { Spectrum1D } from '../../shared/spectrum'
 import { fitSpectrumContinuum, type ContinuumOptions } from './prepare/continuum'
 import { assertSpectrum } from './prepare/guards'
 import { countMaskedPixels, maskSpectrumBadPixels, maskSpectrumSpikes } from './prepare/mask'
 import { rebinNoiseCorrelation, rebinSpectrumToLogGrid } from './prepare/rebin'
-import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
+import { shiftGridToRest } from './prepare/shift'
+import { measureSpectrumRadialVelocity, shiftSpectrumToRest, type RadialVelocityResult } from './prepare/rv'
 import { smoothSpectrumToFwhm } from './prepare/smooth'
 import { estimateSpectrumSnr, estimateSpectrumSnrByWindow, spectrumSnrFromErrors } from './prepare/snr'
 import { measureLineRatios, measureSpectrumLines } from './measure/lines'
@@ -98,21 +99,67 @@ export interface AnalysisResult {
  * @throws when the spectrum is malformed (see assertSpectrum) or does not overlap the grid
  */
 export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = {}): AnalysisResult {
+  const { grid = DEFAULT_GRID, targetFwhm, inputFwhm, rvReference, rvRegion = DEFAULT_CLASSIFICATION_REGION, maxVelocity = 1000, continuum: continuumOptions = {} } = options
+  const observed = maskAndMeasureSnr(spectrum, options)
+  let rest = observed.masked
+  let prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions)
+  let rv: AnalysisResult['rv'] = null
+  if (rvReference) {
+    const result = measureSpectrumRadialVelocity({ wavelength: prepared.wavelength, flux: prepared.rectified, mask: prepared.mask }, rvReference, { grid, maxVelocity, region: rvRegion })
+    if (result.found) {
+      rv = { v: result.velocity, error: result.error }
+      rest = shiftSpectrumToRest(observed.masked, { velocity: result.velocity })
+      prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions)
+    } else {
+      observed.warnings.push(`radial velocity not measured: ${result.reason}`)
+    }
+  }
+  return measurePrepared(rest, prepared, observed, rv, options)
+}
+
+/**
+ * analyseSpectrum(spectrum, { ...options, rvReference }) with the velocity already measured on
+ * `observed`, the spectrum's own analysis with the same options (any S/N floor) in the frame it was
+ * observed in. Its prepared arrays are shifted to rest on the grid (shiftGridToRest) rather than
+ * the shifted pixels prepared again: the grid samples every resolution it smooths to several times
+ * per FWHM, so the interpolation leaves the lines as they were. The headline S/N comes from the
+ * observed pixels, as before the shift.
+ */
+export function analyseAtVelocity(spectrum: Spectrum1D, observed: AnalysisResult, velocity: RadialVelocityResult, options: AnalyseOptions = {}): AnalysisResult {
+  const p = observed.prepared
+  const masked = maskAndMeasureSnr(spectrum, options)
+  const base = { wavelength: gridWavelengths(p.grid), pseudoContinuum: observed.pseudoContinuum }
+  if (!velocity.found) {
+    masked.warnings.push(`radial velocity not measured: ${velocity.reason}`)
+    return measurePrepared(masked.masked, { ...base, ...p }, masked, null, { ...options, grid: p.grid })
+  }
+  const rest = shiftSpectrumToRest(masked.masked, { velocity: velocity.velocity })
+  const arrays = [
+    { values: p.flux },
+    { values: p.continuum, everywhere: true },
+    { values: p.rectified },
+    ...(p.error ? [{ values: p.error }] : []),
+    ...(p.rectifiedError ? [{ values: p.rectifiedError }] : []),
+  ]
+  const shifted = shiftGridToRest(p.grid, velocity.velocity, p.mask, arrays)
+  const [flux, continuum, rectified] = shifted.values as [Float64Array, Float64Array, Float64Array]
+  const error = p.error ? shifted.values[3] : undefined
+  const rectifiedError = p.rectifiedError ? shifted.values[p.error ? 4 : 3] : undefined
+  const prepared: GridPreparation = { ...base, flux, ...(error ? { error } : {}), mask: shifted.mask, continuum, rectified, ...(rectifiedError ? { rectifiedError } : {}) }
+  return measurePrepared(rest, prepared, masked, { v: velocity.velocity, error: velocity.error }, { ...options, grid: p.grid })
+}
+
+interface MaskedSpectrum {
+  masked: Spectrum1D
+  snr: number | null
+  snrMethod: AnalysisResult['snrMethod']
+  warnings: string[]
+}
+
+/** Bad pixels and spikes masked, and the headline S/N, on the observed pixels. */
+function maskAndMeasureSnr(spectrum: Spectrum1D, options: AnalyseOptions): MaskedSpectrum {
   assertSpectrum(spectrum, 5)
-  const {
-    grid = DEFAULT_GRID,
-    targetFwhm,
-    inputFwhm,
-    rvReference,
-    rvRegion = DEFAULT_CLASSIFICATION_REGION,
-    maxVelocity = 1000,
-    snrRegion = DEFAULT_CLASSIFICATION_REGION,
-    snrFloor = 10,
-    residualSnr,
-    flagged,
-    maskSpikes = true,
-    continuum: continuumOptions = {},
-  } = options
+  const { targetFwhm, inputFwhm, snrRegion = DEFAULT_CLASSIFICATION_REGION, snrFloor = 10, residualSnr, flagged, maskSpikes = true } = options
   const warnings: string[] = []
   const bad = maskSpectrumBadPixels(spectrum, flagged ? { flagged } : {})
   const spiked = maskSpikes ? maskSpectrumSpikes(bad) : { spectrum: bad, count: 0 }
@@ -133,20 +180,13 @@ export function analyseSpectrum(spectrum: Spectrum1D, options: AnalyseOptions = 
   if (targetFwhm !== undefined && inputFwhm !== undefined && inputFwhm >= targetFwhm) {
     warnings.push(`input resolution ${inputFwhm} Å FWHM is not sharper than the target ${targetFwhm} Å: not smoothed`)
   }
+  return { masked, snr, snrMethod, warnings }
+}
 
-  let rest = masked
-  let prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions)
-  let rv: AnalysisResult['rv'] = null
-  if (rvReference) {
-    const result = measureSpectrumRadialVelocity({ wavelength: prepared.wavelength, flux: prepared.rectified, mask: prepared.mask }, rvReference, { grid, maxVelocity, region: rvRegion })
-    if (result.found) {
-      rv = { v: result.velocity, error: result.error }
-      rest = shiftSpectrumToRest(masked, { velocity: result.velocity })
-      prepared = prepareOnGrid(rest, grid, targetFwhm, inputFwhm, continuumOptions)
-    } else {
-      warnings.push(`radial velocity not measured: ${result.reason}`)
-    }
-  }
+/** The line measurements and ratios on a prepared spectrum; `rest` is its pixels in the frame the grid is in. */
+function measurePrepared(rest: Spectrum1D, prepared: GridPreparation, observed: MaskedSpectrum, rv: AnalysisResult['rv'], options: AnalyseOptions): AnalysisResult {
+  const { grid = DEFAULT_GRID, targetFwhm, inputFwhm, rvRegion = DEFAULT_CLASSIFICATION_REGION, snrFloor = 10 } = options
+  const { snr, snrMethod, warnings } = observed
   if (prepared.pseudoContinuum) warnings.push('molecular bands dominate: the continuum is a pseudo-continuum through band-free peaks')
 
   // S/N near each line, on the observed pixels (rest frame, so the windows line up).

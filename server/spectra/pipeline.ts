@@ -1,16 +1,17 @@
 import { DEFAULT_CLASSIFICATION_REGION, LATE_TYPE_FROM, LATE_TYPE_REGION, SPEED_OF_LIGHT_KMS, gridIndex, gridWavelengths, type LogGrid } from '../../shared/grid'
 import type { Spectrum1D } from '../../shared/spectrum'
-import { analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
+import { analyseAtVelocity, analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
 import { solveLinearInPlace } from './linear'
 import { SortedWindow, kthSmallest, lowerBound } from './prepare/stats'
 import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
 import { fitSpectrumAtLevel, type LevelFit } from './match/classify'
 import { maskSpectrumSpikes } from './prepare/mask'
 import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type StandardsUsed } from './match/instrument'
-import { measureSpectrumRadialVelocity, shiftSpectrumToRest } from './prepare/rv'
+import { measureSpectrumRadialVelocity, shiftSpectrumToRest, type RadialVelocityResult } from './prepare/rv'
+import { estimateSpectrumSnrByWindow } from './prepare/snr'
 
 /** Version of the numeric pipeline; stored with every measurement and suggestion it makes. */
-export const PIPELINE_VERSION = '2.3.1'
+export const PIPELINE_VERSION = '2.4.0'
 
 export interface PipelineInput {
   spectrum: Spectrum1D
@@ -127,9 +128,10 @@ export function subtractRunningMedian(values: Float64Array, wavelength: Float64A
  * 1. Resolution: the observer's, or estimated against the library (estimateResolution); the
  *    spectrum is then brought to the library level at or just above it (levelFor) — the sharper
  *    of spectrum and standards is always brought to the coarser.
- * 2. Prepare at that level (no line measurements), find the best standard, measure the radial
- *    velocity against it and analyse the spectrum shifted to rest, with every line (the continuum
- *    fitted in ln F, so that reddening and flux calibration do not change how it is rectified).
+ * 2. Prepare at that level (no line measurements; the continuum fitted in ln F, so that reddening
+ *    and flux calibration do not change how it is rectified), find the best standard, measure the
+ *    radial velocity against it, shift the prepared spectrum to rest on the grid and measure every
+ *    line there (analyseAtVelocity): the spectrum is prepared once.
  * 3. Match (matchSpectrum). When the type is within two subtypes of an end of the level's types
  *    and a coarser level has standards beyond it (O stars are only in the 15 Å library), the
  *    spectrum is matched there too and the coarser result kept if it lies beyond.
@@ -212,7 +214,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   const velocity = velocityAgainst(input, options, first, standardOnGrid(library, located.level, bestRow))
   const residual = first.snrMethod === 'der-snr' ? residualSnr(library, located.level, bestRow, first, input.spectrum, region, velocity.found ? velocity.velocity : 0) : null
   if (residual !== null) options.residualSnr = residual
-  const rest = analyseAtRest(input, options, velocity)
+  const rest = analyseAtRest(input, options, first, velocity)
   let analysis = rest.analysis
   steps.analyseRest = (performance.now() - t) / 1000
 
@@ -245,7 +247,7 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
     }
   }
   if (suggestion.typeNote) notes.push(suggestion.typeNote)
-  const notStar = notStarReason(library, analysis, resolution.level!, suggestion)
+  const notStar = notStarReason(library, analysis, rest.spectrum, resolution.level!, suggestion)
   if (notStar) {
     notes.push(`Not a star: ${notStar}.`)
     suggestion = {
@@ -433,12 +435,35 @@ function coarserLevelBeyond(library: PreparedMatchLibrary, level: number, typeCo
  * of a cool star runs below the true one among its crowded lines and the gaps between lines would
  * pass for emission.
  */
-function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, level: number, suggestion: MatchResult): string | null {
+/** Width of the stretches whose own S/N sets the not-star threshold, Å. */
+const NOISE_BLOCK = 100
+
+/**
+ * Noise per grid pixel in continuum units: 1/S/N of the 100 Å stretch of input pixels around it
+ * (DER_SNR, on the pixels as observed), where that is worse than `sigma`, the headline S/N's. A cool
+ * star's blue end is far noisier than its headline S/N says, and its noise there is not emission.
+ */
+function localNoise(rest: Spectrum1D, grid: LogGrid, sigma: number): Float64Array {
+  const wavelength = gridWavelengths(grid)
+  const start = Math.floor(wavelength[0]! / NOISE_BLOCK) * NOISE_BLOCK
+  const windows: [number, number][] = []
+  for (let lo = start; lo < wavelength[wavelength.length - 1]!; lo += NOISE_BLOCK) windows.push([lo, lo + NOISE_BLOCK])
+  const snrs = estimateSpectrumSnrByWindow(rest, { windows })
+  const out = new Float64Array(wavelength.length)
+  for (let i = 0; i < out.length; i++) {
+    const snr = snrs[Math.floor((wavelength[i]! - start) / NOISE_BLOCK)]
+    out[i] = snr !== null && snr !== undefined && snr > 0 ? Math.max(sigma, 1 / snr) : sigma
+  }
+  return out
+}
+
+function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, rest: Spectrum1D, level: number, suggestion: MatchResult): string | null {
   const p = analysis.prepared
   const levelData = library.level(level)
   const row = levelData.rows.indexOf(library.standards.findIndex((s) => s.id === suggestion.bestStandardId))
   if (row < 0) return null
   const sigma = analysis.snr !== null && analysis.snr > 0 ? 1 / analysis.snr : 0.02
+  const local = localNoise(rest, p.grid, sigma)
   const { offset, pixels } = library
   const template = levelData.flux.subarray(row * pixels, (row + 1) * pixels)
   let m = 0,
@@ -474,7 +499,7 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
       residual[i] = used ? y - (a + b * x) : Number.NaN
       ownPlusOne[i] = 1 + (used ? y - 1 : Number.NaN)
     }
-    const emission = notStarEvidence(library.wavelength, ownPlusOne, subtractRunningMedian(residual, library.wavelength, 150), sigma, level, suggestion.typeCode)
+    const emission = notStarEvidence(library.wavelength, ownPlusOne, subtractRunningMedian(residual, library.wavelength, 150), local.subarray(offset, offset + pixels), level, suggestion.typeCode)
     if (emission) return emission.reason
   }
   // Beyond the fitted span only the rectified spectrum speaks: strong emission there (Hβ and
@@ -484,7 +509,8 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
   const red = new Float64Array(p.rectified.length)
   const redFrom = library.wavelength[Math.max(0, fitEnd - 1)]!
   for (let i = 0; i < red.length; i++) red[i] = p.mask[i] !== 0 || wavelength[i]! < redFrom ? Number.NaN : p.rectified[i]!
-  const far = notStarEvidence(wavelength, red, red, Math.max(sigma, 0.05), level, suggestion.typeCode)
+  for (let i = 0; i < local.length; i++) local[i] = Math.max(local[i]!, 0.05)
+  const far = notStarEvidence(wavelength, red, red, local, level, suggestion.typeCode)
   if (far) return far.reason
   return null
 }
@@ -498,26 +524,12 @@ function velocityAgainst(input: PipelineInput, options: AnalyseOptions, first: A
   })
 }
 
-/**
- * analyseSpectrum(spectrum, { ...options, rvReference }) with the velocity already measured
- * (velocityAgainst): the spectrum shifted to rest is analysed once. The S/N region is shifted with
- * it so the same observed pixels give the headline S/N.
- */
-function analyseAtRest(input: PipelineInput, options: AnalyseOptions, result: ReturnType<typeof measureSpectrumRadialVelocity>): { analysis: AnalysisResult; spectrum: Spectrum1D } {
+/** The spectrum analysed at rest (analyseAtVelocity) from its observed-frame preparation, and its pixels shifted to rest. */
+function analyseAtRest(input: PipelineInput, options: AnalyseOptions, first: AnalysisResult, result: RadialVelocityResult): { analysis: AnalysisResult; spectrum: Spectrum1D } {
   const rvRegion = options.rvRegion ?? input.region ?? DEFAULT_CLASSIFICATION_REGION
   const restOptions: AnalyseOptions = { ...options, ...(options.rvRegion || input.region ? { rvRegion } : {}) }
-  if (!result.found) {
-    const analysis = analyseSpectrum(input.spectrum, restOptions)
-    // Where analyseSpectrum puts it: before the pseudo-continuum note.
-    const at = analysis.warnings.findIndex((w) => w.startsWith('molecular bands dominate'))
-    analysis.warnings.splice(at < 0 ? analysis.warnings.length : at, 0, `radial velocity not measured: ${result.reason}`)
-    return { analysis, spectrum: input.spectrum }
-  }
-  const factor = 1 / (1 + result.velocity / SPEED_OF_LIGHT_KMS)
-  const snrRegion = options.snrRegion ?? DEFAULT_CLASSIFICATION_REGION
-  const rest = shiftSpectrumToRest(input.spectrum, { velocity: result.velocity })
-  const analysis = analyseSpectrum(rest, { ...restOptions, snrRegion: [snrRegion[0] * factor, snrRegion[1] * factor] })
-  return { analysis: { ...analysis, rv: { v: result.velocity, error: result.error } }, spectrum: rest }
+  const analysis = analyseAtVelocity(input.spectrum, first, result, restOptions)
+  return { analysis, spectrum: result.found ? shiftSpectrumToRest(input.spectrum, { velocity: result.velocity }) : input.spectrum }
 }
 
 function matchInput(analysis: AnalysisResult, fwhm: number | undefined) {

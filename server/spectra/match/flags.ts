@@ -277,14 +277,22 @@ export interface NotStarEvidence {
  * Null when there is none.
  * @param wavelength wavelengths, Å; @param rectified flux / continuum, high-passed (NaN where not used)
  * @param residual 1 + spectrum − best fit, high-passed, on the same pixels
- * @param sigma noise per pixel in continuum units
+ * @param sigma noise per pixel in continuum units: one value, or one per pixel where it varies along the spectrum
  * @param resolution FWHM Å (features narrower are noise)
  * @param typeCode the type the spectrum matched
  */
-export function notStarEvidence(wavelength: Float64Array, rectified: ArrayLike<number>, residual: ArrayLike<number>, sigma: number, resolution: number, typeCode: number): NotStarEvidence | null {
+export function notStarEvidence(
+  wavelength: Float64Array,
+  rectified: ArrayLike<number>,
+  residual: ArrayLike<number>,
+  sigma: number | ArrayLike<number>,
+  resolution: number,
+  typeCode: number,
+): NotStarEvidence | null {
   // The heads of the TiO bands of M stars rise steeply out of the band before them: only strong features count there.
-  const threshold = Math.max(typeCode >= 58 ? 0.5 : 0.2, 8 * sigma)
-  const above = (i: number) => rectified[i]! - 1 > threshold && residual[i]! - 1 > threshold
+  const floor = typeCode >= 58 ? 0.5 : 0.2
+  const threshold = (i: number) => Math.max(floor, 8 * (typeof sigma === 'number' ? sigma : sigma[i]!))
+  const above = (i: number) => rectified[i]! - 1 > threshold(i) && residual[i]! - 1 > threshold(i)
   const features: NotStarEvidence['emission'] = []
   let i = 0
   const n = wavelength.length
