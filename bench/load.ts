@@ -9,8 +9,8 @@
 // review of an original spectrum reads them, and that is what is timed). Calls are made by SQL from
 // each suggestion (two classifiers on 62 % of the spectra, agreeing within a subtype), with the
 // decisions that follow (at 100 000 spectra, about 62 000 called).
-import { spawn, type ChildProcess } from 'node:child_process'
-import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs'
+import { execFileSync, spawn, type ChildProcess } from 'node:child_process'
+import { mkdirSync, mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs'
 import { availableParallelism, loadavg, tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { QueryTypes, type Sequelize } from 'sequelize'
@@ -98,6 +98,30 @@ async function startServer(env: NodeJS.ProcessEnv): Promise<{ url: string; child
   }
 }
 
+const CLOCK_TICKS = Number(execFileSync('getconf', ['CLK_TCK'], { encoding: 'utf8' }).trim())
+
+/**
+ * CPU seconds (user + system, every thread) used so far by the processes of the process groups
+ * led by `groups` and by `pids`, from /proc/<pid>/stat (proc(5): fields 5, 14 and 15).
+ */
+function cpuSeconds(groups: number[], pids: number[] = []): number {
+  let ticks = 0
+  for (const entry of readdirSync('/proc')) {
+    if (!/^\d+$/.test(entry)) continue
+    let stat: string
+    try {
+      stat = readFileSync(`/proc/${entry}/stat`, 'utf8')
+    } catch {
+      continue // exited meanwhile
+    }
+    // The command name (field 2) may hold spaces: the fields after it start past its ')'.
+    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ')
+    if (groups.includes(Number(fields[2])) || pids.includes(Number(entry))) ticks += Number(fields[11]) + Number(fields[12])
+  }
+  return ticks / CLOCK_TICKS
+}
+const mariadbPid = () => Number(readFileSync(join(dir, 'mariadb', 'mysqld.pid'), 'utf8').trim())
+
 async function cleanup(): Promise<void> {
   await Promise.all(children.map(stopProcess))
   await sequelize.close().catch(() => undefined)
@@ -173,6 +197,8 @@ interface IngestResult {
   sendingSeconds: number
   /** Seconds for the untimed warm-up files, sent to the freshly started processes first. */
   warmUpSeconds: number
+  /** CPU milliseconds per timed spectrum: web server and worker processes, MariaDB, and this benchmark's client. */
+  cpuMsPerSpectrum: { server: number; database: number; client: number }
   failed: number
   refused: number
 }
@@ -235,15 +261,24 @@ async function ingest(
   // Into a campaign of their own, so the benchmark campaign holds the timed files alone.
   const warmUpCampaign = await ingestCampaign(`${campaign.code}-W`)
   const warmUpSeconds = (await upload(warmUp, warmUpCampaign)).seconds
+  const groups = [server.child, ...workers].map((c) => c.pid!)
+  const before = { server: cpuSeconds(groups), database: cpuSeconds([], [mariadbPid()]), client: process.cpuUsage() }
   const { seconds, sendingSeconds } = await upload(files, campaign)
+  const clientCpu = process.cpuUsage(before.client)
+  const perSpectrum = (cpu: number) => (1000 * cpu) / files.length
+  const cpuMsPerSpectrum = {
+    server: perSpectrum(cpuSeconds(groups) - before.server),
+    database: perSpectrum(cpuSeconds([], [mariadbPid()]) - before.database),
+    client: perSpectrum((clientCpu.user + clientCpu.system) / 1e6),
+  }
   const [failed] = await sequelize.query<{ n: number }>("SELECT COUNT(*) AS n FROM processing_jobs j JOIN spectra s ON s.id = j.spectrum_id WHERE s.campaign_id IN (:c) AND j.status = 'failed'", {
     replacements: { c: [campaign.id, warmUpCampaign.id] },
     type: QueryTypes.SELECT,
   })
   await Promise.all([stopProcess(server.child), ...workers.map(stopProcess)])
-  const result = { label, files: files.length, seconds, perSecond: files.length / seconds, sendingSeconds, warmUpSeconds, failed: Number(failed!.n), refused }
+  const result = { label, files: files.length, seconds, perSecond: files.length / seconds, sendingSeconds, warmUpSeconds, cpuMsPerSpectrum, failed: Number(failed!.n), refused }
   say(
-    `ingest ${label}: ${files.length} files in ${seconds.toFixed(1)} s = ${result.perSecond.toFixed(1)}/s, the last file answered after ${sendingSeconds.toFixed(1)} s (after ${warmUp.length} warm-up files in ${warmUpSeconds.toFixed(1)} s), ${result.failed} failed, ${refused} refused`,
+    `ingest ${label}: ${files.length} files in ${seconds.toFixed(1)} s = ${result.perSecond.toFixed(1)}/s, the last file answered after ${sendingSeconds.toFixed(1)} s (after ${warmUp.length} warm-up files in ${warmUpSeconds.toFixed(1)} s); CPU per spectrum ${cpuMsPerSpectrum.server.toFixed(1)} ms server, ${cpuMsPerSpectrum.database.toFixed(1)} ms MariaDB, ${cpuMsPerSpectrum.client.toFixed(1)} ms client; ${result.failed} failed, ${refused} refused`,
   )
   return result
 }
@@ -483,12 +518,18 @@ lines.push(
 lines.push(
   '## Ingest through the API',
   '',
-  `${INGEST_FILES} real upload files (FITS and text), ${FILES_PER_REQUEST} per request, two requests at a time; from the first byte sent until every job is done. The sending column is when the last file was answered: from then on the queue drains with no uploads to read and store, so a rate taken over part of the run says little about a long one; the whole run's does. Before them, ${WARM_UP_FILES} other files go to the freshly started processes, untimed: every processing thread loads its standards and prepares the library level for these spectra once (seconds of CPU), which says nothing of the rate at which 100 000 spectra go through. Their time is the warm-up column.`,
+  `${INGEST_FILES} real upload files (FITS and text), ${FILES_PER_REQUEST} per request, two requests at a time; from the first byte sent until every job is done. The sending column is when the last file was answered: from then on the queue drains with no uploads to read and store, so a rate taken over part of the run says little about a long one; the whole run's does. Before them, ${WARM_UP_FILES} other files go to the freshly started processes, untimed: every processing thread loads its standards and prepares the library level for these spectra once (seconds of CPU), which says nothing of the rate at which 100 000 spectra go through. Their time is the warm-up column. CPU per spectrum is the user and system time of the timed files (every thread, from /proc): of the web server and worker processes, of mariadbd, and of this benchmark's own client. It leaves out time spent waiting for a core, so other work on the machine moves it far less than the rate; the cores divided by their sum is the rate this work allows when it has the machine to itself.`,
   '',
 )
-lines.push(`| processing | warm-up: ${WARM_UP_FILES} files, s | files | seconds | sending, s | spectra/s | failed jobs | refused files |`, '| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: |')
+lines.push(
+  `| processing | warm-up: ${WARM_UP_FILES} files, s | files | seconds | sending, s | spectra/s | CPU per spectrum, ms: server / MariaDB / client | failed jobs | refused files |`,
+  '| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |',
+)
 for (const r of ingests) {
-  lines.push(`| ${r.label} | ${r.warmUpSeconds.toFixed(1)} | ${r.files} | ${r.seconds.toFixed(1)} | ${r.sendingSeconds.toFixed(1)} | ${r.perSecond.toFixed(1)} | ${r.failed} | ${r.refused} |`)
+  const cpu = r.cpuMsPerSpectrum
+  lines.push(
+    `| ${r.label} | ${r.warmUpSeconds.toFixed(1)} | ${r.files} | ${r.seconds.toFixed(1)} | ${r.sendingSeconds.toFixed(1)} | ${r.perSecond.toFixed(1)} | ${cpu.server.toFixed(1)} / ${cpu.database.toFixed(1)} / ${cpu.client.toFixed(1)} | ${r.failed} | ${r.refused} |`,
+  )
 }
 lines.push('', '## Latency, ms (p50 / p95), concurrency 1 and 8', '')
 lines.push(
