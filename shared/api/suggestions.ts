@@ -1,6 +1,10 @@
 import { z } from 'zod'
 import { mkFields } from './common'
 
+/** Quality flags a suggestion can carry (the pipeline's matcher raises them; the screens explain each). */
+export const SUGGESTION_FLAGS = ['low-snr', 'emission', 'poor-fit', 'outside-grid', 'possible-composite', 'not-mk', 'not-star'] as const
+export type SuggestionFlag = (typeof SUGGESTION_FLAGS)[number]
+
 /** An estimate with its 1σ spread. */
 export const EstimateSummary = z.object({ value: z.number(), error: z.number() })
 export type EstimateSummary = z.infer<typeof EstimateSummary>

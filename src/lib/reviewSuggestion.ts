@@ -1,3 +1,5 @@
+import type { SuggestionFlag } from '@shared/api/suggestions'
+
 /** Reads the JSON parts of a suggestion (candidates, votes) for display, without trusting their shape. */
 
 export interface Candidate {
@@ -52,16 +54,17 @@ export function readVotes(raw: unknown): Vote[] {
 }
 
 /** Plain words for the pipeline's quality flags. */
-export const FLAG_LABELS: Record<string, string> = {
+export const FLAG_LABELS: Record<SuggestionFlag, string> = {
   'low-snr': 'Low S/N',
   emission: 'Emission',
   'poor-fit': 'Poor fit',
   'outside-grid': 'Outside the grid',
   'possible-composite': 'Possible composite',
   'not-mk': 'White dwarf / non-MK',
+  'not-star': 'Not a star',
 }
 
-export const flagLabel = (flag: string): string => FLAG_LABELS[flag] ?? FLAG_LABELS[flag.replace(/_/g, '-')] ?? flag.replace(/[-_]/g, ' ')
+export const flagLabel = (flag: string): string => (FLAG_LABELS as Record<string, string>)[flag.replace(/_/g, '-')] ?? flag.replace(/[-_]/g, ' ')
 
 export interface GridProbability {
   typeCode: number

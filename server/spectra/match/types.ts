@@ -1,7 +1,7 @@
+import type { SuggestionFlag } from '../../../shared/api/suggestions'
 import type { LineMeasurement } from '../measure/types'
 
-/** Quality flags a suggestion can carry. */
-export type SuggestionFlag = 'low-snr' | 'emission' | 'poor-fit' | 'outside-grid' | 'possible-composite' | 'not-mk' | 'not-star'
+export type { SuggestionFlag }
 
 /** What the matcher needs of a prepared spectrum (see analyseSpectrum's `prepared`). */
 export interface MatchInput {
