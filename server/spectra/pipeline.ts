@@ -429,12 +429,6 @@ function coarserLevelBeyond(library: PreparedMatchLibrary, level: number, typeCo
   return null
 }
 
-/**
- * Why the spectrum is not of a star, or null. Emission is looked for in the residual from the best
- * standard (1 + spectrum − fit) rather than in the rectified spectrum, because the fitted continuum
- * of a cool star runs below the true one among its crowded lines and the gaps between lines would
- * pass for emission.
- */
 /** Width of the stretches whose own S/N sets the not-star threshold, Å. */
 const NOISE_BLOCK = 100
 
@@ -457,6 +451,12 @@ function localNoise(rest: Spectrum1D, grid: LogGrid, sigma: number): Float64Arra
   return out
 }
 
+/**
+ * Why the spectrum is not of a star, or null. Emission is looked for in the residual from the best
+ * standard (1 + spectrum − fit) rather than in the rectified spectrum, because the fitted continuum
+ * of a cool star runs below the true one among its crowded lines and the gaps between lines would
+ * pass for emission.
+ */
 function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, rest: Spectrum1D, level: number, suggestion: MatchResult): string | null {
   const p = analysis.prepared
   const levelData = library.level(level)
