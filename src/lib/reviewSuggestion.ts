@@ -1,6 +1,6 @@
-import type { SuggestionFlag } from '@shared/api/suggestions'
-
 /** Reads the JSON parts of a suggestion (candidates, votes) for display, without trusting their shape. */
+
+import type { SuggestionFlag } from '@shared/api/suggestions'
 
 export interface Candidate {
   standardId: number
