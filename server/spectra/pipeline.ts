@@ -437,8 +437,7 @@ const NOISE_BLOCK = 100
  * (DER_SNR, on the pixels as observed), where that is worse than `sigma`, the headline S/N's. A cool
  * star's blue end is far noisier than its headline S/N says, and its noise there is not emission.
  */
-function localNoise(rest: Spectrum1D, grid: LogGrid, sigma: number): Float64Array {
-  const wavelength = gridWavelengths(grid)
+function localNoise(rest: Spectrum1D, wavelength: Float64Array, sigma: number): Float64Array {
   const start = Math.floor(wavelength[0]! / NOISE_BLOCK) * NOISE_BLOCK
   const windows: [number, number][] = []
   for (let lo = start; lo < wavelength[wavelength.length - 1]!; lo += NOISE_BLOCK) windows.push([lo, lo + NOISE_BLOCK])
@@ -463,7 +462,8 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
   const row = levelData.rows.indexOf(library.standards.findIndex((s) => s.id === suggestion.bestStandardId))
   if (row < 0) return null
   const sigma = analysis.snr !== null && analysis.snr > 0 ? 1 / analysis.snr : 0.02
-  const local = localNoise(rest, p.grid, sigma)
+  const wavelength = gridWavelengths(p.grid)
+  const local = localNoise(rest, wavelength, sigma)
   const { offset, pixels } = library
   const template = levelData.flux.subarray(row * pixels, (row + 1) * pixels)
   let m = 0,
@@ -504,7 +504,6 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
   }
   // Beyond the fitted span only the rectified spectrum speaks: strong emission there (Hβ and
   // [O III] of a galaxy at z ≈ 0.1–0.3) away from Hα and He I.
-  const wavelength = gridWavelengths(p.grid)
   // A loop: TypedArray.from with a mapping function is many times slower.
   const red = new Float64Array(p.rectified.length)
   const redFrom = library.wavelength[Math.max(0, fitEnd - 1)]!

@@ -292,7 +292,10 @@ export function notStarEvidence(
   // The heads of the TiO bands of M stars rise steeply out of the band before them: only strong features count there.
   const floor = typeCode >= 58 ? 0.5 : 0.2
   const threshold = (i: number) => Math.max(floor, 8 * (typeof sigma === 'number' ? sigma : sigma[i]!))
-  const above = (i: number) => rectified[i]! - 1 > threshold(i) && residual[i]! - 1 > threshold(i)
+  const above = (i: number) => {
+    const t = threshold(i)
+    return rectified[i]! - 1 > t && residual[i]! - 1 > t
+  }
   const features: NotStarEvidence['emission'] = []
   let i = 0
   const n = wavelength.length
