@@ -3,7 +3,7 @@ import type { Spectrum1D } from '../../shared/spectrum'
 import { analyseAtVelocity, analyseSpectrum, type AnalyseOptions, type AnalysisResult } from './analyse'
 import { solveLinearInPlace } from './linear'
 import { SortedWindow, kthSmallest, lowerBound } from './prepare/stats'
-import { estimateResolution, levelFor, matchSpectrum, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
+import { estimateResolution, levelFor, matchSpectrum, mayShowEmission, notStarEvidence, standardOnGrid, type LibraryLevel, type MatchResult, type PreparedMatchLibrary } from './match'
 import { fitSpectrumAtLevel, type LevelFit } from './match/classify'
 import { maskSpectrumSpikes } from './prepare/mask'
 import { libraryForInstrument, standardsUsed, type InstrumentMatchOptions, type StandardsUsed } from './match/instrument'
@@ -463,7 +463,8 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
   if (row < 0) return null
   const sigma = analysis.snr !== null && analysis.snr > 0 ? 1 / analysis.snr : 0.02
   const wavelength = gridWavelengths(p.grid)
-  const local = localNoise(rest, wavelength, sigma)
+  let local: Float64Array | null = null
+  const noise = () => (local ??= localNoise(rest, wavelength, sigma))
   const { offset, pixels } = library
   const template = levelData.flux.subarray(row * pixels, (row + 1) * pixels)
   let m = 0,
@@ -499,8 +500,10 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
       residual[i] = used ? y - (a + b * x) : Number.NaN
       ownPlusOne[i] = 1 + (used ? y - 1 : Number.NaN)
     }
-    const emission = notStarEvidence(library.wavelength, ownPlusOne, subtractRunningMedian(residual, library.wavelength, 150), local.subarray(offset, offset + pixels), level, suggestion.typeCode)
-    if (emission) return emission.reason
+    if (mayShowEmission(ownPlusOne, suggestion.typeCode)) {
+      const emission = notStarEvidence(library.wavelength, ownPlusOne, subtractRunningMedian(residual, library.wavelength, 150), noise().subarray(offset, offset + pixels), level, suggestion.typeCode)
+      if (emission) return emission.reason
+    }
   }
   // Beyond the fitted span only the rectified spectrum speaks: strong emission there (Hβ and
   // [O III] of a galaxy at z ≈ 0.1–0.3) away from Hα and He I.
@@ -508,10 +511,10 @@ function notStarReason(library: PreparedMatchLibrary, analysis: AnalysisResult, 
   const red = new Float64Array(p.rectified.length)
   const redFrom = library.wavelength[Math.max(0, fitEnd - 1)]!
   for (let i = 0; i < red.length; i++) red[i] = p.mask[i] !== 0 || wavelength[i]! < redFrom ? Number.NaN : p.rectified[i]!
-  for (let i = 0; i < local.length; i++) local[i] = Math.max(local[i]!, 0.05)
-  const far = notStarEvidence(wavelength, red, red, local, level, suggestion.typeCode)
-  if (far) return far.reason
-  return null
+  if (!mayShowEmission(red, suggestion.typeCode)) return null
+  const floored = noise()
+  for (let i = 0; i < floored.length; i++) floored[i] = Math.max(floored[i]!, 0.05)
+  return notStarEvidence(wavelength, red, red, floored, level, suggestion.typeCode)?.reason ?? null
 }
 
 /** The radial velocity of an observed-frame preparation against a standard, measured as analyseSpectrum would with it as rvReference. */

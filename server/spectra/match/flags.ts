@@ -289,8 +289,7 @@ export function notStarEvidence(
   resolution: number,
   typeCode: number,
 ): NotStarEvidence | null {
-  // The heads of the TiO bands of M stars rise steeply out of the band before them: only strong features count there.
-  const floor = typeCode >= 58 ? 0.5 : 0.2
+  const floor = emissionFloor(typeCode)
   const threshold = (i: number) => Math.max(floor, 8 * (typeof sigma === 'number' ? sigma : sigma[i]!))
   const above = (i: number) => {
     const t = threshold(i)
@@ -329,6 +328,23 @@ export function notStarEvidence(
     return { emission: features, reason: `emission away from every stellar line (${foreign.map((f) => `${f.wavelength} Å`).join(', ')}), as galaxies and quasars show at their redshift` }
   }
   return null
+}
+
+/** The least height above the continuum of an emission feature of a spectrum of this type (continuum units). */
+function emissionFloor(typeCode: number): number {
+  // The heads of the TiO bands of M stars rise steeply out of the band before them: only strong features count there.
+  return typeCode >= 58 ? 0.5 : 0.2
+}
+
+/**
+ * Whether any pixel of `rectified` stands above the continuum by the least height a feature of
+ * notStarEvidence needs. When none does, it finds nothing whatever the residual and the noise, so
+ * a caller need not compute them (most stars).
+ */
+export function mayShowEmission(rectified: ArrayLike<number>, typeCode: number): boolean {
+  const floor = emissionFloor(typeCode)
+  for (let i = 0; i < rectified.length; i++) if (rectified[i]! - 1 > floor) return true
+  return false
 }
 
 const round1 = (x: number) => Math.round(x * 10) / 10

@@ -28,6 +28,6 @@ export {
 } from './library'
 export { matchSpectrum, windowMode } from './classify'
 export { classText, type Candidate, type Estimate, type MatchInput, type MatchOptions, type MatchResult, type ParameterEstimate, type SuggestionFlag, type Vote } from './types'
-export { hasBalmerEmission, notStarEvidence, type NotStarEvidence } from './flags'
+export { hasBalmerEmission, mayShowEmission, notStarEvidence, type NotStarEvidence } from './flags'
 export { estimateResolution, type ResolutionEstimate } from './resolution'
 export { standardOnGrid } from './reference'
