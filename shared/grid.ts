@@ -31,11 +31,20 @@ export function gridWavelength(grid: LogGrid, i: number): number {
   return grid.start * Math.exp(grid.step * i)
 }
 
-/** All pixel wavelengths, Å. */
+/** Wavelengths of the grids asked for, by start, step and length: a copy costs far less than an exp per pixel. */
+const wavelengthsByGrid = new Map<string, Float64Array>()
+
+/** All pixel wavelengths, Å: an array of the caller's own. */
 export function gridWavelengths(grid: LogGrid): Float64Array {
-  const out = new Float64Array(grid.length)
-  for (let i = 0; i < grid.length; i++) out[i] = grid.start * Math.exp(grid.step * i)
-  return out
+  const key = `${grid.start} ${grid.step} ${grid.length}`
+  let wavelengths = wavelengthsByGrid.get(key)
+  if (!wavelengths) {
+    wavelengths = new Float64Array(grid.length)
+    for (let i = 0; i < grid.length; i++) wavelengths[i] = grid.start * Math.exp(grid.step * i)
+    if (wavelengthsByGrid.size >= 16) wavelengthsByGrid.delete(wavelengthsByGrid.keys().next().value!)
+    wavelengthsByGrid.set(key, wavelengths)
+  }
+  return wavelengths.slice()
 }
 
 /** Fractional pixel index of wavelength λ (Å). */
