@@ -235,10 +235,14 @@ export function runPipeline(input: PipelineInput, library?: PreparedMatchLibrary
   if (suggestion.typeCode <= types[0]! + 2 || suggestion.typeCode >= types[types.length - 1]! - 2) {
     const beyond = coarserLevelBeyond(library, resolution.level!, suggestion.typeCode)
     if (beyond !== null) {
-      const wide = analyseSpectrum(rest.spectrum, atLevel(base, fwhm, beyond))
-      const other = matchSpectrum(library, matchInput(wide, beyond), usedOptions)
+      // Whether the coarser level serves is decided by the type, which the line measurements do not
+      // change (only the emission flag reads them): a look without them first, and the whole
+      // analysis at that level only when it does serve (rarely: most stars near an end stay).
+      const probe = matchSpectrum(library, matchInput(analyseSpectrum(rest.spectrum, atLevel(quick, fwhm, beyond)), beyond), usedOptions)
       const edge = library.level(resolution.level!).typeCodes
-      if (other.typeCode < edge[0]! || other.typeCode > edge[edge.length - 1]!) {
+      if (probe.typeCode < edge[0]! || probe.typeCode > edge[edge.length - 1]!) {
+        const wide = analyseSpectrum(rest.spectrum, atLevel(base, fwhm, beyond))
+        const other = matchSpectrum(library, matchInput(wide, beyond), usedOptions)
         notes.push(`The standards at ${resolution.level} Å end at ${suggestion.spectralType.split(' ')[0]}; matched at ${beyond} Å, where the library reaches further.`)
         suggestion = other
         analysis = { ...wide, rv: analysis.rv }
