@@ -29,7 +29,8 @@ const SPECIAL: Record<string, number> = {
 
 /** Parses one numeric token; undefined when it is not a number. */
 export function parseNumberToken(token: string): number | undefined {
-  if (NUMBER.test(token)) return Number(token.replace(/[Dd]/, 'E'))
+  // Fortran's D exponent (1.5D3) is the only form NUMBER admits that Number() does not read.
+  if (NUMBER.test(token)) return Number(token.includes('D') || token.includes('d') ? token.replace(/[Dd]/, 'E') : token)
   const key = token.toLowerCase()
   return Object.hasOwn(SPECIAL, key) ? SPECIAL[key] : undefined
 }
@@ -371,7 +372,10 @@ export function readTextSpectrum(bytes: Uint8Array, fileName: string, options: R
   if (factor === undefined)
     throw new SpectrumReadError('UNKNOWN_UNIT', `${fileName}: wavelength unit '${unit}' is not one of Angstrom, nm, um, m; choose the unit when you submit (--unit with npm run classify)`)
 
-  const wavelength = Float64Array.from(cols[columns.wave]!, (v) => v * factor)
+  // A loop: TypedArray.from with a mapping function is many times slower.
+  const waves = cols[columns.wave]!
+  const wavelength = new Float64Array(waves.length)
+  for (let i = 0; i < waves.length; i++) wavelength[i] = waves[i]! * factor
   const flux = Float64Array.from(cols[columns.flux]!)
   const waveName = columns.names[columns.wave] ? parseHeaderToken(columns.names[columns.wave]!).word : ''
   if (/vac/.test(waveName)) medium.push({ vacuum: true, source: `column name '${columns.names[columns.wave]}'`, strength: 3 })
