@@ -10,6 +10,7 @@ import { DEFAULT_CLASSIFICATION_REGION } from '../../shared/grid'
 import { float32ToBuffer, float64ToBuffer } from '../lib/binary'
 import { readSpectrum, unpackZip, type ReadMeta, type ReadOptions, type ReadSuccess, type RefusalCode, type UnzipResult, type ZipLimits } from '../spectra/io'
 import { estimateSpectrumSnr } from '../spectra/prepare/snr'
+import { kthSmallest } from '../spectra/prepare/stats'
 
 /** An uploaded file's bytes: in memory, or where the upload parser wrote them. */
 export type FileSource = { bytes: Uint8Array } | { path: string }
@@ -62,8 +63,8 @@ const bytesOf = async (source: FileSource): Promise<Uint8Array> => {
 function medianDispersion(wl: Float64Array): number {
   const d = new Float64Array(wl.length - 1)
   for (let i = 1; i < wl.length; i++) d[i - 1] = wl[i]! - wl[i - 1]!
-  d.sort()
-  return d[d.length >> 1] ?? 0
+  // The value a sort puts in the middle, found by selection.
+  return d.length > 0 ? kthSmallest(d, d.length >> 1) : 0
 }
 
 /** The columns and arrays a read gives a spectrum row and its blob. */

@@ -5,6 +5,7 @@
  */
 import { PolynomialRegression } from 'ml-regression'
 import { SPEED_OF_LIGHT_KMS } from '../../../shared/grid'
+import { kthSmallest } from '../prepare/stats'
 
 /** Points used for a fit: a regular subsample is as good as every pixel for a straight line. */
 const FIT_POINTS = 400
@@ -38,7 +39,8 @@ export function fitDispersion(wavelength: Float64Array): DispersionFit {
   const y = idx.map((i) => wavelength[i]!)
   const steps = new Float64Array(n - 1)
   for (let i = 1; i < n; i++) steps[i - 1] = Math.abs(wavelength[i]! - wavelength[i - 1]!)
-  const medianStep = steps.sort()[(n - 1) >> 1] ?? 0
+  // The value a sort puts in the middle, found by selection.
+  const medianStep = n > 1 ? kthSmallest(steps, (n - 1) >> 1) : 0
   const linear = new PolynomialRegression(x, y, 1)
   const log = new PolynomialRegression(x, y.map(Math.log10), 1)
   // Residuals at every pixel: a solution that bends between the fitted points must not pass as linear.
