@@ -35,9 +35,12 @@ export async function claimJobs(sequelize: Sequelize, count: number, leaseMs: nu
       )
       if (rows.length === 0) return []
       const now = new Date()
-      await ProcessingJob.update(
-        { status: 'running', startedAt: now, attempts: sequelize.literal('attempts + 1') as never, leaseExpiresAt: new Date(now.getTime() + leaseMs) },
-        { where: { id: { [Op.in]: rows.map((r) => Number(r.id)) } }, transaction },
+      const ids = rows.map((r) => Number(r.id))
+      // A statement of its own rather than Model.update: this runs for every few jobs.
+      await executeInTransaction(
+        transaction,
+        `UPDATE processing_jobs SET status = 'running', started_at = ?, attempts = attempts + 1, lease_expires_at = ? WHERE id IN (${ids.map(() => '?').join(', ')})`,
+        [sqlTime(now), sqlTime(new Date(now.getTime() + leaseMs)), ...ids],
       )
       return rows.map((r) => ({ id: Number(r.id), spectrumId: Number(r.spectrum_id) }))
     }),
